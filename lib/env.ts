@@ -1,0 +1,53 @@
+import { z } from "zod";
+
+/**
+ * Configuration, parsed once. Every hosted service is reached through these values only, so pointing
+ * Partita at real S3 or SMTP is a matter of configuration. Bad configuration fails at start with one
+ * clear line per problem instead of a confusing error deep inside an SDK.
+ */
+const environmentSchema = z.object({
+  DATABASE_URL: z.url({ message: "DATABASE_URL must be a postgres:// URL" }),
+  NEXTAUTH_SECRET: z.string().min(32, "NEXTAUTH_SECRET must be at least 32 characters"),
+  NEXTAUTH_URL: z.url().default("http://127.0.0.1:3000"),
+  S3_ENDPOINT: z.url().optional(),
+  S3_REGION: z.string().default("us-east-1"),
+  S3_BUCKET: z.string().min(3).default("partita"),
+  S3_ACCESS_KEY_ID: z.string().min(1),
+  S3_SECRET_ACCESS_KEY: z.string().min(1),
+  S3_FORCE_PATH_STYLE: z
+    .enum(["true", "false"])
+    .default("false")
+    .transform((value) => value === "true"),
+  SMTP_HOST: z.string().default("127.0.0.1"),
+  SMTP_PORT: z.coerce.number().int().positive().default(2525),
+  SMTP_USER: z.string().optional(),
+  SMTP_PASSWORD: z.string().optional(),
+  SMTP_SECURE: z
+    .enum(["true", "false"])
+    .default("false")
+    .transform((value) => value === "true"),
+  MAIL_FROM: z.string().default("Partita <no-reply@partita.local>"),
+  /** Set only when the local SMTP fake is in use: the folder it writes messages to. Enables the dev inbox. */
+  DEV_MAIL_DIR: z.string().optional(),
+});
+
+export type Environment = z.infer<typeof environmentSchema>;
+
+let cached: Environment | undefined;
+
+export function readEnvironment(source: NodeJS.ProcessEnv = process.env): Environment {
+  const parsed = environmentSchema.safeParse(source);
+  if (!parsed.success) {
+    const lines = parsed.error.issues.map(
+      (issue) => `  ${issue.path.join(".") || "(environment)"}: ${issue.message}`,
+    );
+    throw new Error(`Partita's configuration is invalid:\n${lines.join("\n")}`);
+  }
+  return parsed.data;
+}
+
+/** The process environment, validated on first use and cached. */
+export function env(): Environment {
+  cached ??= readEnvironment();
+  return cached;
+}

@@ -1,0 +1,15 @@
+import path from "node:path";
+import { fileURLToPath } from "node:url";
+
+const projectRoot = path.dirname(fileURLToPath(import.meta.url));
+
+/** @type {import('next').NextConfig} */
+const nextConfig = {
+  // A stray lockfile in a parent folder would otherwise make Turbopack guess the wrong root.
+  turbopack: { root: projectRoot },
+  // These run only on the server and ship native or Node-only code that must not be bundled.
+  serverExternalPackages: ["pg", "nodemailer", "mailparser", "bcryptjs", "pg-boss"],
+  poweredByHeader: false,
+};
+
+export default nextConfig;

@@ -1,0 +1,13 @@
+import path from "node:path";
+import { defineConfig } from "vitest/config";
+
+export default defineConfig({
+  resolve: { alias: { "@": path.resolve(import.meta.dirname) } },
+  test: {
+    environment: "node",
+    include: ["tests/**/*.test.ts"],
+    exclude: ["tests/e2e/**", "node_modules/**"],
+    testTimeout: 60_000,
+    hookTimeout: 120_000,
+  },
+});
