@@ -2,7 +2,12 @@ import path from "node:path";
 import { defineConfig } from "vitest/config";
 
 export default defineConfig({
-  resolve: { alias: { "@": path.resolve(import.meta.dirname) } },
+  resolve: {
+    alias: {
+      "@": path.resolve(import.meta.dirname),
+      "server-only": path.resolve(import.meta.dirname, "tests/support/server-only-stub.ts"),
+    },
+  },
   test: {
     environment: "node",
     include: ["tests/**/*.test.ts"],
