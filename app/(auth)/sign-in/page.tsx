@@ -1,0 +1,42 @@
+import type { Metadata } from "next";
+import { redirect } from "next/navigation";
+import { SignInForm } from "@/components/auth/sign-in-form";
+import { getSessionUser } from "@/lib/auth/session";
+
+export const metadata: Metadata = { title: "Sign in" };
+
+// next-auth reports problems with these codes in the `error` query parameter.
+const ERROR_MESSAGES: Record<string, string> = {
+  Verification: "That sign-in link has expired or was already used. Ask for a new one.",
+  EmailSignin: "We couldn't send the sign-in e-mail. Please try again.",
+  SessionRequired: "Please sign in to continue.",
+};
+
+/** Only same-site paths are followed after sign-in, so the form can't be used as an open redirect. */
+function safeCallback(value: string | undefined): string {
+  return value?.startsWith("/") && !value.startsWith("//") ? value : "/";
+}
+
+export default async function SignInPage({
+  searchParams,
+}: {
+  searchParams: Promise<{ callbackUrl?: string; error?: string }>;
+}) {
+  const { callbackUrl, error } = await searchParams;
+  const target = safeCallback(callbackUrl);
+  if (await getSessionUser()) redirect(target);
+  return (
+    <>
+      <header className="space-y-1">
+        <h1 className="text-2xl font-semibold">Sign in</h1>
+        <p className="text-sm text-ink-soft">Welcome back. Your reports are where you left them.</p>
+      </header>
+      <SignInForm
+        callbackUrl={target}
+        initialError={
+          error ? (ERROR_MESSAGES[error] ?? "Sign-in failed. Please try again.") : undefined
+        }
+      />
+    </>
+  );
+}

@@ -1,0 +1,86 @@
+import "server-only";
+import { DrizzleAdapter } from "@auth/drizzle-adapter";
+import type { NextAuthOptions } from "next-auth";
+import type { Adapter } from "next-auth/adapters";
+import CredentialsProvider from "next-auth/providers/credentials";
+import EmailProvider from "next-auth/providers/email";
+import { db } from "@/db/client";
+import { accounts, sessions, users, verificationTokens } from "@/db/schema";
+import { findUserByEmail } from "@/db/queries/users";
+import { createOwnedWorkspace } from "@/db/queries/workspaces";
+import { env } from "@/lib/env";
+import { sendMail } from "@/lib/mail";
+import { signInSchema } from "@/lib/validation/auth";
+import { signInLinkMessage } from "./emails";
+import { hashPassword, verifyPassword } from "./password";
+import { clearSignInAttempts, recordSignInAttempt } from "./rate-limit";
+
+// Comparing against a throwaway hash when the address is unknown keeps the response time the
+// same whether or not an account exists, so timing cannot enumerate accounts.
+let decoyHash: Promise<string> | undefined;
+const getDecoyHash = () => (decoyHash ??= hashPassword(crypto.randomUUID()));
+
+function clientAddress(headers: Record<string, string | string[] | undefined> | undefined): string {
+  const forwarded = headers?.["x-forwarded-for"];
+  const first = Array.isArray(forwarded) ? forwarded[0] : forwarded?.split(",")[0];
+  return first?.trim() || "local";
+}
+
+/** Built on demand: configuration is read at request time, never during `next build`. */
+export function authOptions(): NextAuthOptions {
+  const config = env();
+  return {
+    secret: config.NEXTAUTH_SECRET,
+    // The Auth.js adapter shares next-auth 4's runtime contract; only the type packages differ.
+    adapter: DrizzleAdapter(db(), {
+      usersTable: users,
+      accountsTable: accounts,
+      sessionsTable: sessions,
+      verificationTokensTable: verificationTokens,
+    }) as Adapter,
+    // Credentials sign-in only works with JWT sessions in next-auth 4.
+    session: { strategy: "jwt", maxAge: 30 * 24 * 60 * 60 },
+    pages: { signIn: "/sign-in", verifyRequest: "/sign-in/check-email", error: "/sign-in" },
+    providers: [
+      CredentialsProvider({
+        name: "Password",
+        credentials: { email: { type: "email" }, password: { type: "password" } },
+        async authorize(credentials, request) {
+          const parsed = signInSchema.safeParse(credentials);
+          if (!parsed.success) return null;
+          const { email, password } = parsed.data;
+          await recordSignInAttempt(email, clientAddress(request?.headers));
+          const user = await findUserByEmail(email);
+          const matches = await verifyPassword(
+            password,
+            user?.passwordHash ?? (await getDecoyHash()),
+          );
+          if (!user?.passwordHash || !matches) return null;
+          await clearSignInAttempts(email);
+          return { id: user.id, name: user.name, email: user.email };
+        },
+      }),
+      EmailProvider({
+        from: config.MAIL_FROM,
+        maxAge: 24 * 60 * 60,
+        async sendVerificationRequest({ identifier, url }) {
+          await sendMail({ to: identifier, ...signInLinkMessage(url) });
+        },
+      }),
+    ],
+    callbacks: {
+      session({ session, token }) {
+        if (session.user && token.sub) session.user.id = token.sub;
+        return session;
+      },
+    },
+    events: {
+      // Someone who first arrives through an e-mail link gets a workspace of their own, exactly
+      // like someone who signs up with a password.
+      async createUser({ user }) {
+        const label = user.email?.split("@")[0] ?? "My";
+        await createOwnedWorkspace(db(), user.id, `${label}'s workspace`);
+      },
+    },
+  };
+}

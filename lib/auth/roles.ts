@@ -1,0 +1,32 @@
+/** Workspace roles, from most to least privileged. */
+export const ROLES = ["owner", "analyst", "reviewer"] as const;
+export type Role = (typeof ROLES)[number];
+
+/**
+ * Who may do what. Guards name a capability rather than a role so that a new role (or a change of
+ * who may upload) is one edit here, not a hunt through every action.
+ */
+export const CAPABILITIES = {
+  readWorkspace: ["owner", "analyst", "reviewer"],
+  manageMembers: ["owner"],
+  uploadData: ["owner", "analyst"],
+  runAnalysis: ["owner", "analyst"],
+} as const satisfies Record<string, readonly Role[]>;
+
+export type Capability = keyof typeof CAPABILITIES;
+
+export function roleAllows(role: Role, capability: Capability): boolean {
+  return (CAPABILITIES[capability] as readonly Role[]).includes(role);
+}
+
+export const ROLE_LABELS: Record<Role, string> = {
+  owner: "Owner",
+  analyst: "Analyst",
+  reviewer: "Reviewer",
+};
+
+export const ROLE_DESCRIPTIONS: Record<Role, string> = {
+  owner: "Manages members and settings; can also upload and analyse.",
+  analyst: "Uploads datasets and layouts, runs analyses, publishes reports.",
+  reviewer: "Reads reports, comments, approves or requests changes.",
+};

@@ -1,0 +1,13 @@
+import "server-only";
+import { getServerSession } from "next-auth";
+import { authOptions } from "./options";
+
+export type SessionUser = { id: string; email: string; name: string | null };
+
+/** The signed-in user of the current request, or null. The one place that reads the session. */
+export async function getSessionUser(): Promise<SessionUser | null> {
+  const session = await getServerSession(authOptions());
+  const user = session?.user;
+  if (!user?.id || !user.email) return null;
+  return { id: user.id, email: user.email, name: user.name ?? null };
+}

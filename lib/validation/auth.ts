@@ -1,0 +1,58 @@
+import { z } from "zod";
+import { ROLES } from "@/lib/auth/roles";
+
+export const MIN_PASSWORD_LENGTH = 10;
+
+const email = z
+  .string()
+  .trim()
+  .min(1, "Enter your e-mail address.")
+  .pipe(z.email("Enter a valid e-mail address, like name@example.com."))
+  .transform((value) => value.toLowerCase());
+
+export const signUpSchema = z.object({
+  name: z
+    .string()
+    .trim()
+    .min(1, "Enter your name.")
+    .max(100, "Keep your name under 100 characters."),
+  email,
+  password: z
+    .string()
+    .min(MIN_PASSWORD_LENGTH, `Use at least ${MIN_PASSWORD_LENGTH} characters.`)
+    .max(200, "Use at most 200 characters."),
+  workspaceName: z
+    .string()
+    .trim()
+    .min(1, "Name your workspace.")
+    .max(80, "Keep the workspace name under 80 characters."),
+  invitationToken: z.string().optional(),
+});
+export type SignUpInput = z.input<typeof signUpSchema>;
+
+export const signInSchema = z.object({
+  email,
+  password: z.string().min(1, "Enter your password."),
+});
+
+export const emailLinkSchema = z.object({ email });
+
+export const invitationSchema = z.object({
+  email,
+  role: z.enum(ROLES, { message: "Choose a role." }),
+});
+
+export const roleChangeSchema = z.object({
+  userId: z.string().min(1),
+  role: z.enum(ROLES, { message: "Choose a role." }),
+});
+
+/** Field errors keyed by field name, first message only: one clear sentence per field. */
+export function firstFieldErrors(error: z.ZodError): Record<string, string> {
+  const result: Record<string, string> = {};
+  for (const issue of error.issues) {
+    const key = String(issue.path[0] ?? "form");
+    result[key] ??= issue.message;
+  }
+  return result;
+}
