@@ -1,0 +1,181 @@
+import { spawn, type ChildProcess, type SpawnOptions } from "node:child_process";
+import { openSync, closeSync } from "node:fs";
+
+type StopFunction = () => Promise<void>;
+
+export interface SpawnRequest {
+  name: string;
+  command: string;
+  args: string[];
+  cwd?: string;
+  env?: NodeJS.ProcessEnv;
+  /** Run as this user and group (the caller must be root), e.g. PostgreSQL as `postgres`. */
+  uid?: number;
+  gid?: number;
+  /** Write the child's output to this file instead of the terminal. */
+  logFile?: string;
+  /** The signal that asks this program to shut down cleanly. */
+  stopSignal?: NodeJS.Signals;
+}
+
+export interface SupervisedProcess {
+  readonly pid: number;
+  /** Resolves with the exit code (or 1 when ended by a signal) whenever the process ends. */
+  readonly exited: Promise<number>;
+  /** True once stop() was called, so the exit that follows is expected. */
+  readonly stopRequested: boolean;
+  stop(): Promise<void>;
+}
+
+const gracePeriodMs = 15_000;
+
+/**
+ * Owns every process and in-process service an orchestrator starts, and stops them all (newest
+ * first) on Ctrl-C, SIGTERM, an uncaught error, or when a long-running child dies unexpectedly.
+ * Children get their own process group, so a terminal's Ctrl-C reaches only the orchestrator, which
+ * then shuts them down in order (the app before the database it uses), and so stopping a child
+ * also stops whatever it forked.
+ */
+export class Supervisor {
+  private readonly stops: { name: string; stop: StopFunction }[] = [];
+  private shuttingDown: Promise<void> | undefined;
+
+  /** Stops everything on signals and crashes, then exits the orchestrator. */
+  installExitHandlers() {
+    const exitAfterShutdown = (code: number) => {
+      void this.shutdown().finally(() => process.exit(code));
+    };
+    process.on("SIGINT", () => exitAfterShutdown(130));
+    process.on("SIGTERM", () => exitAfterShutdown(143));
+    process.on("SIGHUP", () => exitAfterShutdown(129));
+    process.on("uncaughtException", (error) => {
+      console.error(error);
+      exitAfterShutdown(1);
+    });
+    process.on("unhandledRejection", (reason) => {
+      console.error(reason);
+      exitAfterShutdown(1);
+    });
+  }
+
+  get isShuttingDown(): boolean {
+    return this.shuttingDown !== undefined;
+  }
+
+  /** Registers something started in this process (a fake server, say) to stop on shutdown. */
+  register(name: string, stop: StopFunction) {
+    this.stops.push({ name, stop });
+  }
+
+  /**
+   * Starts a long-running program (a server). If it ends while the orchestrator is not shutting
+   * down, that is a failure: everything is stopped and the orchestrator exits non-zero.
+   */
+  startService(request: SpawnRequest): SupervisedProcess {
+    const child = this.spawnSupervised(request);
+    void child.exited.then((code) => {
+      if (this.isShuttingDown || child.stopRequested) return;
+      console.error(`\n${request.name} stopped unexpectedly (exit code ${code}).`);
+      if (request.logFile) console.error(`Its log: ${request.logFile}`);
+      void this.shutdown().finally(() => process.exit(1));
+    });
+    return child;
+  }
+
+  /** Runs a program to completion (a build, a check) and resolves with its exit code. */
+  async runToCompletion(request: SpawnRequest): Promise<number> {
+    const child = this.spawnSupervised(request);
+    const code = await child.exited;
+    await child.stop();
+    return code;
+  }
+
+  /** Stops everything registered, newest first; safe to call more than once. */
+  shutdown(): Promise<void> {
+    this.shuttingDown ??= (async () => {
+      for (const { name, stop } of [...this.stops].reverse()) {
+        try {
+          await stop();
+        } catch (error) {
+          console.error(`Could not stop ${name} cleanly:`, error);
+        }
+      }
+      this.stops.length = 0;
+    })();
+    return this.shuttingDown;
+  }
+
+  private unregister(stop: StopFunction) {
+    const index = this.stops.findIndex((entry) => entry.stop === stop);
+    if (index >= 0) this.stops.splice(index, 1);
+  }
+
+  private spawnSupervised(request: SpawnRequest): SupervisedProcess {
+    if (this.isShuttingDown) throw new Error(`not starting ${request.name}: shutting down`);
+    const logDescriptor = request.logFile ? openSync(request.logFile, "a") : undefined;
+    const options: SpawnOptions = {
+      cwd: request.cwd,
+      env: request.env ?? process.env,
+      detached: true,
+      stdio: logDescriptor === undefined ? "inherit" : ["ignore", logDescriptor, logDescriptor],
+      uid: request.uid,
+      gid: request.gid,
+    };
+    const child = spawn(request.command, request.args, options);
+    if (logDescriptor !== undefined) closeSync(logDescriptor);
+    const exited = waitForExit(child, request.name);
+    const pid = child.pid;
+    if (pid === undefined) {
+      // spawn failed (e.g. the program does not exist); `exited` carries the error.
+      return { pid: -1, exited, stopRequested: false, stop: async () => undefined };
+    }
+    let stopRequested = false;
+    const stop = () => {
+      stopRequested = true;
+      this.unregister(stop);
+      return stopProcessGroup(pid, exited, request.stopSignal ?? "SIGTERM");
+    };
+    this.register(request.name, stop);
+    return {
+      pid,
+      exited,
+      get stopRequested() {
+        return stopRequested;
+      },
+      stop,
+    };
+  }
+}
+
+function waitForExit(child: ChildProcess, name: string): Promise<number> {
+  return new Promise((resolve) => {
+    child.once("error", (error) => {
+      console.error(`Could not run ${name}: ${error.message}`);
+      resolve(127);
+    });
+    child.once("exit", (code, signal) => resolve(code ?? (signal ? 1 : 0)));
+  });
+}
+
+async function stopProcessGroup(pid: number, exited: Promise<number>, signal: NodeJS.Signals) {
+  if (!signalGroup(pid, signal)) return;
+  const timer = new Promise<"timeout">((resolve) =>
+    setTimeout(() => resolve("timeout"), gracePeriodMs).unref(),
+  );
+  if ((await Promise.race([exited, timer])) === "timeout") {
+    signalGroup(pid, "SIGKILL");
+    await exited;
+  }
+  // Forked helpers that outlived the group leader get no grace period.
+  signalGroup(pid, "SIGKILL");
+}
+
+/** Signals a whole process group; false when it no longer exists. */
+function signalGroup(pid: number, signal: NodeJS.Signals): boolean {
+  try {
+    process.kill(-pid, signal);
+    return true;
+  } catch {
+    return false;
+  }
+}
