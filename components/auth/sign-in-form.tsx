@@ -93,7 +93,7 @@ export function SignInForm({
           required
         />
       ) : (
-        <p className="text-sm text-ink-soft">We'll e-mail you a link that signs you in once.</p>
+        <p className="text-sm text-ink-soft">We will e-mail you a link that signs you in once.</p>
       )}
       <Button type="submit" disabled={pending} className="w-full">
         {pending ? "Working…" : mode === "password" ? "Sign in" : "Send me a link"}
