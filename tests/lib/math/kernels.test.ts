@@ -1,0 +1,141 @@
+import { describe, expect, it } from "vitest";
+import { choleskyDecompose, choleskySolveInPlace } from "@/lib/math/cholesky";
+import { largestEigenvalueSymmetric } from "@/lib/math/eigen";
+import { accumulateGramUpper, symmetrizeFromUpper } from "@/lib/math/gram";
+import { createMatrix, matrixFromValues } from "@/lib/math/matrix";
+import { quantileSorted } from "@/lib/math/quantile";
+import { maximizeOnInterval } from "@/lib/math/scalar-search";
+import { softmaxInPlace } from "@/lib/math/softmax";
+import { runPythonJson } from "../analysis/support/run-python";
+
+function seededValues(count: number, seed: number): Float64Array {
+  const values = new Float64Array(count);
+  let state = seed;
+  for (let index = 0; index < count; index++) {
+    state = (state * 1103515245 + 12345) % 2147483648;
+    values[index] = state / 2147483648 - 0.5;
+  }
+  return values;
+}
+
+describe("softmaxInPlace", () => {
+  it("matches SciPy's softmax and logsumexp", () => {
+    const inputs = [
+      [1, 2, 3],
+      [1000, 1001, 999],
+      [-1e4, 0, 5],
+    ];
+    // Outside reference: scipy.special.softmax / logsumexp.
+    const reference = runPythonJson<{ p: number[][]; lse: number[] }>(
+      `import json,sys
+from scipy.special import softmax, logsumexp
+z=json.load(sys.stdin)
+print(json.dumps({"p":[list(softmax(r)) for r in z],"lse":[float(logsumexp(r)) for r in z]}))`,
+      inputs,
+    );
+    inputs.forEach((row, index) => {
+      const values = Float64Array.from(row);
+      const lse = softmaxInPlace(values, 0, values.length);
+      expect(lse).toBeCloseTo(reference.lse[index], 12);
+      values.forEach((value, c) => expect(value).toBeCloseTo(reference.p[index][c], 15));
+    });
+  });
+
+  it("works on a slice and never overflows (huge logits)", () => {
+    const values = Float64Array.of(7, 1e308, 1e308, 7);
+    const lse = softmaxInPlace(values, 1, 2);
+    expect(values[0]).toBe(7);
+    expect(values[3]).toBe(7);
+    expect(values[1]).toBe(0.5);
+    // Identity: log(e^a + e^a) = a + ln 2.
+    expect(lse).toBe(1e308 + Math.LN2);
+  });
+});
+
+describe("Cholesky, Gram and eigenvalue kernels", () => {
+  const rows = 40;
+  const cols = 6;
+  const x = matrixFromValues(rows, cols, seededValues(rows * cols, 7));
+
+  it("accumulates XᵀX like NumPy and solves (XᵀX + I) v = b like numpy.linalg.solve", () => {
+    const gram = new Float64Array(cols * cols);
+    accumulateGramUpper(x, 0, 17, gram);
+    accumulateGramUpper(x, 17, rows, gram);
+    symmetrizeFromUpper(gram, cols);
+    const rhs = Array.from({ length: cols }, (_, index) => index + 1);
+    // Outside reference: NumPy X.T @ X, numpy.linalg.solve, numpy.linalg.eigvalsh.
+    const reference = runPythonJson<{ gram: number[]; solution: number[]; top: number }>(
+      `import json,sys
+import numpy as np
+d=json.load(sys.stdin)
+X=np.array(d["x"]).reshape(${rows},${cols}); G=X.T@X
+A=G+np.eye(${cols})
+print(json.dumps({"gram":G.ravel().tolist(),"solution":np.linalg.solve(A,np.array(d["b"],float)).tolist(),"top":float(np.linalg.eigvalsh(G)[-1])}))`,
+      { x: Array.from(x.data), b: rhs },
+    );
+    gram.forEach((value, index) => expect(value).toBeCloseTo(reference.gram[index], 12));
+
+    const shifted = matrixFromValues(cols, cols, Float64Array.from(gram));
+    for (let index = 0; index < cols; index++) shifted.data[index * cols + index] += 1;
+    const lower = createMatrix(cols, cols);
+    choleskyDecompose(shifted, lower);
+    const solution = Float64Array.from(rhs);
+    choleskySolveInPlace(lower, solution);
+    solution.forEach((value, index) => expect(value).toBeCloseTo(reference.solution[index], 10));
+
+    const top = largestEigenvalueSymmetric(matrixFromValues(cols, cols, gram));
+    expect(Math.abs(top - reference.top) / reference.top).toBeLessThan(1e-10);
+  });
+
+  it("gives the textbook factor of [[4, 2], [2, 3]] (hand-computed)", () => {
+    const lower = createMatrix(2, 2);
+    choleskyDecompose(matrixFromValues(2, 2, [4, 2, 2, 3]), lower);
+    expect(Array.from(lower.data)).toEqual([2, 0, 1, Math.SQRT2]);
+  });
+
+  it("rejects a matrix that is not positive definite", () => {
+    expect(() =>
+      choleskyDecompose(matrixFromValues(2, 2, [1, 2, 2, 1]), createMatrix(2, 2)),
+    ).toThrow(RangeError);
+  });
+
+  it("finds λ_max of [[2, 1], [1, 2]] = 3 and of the zero matrix = 0 (hand-computed)", () => {
+    expect(largestEigenvalueSymmetric(matrixFromValues(2, 2, [2, 1, 1, 2]))).toBeCloseTo(3, 12);
+    expect(largestEigenvalueSymmetric(createMatrix(3, 3))).toBe(0);
+  });
+});
+
+describe("quantileSorted", () => {
+  it("matches numpy.quantile's default linear method", () => {
+    const sorted = Array.from(seededValues(101, 3)).sort((a, b) => a - b);
+    const levels = [0, 0.1, 0.25, 0.5, 0.9, 1];
+    // Outside reference: numpy.quantile(method='linear').
+    const reference = runPythonJson<number[]>(
+      `import json,sys
+import numpy as np
+d=json.load(sys.stdin)
+print(json.dumps(np.quantile(np.array(d["x"]), d["q"]).tolist()))`,
+      { x: sorted, q: levels },
+    );
+    levels.forEach((level, index) =>
+      expect(quantileSorted(sorted, level)).toBeCloseTo(reference[index], 14),
+    );
+    expect(quantileSorted([1, 2, 3, 4], 0.1)).toBeCloseTo(1.3, 15);
+  });
+
+  it("rejects an empty array", () => {
+    expect(() => quantileSorted([], 0.5)).toThrow(RangeError);
+  });
+});
+
+describe("maximizeOnInterval", () => {
+  it("finds the top of a concave function to the tolerance (hand-computed maximum at 2)", () => {
+    const result = maximizeOnInterval((x) => -((x - 2) ** 2), 0, 5, { tolerance: 1e-9 });
+    expect(Math.abs(result.argument - 2)).toBeLessThan(1e-8);
+  });
+
+  it("returns the end of the interval for a monotone function", () => {
+    const result = maximizeOnInterval((x) => x, -3, 4);
+    expect(result.argument).toBeGreaterThan(4 - 1e-8);
+  });
+});
