@@ -11,7 +11,8 @@ const inter = localFont({
 
 export const metadata: Metadata = {
   title: { default: "Partita", template: "%s · Partita" },
-  description: "Measure shard heterogeneity and decide between local updates and large minibatches.",
+  description:
+    "Measure shard heterogeneity and decide between local updates and large minibatches.",
 };
 
 export default function RootLayout({ children }: { children: React.ReactNode }) {

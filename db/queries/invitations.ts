@@ -1,5 +1,5 @@
 import "server-only";
-import { and, eq, isNull } from "drizzle-orm";
+import { and, desc, eq, isNull } from "drizzle-orm";
 import { db } from "@/db/client";
 import { invitations, memberships, users, workspaces } from "@/db/schema";
 import type { Role } from "@/lib/auth/roles";
@@ -154,4 +154,28 @@ export async function acceptInvitation(input: {
       .where(eq(invitations.id, row.id));
     return { workspaceId: row.workspaceId };
   });
+}
+
+/** Invitations of a workspace still waiting for their invitee, newest first. */
+export async function listPendingInvitations(
+  workspaceId: string,
+  now = new Date(),
+): Promise<{ id: string; email: string; role: Role; expiresAt: Date }[]> {
+  const rows = await db()
+    .select({
+      id: invitations.id,
+      email: invitations.email,
+      role: invitations.role,
+      expiresAt: invitations.expiresAt,
+    })
+    .from(invitations)
+    .where(
+      and(
+        eq(invitations.workspaceId, workspaceId),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+      ),
+    )
+    .orderBy(desc(invitations.createdAt));
+  return rows.filter((row) => row.expiresAt.getTime() > now.getTime());
 }

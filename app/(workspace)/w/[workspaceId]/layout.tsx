@@ -1,0 +1,56 @@
+import Link from "next/link";
+import type { ReactNode } from "react";
+import { Wordmark } from "@/components/brand/wordmark";
+import { SignOutButton } from "@/components/workspace/sign-out-button";
+import { WorkspaceSwitcher } from "@/components/workspace/workspace-switcher";
+import { listWorkspacesForUser } from "@/db/queries/workspaces";
+import { guardPage } from "@/lib/auth/page-guard";
+import { env } from "@/lib/env";
+
+export default async function WorkspaceLayout({
+  children,
+  params,
+}: {
+  children: ReactNode;
+  params: Promise<{ workspaceId: string }>;
+}) {
+  const { workspaceId } = await params;
+  const { user, workspace } = await guardPage(workspaceId, "readWorkspace", `/w/${workspaceId}`);
+  const workspaces = await listWorkspacesForUser(user.id);
+  const base = `/w/${workspace.id}`;
+  return (
+    <div className="min-h-screen">
+      <header className="no-print border-b border-ink/10 bg-white/70 backdrop-blur">
+        <div className="mx-auto flex max-w-6xl items-center gap-4 px-6 py-3">
+          <Link href={base} aria-label="Partita — workspace overview">
+            <Wordmark />
+          </Link>
+          <WorkspaceSwitcher current={workspace} workspaces={workspaces} />
+          <nav aria-label="Workspace" className="flex gap-1 text-sm">
+            <Link className="rounded px-2 py-1 hover:bg-paper-deep" href={base}>
+              Overview
+            </Link>
+            <Link className="rounded px-2 py-1 hover:bg-paper-deep" href={`${base}/members`}>
+              Members
+            </Link>
+            {env().DEV_MAIL_DIR ? (
+              <Link
+                className="rounded px-2 py-1 text-ink-soft hover:bg-paper-deep"
+                href="/dev/inbox"
+              >
+                Dev inbox
+              </Link>
+            ) : null}
+          </nav>
+          <div className="ml-auto flex items-center gap-3">
+            <span className="hidden text-sm text-ink-soft sm:inline" data-testid="signed-in-as">
+              {user.email}
+            </span>
+            <SignOutButton />
+          </div>
+        </div>
+      </header>
+      <main className="mx-auto max-w-6xl px-6 py-10">{children}</main>
+    </div>
+  );
+}

@@ -1,0 +1,79 @@
+import type { Metadata } from "next";
+import { Cautions } from "@/components/workspace/cautions";
+import { LabelMixSketch } from "@/components/workspace/label-mix-sketch";
+import { guardPage } from "@/lib/auth/page-guard";
+import { roleAllows } from "@/lib/auth/roles";
+
+export const metadata: Metadata = { title: "Overview" };
+
+const STEPS = [
+  {
+    title: "A labelled dataset",
+    body: "A CSV file with a header row. One column holds the label (a class, or a number for regression); the others are features — numeric, or categorical with up to 32 levels. An id column is optional.",
+  },
+  {
+    title: "A layout",
+    body: "Which shard each row lives on: either a shard column in the dataset, or a separate partition map, a CSV with the header row_id,shard (row_id is the id column, or the 0-based row number).",
+  },
+  {
+    title: "Your plan",
+    body: "Participants per round, local steps, rounds and batch size. Partita measures label, size and feature skew and gradient dissimilarity, then compares local SGD with minibatch SGD for that plan.",
+  },
+];
+
+export default async function WorkspaceOverviewPage({
+  params,
+}: {
+  params: Promise<{ workspaceId: string }>;
+}) {
+  const { workspaceId } = await params;
+  const { workspace } = await guardPage(workspaceId, "readWorkspace", `/w/${workspaceId}`);
+  const canUpload = roleAllows(workspace.role, "uploadData");
+  return (
+    <div className="space-y-10">
+      <section className="grid items-center gap-8 md:grid-cols-[1.4fr_1fr]">
+        <div className="space-y-3">
+          <p className="text-sm font-medium tracking-wide text-verdigris uppercase">
+            No reports yet
+          </p>
+          <h1 className="text-3xl font-semibold tracking-tight">{workspace.name}</h1>
+          <p className="max-w-prose text-ink-soft">
+            Partita tells you, before you spend the compute, whether many local steps between rare
+            averaging rounds or fewer, larger synchronized minibatches suit the way your data is
+            split across machines or devices. It measures how far your shards disagree — in their
+            labels, their sizes and, above all, their gradients at a reference model — and reads the
+            answer off published convergence bounds for your own training plan.
+          </p>
+          <p className="text-sm text-ink-soft">
+            {canUpload
+              ? "To start a report you will need the three things below."
+              : "As a reviewer you will find reports here once analysts publish them; you can comment on them and approve or ask for changes."}
+          </p>
+        </div>
+        <figure className="rounded-lg border border-ink/10 bg-white p-4">
+          <LabelMixSketch />
+          <figcaption className="mt-2 text-xs text-ink-soft">
+            What a report opens with: each shard&apos;s label mix beside the pooled mix.
+          </figcaption>
+        </figure>
+      </section>
+      <section aria-labelledby="what-to-bring">
+        <h2 id="what-to-bring" className="mb-4 text-lg font-semibold">
+          What to bring
+        </h2>
+        <ol className="grid gap-4 md:grid-cols-3">
+          {STEPS.map((step, index) => (
+            <li key={step.title} className="rounded-lg border border-ink/10 bg-white p-5">
+              <span className="mb-2 inline-flex h-7 w-7 items-center justify-center rounded-full bg-indigo-soft text-sm font-semibold text-indigo">
+                {index + 1}
+              </span>
+              <h3 className="font-semibold">{step.title}</h3>
+              <p className="mt-1 text-sm text-ink-soft">{step.body}</p>
+            </li>
+          ))}
+        </ol>
+      </section>
+      <Cautions sharing />
+    </div>
+  );
+}

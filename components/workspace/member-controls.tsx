@@ -1,0 +1,68 @@
+"use client";
+
+import { useState, useTransition } from "react";
+import { changeMemberRole, removeMember } from "@/app/(workspace)/w/[workspaceId]/members/actions";
+import { ROLE_LABELS, ROLES, type Role } from "@/lib/auth/roles";
+
+/** An owner's controls on one member row: change the role, or remove them. */
+export function MemberControls({
+  workspaceId,
+  userId,
+  role,
+  label,
+}: {
+  workspaceId: string;
+  userId: string;
+  role: Role;
+  label: string;
+}) {
+  const [error, setError] = useState<string>();
+  const [pending, startTransition] = useTransition();
+
+  function run(action: () => Promise<{ ok: boolean; message?: string }>) {
+    setError(undefined);
+    startTransition(async () => {
+      const result = await action();
+      if (!result.ok) setError(result.message);
+    });
+  }
+
+  return (
+    <div className="flex flex-wrap items-center justify-end gap-2">
+      <label className="sr-only" htmlFor={`role-${userId}`}>
+        Role of {label}
+      </label>
+      <select
+        id={`role-${userId}`}
+        value={role}
+        disabled={pending}
+        onChange={(event) =>
+          run(() => changeMemberRole(workspaceId, { userId, role: event.target.value }))
+        }
+        className="rounded-md border border-ink/20 bg-white px-2 py-1 text-sm"
+      >
+        {ROLES.map((option) => (
+          <option key={option} value={option}>
+            {ROLE_LABELS[option]}
+          </option>
+        ))}
+      </select>
+      <button
+        type="button"
+        disabled={pending}
+        onClick={() => {
+          if (window.confirm(`Remove ${label} from this workspace?`))
+            run(() => removeMember(workspaceId, userId));
+        }}
+        className="rounded px-2 py-1 text-sm text-cadmium hover:bg-cadmium-soft"
+      >
+        Remove
+      </button>
+      {error ? (
+        <p role="alert" className="basis-full text-right text-xs text-cadmium">
+          {error}
+        </p>
+      ) : null}
+    </div>
+  );
+}

@@ -1,0 +1,71 @@
+import "server-only";
+import { drizzle } from "drizzle-orm/node-postgres";
+import { eq } from "drizzle-orm";
+import { Pool } from "pg";
+import { hashPassword } from "@/lib/auth/password";
+import type { Role } from "@/lib/auth/roles";
+import * as schema from "./schema";
+
+export type DemoAccount = { email: string; password: string; role: Role };
+
+/** Demo only: invented people in an invented cooperative; listed in the README. */
+export const DEMO_WORKSPACE_NAME = "Valley orchards cooperative (demo)";
+export const DEMO_ACCOUNTS: readonly (DemoAccount & { name: string })[] = [
+  {
+    name: "Demo Owner",
+    email: "owner@demo.partita.local",
+    password: "partita-demo-owner",
+    role: "owner",
+  },
+  {
+    name: "Demo Analyst",
+    email: "analyst@demo.partita.local",
+    password: "partita-demo-analyst",
+    role: "analyst",
+  },
+  {
+    name: "Demo Reviewer",
+    email: "reviewer@demo.partita.local",
+    password: "partita-demo-reviewer",
+    role: "reviewer",
+  },
+];
+
+/**
+ * Creates the demo workspace with an owner, an analyst and a reviewer. Idempotent: when the demo
+ * owner already exists nothing changes, so every start may call it.
+ */
+export async function seedDemo(databaseUrl: string): Promise<DemoAccount[]> {
+  const pool = new Pool({ connectionString: databaseUrl, max: 1 });
+  try {
+    const database = drizzle(pool, { schema });
+    const [owner] = DEMO_ACCOUNTS;
+    const existing = await database
+      .select({ id: schema.users.id })
+      .from(schema.users)
+      .where(eq(schema.users.email, owner.email));
+    if (existing.length === 0) {
+      const hashed = await Promise.all(
+        DEMO_ACCOUNTS.map((account) => hashPassword(account.password)),
+      );
+      await database.transaction(async (tx) => {
+        const [workspace] = await tx
+          .insert(schema.workspaces)
+          .values({ name: DEMO_WORKSPACE_NAME })
+          .returning({ id: schema.workspaces.id });
+        for (const [index, account] of DEMO_ACCOUNTS.entries()) {
+          const [user] = await tx
+            .insert(schema.users)
+            .values({ name: account.name, email: account.email, passwordHash: hashed[index] })
+            .returning({ id: schema.users.id });
+          await tx
+            .insert(schema.memberships)
+            .values({ workspaceId: workspace.id, userId: user.id, role: account.role });
+        }
+      });
+    }
+    return DEMO_ACCOUNTS.map(({ email, password, role }) => ({ email, password, role }));
+  } finally {
+    await pool.end();
+  }
+}
