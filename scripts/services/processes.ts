@@ -42,12 +42,14 @@ export class Supervisor {
 
   /** Stops everything on signals and crashes, then exits the orchestrator. */
   installExitHandlers() {
-    const exitAfterShutdown = (code: number) => {
-      void this.shutdown().finally(() => process.exit(code));
+    const exitAfterShutdown = (code: number) => this.exitAfterShutdown(code);
+    const stopOnSignal = (code: number) => {
+      if (!this.isShuttingDown) console.log("\nStopping every process this command started …");
+      exitAfterShutdown(code);
     };
-    process.on("SIGINT", () => exitAfterShutdown(130));
-    process.on("SIGTERM", () => exitAfterShutdown(143));
-    process.on("SIGHUP", () => exitAfterShutdown(129));
+    process.on("SIGINT", () => stopOnSignal(130));
+    process.on("SIGTERM", () => stopOnSignal(143));
+    process.on("SIGHUP", () => stopOnSignal(129));
     process.on("uncaughtException", (error) => {
       console.error(error);
       exitAfterShutdown(1);
@@ -56,6 +58,11 @@ export class Supervisor {
       console.error(reason);
       exitAfterShutdown(1);
     });
+  }
+
+  /** Stops everything, then ends the orchestrator with this exit code. */
+  exitAfterShutdown(code: number) {
+    void this.shutdown().finally(() => process.exit(code));
   }
 
   get isShuttingDown(): boolean {
@@ -77,7 +84,7 @@ export class Supervisor {
       if (this.isShuttingDown || child.stopRequested) return;
       console.error(`\n${request.name} stopped unexpectedly (exit code ${code}).`);
       if (request.logFile) console.error(`Its log: ${request.logFile}`);
-      void this.shutdown().finally(() => process.exit(1));
+      this.exitAfterShutdown(1);
     });
     return child;
   }
