@@ -1,6 +1,7 @@
 import Link from "next/link";
 import type { ReactNode } from "react";
 import { Wordmark } from "@/components/brand/wordmark";
+import { NavLink } from "@/components/workspace/nav-link";
 import { SignOutButton } from "@/components/workspace/sign-out-button";
 import { WorkspaceSwitcher } from "@/components/workspace/workspace-switcher";
 import { listWorkspacesForUser } from "@/db/queries/workspaces";
@@ -27,12 +28,10 @@ export default async function WorkspaceLayout({
           </Link>
           <WorkspaceSwitcher current={workspace} workspaces={workspaces} />
           <nav aria-label="Workspace" className="flex gap-1 text-sm">
-            <Link className="rounded px-2 py-1 hover:bg-paper-deep" href={base}>
+            <NavLink href={base} exact>
               Overview
-            </Link>
-            <Link className="rounded px-2 py-1 hover:bg-paper-deep" href={`${base}/members`}>
-              Members
-            </Link>
+            </NavLink>
+            <NavLink href={`${base}/members`}>Members</NavLink>
             {env().DEV_MAIL_DIR ? (
               <Link
                 className="rounded px-2 py-1 text-ink-soft hover:bg-paper-deep"
