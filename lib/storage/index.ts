@@ -17,9 +17,4 @@ export {
   type PresignPutRequest,
   type PresignUploadPartRequest,
 } from "./presign";
-export {
-  abortMultipartUpload,
-  completeMultipartUpload,
-  createMultipartUpload,
-  type UploadedPart,
-} from "./multipart";
+export { completeMultipartUpload, createMultipartUpload, type UploadedPart } from "./multipart";

@@ -1,8 +1,4 @@
-import {
-  AbortMultipartUploadCommand,
-  CompleteMultipartUploadCommand,
-  CreateMultipartUploadCommand,
-} from "@aws-sdk/client-s3";
+import { CompleteMultipartUploadCommand, CreateMultipartUploadCommand } from "@aws-sdk/client-s3";
 import { storage } from "./client";
 
 /**
@@ -49,16 +45,4 @@ export async function completeMultipartUpload(request: {
     }),
   );
   return { etag: result.ETag };
-}
-
-/** Discards the parts of an upload that will not be completed, so storage does not keep them. */
-export async function abortMultipartUpload(request: { key: string; uploadId: string }) {
-  const { client, bucket } = storage();
-  await client.send(
-    new AbortMultipartUploadCommand({
-      Bucket: bucket,
-      Key: request.key,
-      UploadId: request.uploadId,
-    }),
-  );
 }

@@ -1,0 +1,179 @@
+// `npm test` (and CI): every check against throwaway services — a PostgreSQL in a temporary folder,
+// the S3 and SMTP fakes — all on free ports, so it runs beside `npm start` and leaves nothing behind.
+import { randomBytes } from "node:crypto";
+import { chmodSync, existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync } from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { fileURLToPath } from "node:url";
+import { fakeS3Credentials, startFakeS3 } from "../fakes/s3";
+import { startFakeSmtp } from "../fakes/smtp";
+import { buildAppEnvironment } from "./services/app-environment";
+import { applyMigrations } from "./services/migrate";
+import { buildNextApp, startNextApp } from "./services/next-app";
+import { findFreePort } from "./services/ports";
+import { startPostgres } from "./services/postgres";
+import { Supervisor } from "./services/processes";
+
+const projectRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
+const bin = (...parts: string[]) => path.join(projectRoot, "node_modules", ...parts);
+
+interface StageResult {
+  name: string;
+  passed: boolean;
+}
+
+interface TestCounts {
+  passed: number;
+  failed: number;
+  skipped: number;
+}
+
+const supervisor = new Supervisor();
+supervisor.installExitHandlers();
+const results: StageResult[] = [];
+const counts: TestCounts = { passed: 0, failed: 0, skipped: 0 };
+
+function header(title: string) {
+  const line = "═".repeat(Math.max(8, 72 - title.length));
+  console.log(`\n══ ${title} ${line}\n`);
+}
+
+async function runStage(name: string, args: string[], env: NodeJS.ProcessEnv): Promise<boolean> {
+  header(name);
+  const code = await supervisor.runToCompletion({
+    name,
+    command: process.execPath,
+    args,
+    cwd: projectRoot,
+    env,
+  });
+  results.push({ name, passed: code === 0 });
+  return code === 0;
+}
+
+/** Adds what vitest's JSON report counted, so the run ends with one total line. */
+function addVitestCounts(reportFile: string) {
+  if (!existsSync(reportFile)) return;
+  const report = JSON.parse(readFileSync(reportFile, "utf8")) as {
+    numPassedTests: number;
+    numFailedTests: number;
+    numPendingTests: number;
+    numTodoTests: number;
+  };
+  counts.passed += report.numPassedTests;
+  counts.failed += report.numFailedTests;
+  counts.skipped += report.numPendingTests + report.numTodoTests;
+}
+
+function vitestArgs(config: string, reportFile: string): string[] {
+  return [
+    bin("vitest", "vitest.mjs"),
+    "run",
+    "--config",
+    config,
+    "--reporter=default",
+    "--reporter=json",
+    `--outputFile.json=${reportFile}`,
+  ];
+}
+
+async function main(): Promise<number> {
+  // Open to other users so the postgres account can reach the cluster folder inside it.
+  const workDir = mkdtempSync(path.join(os.tmpdir(), "partita-test-"));
+  chmodSync(workDir, 0o755);
+  supervisor.register("temporary folder", async () =>
+    rmSync(workDir, { recursive: true, force: true }),
+  );
+
+  header("Services: PostgreSQL, S3 fake, SMTP fake (throwaway, free ports)");
+  const [postgresPort, s3Port, smtpPort, appPort] = await Promise.all([
+    findFreePort(),
+    findFreePort(),
+    findFreePort(),
+    findFreePort(),
+  ]);
+  const appUrl = `http://127.0.0.1:${appPort}`;
+  const postgres = await startPostgres(supervisor, {
+    dataDir: path.join(workDir, "pg"),
+    port: postgresPort,
+    portVariable: "(a free port)",
+    database: "partita_test",
+    password: randomBytes(24).toString("hex"),
+    logFile: path.join(workDir, "postgres.log"),
+  });
+  supervisor.register("PostgreSQL", postgres.stop);
+  console.log(`PostgreSQL on 127.0.0.1:${postgresPort}`);
+  if (!(await applyMigrations(postgres.url))) console.log("drizzle/ holds no migrations yet");
+  else console.log("Migrations applied");
+
+  const bucket = "partita-test";
+  const s3 = await startFakeS3({
+    port: s3Port,
+    directory: path.join(workDir, "s3"),
+    bucket,
+    allowedOrigins: [appUrl],
+  });
+  supervisor.register("S3 fake", s3.stop);
+  console.log(`S3 fake on ${s3.endpoint}`);
+  const mailDirectory = path.join(workDir, "mail");
+  mkdirSync(mailDirectory);
+  const smtp = await startFakeSmtp({ port: smtpPort, directory: mailDirectory });
+  supervisor.register("SMTP fake", smtp.stop);
+  console.log(`SMTP fake on 127.0.0.1:${smtpPort}`);
+
+  const env = buildAppEnvironment({
+    databaseUrl: postgres.url,
+    nextAuthSecret: randomBytes(48).toString("base64url"),
+    appUrl,
+    fakeS3: { endpoint: s3.endpoint, bucket, ...fakeS3Credentials },
+    fakeSmtp: { port: smtpPort, mailDirectory },
+  });
+
+  await runStage("Type check (tsc --noEmit)", [bin("typescript", "bin", "tsc"), "--noEmit"], env);
+  await runStage("Lint (eslint .)", [bin("eslint", "bin", "eslint.js"), "."], env);
+  await runStage(
+    "Formatting (prettier --check .)",
+    [bin("prettier", "bin", "prettier.cjs"), "--check", "."],
+    env,
+  );
+  const unitReport = path.join(workDir, "vitest-unit.json");
+  await runStage(
+    "Unit and integration tests (vitest)",
+    vitestArgs("vitest.config.mts", unitReport),
+    env,
+  );
+  addVitestCounts(unitReport);
+
+  header("Build (next build)");
+  const built = (await buildNextApp(supervisor, projectRoot, env)) === 0;
+  results.push({ name: "Build (next build)", passed: built });
+  if (built) {
+    header(`App on ${appUrl}`);
+    await startNextApp(supervisor, { projectRoot, port: appPort, env });
+    const e2eReport = path.join(workDir, "vitest-e2e.json");
+    await runStage(
+      "Browser tests (vitest, Chromium)",
+      vitestArgs("vitest.e2e.config.mts", e2eReport),
+      { ...env, E2E_BASE_URL: appUrl },
+    );
+    addVitestCounts(e2eReport);
+  } else {
+    results.push({ name: "Browser tests (skipped: the build failed)", passed: false });
+  }
+
+  header("Summary");
+  for (const result of results) {
+    console.log(`  ${result.passed ? "pass" : "FAIL"}  ${result.name}`);
+  }
+  console.log(
+    `\ntests: ${counts.passed} passed, ${counts.failed} failed, ${counts.skipped} skipped`,
+  );
+  return results.every((result) => result.passed) ? 0 : 1;
+}
+
+main()
+  .then((code) => supervisor.exitAfterShutdown(code))
+  .catch((error: unknown) => {
+    console.error(`\nnpm test could not run: ${error instanceof Error ? error.message : error}`);
+    supervisor.exitAfterShutdown(1);
+  });
