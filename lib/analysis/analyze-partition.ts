@@ -1,0 +1,322 @@
+import type { Readable } from "node:stream";
+import { z } from "zod";
+import {
+  analysisOptionsSchema,
+  type AnalysisOptions,
+  type AnalysisOptionsInput,
+  type ReferenceWeights,
+} from "../validation/analysis-options";
+import { largestEigenvalueSymmetric } from "../math/eigen";
+import { accumulateGramUpper, symmetrizeFromUpper } from "../math/gram";
+import { matrixFromValues } from "../math/matrix";
+import { norm } from "../math/summation";
+import { advisePlan } from "./advise-plan";
+import { BIAS_NAME, type Design } from "./design";
+import { encodeDesign } from "./encode-design";
+import { AnalysisInputError } from "./errors";
+import { fitReferenceModel } from "./fit-reference-model";
+import {
+  measureAtPoint,
+  measureGradientAgreement,
+  type PointMeasurement,
+} from "./measure-heterogeneity";
+import { measureFeatureShift } from "./measure-feature-shift";
+import { measureLabelSkew } from "./measure-label-skew";
+import { measureQuantitySkew } from "./measure-quantity-skew";
+import { countWeightRows } from "./objective";
+import { readPartitionMap } from "./partition-map";
+import { readDataset } from "./read-dataset";
+import type { AnalysisProgress, PartitionSummary } from "./summary";
+import { ENGINE_VERSION } from "./version";
+
+export interface PartitionInput {
+  /** The dataset CSV (a file stream, an S3 object body, …). */
+  data: Readable;
+  /** Name used for the dataset in messages (a path, an upload's name). */
+  dataName?: string;
+  /** Size of the dataset in bytes, when known, for reading progress. */
+  dataBytes?: number;
+  /** The partition map CSV `row_id,shard`; omit when `options.shardColumn` is set. */
+  partition?: Readable;
+  partitionName?: string;
+  /** Name of the file the given reference weights came from, for messages. */
+  referenceName?: string;
+  options: AnalysisOptionsInput;
+}
+
+/** Points along the path W_t = t·W* where ζ² is measured (methods.md §3). */
+export const PATH_POINTS = [0, 0.25, 0.5, 0.75, 1];
+/** The gradient-agreement matrix is reported up to this many shards (methods.md §3). */
+export const MAX_AGREEMENT_SHARDS = 200;
+
+/**
+ * Runs the whole analysis of methods.md on one dataset and partition: read and validate (§1),
+ * encode, fit the reference model (§2), measure heterogeneity, noise and smoothness (§3), label and
+ * quantity skew (§4), and advise on the plan (§5). Returns the summary of §6.
+ * Throws AnalysisInputError for bad input; anything else is an internal error.
+ */
+export async function analyzePartition(
+  input: PartitionInput,
+  onProgress: (progress: AnalysisProgress) => void = () => {},
+): Promise<PartitionSummary> {
+  const options = parseOptions(input.options);
+  const dataName = input.dataName ?? "dataset";
+  if ((input.partition === undefined) === (options.shardColumn === undefined)) {
+    throw new AnalysisInputError(
+      input.partition
+        ? "both a partition map and a shard column were given"
+        : "no partition was given",
+      { expected: "either a partition map (row_id,shard) or a shard column, not both" },
+    );
+  }
+
+  onProgress({ stage: "reading", fraction: 0 });
+  const partition = input.partition
+    ? await readPartitionMap(input.partition, input.partitionName ?? "partition map", {
+        byRowIndex: options.idColumn === undefined,
+      })
+    : null;
+  const raw = await readDataset(input.data, dataName, options, {
+    partition,
+    dropUnassignedRows: options.dropUnassignedRows,
+    onCharactersRead: input.dataBytes
+      ? (characters) =>
+          onProgress({ stage: "reading", fraction: Math.min(1, characters / input.dataBytes!) })
+      : undefined,
+  });
+  onProgress({ stage: "reading", fraction: 1 });
+
+  onProgress({ stage: "encoding", fraction: 0 });
+  const design = encodeDesign(raw, options.task);
+  const shardCount = design.shardIds.length;
+  const participants = options.participants ?? shardCount;
+  if (participants > shardCount) {
+    throw new AnalysisInputError(`the plan has ${participants} participants per round`, {
+      column: "participants",
+      expected: `at most the number of shards (${shardCount})`,
+    });
+  }
+  const gram = computeGram(design);
+  const curvature = largestEigenvalueSymmetric(
+    matrixFromValues(design.x.cols, design.x.cols, gram),
+  );
+  const smoothness =
+    (design.task === "classification" ? curvature / 2 : curvature) + options.lambda;
+  onProgress({ stage: "encoding", fraction: 1 });
+
+  onProgress({ stage: "fitting", fraction: 0 });
+  const fitted = fitReferenceModel(design, gram, options.lambda, (fraction) =>
+    onProgress({ stage: "fitting", fraction }),
+  );
+  onProgress({ stage: "fitting", fraction: 1 });
+
+  onProgress({ stage: "measuring", fraction: 0 });
+  const reference = chooseReference(options.reference, design, fitted.weights, input.referenceName);
+  const measure = (weights: Float64Array, withNoise: boolean) =>
+    measureAtPoint(design, weights, options.lambda, {
+      withNoise,
+      vanishingGradient: fitted.tolerance,
+    });
+  const atReference = measure(reference.weights, true);
+  const path: PointMeasurement[] = PATH_POINTS.map((t, index) => {
+    onProgress({ stage: "measuring", fraction: (index + 1) / (PATH_POINTS.length + 1) });
+    return measure(
+      fitted.weights.map((value) => t * value),
+      false,
+    );
+  });
+  const atOptimum = path[path.length - 1];
+  const labelCounts = countLabelsPerShard(design);
+  const labelSkew = measureLabelSkew(labelCounts);
+  const quantitySkew = measureQuantitySkew(
+    design.shardIds.map((_, m) => atReference.shards[m].rows),
+  );
+  const featureShift = measureFeatureShift(design);
+  onProgress({ stage: "measuring", fraction: 1 });
+
+  onProgress({ stage: "advising", fraction: 0 });
+  const distance = norm(fitted.weights);
+  const zeta2Max = Math.max(...path.map((point) => point.zeta2));
+  const advice = advisePlan(
+    {
+      smoothness,
+      distance,
+      sigma2: atReference.sigma2,
+      zeta2Max,
+      participants,
+      localSteps: options.localSteps,
+      rounds: options.rounds,
+      batchSize: options.batchSize,
+    },
+    atOptimum.zeta2,
+  );
+  onProgress({ stage: "advising", fraction: 1 });
+
+  const width = design.x.cols;
+  return {
+    engineVersion: ENGINE_VERSION,
+    dataset: {
+      rows: design.x.rows,
+      features: width - 1,
+      classes: design.classes === null ? null : design.classes.length,
+      task: design.task,
+      classNames: design.classes,
+    },
+    shards: design.shardIds.map((id, m) => ({
+      id,
+      rows: atReference.shards[m].rows,
+      tv: labelSkew.shards[m].tv,
+      hellinger: labelSkew.shards[m].hellinger,
+      js: labelSkew.shards[m].js,
+      kl: labelSkew.shards[m].kl,
+      gradNorm2: atReference.shards[m].gradNorm2,
+      sigma2: atReference.shards[m].sigma2,
+      loss: atReference.shards[m].loss,
+      classesPresent: labelSkew.shards[m].classesPresent,
+      effectiveClasses: labelSkew.shards[m].effectiveClasses,
+      featureShift: featureShift[m],
+      labelCounts: labelSkew.shards[m].counts,
+    })),
+    labelSkew: {
+      tv: labelSkew.tv,
+      hellinger: labelSkew.hellinger,
+      js: labelSkew.js,
+      kl: labelSkew.kl,
+      dirichletAlpha: labelSkew.dirichletAlpha,
+      max: labelSkew.max,
+      categories: design.classes ?? labelSkew.pooled.map((_, bin) => `decile bin ${bin + 1}`),
+      pooled: labelSkew.pooled,
+    },
+    quantitySkew,
+    model: {
+      lambda: options.lambda,
+      loss: atReference.loss,
+      gradNorm: atReference.gradientNorm,
+      distance,
+      reference: reference.kind,
+      optimum: describeWeights(design, fitted.weights),
+      optimizer: {
+        converged: fitted.converged,
+        iterations: fitted.iterations,
+        evaluations: fitted.evaluations,
+        gradNorm: fitted.gradientNorm,
+        tolerance: fitted.tolerance,
+      },
+    },
+    heterogeneity: {
+      zeta2: atReference.zeta2,
+      zeta2Uniform: atReference.zeta2Uniform,
+      zeta2Max,
+      zeta2Star: atOptimum.zeta2,
+      sigma2: atReference.sigma2,
+      sigma2Pooled: atReference.sigma2Pooled,
+      smoothness,
+      dissimilarity: atReference.dissimilarity,
+      path: path.map((point, index) => ({
+        t: PATH_POINTS[index],
+        zeta2: point.zeta2,
+        dissimilarity: point.dissimilarity,
+        loss: point.loss,
+      })),
+      gradientAgreement:
+        shardCount <= MAX_AGREEMENT_SHARDS
+          ? measureGradientAgreement(path[0].shards.map((shard) => shard.gradient))
+          : null,
+    },
+    advice,
+    preprocessing: {
+      totalRows: raw.totalRows,
+      droppedRowsMissingLabel: design.droppedRowsMissingLabel,
+      droppedRowsUnassigned: design.droppedRowsUnassigned,
+      featureNames: design.featureNames,
+      omittedColumns: design.omittedColumns,
+      warnings: design.warnings,
+    },
+  };
+}
+
+function parseOptions(options: AnalysisOptionsInput): AnalysisOptions {
+  const parsed = analysisOptionsSchema.safeParse(options);
+  if (parsed.success) return parsed.data;
+  const issue = parsed.error.issues[0];
+  throw new AnalysisInputError(`option ${issue.path.join(".") || "(options)"}: ${issue.message}`, {
+    expected: z.prettifyError(parsed.error).split("\n")[0],
+  });
+}
+
+/** G = X̃ᵀX̃/N, (d + 1) × (d + 1). */
+export function computeGram(design: Design): Float64Array {
+  const width = design.x.cols;
+  const gram = new Float64Array(width * width);
+  accumulateGramUpper(design.x, 0, design.x.rows, gram);
+  symmetrizeFromUpper(gram, width);
+  for (let k = 0; k < gram.length; k++) gram[k] /= design.x.rows;
+  return gram;
+}
+
+function countLabelsPerShard(design: Design): number[][] {
+  return design.shardIds.map((_, m) => {
+    const counts = new Array<number>(design.skewCategoryCount).fill(0);
+    for (let row = design.shardOffsets[m]; row < design.shardOffsets[m + 1]; row++) {
+      counts[design.skewCategories[row]]++;
+    }
+    return counts;
+  });
+}
+
+function describeWeights(
+  design: Design,
+  weights: Float64Array,
+): PartitionSummary["model"]["optimum"] {
+  const width = design.x.cols;
+  return {
+    classes: design.classes,
+    features: design.featureNames,
+    weights: Array.from({ length: countWeightRows(design) }, (_, c) =>
+      Array.from(weights.subarray(c * width, (c + 1) * width)),
+    ),
+  };
+}
+
+function chooseReference(
+  reference: AnalysisOptions["reference"],
+  design: Design,
+  optimum: Float64Array,
+  referenceName = "reference weights",
+): { kind: "optimum" | "zero" | "given"; weights: Float64Array } {
+  if (reference === "optimum") return { kind: "optimum", weights: optimum };
+  if (reference === "zero") return { kind: "zero", weights: new Float64Array(optimum.length) };
+  return { kind: "given", weights: readGivenWeights(reference, design, referenceName) };
+}
+
+function readGivenWeights(given: ReferenceWeights, design: Design, file: string): Float64Array {
+  const width = design.x.cols;
+  const rows = countWeightRows(design);
+  const sameList = (a: string[] | null, b: string[] | null) =>
+    a === b ||
+    (a !== null && b !== null && a.length === b.length && a.every((value, i) => value === b[i]));
+  if (!sameList(given.features, design.featureNames)) {
+    throw new AnalysisInputError("the reference weights are for other features", {
+      file,
+      column: "features",
+      expected: `the encoded features in order: ${design.featureNames.join(", ")} (the bias ${BIAS_NAME} is the last weight)`,
+    });
+  }
+  if (!sameList(given.classes, design.classes)) {
+    throw new AnalysisInputError("the reference weights are for other classes", {
+      file,
+      column: "classes",
+      expected: design.classes
+        ? `classes ${design.classes.join(", ")}`
+        : "classes null (regression)",
+    });
+  }
+  if (given.weights.length !== rows || given.weights.some((row) => row.length !== width)) {
+    throw new AnalysisInputError("the reference weights have the wrong shape", {
+      file,
+      column: "weights",
+      expected: `${rows} rows of ${width} numbers (features, then the bias)`,
+    });
+  }
+  return Float64Array.from(given.weights.flat());
+}

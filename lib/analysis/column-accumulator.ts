@@ -1,0 +1,109 @@
+import { ChunkedFloat64, ChunkedInt32 } from "./chunked-arrays";
+import { AnalysisInputError } from "./errors";
+import { isMissingToken, parseNumberToken, trimToken } from "./tokens";
+
+/** Most distinct values a non-numeric feature may have and still be one-hot encoded (methods.md §1). */
+export const MAX_ONE_HOT_LEVELS = 32;
+
+/**
+ * Collects one column of the dataset while it streams by, without keeping its strings: the numeric
+ * value of every kept row (NaN when missing) and, while the column has few distinct values, a code
+ * per row into a dictionary of its distinct tokens. Whether the column is numeric or categorical is
+ * only known at the end, and both views are kept until then; a dictionary that outgrows its limit
+ * is dropped (such a column can only end up numeric or too varied to encode).
+ */
+export class ColumnAccumulator {
+  readonly name: string;
+  readonly values = new ChunkedFloat64();
+  private codes: ChunkedInt32 | null = new ChunkedInt32();
+  private readonly levelCodes = new Map<string, number>();
+  private levelsDropped = false;
+  numeric = true;
+  missingCount = 0;
+  /** The first token that is not a number, for messages. */
+  firstNonNumeric: { row: number; token: string } | null = null;
+
+  constructor(
+    name: string,
+    private readonly fileName: string,
+    /** Distinct values kept before the dictionary is dropped; Infinity keeps all (the label). */
+    private readonly levelLimit: number,
+  ) {
+    this.name = name;
+  }
+
+  /** Adds one raw field of a kept row. */
+  add(field: string, rowIndex: number): void {
+    const token = trimToken(field);
+    if (isMissingToken(token)) {
+      this.missingCount++;
+      this.values.push(Number.NaN);
+      this.codes?.push(-1);
+      return;
+    }
+    if (this.numeric) {
+      const value = parseNumberToken(token);
+      if (value === Infinity || value === -Infinity) {
+        throw new AnalysisInputError(`the value "${token}" is too large`, {
+          file: this.fileName,
+          row: rowIndex,
+          column: this.name,
+          expected: "a finite number (|x| < 1.8e308) or a missing-value token",
+        });
+      }
+      if (value === value) {
+        this.values.push(value);
+      } else {
+        this.numeric = false;
+        this.firstNonNumeric = { row: rowIndex, token };
+        this.values.push(Number.NaN);
+      }
+    } else {
+      this.values.push(Number.NaN);
+    }
+    if (this.codes !== null) {
+      let code = this.levelCodes.get(token);
+      if (code === undefined) {
+        code = this.levelCodes.size;
+        if (code >= this.levelLimit) {
+          this.dropLevels();
+          return;
+        }
+        this.levelCodes.set(token, code);
+      }
+      this.codes.push(code);
+    }
+  }
+
+  /** True when the column can be one-hot encoded or used as class labels. */
+  get hasLevels(): boolean {
+    return this.codes !== null;
+  }
+
+  /** The distinct non-missing tokens in first-appearance order (their codes are their indices). */
+  get levels(): string[] {
+    return [...this.levelCodes.keys()];
+  }
+
+  /** Per-row codes into `levels`, -1 for missing. Only valid when `hasLevels`. */
+  takeCodes(): Int32Array {
+    if (this.codes === null) throw new Error(`column ${this.name} has no level codes`);
+    return this.codes.toArray();
+  }
+
+  get distinctCount(): number {
+    return this.levelsDropped ? Infinity : this.levelCodes.size;
+  }
+
+  release(): void {
+    this.values.release();
+    this.codes?.release();
+  }
+
+  private dropLevels(): void {
+    this.codes?.release();
+    this.codes = null;
+    this.levelCodes.clear();
+    this.levelsDropped = true;
+  }
+}

@@ -1,0 +1,125 @@
+import type { Readable } from "node:stream";
+import Papa from "papaparse";
+import { AnalysisInputError } from "./errors";
+import { trimToken } from "./tokens";
+
+export interface CsvRowHandler {
+  /** Receives the header's trimmed column names. */
+  onHeader(columns: string[]): void;
+  /** Receives each data row's raw fields (untrimmed) and its 0-based index (header excluded). */
+  onRow(fields: string[], rowIndex: number): void;
+  /** Receives how many characters have been read so far (for progress). */
+  onProgress?(charactersRead: number): void;
+}
+
+/**
+ * Reads a CSV with a header row from a stream, one parsed chunk at a time, so a file of any size is
+ * never held whole in memory. The delimiter is detected by papaparse (comma, semicolon, tab, …);
+ * blank lines are skipped. A row whose field count differs from the header's, an unterminated
+ * quote, a missing header or duplicate column names are AnalysisInputErrors naming the file.
+ * Resolves with the number of data rows.
+ */
+export function readCsvStream(
+  stream: Readable,
+  fileName: string,
+  handler: CsvRowHandler,
+): Promise<number> {
+  return new Promise((resolve, reject) => {
+    let header: string[] | null = null;
+    let rowIndex = 0;
+    let charactersRead = 0;
+    let failed = false;
+
+    const fail = (error: unknown) => {
+      if (failed) return;
+      failed = true;
+      stream.destroy();
+      reject(error);
+    };
+
+    stream.setEncoding("utf8");
+    stream.on("error", fail);
+    if (handler.onProgress) {
+      const onProgress = handler.onProgress;
+      stream.on("data", (chunk: string) => {
+        charactersRead += chunk.length;
+        onProgress(charactersRead);
+      });
+    }
+
+    Papa.parse<string[]>(stream, {
+      header: false,
+      skipEmptyLines: true,
+      chunk(results, parser) {
+        if (failed) return;
+        try {
+          const quoteProblem = results.errors.find((problem) => problem.type === "Quotes");
+          if (quoteProblem) {
+            throw new AnalysisInputError("a quoted field is not closed", {
+              file: fileName,
+              row: Math.max(0, (quoteProblem.row ?? 0) + rowIndex - (header ? 0 : 1)),
+              expected: 'a closing " before the end of the file',
+            });
+          }
+          for (const fields of results.data) {
+            if (header === null) {
+              header = readHeader(fields, fileName);
+              handler.onHeader(header);
+              continue;
+            }
+            if (fields.length !== header.length) {
+              throw new AnalysisInputError(`the row has ${fields.length} fields`, {
+                file: fileName,
+                row: rowIndex,
+                expected: `${header.length} fields, like the header`,
+              });
+            }
+            handler.onRow(fields, rowIndex);
+            rowIndex++;
+          }
+        } catch (error) {
+          parser.abort();
+          fail(error);
+        }
+      },
+      complete() {
+        if (failed) return;
+        if (header === null) {
+          fail(
+            new AnalysisInputError("the file is empty", {
+              file: fileName,
+              expected: "a header row",
+            }),
+          );
+          return;
+        }
+        resolve(rowIndex);
+      },
+      error(error: Error) {
+        fail(error);
+      },
+    });
+  });
+}
+
+function readHeader(fields: string[], fileName: string): string[] {
+  const columns = fields.map(trimToken);
+  const seen = new Set<string>();
+  columns.forEach((column, index) => {
+    if (column === "") {
+      throw new AnalysisInputError(`header column ${index + 1} has no name`, {
+        file: fileName,
+        expected: "a name for every column",
+      });
+    }
+    if (seen.has(column)) {
+      throw new AnalysisInputError("the header names this column twice", {
+        file: fileName,
+        column,
+        expected: "unique column names",
+      });
+    }
+    seen.add(column);
+  });
+  return columns;
+}

@@ -1,0 +1,40 @@
+import type { Matrix } from "../math/matrix";
+
+export type Task = "classification" | "regression";
+
+/** A column the encoder left out, and why (reported in the summary). */
+export interface OmittedColumn {
+  column: string;
+  reason: "constant" | "too-many-levels" | "all-missing";
+}
+
+/**
+ * The encoded dataset of methods.md §1, ready for the model: rows grouped by shard (shards in
+ * code-point order of their ids), standardized features with the bias 1 as the last column.
+ */
+export interface Design {
+  /** N × (d + 1); row order is shard by shard, `shardOffsets` delimits them. */
+  x: Matrix;
+  task: Task;
+  /** Class names in code-point order (classification) or null (regression). */
+  classes: string[] | null;
+  /** Per row, the class index (classification) or null. */
+  labels: Int32Array | null;
+  /** Per row, the standardized target (regression) or null. */
+  targets: Float64Array | null;
+  /** Per row, the category used for label skew: the class, or the decile bin for regression. */
+  skewCategories: Int32Array;
+  skewCategoryCount: number;
+  shardIds: string[];
+  /** shardOffsets[m] … shardOffsets[m + 1] are shard m's rows; length M + 1. */
+  shardOffsets: Int32Array;
+  /** Names of the d encoded features (one-hot columns as "column=level"). */
+  featureNames: string[];
+  omittedColumns: OmittedColumn[];
+  droppedRowsMissingLabel: number;
+  droppedRowsUnassigned: number;
+  warnings: string[];
+}
+
+/** Name of the constant column appended to every row. */
+export const BIAS_NAME = "(bias)";

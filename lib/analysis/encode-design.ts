@@ -1,0 +1,295 @@
+import { createMatrix } from "../math/matrix";
+import { measureMoments } from "../math/moments";
+import { quantileSorted } from "../math/quantile";
+import { CompensatedSum } from "../math/summation";
+import { compareCodePoints } from "./code-point-order";
+import type { ColumnAccumulator } from "./column-accumulator";
+import { MAX_ONE_HOT_LEVELS } from "./column-accumulator";
+import type { Design, OmittedColumn, Task } from "./design";
+import { AnalysisInputError } from "./errors";
+import type { RawDataset } from "./read-dataset";
+
+/** Columns whose population standard deviation is below this are dropped (methods.md §1). */
+export const MIN_FEATURE_STD = 1e-12;
+/** A numeric label with at most this many distinct values is a class label (methods.md §1). */
+export const MAX_CLASSES_FOR_NUMERIC_LABEL = 20;
+
+/** One standardized column of the design and how to compute it from its source column. */
+type EncodedColumn =
+  | {
+      kind: "numeric";
+      source: ColumnAccumulator;
+      name: string;
+      fill: number;
+      mean: number;
+      std: number;
+    }
+  | {
+      kind: "level";
+      source: ColumnAccumulator;
+      name: string;
+      code: number;
+      mean: number;
+      std: number;
+    };
+
+/**
+ * Turns the raw columns into the design of methods.md §1: task and classes, shard order,
+ * imputation, one-hot encoding, standardization with pooled mean and population deviation, the bias
+ * column, and rows regrouped shard by shard. Releases each raw column once it is encoded.
+ */
+export function encodeDesign(raw: RawDataset, requestedTask: Task | undefined): Design {
+  const warnings: string[] = [];
+  const rows = raw.keptRows;
+
+  const shardOrder = sortedOrder(raw.shardIds);
+  if (raw.shardIds.length < 2) {
+    throw new AnalysisInputError(`the partition has ${raw.shardIds.length} shard`, {
+      file: raw.fileName,
+      expected: "at least two shards",
+    });
+  }
+  const shardIds = shardOrder.map((code) => raw.shardIds[code]);
+  const rankOfShardCode = invert(shardOrder);
+  const shardOffsets = new Int32Array(shardIds.length + 1);
+  for (let row = 0; row < rows; row++) shardOffsets[rankOfShardCode[raw.shardCodes[row]] + 1]++;
+  for (let m = 0; m < shardIds.length; m++) shardOffsets[m + 1] += shardOffsets[m];
+  // Stable counting sort: position of each kept row once rows are grouped by shard.
+  const position = new Int32Array(rows);
+  const next = shardOffsets.slice(0, shardIds.length);
+  for (let row = 0; row < rows; row++) position[row] = next[rankOfShardCode[raw.shardCodes[row]]]++;
+
+  const target = encodeTarget(raw, requestedTask, position);
+  const columns = planFeatureColumns(raw, warnings);
+  const omittedColumns = columns.omitted;
+  const width = columns.kept.length + 1;
+  const x = createMatrix(rows, width);
+  columns.kept.forEach((column, j) => {
+    writeColumn(column, j, width, position, x.data);
+    // Free each raw column as soon as its last encoded column is written, to bound peak memory.
+    if (columns.kept[j + 1]?.source !== column.source) column.source.release();
+  });
+  for (let row = 0; row < rows; row++) x.data[row * width + width - 1] = 1;
+  for (const feature of raw.features) feature.release();
+  if (columns.kept.length === 0) {
+    warnings.push("no usable feature columns: the model has only the bias");
+  }
+
+  return {
+    x,
+    task: target.task,
+    classes: target.classes,
+    labels: target.labels,
+    targets: target.targets,
+    skewCategories: target.skewCategories,
+    skewCategoryCount: target.skewCategoryCount,
+    shardIds,
+    shardOffsets,
+    featureNames: columns.kept.map((column) => column.name),
+    omittedColumns,
+    droppedRowsMissingLabel: raw.droppedMissingLabel,
+    droppedRowsUnassigned: raw.droppedUnassigned,
+    warnings,
+  };
+}
+
+interface EncodedTarget {
+  task: Task;
+  classes: string[] | null;
+  labels: Int32Array | null;
+  targets: Float64Array | null;
+  skewCategories: Int32Array;
+  skewCategoryCount: number;
+}
+
+function encodeTarget(
+  raw: RawDataset,
+  requested: Task | undefined,
+  position: Int32Array,
+): EncodedTarget {
+  const label = raw.label;
+  const rows = raw.keptRows;
+  const task: Task =
+    requested ??
+    (!label.numeric || label.distinctCount <= MAX_CLASSES_FOR_NUMERIC_LABEL
+      ? "classification"
+      : "regression");
+
+  if (task === "classification") {
+    const order = sortedOrder(label.levels);
+    const classes = order.map((code) => label.levels[code]);
+    if (classes.length < 2) {
+      throw new AnalysisInputError(`the label has a single class ("${classes[0]}")`, {
+        file: raw.fileName,
+        column: label.name,
+        expected: "at least two classes",
+      });
+    }
+    const rank = invert(order);
+    const codes = label.takeCodes();
+    const labels = new Int32Array(rows);
+    for (let row = 0; row < rows; row++) labels[position[row]] = rank[codes[row]];
+    label.release();
+    return {
+      task,
+      classes,
+      labels,
+      targets: null,
+      skewCategories: labels,
+      skewCategoryCount: classes.length,
+    };
+  }
+
+  if (!label.numeric) {
+    const first = label.firstNonNumeric as { row: number; token: string };
+    throw new AnalysisInputError(`regression needs a numeric label, found "${first.token}"`, {
+      file: raw.fileName,
+      row: first.row,
+      column: label.name,
+      expected: "a number",
+    });
+  }
+  const values = label.values.toArray();
+  label.release();
+  const { mean, std } = measureMoments(values);
+  if (!(std >= MIN_FEATURE_STD)) {
+    throw new AnalysisInputError("the label is constant", {
+      file: raw.fileName,
+      column: label.name,
+      expected: "a label that varies",
+    });
+  }
+  const targets = new Float64Array(rows);
+  for (let row = 0; row < rows; row++) targets[position[row]] = (values[row] - mean) / std;
+  const { categories, count } = binIntoDeciles(targets);
+  return {
+    task,
+    classes: null,
+    labels: null,
+    targets,
+    skewCategories: categories,
+    skewCategoryCount: count,
+  };
+}
+
+/**
+ * Regression's label-skew classes (methods.md §4): cut points at the k/10 quantiles (NumPy's linear
+ * interpolation), row i in bin #{k : yᵢ > q_k}, empty bins dropped and the rest renumbered.
+ */
+export function binIntoDeciles(values: Float64Array): { categories: Int32Array; count: number } {
+  const sorted = Float64Array.from(values).sort();
+  const cuts = Array.from({ length: 9 }, (_, k) => quantileSorted(sorted, (k + 1) / 10));
+  const raw = new Int32Array(values.length);
+  const used = new Uint8Array(10);
+  for (let row = 0; row < values.length; row++) {
+    let bin = 0;
+    for (const cut of cuts) if (values[row] > cut) bin++;
+    raw[row] = bin;
+    used[bin] = 1;
+  }
+  const renumber = new Int32Array(10);
+  let count = 0;
+  for (let bin = 0; bin < 10; bin++) if (used[bin]) renumber[bin] = count++;
+  for (let row = 0; row < values.length; row++) raw[row] = renumber[raw[row]];
+  return { categories: raw, count };
+}
+
+function planFeatureColumns(
+  raw: RawDataset,
+  warnings: string[],
+): { kept: EncodedColumn[]; omitted: OmittedColumn[] } {
+  const kept: EncodedColumn[] = [];
+  const omitted: OmittedColumn[] = [];
+  const rows = raw.keptRows;
+  for (const source of raw.features) {
+    if (source.missingCount === rows) {
+      omitted.push({ column: source.name, reason: "all-missing" });
+      warnings.push(`column "${source.name}" has no values and was left out`);
+      continue;
+    }
+    if (source.numeric) {
+      const values = source.values.toArray();
+      const present = new CompensatedSum();
+      for (let row = 0; row < rows; row++)
+        if (values[row] === values[row]) present.add(values[row]);
+      const fill = present.value / (rows - source.missingCount);
+      for (let row = 0; row < rows; row++) if (values[row] !== values[row]) values[row] = fill;
+      const { mean, std } = measureMoments(values);
+      if (std < MIN_FEATURE_STD) {
+        omitted.push({ column: source.name, reason: "constant" });
+        continue;
+      }
+      kept.push({ kind: "numeric", source, name: source.name, fill, mean, std });
+      continue;
+    }
+    if (!source.hasLevels) {
+      if (raw.featuresNamed) {
+        const first = source.firstNonNumeric as { row: number; token: string };
+        throw new AnalysisInputError(
+          `the feature is not numeric ("${first.token}") and has more than ${MAX_ONE_HOT_LEVELS} distinct values`,
+          {
+            file: raw.fileName,
+            row: first.row,
+            column: source.name,
+            expected: `numbers, or at most ${MAX_ONE_HOT_LEVELS} distinct categories`,
+          },
+        );
+      }
+      omitted.push({ column: source.name, reason: "too-many-levels" });
+      warnings.push(
+        `column "${source.name}" is not numeric and has more than ${MAX_ONE_HOT_LEVELS} distinct values; it was left out`,
+      );
+      continue;
+    }
+    const levels = source.levels;
+    const counts = new Float64Array(levels.length);
+    const codes = source.takeCodes();
+    for (let row = 0; row < rows; row++) if (codes[row] >= 0) counts[codes[row]]++;
+    for (const code of sortedOrder(levels)) {
+      const mean = counts[code] / rows;
+      const std = Math.sqrt(mean * (1 - mean));
+      const name = `${source.name}=${levels[code]}`;
+      if (std < MIN_FEATURE_STD) {
+        omitted.push({ column: name, reason: "constant" });
+        continue;
+      }
+      kept.push({ kind: "level", source, name, code, mean, std });
+    }
+  }
+  return { kept, omitted };
+}
+
+function writeColumn(
+  column: EncodedColumn,
+  j: number,
+  width: number,
+  position: Int32Array,
+  out: Float64Array,
+): void {
+  const inverseStd = 1 / column.std;
+  if (column.kind === "numeric") {
+    const values = column.source.values.toArray();
+    for (let row = 0; row < values.length; row++) {
+      const value = values[row] === values[row] ? values[row] : column.fill;
+      out[position[row] * width + j] = (value - column.mean) * inverseStd;
+    }
+    return;
+  }
+  const codes = column.source.takeCodes();
+  const high = (1 - column.mean) * inverseStd;
+  const low = -column.mean * inverseStd;
+  for (let row = 0; row < codes.length; row++) {
+    out[position[row] * width + j] = codes[row] === column.code ? high : low;
+  }
+}
+
+/** Indices of `values` in code-point order of the values. */
+function sortedOrder(values: string[]): number[] {
+  return values.map((_, index) => index).sort((a, b) => compareCodePoints(values[a], values[b]));
+}
+
+function invert(order: number[]): Int32Array {
+  const rank = new Int32Array(order.length);
+  order.forEach((code, index) => (rank[code] = index));
+  return rank;
+}

@@ -1,0 +1,50 @@
+/** Where in the user's input a problem was found; every field is optional but as many as known are set. */
+export interface InputProblemLocation {
+  /** The file's name as the user knows it (a path for the CLI, the upload's name in the web app). */
+  file?: string;
+  /** 0-based data row index (header excluded), the same numbering the partition map uses. */
+  row?: number;
+  column?: string;
+  /** What would have been accepted, e.g. "a finite number". */
+  expected?: string;
+}
+
+/**
+ * Bad input: the data, partition map, options or reference weights do not satisfy methods.md §1.
+ * The message is written for the person who supplied the input (the CLI prints it and exits 2; the
+ * web app shows it), so it names the file, row, column and what was expected. Anything else thrown
+ * by the engine is an internal error.
+ */
+export class AnalysisInputError extends Error {
+  readonly file?: string;
+  readonly row?: number;
+  readonly column?: string;
+  readonly expected?: string;
+
+  constructor(problem: string, location: InputProblemLocation = {}) {
+    super(describeProblem(problem, location));
+    this.name = "AnalysisInputError";
+    this.file = location.file;
+    this.row = location.row;
+    this.column = location.column;
+    this.expected = location.expected;
+  }
+}
+
+function describeProblem(problem: string, { file, row, column, expected }: InputProblemLocation) {
+  const where: string[] = [];
+  if (file !== undefined) where.push(file);
+  if (row !== undefined) where.push(`data row ${row} (0-based, header excluded; line ${row + 2})`);
+  if (column !== undefined) where.push(`column "${column}"`);
+  const prefix = where.length > 0 ? `${where.join(", ")}: ` : "";
+  const suffix = expected !== undefined ? ` (expected ${expected})` : "";
+  return `${prefix}${problem}${suffix}`;
+}
+
+/** Lists the first few offenders of a validation so a message stays short but actionable. */
+export function listFirst(items: readonly (string | number)[], total: number, limit = 5): string {
+  const shown = items
+    .slice(0, limit)
+    .map((item) => (typeof item === "string" ? `"${item}"` : item));
+  return total > shown.length ? `${shown.join(", ")}, … (${total} in all)` : shown.join(", ");
+}

@@ -1,0 +1,9 @@
+/**
+ * Partita's analysis engine (methods.md): pure TypeScript, no framework, no database, shared by the
+ * CLI, the web app's background worker and the tests.
+ */
+export { analyzePartition, type PartitionInput } from "./analyze-partition";
+export { AnalysisInputError } from "./errors";
+export type { Advice, Verdict } from "./advise-plan";
+export type { AnalysisProgress, AnalysisStage, PartitionSummary, ShardSummary } from "./summary";
+export { ENGINE_VERSION } from "./version";

@@ -1,0 +1,136 @@
+import { dot, squaredNorm } from "../math/summation";
+import type { Design } from "./design";
+import { evaluateObjective } from "./objective";
+
+export interface ShardMeasurement {
+  rows: number;
+  /** Fₘ(W), regularizer included. */
+  loss: number;
+  /** gₘ = ∇Fₘ(W), regularizer included. */
+  gradient: Float64Array;
+  /** ‖gₘ‖². */
+  gradNorm2: number;
+  /** σₘ² = (1/nₘ) Σ ‖∇ℓᵢ − mean∇ℓ‖² (NaN when not requested). */
+  sigma2: number;
+}
+
+export interface PointMeasurement {
+  /** F(W) = Σ wₘ Fₘ(W). */
+  loss: number;
+  gradient: Float64Array;
+  gradientNorm: number;
+  shards: ShardMeasurement[];
+  /** Σ wₘ ‖gₘ − ∇F‖². */
+  zeta2: number;
+  /** (1/M) Σ ‖gₘ − ḡ‖², ḡ = (1/M) Σ gₘ. */
+  zeta2Uniform: number;
+  /** √(Σ wₘ‖gₘ‖² / ‖∇F‖²); null where ∇F vanishes (to the optimizer's tolerance). */
+  dissimilarity: number | null;
+  /** Σ wₘ σₘ² (NaN when not requested). */
+  sigma2: number;
+  /** (1/N) Σᵢ ‖∇ℓᵢ − mean∇ℓ‖² over all rows (NaN when not requested). */
+  sigma2Pooled: number;
+}
+
+/**
+ * Measures methods.md §3 at the point W in one pass per shard: each shard's Fₘ, gₘ and (when
+ * `withNoise`) σₘ², then the weighted and uniform ζ², the dissimilarity B(W) and σ², σ²_pooled.
+ * Sources: ζ², Woodworth et al. NeurIPS 2020 (from memory); B(W), Li et al. MLSys 2020, Definition 3;
+ * σ² and the law of total variance σ²_pooled = σ² + ζ², standard.
+ * `vanishingGradient` is the gradient norm treated as zero (the optimizer's tolerance).
+ */
+export function measureAtPoint(
+  design: Design,
+  weights: Float64Array,
+  lambda: number,
+  { withNoise, vanishingGradient }: { withNoise: boolean; vanishingGradient: number },
+): PointMeasurement {
+  const totalRows = design.x.rows;
+  const shardCount = design.shardIds.length;
+  const size = weights.length;
+  const gradient = new Float64Array(size);
+  const pooledDataGradient = new Float64Array(size);
+  const uniformMean = new Float64Array(size);
+  let loss = 0;
+  let pooledSquaredNorms = 0;
+  let sigma2 = 0;
+  const shards: ShardMeasurement[] = [];
+
+  for (let m = 0; m < shardCount; m++) {
+    const rowStart = design.shardOffsets[m];
+    const rowEnd = design.shardOffsets[m + 1];
+    const evaluation = evaluateObjective(design, weights, lambda, {
+      rowStart,
+      rowEnd,
+      withSquaredNorms: withNoise,
+    });
+    const share = evaluation.rows / totalRows;
+    const shardSigma2 = withNoise
+      ? Math.max(0, evaluation.meanSquaredSampleNorm - squaredNorm(evaluation.dataGradient))
+      : Number.NaN;
+    loss += share * evaluation.value;
+    for (let k = 0; k < size; k++) {
+      gradient[k] += share * evaluation.gradient[k];
+      pooledDataGradient[k] += share * evaluation.dataGradient[k];
+      uniformMean[k] += evaluation.gradient[k] / shardCount;
+    }
+    pooledSquaredNorms += share * evaluation.meanSquaredSampleNorm;
+    sigma2 += share * shardSigma2;
+    shards.push({
+      rows: evaluation.rows,
+      loss: evaluation.value,
+      gradient: evaluation.gradient,
+      gradNorm2: squaredNorm(evaluation.gradient),
+      sigma2: shardSigma2,
+    });
+  }
+
+  let zeta2 = 0;
+  let zeta2Uniform = 0;
+  let weightedSquaredNorms = 0;
+  for (const shard of shards) {
+    const share = shard.rows / totalRows;
+    zeta2 += share * squaredDistance(shard.gradient, gradient);
+    zeta2Uniform += squaredDistance(shard.gradient, uniformMean) / shardCount;
+    weightedSquaredNorms += share * shard.gradNorm2;
+  }
+  const gradientNorm = Math.sqrt(squaredNorm(gradient));
+  return {
+    loss,
+    gradient,
+    gradientNorm,
+    shards,
+    zeta2,
+    zeta2Uniform,
+    dissimilarity:
+      gradientNorm > vanishingGradient ? Math.sqrt(weightedSquaredNorms) / gradientNorm : null,
+    sigma2,
+    sigma2Pooled: withNoise
+      ? Math.max(0, pooledSquaredNorms - squaredNorm(pooledDataGradient))
+      : Number.NaN,
+  };
+}
+
+/**
+ * Cosine similarity of every pair of shard gradients (methods.md §3, "gradient agreement"):
+ * cos(gₘ, gₖ) = gₘ·gₖ / (‖gₘ‖‖gₖ‖); null where a gradient is zero.
+ *
+ * Example: gradients (1, 0), (0, 2), (−3, 0) give [[1, 0, −1], [0, 1, 0], [−1, 0, 1]].
+ */
+export function measureGradientAgreement(gradients: Float64Array[]): (number | null)[][] {
+  const norms = gradients.map((g) => Math.sqrt(squaredNorm(g)));
+  return gradients.map((a, m) =>
+    gradients.map((b, k) =>
+      norms[m] > 0 && norms[k] > 0 ? dot(a, 0, b, 0, a.length) / (norms[m] * norms[k]) : null,
+    ),
+  );
+}
+
+function squaredDistance(a: Float64Array, b: Float64Array): number {
+  let total = 0;
+  for (let k = 0; k < a.length; k++) {
+    const difference = a[k] - b[k];
+    total += difference * difference;
+  }
+  return total;
+}

@@ -1,0 +1,220 @@
+import { softmaxInPlace } from "../math/softmax";
+import { addCompensated } from "../math/summation";
+import type { Design } from "./design";
+
+/**
+ * Sums over a set of rows that every statistic of methods.md §2–§3 is built from, at one point W:
+ * Σ ℓᵢ(W), Σ ∇ℓᵢ(W) (data term only, no regularizer) and Σ ‖∇ℓᵢ(W)‖². They are plain sums, so
+ * totals over chunks, shards, workers or machines merge by addition (`mergeTotals`).
+ * Each sum carries a Neumaier compensation term, fed block by block.
+ */
+export interface PassTotals {
+  rows: number;
+  lossSum: number;
+  lossCompensation: number;
+  gradientSum: Float64Array;
+  gradientCompensation: Float64Array;
+  squaredGradientNormSum: number;
+  squaredGradientNormCompensation: number;
+}
+
+export function createTotals(parameterCount: number): PassTotals {
+  return {
+    rows: 0,
+    lossSum: 0,
+    lossCompensation: 0,
+    gradientSum: new Float64Array(parameterCount),
+    gradientCompensation: new Float64Array(parameterCount),
+    squaredGradientNormSum: 0,
+    squaredGradientNormCompensation: 0,
+  };
+}
+
+/** Adds `source` into `target` (both from the same W). */
+export function mergeTotals(target: PassTotals, source: PassTotals): void {
+  target.rows += source.rows;
+  [target.lossSum, target.lossCompensation] = addScalarCompensated(
+    target.lossSum,
+    target.lossCompensation,
+    source.lossSum + source.lossCompensation,
+  );
+  const combined = new Float64Array(source.gradientSum.length);
+  for (let k = 0; k < combined.length; k++) {
+    combined[k] = source.gradientSum[k] + source.gradientCompensation[k];
+  }
+  addCompensated(target.gradientSum, target.gradientCompensation, combined);
+  [target.squaredGradientNormSum, target.squaredGradientNormCompensation] = addScalarCompensated(
+    target.squaredGradientNormSum,
+    target.squaredGradientNormCompensation,
+    source.squaredGradientNormSum + source.squaredGradientNormCompensation,
+  );
+}
+
+/** The compensated value of each sum. */
+export function readTotals(totals: PassTotals): {
+  loss: number;
+  gradient: Float64Array;
+  squaredNorms: number;
+} {
+  const gradient = new Float64Array(totals.gradientSum.length);
+  for (let k = 0; k < gradient.length; k++)
+    gradient[k] = totals.gradientSum[k] + totals.gradientCompensation[k];
+  return {
+    loss: totals.lossSum + totals.lossCompensation,
+    gradient,
+    squaredNorms: totals.squaredGradientNormSum + totals.squaredGradientNormCompensation,
+  };
+}
+
+/** Rows summed directly before their partial sums enter the compensated totals. */
+const BLOCK_ROWS = 256;
+
+/** Reusable workspace for `accumulatePass`, so the hot loop allocates nothing. */
+export interface PassWorkspace {
+  scores: Float64Array;
+  blockGradient: Float64Array;
+}
+
+export function createWorkspace(classCount: number, width: number): PassWorkspace {
+  return {
+    scores: new Float64Array(classCount),
+    blockGradient: new Float64Array(classCount * width),
+  };
+}
+
+/**
+ * Adds rows [rowStart, rowEnd) of the design at W (C × (d + 1), row-major) into `totals`.
+ *
+ * Softmax (methods.md §2): sᵢ = W x̃ᵢ, ℓᵢ = logsumexp(sᵢ) − s_{i,yᵢ}, ∇ℓᵢ = (pᵢ − e_{yᵢ}) x̃ᵢᵀ and
+ * ‖∇ℓᵢ‖² = ‖pᵢ − e_{yᵢ}‖² ‖x̃ᵢ‖². Least squares: rᵢ = wᵀx̃ᵢ − yᵢ, ℓᵢ = ½ rᵢ², ∇ℓᵢ = rᵢ x̃ᵢ,
+ * ‖∇ℓᵢ‖² = rᵢ² ‖x̃ᵢ‖². The per-sample gradient is never formed: its norm factorizes (§3).
+ */
+export function accumulatePass(
+  design: Design,
+  weights: Float64Array,
+  rowStart: number,
+  rowEnd: number,
+  totals: PassTotals,
+  workspace: PassWorkspace,
+  withSquaredNorms: boolean,
+): void {
+  for (let blockStart = rowStart; blockStart < rowEnd; blockStart += BLOCK_ROWS) {
+    const blockEnd = Math.min(rowEnd, blockStart + BLOCK_ROWS);
+    workspace.blockGradient.fill(0);
+    const [loss, squaredNorms] =
+      design.labels !== null
+        ? accumulateSoftmaxBlock(
+            design,
+            design.labels,
+            weights,
+            blockStart,
+            blockEnd,
+            workspace,
+            withSquaredNorms,
+          )
+        : accumulateLeastSquaresBlock(
+            design,
+            design.targets as Float64Array,
+            weights,
+            blockStart,
+            blockEnd,
+            workspace,
+            withSquaredNorms,
+          );
+    totals.rows += blockEnd - blockStart;
+    [totals.lossSum, totals.lossCompensation] = addScalarCompensated(
+      totals.lossSum,
+      totals.lossCompensation,
+      loss,
+    );
+    [totals.squaredGradientNormSum, totals.squaredGradientNormCompensation] = addScalarCompensated(
+      totals.squaredGradientNormSum,
+      totals.squaredGradientNormCompensation,
+      squaredNorms,
+    );
+    addCompensated(totals.gradientSum, totals.gradientCompensation, workspace.blockGradient);
+  }
+}
+
+function accumulateSoftmaxBlock(
+  design: Design,
+  labels: Int32Array,
+  weights: Float64Array,
+  rowStart: number,
+  rowEnd: number,
+  workspace: PassWorkspace,
+  withSquaredNorms: boolean,
+): [number, number] {
+  const width = design.x.cols;
+  const x = design.x.data;
+  const classCount = weights.length / width;
+  const scores = workspace.scores;
+  const gradient = workspace.blockGradient;
+  let loss = 0;
+  let squaredNorms = 0;
+  for (let row = rowStart; row < rowEnd; row++) {
+    const base = row * width;
+    for (let c = 0; c < classCount; c++) {
+      const weightBase = c * width;
+      let score = 0;
+      for (let j = 0; j < width; j++) score += weights[weightBase + j] * x[base + j];
+      scores[c] = score;
+    }
+    const label = labels[row];
+    const labelScore = scores[label];
+    loss += softmaxInPlace(scores, 0, classCount) - labelScore;
+    scores[label] -= 1;
+    if (withSquaredNorms) {
+      let residualNorm = 0;
+      for (let c = 0; c < classCount; c++) residualNorm += scores[c] * scores[c];
+      let rowNorm = 0;
+      for (let j = 0; j < width; j++) rowNorm += x[base + j] * x[base + j];
+      squaredNorms += residualNorm * rowNorm;
+    }
+    for (let c = 0; c < classCount; c++) {
+      const residual = scores[c];
+      const gradientBase = c * width;
+      for (let j = 0; j < width; j++) gradient[gradientBase + j] += residual * x[base + j];
+    }
+  }
+  return [loss, squaredNorms];
+}
+
+function accumulateLeastSquaresBlock(
+  design: Design,
+  targets: Float64Array,
+  weights: Float64Array,
+  rowStart: number,
+  rowEnd: number,
+  workspace: PassWorkspace,
+  withSquaredNorms: boolean,
+): [number, number] {
+  const width = design.x.cols;
+  const x = design.x.data;
+  const gradient = workspace.blockGradient;
+  let loss = 0;
+  let squaredNorms = 0;
+  for (let row = rowStart; row < rowEnd; row++) {
+    const base = row * width;
+    let residual = -targets[row];
+    for (let j = 0; j < width; j++) residual += weights[j] * x[base + j];
+    loss += 0.5 * residual * residual;
+    if (withSquaredNorms) {
+      let rowNorm = 0;
+      for (let j = 0; j < width; j++) rowNorm += x[base + j] * x[base + j];
+      squaredNorms += residual * residual * rowNorm;
+    }
+    for (let j = 0; j < width; j++) gradient[j] += residual * x[base + j];
+  }
+  return [loss, squaredNorms];
+}
+
+function addScalarCompensated(
+  total: number,
+  compensation: number,
+  value: number,
+): [number, number] {
+  const next = total + value;
+  const error = Math.abs(total) >= Math.abs(value) ? total - next + value : value - next + total;
+  return [next, compensation + error];
+}

@@ -1,0 +1,51 @@
+import { z } from "zod";
+
+/**
+ * Reference weights supplied by the user (methods.md §2, "uploaded weights"): one row per class (one
+ * row for regression) over the encoded features in the report's order plus the bias last. This is
+ * the shape of `model.optimum` in a summary, so a previous report's optimum can be reused.
+ */
+export const referenceWeightsSchema = z.object({
+  classes: z.array(z.string()).nullable(),
+  features: z.array(z.string()),
+  weights: z.array(z.array(z.number().finite())).min(1),
+});
+
+export type ReferenceWeights = z.infer<typeof referenceWeightsSchema>;
+
+const columnName = z.string().trim().min(1, "a column name cannot be empty");
+
+/**
+ * Options of one partition analysis, shared by the CLI, the API and the web form. Defaults are those
+ * of methods.md and issue 3: λ = 1e-3, K = 10, R = 100, b = 32, M = all shards.
+ */
+export const analysisOptionsSchema = z
+  .object({
+    labelColumn: columnName,
+    idColumn: columnName.optional(),
+    shardColumn: columnName.optional(),
+    features: z.array(columnName).min(1, "name at least one feature column").optional(),
+    task: z.enum(["classification", "regression"]).optional(),
+    lambda: z.number().finite().positive("λ must be positive").default(1e-3),
+    reference: z
+      .union([z.literal("optimum"), z.literal("zero"), referenceWeightsSchema])
+      .default("optimum"),
+    participants: z.number().int().positive().optional(),
+    localSteps: z.number().int().positive().default(10),
+    rounds: z.number().int().positive().default(100),
+    batchSize: z.number().int().positive().default(32),
+    /** Drop labelled rows the partition does not assign instead of rejecting the input. */
+    dropUnassignedRows: z.boolean().default(false),
+  })
+  .refine(
+    (options) => !options.features || new Set(options.features).size === options.features.length,
+    {
+      message: "a feature column is named twice",
+      path: ["features"],
+    },
+  );
+
+/** Options as given by a caller (defaults optional). */
+export type AnalysisOptionsInput = z.input<typeof analysisOptionsSchema>;
+/** Options after defaults are applied. */
+export type AnalysisOptions = z.output<typeof analysisOptionsSchema>;
