@@ -110,5 +110,11 @@ export function estimateDirichletAlpha(counts: number[][], pooled: number[]): nu
     gridPoints: 91,
     tolerance: 1e-7,
   });
+  // Near the ends the likelihood is flat to rounding (for an IID split it rises like 1/α toward
+  // 1e6); an end whose value ties the maximum to 1e-12 relative is reported as that end.
+  for (const end of [upper, lower]) {
+    const value = logLikelihood(Math.log(end));
+    if (value >= best.value - 1e-12 * Math.abs(best.value)) return end;
+  }
   return Math.min(upper, Math.max(lower, Math.exp(best.argument)));
 }

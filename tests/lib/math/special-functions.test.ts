@@ -44,6 +44,9 @@ print(json.dumps([float(gammaln(x)) for x in json.load(sys.stdin)]))`,
       [1e6, 30],
       [2.5, 200],
       [0.01, 5000],
+      [1e6, 120],
+      [123.5, 100000],
+      [99.5, 70],
     ];
     // Outside reference: Σ_{j<n} log(a + j) summed exactly rounded by Python's math.fsum.
     const reference = runPythonJson<number[]>(

@@ -1,0 +1,66 @@
+import { readFileSync } from "node:fs";
+import { createRequire } from "node:module";
+import path from "node:path";
+import { runPythonJson } from "./run-python";
+
+const require = createRequire(import.meta.url);
+
+interface PenguinRecord {
+  Species: string;
+  Island: string;
+  [column: string]: string | number | null;
+}
+
+/**
+ * The penguins data from the `vega-datasets` npm package (BSD-3-Clause; Palmer penguins, Gorman,
+ * Williams & Fraser 2014), as CSV with a `row` id column. Its missing values (null) become empty
+ * fields, and its "Sex" column has a "." level, so imputation and one-hot encoding are exercised.
+ */
+export function loadPenguinsCsv(): { csv: string; islandMap: string } {
+  // The package's exports map hides data/, so locate it next to the resolved entry point (build/).
+  const entry = require.resolve("vega-datasets");
+  const file = path.join(path.dirname(entry), "..", "data", "penguins.json");
+  const records = JSON.parse(readFileSync(file, "utf8")) as PenguinRecord[];
+  const columns = Object.keys(records[0]);
+  const quote = (value: string) => (/[",]/.test(value) ? `"${value.replace(/"/g, '""')}"` : value);
+  const lines = [["row", ...columns].map(quote).join(",")];
+  const mapLines = ["row_id,shard"];
+  records.forEach((record, index) => {
+    lines.push(
+      [String(index), ...columns.map((c) => (record[c] === null ? "" : String(record[c])))]
+        .map(quote)
+        .join(","),
+    );
+    mapLines.push(`${index},${record.Island}`);
+  });
+  return { csv: `${lines.join("\n")}\n`, islandMap: `${mapLines.join("\n")}\n` };
+}
+
+/**
+ * A scikit-learn bundled dataset (load_wine: UCI wine recognition data, 178 rows, 13 features,
+ * 3 classes) with a seeded Dirichlet(α·1) label-skewed split into `shards` shards, as CSV text with a
+ * `shard` column. The split is drawn by NumPy's default_rng(seed): for each class, the shares of
+ * its rows per shard ~ Dir(α) (the partition scheme of Hsu et al. 2019, from memory).
+ */
+export function loadWineDirichletCsv(seed: number, alpha: number, shards: number): string {
+  return runPythonJson<string>(
+    `import json,sys,io
+import numpy as np
+from sklearn.datasets import load_wine
+seed,alpha,shards=json.load(sys.stdin)
+data=load_wine(as_frame=True)
+frame=data.frame.rename(columns={"target":"cultivar"})
+frame["cultivar"]=["c"+str(v) for v in frame["cultivar"]]
+rng=np.random.default_rng(seed)
+assign=np.empty(len(frame),dtype=int)
+for c in sorted(frame["cultivar"].unique()):
+    rows=np.where(frame["cultivar"]==c)[0]; rng.shuffle(rows)
+    shares=rng.dirichlet([alpha]*shards)
+    cuts=(np.cumsum(shares)*len(rows)).astype(int)[:-1]
+    for m,part in enumerate(np.split(rows,cuts)): assign[part]=m
+frame["shard"]=["s"+str(m) for m in assign]
+out=io.StringIO(); frame.to_csv(out,index=False)
+print(json.dumps(out.getvalue()))`,
+    [seed, alpha, shards],
+  );
+}
