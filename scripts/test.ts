@@ -174,6 +174,9 @@ async function main(): Promise<number> {
 main()
   .then((code) => supervisor.exitAfterShutdown(code))
   .catch((error: unknown) => {
-    console.error(`\nnpm test could not run: ${error instanceof Error ? error.message : error}`);
+    // After Ctrl-C the next stage refuses to start; that is not worth a second message.
+    if (!supervisor.isShuttingDown) {
+      console.error(`\nnpm test could not run: ${error instanceof Error ? error.message : error}`);
+    }
     supervisor.exitAfterShutdown(1);
   });
