@@ -1,0 +1,179 @@
+import {
+  bigint,
+  doublePrecision,
+  index,
+  integer,
+  jsonb,
+  pgEnum,
+  pgTable,
+  primaryKey,
+  text,
+  timestamp,
+  uniqueIndex,
+} from "drizzle-orm/pg-core";
+import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
+import type { PartitionSummary } from "@/lib/analysis/summary";
+import { users } from "./auth";
+import { workspaces } from "./workspaces";
+
+/** A dataset CSV, a layout (partition map CSV) or reference weights (JSON). */
+export const dataFileKind = pgEnum("data_file_kind", ["dataset", "layout", "weights"]);
+
+/** What a ranged read of the file's beginning showed: detected columns and the first rows. */
+export type DataFilePreview = {
+  columns: { name: string; type: "numeric" | "categorical" | "empty"; distinct: number }[];
+  rows: string[][];
+  /** True when the preview read stopped before the end of the file. */
+  truncated: boolean;
+};
+
+/**
+ * An object the browser uploaded straight to storage. A row exists only once the server has seen
+ * the object in storage (HEAD), so every registered file can be read.
+ */
+export const dataFiles = pgTable(
+  "data_files",
+  {
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
+    kind: dataFileKind("kind").notNull(),
+    /** The name the user's file had; shown in the product and in messages. */
+    name: text("name").notNull(),
+    objectKey: text("object_key").notNull(),
+    sizeBytes: bigint("size_bytes", { mode: "number" }).notNull(),
+    contentType: text("content_type"),
+    preview: jsonb("preview").$type<DataFilePreview>(),
+    uploadedBy: text("uploaded_by")
+      .notNull()
+      .references(() => users.id),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (table) => [
+    uniqueIndex("data_files_object_key_idx").on(table.objectKey),
+    index("data_files_workspace_idx").on(table.workspaceId, table.kind),
+  ],
+);
+
+export const analysisStatus = pgEnum("analysis_status", [
+  "queued",
+  "running",
+  "succeeded",
+  "failed",
+  "cancelled",
+]);
+
+/**
+ * One requested run of the engine: its inputs and parameters, and its live state while the worker
+ * runs it. Stage and fraction are written by the worker and polled by the browser.
+ */
+export const analyses = pgTable(
+  "analyses",
+  {
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
+    title: text("title").notNull(),
+    datasetFileId: text("dataset_file_id")
+      .notNull()
+      .references(() => dataFiles.id),
+    layoutFileId: text("layout_file_id").references(() => dataFiles.id),
+    weightsFileId: text("weights_file_id").references(() => dataFiles.id),
+    parameters: jsonb("parameters").$type<AnalysisOptionsInput>().notNull(),
+    /** The report this run revises, when it is a re-run with other parameters. */
+    previousReportId: text("previous_report_id"),
+    status: analysisStatus("status").notNull().default("queued"),
+    stage: text("stage"),
+    fraction: doublePrecision("fraction").notNull().default(0),
+    /** Why it failed, written for the user (the engine's input message), or null. */
+    failureMessage: text("failure_message"),
+    attempts: integer("attempts").notNull().default(0),
+    jobId: text("job_id"),
+    createdBy: text("created_by")
+      .notNull()
+      .references(() => users.id),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    startedAt: timestamp("started_at", { withTimezone: true }),
+    finishedAt: timestamp("finished_at", { withTimezone: true }),
+  },
+  (table) => [index("analyses_workspace_idx").on(table.workspaceId, table.createdAt)],
+);
+
+/** An input as it was analysed: which object, how big, and its SHA-256 computed while streaming. */
+export type ReportInput = {
+  kind: "dataset" | "layout" | "weights";
+  name: string;
+  objectKey: string;
+  sizeBytes: number;
+  sha256: string;
+};
+
+/**
+ * The immutable result of one analysis. The unique analysis id makes a retried job unable to store a
+ * second report; re-runs make a new row in the same lineage with the next version number.
+ */
+export const reports = pgTable(
+  "reports",
+  {
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
+    analysisId: text("analysis_id")
+      .notNull()
+      .references(() => analyses.id),
+    /** The first report of a line of revisions; equal to id for version 1. */
+    lineageId: text("lineage_id").notNull(),
+    version: integer("version").notNull(),
+    previousReportId: text("previous_report_id"),
+    title: text("title").notNull(),
+    verdict: text("verdict").$type<PartitionSummary["advice"]["verdict"]>().notNull(),
+    summary: jsonb("summary").$type<PartitionSummary>().notNull(),
+    parameters: jsonb("parameters").$type<AnalysisOptionsInput>().notNull(),
+    inputs: jsonb("inputs").$type<ReportInput[]>().notNull(),
+    engineVersion: text("engine_version").notNull(),
+    /** Seconds per engine stage, plus the total. */
+    timings: jsonb("timings").$type<Record<string, number>>().notNull(),
+    authorId: text("author_id")
+      .notNull()
+      .references(() => users.id),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (table) => [
+    uniqueIndex("reports_analysis_idx").on(table.analysisId),
+    uniqueIndex("reports_lineage_version_idx").on(table.lineageId, table.version),
+    index("reports_workspace_idx").on(table.workspaceId, table.createdAt),
+  ],
+);
+
+/** The per-shard table of a report, one row per shard, for sorting and filtering in SQL. */
+export const reportShards = pgTable(
+  "report_shards",
+  {
+    reportId: text("report_id")
+      .notNull()
+      .references(() => reports.id, { onDelete: "cascade" }),
+    ordinal: integer("ordinal").notNull(),
+    shardId: text("shard_id").notNull(),
+    rows: integer("rows").notNull(),
+    tv: doublePrecision("tv").notNull(),
+    hellinger: doublePrecision("hellinger").notNull(),
+    js: doublePrecision("js").notNull(),
+    kl: doublePrecision("kl").notNull(),
+    gradNorm2: doublePrecision("grad_norm2").notNull(),
+    sigma2: doublePrecision("sigma2").notNull(),
+    loss: doublePrecision("loss").notNull(),
+    classesPresent: integer("classes_present").notNull(),
+    effectiveClasses: doublePrecision("effective_classes").notNull(),
+    featureShift: doublePrecision("feature_shift").notNull(),
+  },
+  (table) => [primaryKey({ columns: [table.reportId, table.ordinal] })],
+);
