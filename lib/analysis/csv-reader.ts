@@ -78,8 +78,9 @@ export function readCsvStream(
             rowIndex++;
           }
         } catch (error) {
-          parser.abort();
+          // Fail before aborting: papaparse's abort() calls `complete` synchronously.
           fail(error);
+          parser.abort();
         }
       },
       complete() {
