@@ -4,7 +4,14 @@ import prettier from "eslint-config-prettier";
 
 const config = [
   {
-    ignores: ["node_modules/**", ".next/**", ".data/**", ".test-data/**", "drizzle/**", "next-env.d.ts"],
+    ignores: [
+      "node_modules/**",
+      ".next/**",
+      ".data/**",
+      ".test-data/**",
+      "drizzle/**",
+      "next-env.d.ts",
+    ],
   },
   ...nextVitals,
   ...nextTypescript,
