@@ -152,8 +152,10 @@ async function main() {
 }
 
 main().catch((error: unknown) => {
-  console.error(
-    `\npartita start failed: ${error instanceof Error ? error.message : String(error)}`,
-  );
+  // After Ctrl-C a step cut short fails too; that is not worth a second message.
+  if (!supervisor.isShuttingDown) {
+    const message = error instanceof Error ? error.message : String(error);
+    console.error(`\npartita start failed: ${message}`);
+  }
   supervisor.exitAfterShutdown(1);
 });
