@@ -1,0 +1,174 @@
+/**
+ * `npm run bench`: generates seeded synthetic data (bench-out/, git-ignored), runs the analyze CLI
+ * end to end and, side by side, the NumPy/pandas/SciPy script scripts/bench/reference_summary.py
+ * computing the same summary; prints per-stage times, rows/s, peak memory (VmHWM), the time ratio
+ * and how closely the two summaries agree. `npm run bench -- --small` runs only the 100k case.
+ */
+import { spawn } from "node:child_process";
+import { existsSync, mkdirSync, readFileSync, statSync } from "node:fs";
+import path from "node:path";
+import { writeBenchData, type BenchDataSpec } from "./bench/generate-data";
+
+const root = path.resolve(import.meta.dirname, "..");
+const outputFolder = path.join(root, "bench-out");
+const PYTHON = "/usr/bin/python3";
+
+const CASES: BenchDataSpec[] = [
+  { rows: 100_000, features: 32, classes: 10, shards: 100, alpha: 0.5, seed: 1 },
+  { rows: 1_000_000, features: 64, classes: 10, shards: 100, alpha: 0.5, seed: 2 },
+];
+
+interface RunResult {
+  seconds: number;
+  peakMegabytes: number;
+  stages: Record<string, number>;
+  stdout: string;
+  stderr: string;
+  code: number | null;
+}
+
+/** Runs a command, timing stage markers seen on stderr and sampling its peak resident memory. */
+function runMeasured(
+  command: string,
+  args: string[],
+  stageOf: (line: string) => string | null,
+): Promise<RunResult> {
+  return new Promise((resolve) => {
+    const started = performance.now();
+    const child = spawn(command, args, { cwd: root, stdio: ["ignore", "pipe", "pipe"] });
+    const stageStarts: Array<[string, number]> = [];
+    let stdout = "";
+    let stderr = "";
+    let peakKilobytes = 0;
+    const sample = () => {
+      try {
+        const status = readFileSync(`/proc/${child.pid}/status`, "utf8");
+        const match = /VmHWM:\s+(\d+) kB/.exec(status);
+        if (match) peakKilobytes = Math.max(peakKilobytes, Number(match[1]));
+      } catch {
+        // The process has just exited; the last sample stands.
+      }
+    };
+    const sampler = setInterval(sample, 50);
+    child.stdout.on("data", (chunk: Buffer) => (stdout += chunk.toString()));
+    child.stderr.on("data", (chunk: Buffer) => {
+      const text = chunk.toString();
+      stderr += text;
+      for (const line of text.split("\n")) {
+        const stage = stageOf(line);
+        if (stage && stageStarts.at(-1)?.[0] !== stage)
+          stageStarts.push([stage, performance.now()]);
+      }
+    });
+    child.on("close", (code) => {
+      clearInterval(sampler);
+      const ended = performance.now();
+      const stages: Record<string, number> = {};
+      stageStarts.forEach(([stage, at], index) => {
+        const next = stageStarts[index + 1]?.[1] ?? ended;
+        stages[stage] = (stages[stage] ?? 0) + (next - at) / 1000;
+      });
+      resolve({
+        seconds: (ended - started) / 1000,
+        peakMegabytes: peakKilobytes / 1024,
+        stages,
+        stdout,
+        stderr,
+        code,
+      });
+    });
+  });
+}
+
+function relativeDifference(a: number, b: number): number {
+  return Math.abs(a - b) / Math.max(Math.abs(a), Math.abs(b), 1e-300);
+}
+
+async function benchCase(spec: BenchDataSpec): Promise<void> {
+  const name = `${spec.rows}x${spec.features}x${spec.classes}`;
+  const file = path.join(outputFolder, `bench-${name}-seed${spec.seed}.csv`);
+  if (!existsSync(file)) {
+    process.stdout.write(`generating ${file} …\n`);
+    await writeBenchData(file, spec);
+  }
+  const megabytes = statSync(file).size / 2 ** 20;
+  process.stdout.write(
+    `\n== ${spec.rows} rows × ${spec.features} features × ${spec.classes} classes, ${spec.shards} shards (${megabytes.toFixed(0)} MB)\n`,
+  );
+
+  const engine = await runMeasured(
+    process.execPath,
+    [
+      "--max-old-space-size=1800",
+      "--import",
+      "tsx",
+      "scripts/analyze.ts",
+      "--data",
+      file,
+      "--label",
+      "label",
+      "--shard-column",
+      "shard",
+    ],
+    (line) => /^partita: (\w+) /.exec(line)?.[1] ?? null,
+  );
+  if (engine.code !== 0) throw new Error(`analyze failed: ${engine.stderr}`);
+  const python = await runMeasured(
+    PYTHON,
+    [path.join(root, "scripts/bench/reference_summary.py"), file, "label", "shard"],
+    () => null,
+  );
+  if (python.code !== 0) throw new Error(`reference script failed: ${python.stderr}`);
+  const pythonStages = JSON.parse(python.stderr.trim().split("\n").at(-1) as string) as Record<
+    string,
+    number
+  >;
+
+  const stageLine = (stages: Record<string, number>) =>
+    Object.entries(stages)
+      .map(([stage, seconds]) => `${stage} ${seconds.toFixed(1)}s`)
+      .join(", ");
+  const ours = JSON.parse(engine.stdout);
+  const theirs = JSON.parse(python.stdout);
+  process.stdout.write(
+    `engine (TypeScript): ${engine.seconds.toFixed(1)}s end to end, ${(spec.rows / engine.seconds).toFixed(0)} rows/s, peak ${engine.peakMegabytes.toFixed(0)} MB\n` +
+      `  stages: ${stageLine(engine.stages)}; fit ${ours.model.optimizer.iterations} L-BFGS iterations, ${ours.model.optimizer.evaluations} full passes\n` +
+      `reference (NumPy/pandas/SciPy): ${python.seconds.toFixed(1)}s end to end, ${(spec.rows / python.seconds).toFixed(0)} rows/s, peak ${python.peakMegabytes.toFixed(0)} MB\n` +
+      `  stages: ${stageLine(pythonStages)}; fit ${theirs.model.iterations} L-BFGS-B iterations\n` +
+      `time ratio engine / reference: ${(engine.seconds / python.seconds).toFixed(2)}\n`,
+  );
+  const compared: Array<[string, number, number]> = [
+    ["model.loss", ours.model.loss, theirs.model.loss],
+    ["model.distance", ours.model.distance, theirs.model.distance],
+    ["heterogeneity.zeta2", ours.heterogeneity.zeta2, theirs.heterogeneity.zeta2],
+    ["heterogeneity.zeta2Max", ours.heterogeneity.zeta2Max, theirs.heterogeneity.zeta2Max],
+    ["heterogeneity.sigma2", ours.heterogeneity.sigma2, theirs.heterogeneity.sigma2],
+    [
+      "heterogeneity.sigma2Pooled",
+      ours.heterogeneity.sigma2Pooled,
+      theirs.heterogeneity.sigma2Pooled,
+    ],
+    ["heterogeneity.smoothness", ours.heterogeneity.smoothness, theirs.heterogeneity.smoothness],
+    ["labelSkew.js", ours.labelSkew.js, theirs.labelSkew.js],
+    ["labelSkew.dirichletAlpha", ours.labelSkew.dirichletAlpha, theirs.labelSkew.dirichletAlpha],
+    ["advice.local", ours.advice.local, theirs.advice.local],
+  ];
+  let worst: [string, number] = ["", 0];
+  for (const [key, a, b] of compared) {
+    if (relativeDifference(a, b) > worst[1]) worst = [key, relativeDifference(a, b)];
+  }
+  process.stdout.write(
+    `agreement: largest relative difference ${worst[1].toExponential(1)} (${worst[0]}); verdicts ${ours.advice.verdict} / ${theirs.advice.verdict}\n`,
+  );
+}
+
+async function main(): Promise<void> {
+  mkdirSync(outputFolder, { recursive: true });
+  const cases = process.argv.includes("--small") ? CASES.slice(0, 1) : CASES;
+  for (const spec of cases) await benchCase(spec);
+}
+
+main().catch((error: unknown) => {
+  process.stderr.write(`bench failed: ${error instanceof Error ? error.message : String(error)}\n`);
+  process.exit(1);
+});
