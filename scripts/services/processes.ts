@@ -42,21 +42,20 @@ export class Supervisor {
 
   /** Stops everything on signals and crashes, then exits the orchestrator. */
   installExitHandlers() {
-    const exitAfterShutdown = (code: number) => this.exitAfterShutdown(code);
     const stopOnSignal = (code: number) => {
       if (!this.isShuttingDown) console.log("\nStopping every process this command started …");
-      exitAfterShutdown(code);
+      this.exitAfterShutdown(code);
     };
     process.on("SIGINT", () => stopOnSignal(130));
     process.on("SIGTERM", () => stopOnSignal(143));
     process.on("SIGHUP", () => stopOnSignal(129));
     process.on("uncaughtException", (error) => {
       console.error(error);
-      exitAfterShutdown(1);
+      this.exitAfterShutdown(1);
     });
     process.on("unhandledRejection", (reason) => {
       console.error(reason);
-      exitAfterShutdown(1);
+      this.exitAfterShutdown(1);
     });
   }
 
