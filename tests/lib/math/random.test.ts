@@ -1,0 +1,77 @@
+import { describe, expect, it } from "vitest";
+import { SeededRandom } from "@/lib/math/random";
+import { runPythonJson } from "../analysis/support/run-python";
+
+const DRAWS = 20_000;
+
+function draw(seed: number, sample: (random: SeededRandom) => number): number[] {
+  const random = new SeededRandom(seed);
+  return Array.from({ length: DRAWS }, () => sample(random));
+}
+
+/**
+ * Kolmogorov–Smirnov p-values from SciPy (Debian's python3-scipy), an outside check that each
+ * sampler follows its distribution. Seeds are fixed, so the p-values are fixed too: a threshold of
+ * 1e-3 cannot flake, and a wrong sampler (e.g. a Gamma off by its shape) gives p ≈ 0.
+ */
+const KS_PROGRAM = `
+import json, sys
+from scipy import stats
+samples = json.load(sys.stdin)
+out = {
+  "uniform": stats.kstest(samples["uniform"], "uniform").pvalue,
+  "normal": stats.kstest(samples["normal"], "norm").pvalue,
+  "gammaHalf": stats.kstest(samples["gammaHalf"], stats.gamma(0.5).cdf).pvalue,
+  "gammaThree": stats.kstest(samples["gammaThree"], stats.gamma(3).cdf).pvalue,
+  "integers": stats.chisquare([samples["integers"].count(k) for k in range(7)]).pvalue,
+}
+print(json.dumps(out))
+`;
+
+describe("SeededRandom (xoshiro128**)", () => {
+  it("repeats a stream for a seed and changes it for another seed", () => {
+    const first = draw(42, (random) => random.uniform()).slice(0, 5);
+    expect(draw(42, (random) => random.uniform()).slice(0, 5)).toEqual(first);
+    expect(draw(43, (random) => random.uniform()).slice(0, 5)).not.toEqual(first);
+  });
+
+  it("draws uniforms, normals, gammas and integers that SciPy's tests accept", () => {
+    const pValues = runPythonJson<Record<string, number>>(KS_PROGRAM, {
+      uniform: draw(1, (random) => random.uniform()),
+      normal: draw(2, (random) => random.normal()),
+      gammaHalf: draw(3, (random) => random.gamma(0.5)),
+      gammaThree: draw(4, (random) => random.gamma(3)),
+      integers: draw(5, (random) => random.integer(7)),
+    });
+    for (const [sampler, pValue] of Object.entries(pValues)) {
+      expect({ sampler, accepted: pValue > 1e-3 }).toEqual({ sampler, accepted: true });
+    }
+  });
+
+  it("rejects a normal sample passed off as uniform (the check above can fail)", () => {
+    const pValues = runPythonJson<Record<string, number>>(KS_PROGRAM, {
+      uniform: draw(2, (random) => random.normal()),
+      normal: draw(2, (random) => random.normal()),
+      gammaHalf: draw(3, (random) => random.gamma(3)),
+      gammaThree: draw(4, (random) => random.gamma(3)),
+      integers: draw(5, (random) => random.integer(6)),
+    });
+    expect(pValues.uniform).toBeLessThan(1e-6);
+    expect(pValues.gammaHalf).toBeLessThan(1e-6);
+    expect(pValues.integers).toBeLessThan(1e-6);
+  });
+
+  it("keeps Dirichlet draws on the simplex", () => {
+    const random = new SeededRandom(9);
+    const out = new Float64Array(4);
+    random.dirichlet([0.3, 0.3, 0.3, 0.3], out);
+    expect(out.reduce((sum, value) => sum + value, 0)).toBeCloseTo(1, 12);
+    expect(Math.min(...out)).toBeGreaterThanOrEqual(0);
+  });
+
+  it("refuses impossible parameters", () => {
+    const random = new SeededRandom(1);
+    expect(() => random.integer(0)).toThrow(RangeError);
+    expect(() => random.gamma(0)).toThrow(RangeError);
+  });
+});
