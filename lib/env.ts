@@ -27,6 +27,12 @@ const environmentSchema = z.object({
     .default("false")
     .transform((value) => value === "true"),
   MAIL_FROM: z.string().default("Partita <no-reply@partita.local>"),
+  /** The largest file a user may upload (bytes); checked in the browser and again by the server. */
+  UPLOAD_MAX_BYTES: z.coerce
+    .number()
+    .int()
+    .positive("UPLOAD_MAX_BYTES must be a positive number of bytes")
+    .default(2 * 1024 ** 3),
   /** Set only when the local SMTP fake is in use: the folder it writes messages to. Enables the dev inbox. */
   DEV_MAIL_DIR: z.string().optional(),
 });
