@@ -31,6 +31,7 @@ export default async function WorkspaceLayout({
             <NavLink href={base} exact>
               Overview
             </NavLink>
+            <NavLink href={`${base}/reports`}>Reports</NavLink>
             <NavLink href={`${base}/members`}>Members</NavLink>
             {env().DEV_MAIL_DIR ? (
               <Link
