@@ -17,4 +17,9 @@ export {
   type PresignPutRequest,
   type PresignUploadPartRequest,
 } from "./presign";
-export { completeMultipartUpload, createMultipartUpload, type UploadedPart } from "./multipart";
+export {
+  abortMultipartUpload,
+  completeMultipartUpload,
+  createMultipartUpload,
+  type UploadedPart,
+} from "./multipart";

@@ -1,4 +1,8 @@
-import { CompleteMultipartUploadCommand, CreateMultipartUploadCommand } from "@aws-sdk/client-s3";
+import {
+  AbortMultipartUploadCommand,
+  CompleteMultipartUploadCommand,
+  CreateMultipartUploadCommand,
+} from "@aws-sdk/client-s3";
 import { storage } from "./client";
 
 /**
@@ -45,4 +49,19 @@ export async function completeMultipartUpload(request: {
     }),
   );
   return { etag: result.ETag };
+}
+
+/** Drops a multipart upload and the parts stored so far (a cancelled or failed browser upload). */
+export async function abortMultipartUpload(request: {
+  key: string;
+  uploadId: string;
+}): Promise<void> {
+  const { client, bucket } = storage();
+  await client.send(
+    new AbortMultipartUploadCommand({
+      Bucket: bucket,
+      Key: request.key,
+      UploadId: request.uploadId,
+    }),
+  );
 }
