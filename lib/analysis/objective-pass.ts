@@ -75,9 +75,12 @@ export interface PassWorkspace {
   blockGradient: Float64Array;
 }
 
+/** Rows handled together by the softmax kernel, so each weight and gradient entry is loaded once per group. */
+const ROW_GROUP = 4;
+
 export function createWorkspace(classCount: number, width: number): PassWorkspace {
   return {
-    scores: new Float64Array(classCount),
+    scores: new Float64Array(ROW_GROUP * classCount),
     blockGradient: new Float64Array(classCount * width),
   };
 }
@@ -152,7 +155,63 @@ function accumulateSoftmaxBlock(
   const gradient = workspace.blockGradient;
   let loss = 0;
   let squaredNorms = 0;
-  for (let row = rowStart; row < rowEnd; row++) {
+  let row = rowStart;
+  for (; row + ROW_GROUP <= rowEnd; row += ROW_GROUP) {
+    const base0 = row * width;
+    const base1 = base0 + width;
+    const base2 = base1 + width;
+    const base3 = base2 + width;
+    for (let c = 0; c < classCount; c++) {
+      const weightBase = c * width;
+      let score0 = 0;
+      let score1 = 0;
+      let score2 = 0;
+      let score3 = 0;
+      for (let j = 0; j < width; j++) {
+        const weight = weights[weightBase + j];
+        score0 += weight * x[base0 + j];
+        score1 += weight * x[base1 + j];
+        score2 += weight * x[base2 + j];
+        score3 += weight * x[base3 + j];
+      }
+      scores[c] = score0;
+      scores[classCount + c] = score1;
+      scores[2 * classCount + c] = score2;
+      scores[3 * classCount + c] = score3;
+    }
+    for (let k = 0; k < ROW_GROUP; k++) {
+      const offset = k * classCount;
+      const label = offset + labels[row + k];
+      const labelScore = scores[label];
+      loss += softmaxInPlace(scores, offset, classCount) - labelScore;
+      scores[label] -= 1;
+      if (withSquaredNorms) {
+        squaredNorms += squaredResidualTimesRowNorm(
+          scores,
+          offset,
+          classCount,
+          x,
+          (row + k) * width,
+          width,
+        );
+      }
+    }
+    for (let c = 0; c < classCount; c++) {
+      const residual0 = scores[c];
+      const residual1 = scores[classCount + c];
+      const residual2 = scores[2 * classCount + c];
+      const residual3 = scores[3 * classCount + c];
+      const gradientBase = c * width;
+      for (let j = 0; j < width; j++) {
+        gradient[gradientBase + j] +=
+          residual0 * x[base0 + j] +
+          residual1 * x[base1 + j] +
+          residual2 * x[base2 + j] +
+          residual3 * x[base3 + j];
+      }
+    }
+  }
+  for (; row < rowEnd; row++) {
     const base = row * width;
     for (let c = 0; c < classCount; c++) {
       const weightBase = c * width;
@@ -165,11 +224,7 @@ function accumulateSoftmaxBlock(
     loss += softmaxInPlace(scores, 0, classCount) - labelScore;
     scores[label] -= 1;
     if (withSquaredNorms) {
-      let residualNorm = 0;
-      for (let c = 0; c < classCount; c++) residualNorm += scores[c] * scores[c];
-      let rowNorm = 0;
-      for (let j = 0; j < width; j++) rowNorm += x[base + j] * x[base + j];
-      squaredNorms += residualNorm * rowNorm;
+      squaredNorms += squaredResidualTimesRowNorm(scores, 0, classCount, x, base, width);
     }
     for (let c = 0; c < classCount; c++) {
       const residual = scores[c];
@@ -178,6 +233,23 @@ function accumulateSoftmaxBlock(
     }
   }
   return [loss, squaredNorms];
+}
+
+/** ‖pᵢ − e_yᵢ‖² · ‖x̃ᵢ‖², the squared norm of the per-sample gradient (methods.md §3). */
+function squaredResidualTimesRowNorm(
+  residuals: Float64Array,
+  offset: number,
+  classCount: number,
+  x: Float64Array,
+  base: number,
+  width: number,
+): number {
+  let residualNorm = 0;
+  for (let c = 0; c < classCount; c++)
+    residualNorm += residuals[offset + c] * residuals[offset + c];
+  let rowNorm = 0;
+  for (let j = 0; j < width; j++) rowNorm += x[base + j] * x[base + j];
+  return residualNorm * rowNorm;
 }
 
 function accumulateLeastSquaresBlock(
