@@ -1,0 +1,167 @@
+import Papa from "papaparse";
+import type { DataFilePreview } from "@/db/schema/analyses";
+import { AnalysisInputError } from "@/lib/analysis/errors";
+import { isMissingToken, parseNumberToken, trimToken } from "@/lib/analysis/tokens";
+
+/** How much of a file's beginning the server reads for a preview. */
+export const PREVIEW_BYTES = 256 * 1024;
+/** Rows kept in the stored preview (column types use every complete row read). */
+export const PREVIEW_ROWS = 20;
+/** Longer preview values are cut, so a stray text blob cannot bloat the stored preview. */
+const PREVIEW_VALUE_CHARS = 120;
+
+type PreviewColumn = DataFilePreview["columns"][number];
+
+/**
+ * Detected type and distinct count of each column over the given rows, with methods.md §1's rules:
+ * missing tokens (empty, NA, N/A, NaN, null, None) are skipped; a column is numeric when every other
+ * value parses as a finite number, "empty" when it has no other value, categorical otherwise.
+ */
+export function describeColumns(header: string[], rows: string[][]): PreviewColumn[] {
+  return header.map((name, column) => {
+    const distinct = new Set<string>();
+    let numeric = true;
+    for (const row of rows) {
+      const value = trimToken(row[column] ?? "");
+      if (isMissingToken(value)) continue;
+      distinct.add(value);
+      if (numeric && !Number.isFinite(parseNumberToken(value))) numeric = false;
+    }
+    const type = distinct.size === 0 ? "empty" : numeric ? "numeric" : "categorical";
+    return { name, type, distinct: distinct.size };
+  });
+}
+
+/**
+ * True when the bytes are not text: a NUL byte (binary formats, spreadsheets, UTF-16) or more than
+ * 1% control characters other than tab, line feed, form feed and carriage return.
+ */
+function looksBinary(bytes: Uint8Array): boolean {
+  let control = 0;
+  for (const byte of bytes) {
+    if (byte === 0) return true;
+    if (byte < 32 && byte !== 9 && byte !== 10 && byte !== 12 && byte !== 13) control++;
+  }
+  return control > bytes.length / 100;
+}
+
+function cutPreviewValue(value: string): string {
+  return value.length > PREVIEW_VALUE_CHARS ? `${value.slice(0, PREVIEW_VALUE_CHARS)}…` : value;
+}
+
+export interface CsvPreviewSource {
+  /** The file's first bytes (at most PREVIEW_BYTES). */
+  bytes: Uint8Array;
+  /** The whole file's size, to know whether `bytes` is all of it. */
+  totalBytes: number;
+  /** The name the user knows the file by, used in every message. */
+  fileName: string;
+}
+
+/** The header and complete data rows in a CSV's first bytes, with the engine's parsing rules. */
+export interface CsvHead {
+  header: string[];
+  rows: string[][];
+  /** True when the bytes are not the whole file. */
+  truncated: boolean;
+}
+
+/**
+ * Parses the beginning of a CSV the way the engine will parse the whole file (papaparse with
+ * delimiter detection, blank lines skipped, trimmed unique header names), keeping complete lines
+ * only. Problems the engine would also reject are AnalysisInputErrors naming the file, row and
+ * what was expected: binary content, no header, empty or repeated column names, unclosed quotes,
+ * rows with the wrong number of fields, a header without data rows.
+ */
+export function readCsvHead({ bytes, totalBytes, fileName }: CsvPreviewSource): CsvHead {
+  const truncated = totalBytes > bytes.length;
+  if (looksBinary(bytes)) {
+    throw new AnalysisInputError("this is not a text file (it holds binary data)", {
+      file: fileName,
+      expected: "a CSV file saved as UTF-8 text, e.g. exported with “Save as CSV”",
+    });
+  }
+  let complete = bytes;
+  if (truncated) {
+    // A line feed is never part of a multi-byte UTF-8 character, so cutting after one is safe.
+    const lastLineEnd = bytes.lastIndexOf(10);
+    if (lastLineEnd < 0) {
+      throw new AnalysisInputError(
+        `the first line is longer than ${Math.round(bytes.length / 1024)} KB`,
+        { file: fileName, expected: "a CSV file whose lines end with line breaks" },
+      );
+    }
+    complete = bytes.subarray(0, lastLineEnd + 1);
+  }
+  const text = new TextDecoder("utf-8").decode(complete);
+  const parsed = Papa.parse<string[]>(text, { header: false, skipEmptyLines: true });
+  let records = parsed.data;
+  const quoteProblem = parsed.errors.find((problem) => problem.type === "Quotes");
+  if (quoteProblem) {
+    const problemRow = quoteProblem.row ?? records.length - 1;
+    // A quoted field with line breaks may run past the bytes read: only the rows before it count.
+    if (truncated) records = records.slice(0, problemRow);
+    else {
+      throw new AnalysisInputError("a quoted field is not closed", {
+        file: fileName,
+        row: Math.max(0, problemRow - 1),
+        expected: 'a closing " before the end of the file',
+      });
+    }
+  }
+  if (records.length === 0) {
+    throw new AnalysisInputError("the file has no header row (it holds only blank lines)", {
+      file: fileName,
+      expected: "a header row naming the columns",
+    });
+  }
+  const header = readHeader(records[0], fileName);
+  const rows = records.slice(1);
+  rows.forEach((fields, row) => {
+    if (fields.length !== header.length) {
+      throw new AnalysisInputError(`the row has ${fields.length} fields`, {
+        file: fileName,
+        row,
+        expected: `${header.length} fields, like the header`,
+      });
+    }
+  });
+  if (!truncated && rows.length === 0) {
+    throw new AnalysisInputError("the file has a header but no data rows", {
+      file: fileName,
+      expected: "at least one data row below the header",
+    });
+  }
+  return { header, rows, truncated };
+}
+
+function readHeader(fields: string[], fileName: string): string[] {
+  const columns = fields.map(trimToken);
+  const seen = new Set<string>();
+  columns.forEach((column, index) => {
+    if (column === "") {
+      throw new AnalysisInputError(`header column ${index + 1} has no name`, {
+        file: fileName,
+        expected: "a name for every column in the first row",
+      });
+    }
+    if (seen.has(column)) {
+      throw new AnalysisInputError("the header names this column twice", {
+        file: fileName,
+        column,
+        expected: "unique column names",
+      });
+    }
+    seen.add(column);
+  });
+  return columns;
+}
+
+/** A preview of a parsed CSV head: detected columns over every row read, and the first rows. */
+export function summarizeCsvHead({ header, rows, truncated }: CsvHead): DataFilePreview {
+  return {
+    columns: describeColumns(header, rows),
+    rows: rows.slice(0, PREVIEW_ROWS).map((row) => row.map(cutPreviewValue)),
+    truncated,
+  };
+}

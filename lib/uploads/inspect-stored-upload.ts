@@ -1,0 +1,78 @@
+import "server-only";
+import type { DataFilePreview } from "@/db/schema/analyses";
+import { AnalysisInputError } from "@/lib/analysis/errors";
+import { RuleError } from "@/lib/errors";
+import { deleteObject, getObjectRange, headObject } from "@/lib/storage";
+import { PREVIEW_BYTES } from "./csv-preview";
+import { findUploadProblem, formatBytes, type DataFileKind } from "./file-rules";
+import { inspectDataset, inspectLayout, inspectWeights, WEIGHTS_MAX_BYTES } from "./inspect-upload";
+
+export interface StoredUpload {
+  sizeBytes: number;
+  contentType: string | null;
+  preview: DataFilePreview;
+}
+
+/**
+ * Looks at an object the browser says it uploaded: it must exist and be non-empty and within the
+ * size limit (HEAD), and its beginning must be a CSV of the right shape or, for weights, the whole
+ * file valid weights JSON. Only a ranged read is made, so a large dataset is never downloaded.
+ * Problems are RuleErrors on the field "file" with a message naming the file.
+ */
+export async function inspectStoredUpload(request: {
+  key: string;
+  name: string;
+  kind: DataFileKind;
+  maxBytes: number;
+}): Promise<StoredUpload> {
+  const { key, name, kind, maxBytes } = request;
+  const details = await headObject(key);
+  if (!details) {
+    throw new RuleError(
+      404,
+      `"${name}" has not arrived in storage. Please upload it again.`,
+      "file",
+    );
+  }
+  // The browser checked these before uploading; a client that skipped the checks meets them here.
+  const problem = findUploadProblem(
+    { name, size: details.contentLength, contentType: "" },
+    kind,
+    maxBytes,
+  );
+  if (problem) {
+    if (details.contentLength > maxBytes) await deleteObject(key);
+    throw new RuleError(422, problem, "file");
+  }
+  try {
+    return {
+      sizeBytes: details.contentLength,
+      contentType: details.contentType ?? null,
+      preview: await readPreview(key, name, kind, details.contentLength),
+    };
+  } catch (error) {
+    if (error instanceof AnalysisInputError) throw new RuleError(422, error.message, "file");
+    throw error;
+  }
+}
+
+async function readPreview(
+  key: string,
+  name: string,
+  kind: DataFileKind,
+  totalBytes: number,
+): Promise<DataFilePreview> {
+  if (kind === "weights") {
+    if (totalBytes > WEIGHTS_MAX_BYTES) {
+      throw new AnalysisInputError(`the file is ${formatBytes(totalBytes)}`, {
+        file: name,
+        expected: `reference weights of at most ${formatBytes(WEIGHTS_MAX_BYTES)}`,
+      });
+    }
+    const bytes = await getObjectRange(key, 0, totalBytes - 1);
+    return inspectWeights(new TextDecoder("utf-8").decode(bytes), name);
+  }
+  const bytes = await getObjectRange(key, 0, Math.min(totalBytes, PREVIEW_BYTES) - 1);
+  const source = { bytes, totalBytes, fileName: name };
+  return kind === "dataset" ? inspectDataset(source) : inspectLayout(source);
+}
