@@ -180,16 +180,20 @@ function describeSummary(summary: PartitionSummary): string {
   return `${lines.join("\n")}\n`;
 }
 
+// exitCode instead of process.exit(): exiting at once would cut off JSON still queued for a pipe.
 main().then(
-  () => process.exit(0),
+  () => {
+    process.exitCode = 0;
+  },
   (error: unknown) => {
     if (error instanceof AnalysisInputError) {
       process.stderr.write(`partita: bad input: ${error.message}\n`);
-      process.exit(EXIT_BAD_INPUT);
+      process.exitCode = EXIT_BAD_INPUT;
+      return;
     }
     const message = error instanceof Error ? error.message : String(error);
     process.stderr.write(`partita: internal error: ${message}\n`);
     if (process.env.DEBUG && error instanceof Error) process.stderr.write(`${error.stack}\n`);
-    process.exit(EXIT_INTERNAL);
+    process.exitCode = EXIT_INTERNAL;
   },
 );

@@ -2,7 +2,7 @@
  * `npm run bench`: generates seeded synthetic data (bench-out/, git-ignored), runs the analyze CLI
  * end to end and, side by side, the NumPy/pandas/SciPy script scripts/bench/reference_summary.py
  * computing the same summary; prints per-stage times, rows/s, peak memory (VmHWM), the time ratio
- * and how closely the two summaries agree. `npm run bench -- --small` runs only the 100k case.
+ * and how closely the two summaries agree. `--small` runs only the 100k case, `--large` only the 1M case.
  */
 import { spawn } from "node:child_process";
 import { existsSync, mkdirSync, readFileSync, statSync } from "node:fs";
@@ -164,7 +164,11 @@ async function benchCase(spec: BenchDataSpec): Promise<void> {
 
 async function main(): Promise<void> {
   mkdirSync(outputFolder, { recursive: true });
-  const cases = process.argv.includes("--small") ? CASES.slice(0, 1) : CASES;
+  const cases = process.argv.includes("--small")
+    ? CASES.slice(0, 1)
+    : process.argv.includes("--large")
+      ? CASES.slice(1)
+      : CASES;
   for (const spec of cases) await benchCase(spec);
 }
 
