@@ -1,0 +1,298 @@
+import "server-only";
+import { and, eq, inArray, sql } from "drizzle-orm";
+import { db } from "@/db/client";
+import { analyses, dataFiles, reports } from "@/db/schema";
+import type { AnalysisProgress } from "@/lib/analysis";
+import { RuleError } from "@/lib/errors";
+import type { StartAnalysisRequest } from "@/lib/validation/start-analysis";
+
+// Every function here takes the workspace id and filters by it, so no caller can reach another
+// workspace's analyses or files, whatever id it was handed.
+
+export type Analysis = typeof analyses.$inferSelect;
+export type AnalysisStatus = Analysis["status"];
+type DataFile = typeof dataFiles.$inferSelect;
+
+/** A registered file as an analysis reads it. */
+export type AnalysisInputFile = Pick<DataFile, "id" | "kind" | "name" | "objectKey" | "sizeBytes">;
+
+/** What the progress page and its route handler show of one analysis. */
+export type AnalysisStatusView = Pick<
+  Analysis,
+  | "status"
+  | "stage"
+  | "fraction"
+  | "failureMessage"
+  | "attempts"
+  | "title"
+  | "createdAt"
+  | "startedAt"
+  | "finishedAt"
+> & { reportId: string | null };
+
+const inputFileColumns = {
+  id: dataFiles.id,
+  kind: dataFiles.kind,
+  name: dataFiles.name,
+  objectKey: dataFiles.objectKey,
+  sizeBytes: dataFiles.sizeBytes,
+};
+
+/** The registered files among `fileIds` that belong to this workspace. */
+export async function findInputFiles(
+  workspaceId: string,
+  fileIds: string[],
+): Promise<AnalysisInputFile[]> {
+  if (fileIds.length === 0) return [];
+  return db()
+    .select(inputFileColumns)
+    .from(dataFiles)
+    .where(and(eq(dataFiles.workspaceId, workspaceId), inArray(dataFiles.id, fileIds)));
+}
+
+/** True when the report exists in this workspace. */
+export async function reportExists(workspaceId: string, reportId: string): Promise<boolean> {
+  const [row] = await db()
+    .select({ id: reports.id })
+    .from(reports)
+    .where(and(eq(reports.workspaceId, workspaceId), eq(reports.id, reportId)));
+  return row !== undefined;
+}
+
+/** Records a requested analysis, queued; the caller has checked its files belong to the workspace. */
+export async function insertAnalysis(
+  workspaceId: string,
+  createdBy: string,
+  request: StartAnalysisRequest & { title: string },
+): Promise<string> {
+  const [row] = await db()
+    .insert(analyses)
+    .values({
+      workspaceId,
+      createdBy,
+      title: request.title,
+      datasetFileId: request.datasetFileId,
+      layoutFileId: request.layoutFileId ?? null,
+      weightsFileId: request.weightsFileId ?? null,
+      previousReportId: request.previousReportId ?? null,
+      parameters: request.options,
+    })
+    .returning({ id: analyses.id });
+  return row.id;
+}
+
+export async function setAnalysisJobId(
+  workspaceId: string,
+  analysisId: string,
+  jobId: string,
+): Promise<void> {
+  await db()
+    .update(analyses)
+    .set({ jobId })
+    .where(and(eq(analyses.workspaceId, workspaceId), eq(analyses.id, analysisId)));
+}
+
+/** Removes an analysis that could not be queued, so no request waits forever for a worker. */
+export async function deleteUnqueuedAnalysis(
+  workspaceId: string,
+  analysisId: string,
+): Promise<void> {
+  await db()
+    .delete(analyses)
+    .where(
+      and(
+        eq(analyses.workspaceId, workspaceId),
+        eq(analyses.id, analysisId),
+        eq(analyses.status, "queued"),
+      ),
+    );
+}
+
+/**
+ * Marks a queued or running analysis cancelled. The worker sees the status at its next progress
+ * write (at most a second later) and stops; a job that has not started finds it and does nothing.
+ */
+export async function cancelQueuedOrRunning(
+  workspaceId: string,
+  analysisId: string,
+): Promise<void> {
+  const [cancelled] = await db()
+    .update(analyses)
+    .set({ status: "cancelled", finishedAt: sql`now()` })
+    .where(
+      and(
+        eq(analyses.workspaceId, workspaceId),
+        eq(analyses.id, analysisId),
+        inArray(analyses.status, ["queued", "running"]),
+      ),
+    )
+    .returning({ id: analyses.id });
+  if (cancelled) return;
+  const current = await findAnalysisStatus(workspaceId, analysisId);
+  if (!current) throw new RuleError(404, "That analysis does not exist.");
+  throw new RuleError(
+    409,
+    current.status === "cancelled"
+      ? "This analysis was already cancelled."
+      : `This analysis has already ${current.status}; there is nothing to cancel.`,
+  );
+}
+
+/** The live state of one analysis, with its report's id once there is one. */
+export async function findAnalysisStatus(
+  workspaceId: string,
+  analysisId: string,
+): Promise<AnalysisStatusView | undefined> {
+  const [row] = await db()
+    .select({
+      status: analyses.status,
+      stage: analyses.stage,
+      fraction: analyses.fraction,
+      failureMessage: analyses.failureMessage,
+      attempts: analyses.attempts,
+      title: analyses.title,
+      createdAt: analyses.createdAt,
+      startedAt: analyses.startedAt,
+      finishedAt: analyses.finishedAt,
+      reportId: reports.id,
+    })
+    .from(analyses)
+    .leftJoin(reports, eq(reports.analysisId, analyses.id))
+    .where(and(eq(analyses.workspaceId, workspaceId), eq(analyses.id, analysisId)));
+  return row;
+}
+
+/**
+ * What was asked for in an analysis, in the shape of a start request, so a form can offer to run
+ * it again (e.g. after fixing a file): files, title, options and the report it revises.
+ */
+export async function findAnalysisRequest(
+  workspaceId: string,
+  analysisId: string,
+): Promise<(StartAnalysisRequest & { title: string }) | undefined> {
+  const [row] = await db()
+    .select()
+    .from(analyses)
+    .where(and(eq(analyses.workspaceId, workspaceId), eq(analyses.id, analysisId)));
+  if (!row) return undefined;
+  return {
+    title: row.title,
+    datasetFileId: row.datasetFileId,
+    layoutFileId: row.layoutFileId ?? undefined,
+    weightsFileId: row.weightsFileId ?? undefined,
+    previousReportId: row.previousReportId ?? undefined,
+    // Stored after validation, so the defaults are filled in.
+    options: row.parameters as StartAnalysisRequest["options"],
+  };
+}
+
+// ——— The worker's side: one analysis run, keyed by the job's workspace and analysis ids. ———
+
+/** An analysis a worker has taken on, with the files it reads. */
+export type ClaimedAnalysis = Analysis & {
+  dataset: AnalysisInputFile;
+  layout: AnalysisInputFile | null;
+  weights: AnalysisInputFile | null;
+};
+
+/**
+ * Takes an analysis for a run: a queued one, or a running one whose worker died (its job was
+ * retried). Marks it running with one more attempt. Returns undefined when it is finished or
+ * cancelled (or gone), so a late or duplicated job simply completes.
+ */
+export async function claimAnalysis(
+  workspaceId: string,
+  analysisId: string,
+): Promise<ClaimedAnalysis | undefined> {
+  const [claimed] = await db()
+    .update(analyses)
+    .set({
+      status: "running",
+      attempts: sql`${analyses.attempts} + 1`,
+      startedAt: sql`now()`,
+      stage: null,
+      fraction: 0,
+      failureMessage: null,
+    })
+    .where(
+      and(
+        eq(analyses.workspaceId, workspaceId),
+        eq(analyses.id, analysisId),
+        inArray(analyses.status, ["queued", "running"]),
+      ),
+    )
+    .returning();
+  if (!claimed) return undefined;
+  const fileIds = [claimed.datasetFileId, claimed.layoutFileId, claimed.weightsFileId].filter(
+    (id): id is string => id !== null,
+  );
+  const files = new Map(
+    (await findInputFiles(workspaceId, fileIds)).map((file) => [file.id, file]),
+  );
+  const fileOf = (id: string | null) => (id === null ? null : (files.get(id) ?? null));
+  const dataset = fileOf(claimed.datasetFileId);
+  if (!dataset) throw new Error(`analysis ${analysisId}: its dataset file is missing`);
+  return {
+    ...claimed,
+    dataset,
+    layout: fileOf(claimed.layoutFileId),
+    weights: fileOf(claimed.weightsFileId),
+  };
+}
+
+/**
+ * Stores the stage and fraction of a running analysis. Returns false when the analysis is no
+ * longer running (cancelled, or finished by another worker), which tells the worker to stop.
+ */
+export async function recordProgress(
+  workspaceId: string,
+  analysisId: string,
+  progress: AnalysisProgress,
+): Promise<boolean> {
+  const updated = await db()
+    .update(analyses)
+    .set({ stage: progress.stage, fraction: progress.fraction })
+    .where(
+      and(
+        eq(analyses.workspaceId, workspaceId),
+        eq(analyses.id, analysisId),
+        eq(analyses.status, "running"),
+      ),
+    )
+    .returning({ id: analyses.id });
+  return updated.length > 0;
+}
+
+/** True while the analysis is running; polled when no progress arrives for a while. */
+export async function isAnalysisRunning(workspaceId: string, analysisId: string): Promise<boolean> {
+  const [row] = await db()
+    .select({ status: analyses.status })
+    .from(analyses)
+    .where(and(eq(analyses.workspaceId, workspaceId), eq(analyses.id, analysisId)));
+  return row?.status === "running";
+}
+
+/**
+ * Ends a running analysis as failed (final), or hands it back to the queue when its job will be
+ * retried. A cancelled or finished analysis is left as it is.
+ */
+export async function endRunUnsuccessfully(
+  workspaceId: string,
+  analysisId: string,
+  outcome: { status: "failed" | "queued"; message: string },
+): Promise<void> {
+  await db()
+    .update(analyses)
+    .set({
+      status: outcome.status,
+      failureMessage: outcome.message,
+      finishedAt: outcome.status === "failed" ? sql`now()` : null,
+    })
+    .where(
+      and(
+        eq(analyses.workspaceId, workspaceId),
+        eq(analyses.id, analysisId),
+        eq(analyses.status, "running"),
+      ),
+    );
+}

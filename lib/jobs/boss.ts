@@ -1,0 +1,40 @@
+import PgBoss from "pg-boss";
+import { env } from "@/lib/env";
+import { ANALYSIS_JOB_POLICY, ANALYSIS_QUEUE } from "./analysis-queue";
+
+export interface BossOptions {
+  /** Shown in pg_stat_activity, e.g. "partita-worker". */
+  applicationName: string;
+  /**
+   * Run pg-boss's maintenance (expiring jobs of crashed workers, archiving, deleting) from this
+   * process. Workers do; the web app only sends jobs.
+   */
+  supervise: boolean;
+  /** Connections in pg-boss's own pool. */
+  maxConnections: number;
+}
+
+/**
+ * A started pg-boss on DATABASE_URL, with its tables in its own `pgboss` schema (created or
+ * migrated on first start) and the analysis queue in place. The queue is "stately": at most one
+ * queued and one active job per singleton key, and every analysis job's key is its analysis id.
+ */
+export async function startBoss(options: BossOptions): Promise<PgBoss> {
+  const boss = new PgBoss({
+    connectionString: env().DATABASE_URL,
+    application_name: options.applicationName,
+    max: options.maxConnections,
+    supervise: options.supervise,
+    schedule: false,
+  });
+  // pg-boss reports connection trouble as events; without a listener Node would crash on them.
+  boss.on("error", (error) => console.error(`[pg-boss] ${error.message}`));
+  await boss.start();
+  // Creating an existing queue does nothing, so every process may do it.
+  await boss.createQueue(ANALYSIS_QUEUE, {
+    name: ANALYSIS_QUEUE,
+    policy: "stately",
+    ...ANALYSIS_JOB_POLICY,
+  });
+  return boss;
+}

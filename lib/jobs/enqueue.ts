@@ -1,0 +1,41 @@
+import "server-only";
+import type PgBoss from "pg-boss";
+import { ANALYSIS_JOB_POLICY, ANALYSIS_QUEUE, type AnalysisJob } from "./analysis-queue";
+import { startBoss } from "./boss";
+
+// One sending pg-boss per server process, kept on globalThis so development reloads reuse it.
+const holder = globalThis as typeof globalThis & { partitaBoss?: Promise<PgBoss> };
+
+function sendingBoss(): Promise<PgBoss> {
+  holder.partitaBoss ??= startBoss({
+    applicationName: "partita-web",
+    supervise: false,
+    maxConnections: 2,
+  }).catch((error: unknown) => {
+    // Let the next request try again instead of caching the failure.
+    holder.partitaBoss = undefined;
+    throw error;
+  });
+  return holder.partitaBoss;
+}
+
+/**
+ * Queues an analysis for the workers and returns the job id. The analysis id is the singleton
+ * key, so the same analysis can never be queued twice while a job for it waits.
+ */
+export async function enqueueAnalysis(job: AnalysisJob): Promise<string> {
+  const boss = await sendingBoss();
+  const jobId = await boss.send(ANALYSIS_QUEUE, job, {
+    ...ANALYSIS_JOB_POLICY,
+    singletonKey: job.analysisId,
+  });
+  if (!jobId) throw new Error(`analysis ${job.analysisId} already has a queued job`);
+  return jobId;
+}
+
+/** Closes this process's sending connection (tests and scripts, so the process can exit). */
+export async function stopSendingBoss(): Promise<void> {
+  const boss = await holder.partitaBoss?.catch(() => undefined);
+  holder.partitaBoss = undefined;
+  await boss?.stop({ graceful: false });
+}

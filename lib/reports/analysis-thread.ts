@@ -1,0 +1,102 @@
+// The body of the engine's worker thread (see engine-thread.ts): reads the inputs from storage,
+// hashing them on the way, runs the engine and posts progress and the outcome to the parent. It
+// touches no database, so terminating the thread at any moment is safe.
+import { buffer } from "node:stream/consumers";
+import { parentPort, workerData } from "node:worker_threads";
+import type { ReportInput } from "@/db/schema/analyses";
+import { AnalysisInputError, analyzePartition, type AnalysisProgress } from "@/lib/analysis";
+import { referenceWeightsSchema, type ReferenceWeights } from "@/lib/validation/analysis-options";
+import { openHashedObject, type StoredFile } from "./hashed-object";
+import type { EngineThreadInput, EngineThreadMessage } from "./engine-thread-protocol";
+
+function post(message: EngineThreadMessage) {
+  parentPort!.postMessage(message);
+}
+
+/** Reads and checks an uploaded reference weights file (methods.md §2, "uploaded weights"). */
+async function readReferenceWeights(
+  file: StoredFile,
+): Promise<{ weights: ReferenceWeights; input: ReportInput }> {
+  const object = openHashedObject(file);
+  const text = (await buffer(object.stream)).toString("utf8");
+  const expected =
+    'a JSON object {"classes": [names] or null, "features": [names], "weights": [[numbers]]}';
+  let parsed: unknown;
+  try {
+    parsed = JSON.parse(text);
+  } catch (error) {
+    const reason = error instanceof SyntaxError ? error.message : "unreadable";
+    throw new AnalysisInputError(`the file is not valid JSON (${reason})`, {
+      file: file.name,
+      expected,
+    });
+  }
+  const checked = referenceWeightsSchema.safeParse(parsed);
+  if (!checked.success) {
+    const issue = checked.error.issues[0];
+    throw new AnalysisInputError(`${issue.path.join(".") || "the file"}: ${issue.message}`, {
+      file: file.name,
+      expected,
+    });
+  }
+  return { weights: checked.data, input: object.describe() };
+}
+
+/** Seconds spent in each stage, from the first report of one stage to the first of the next. */
+function createStageClock() {
+  const seconds: Record<string, number> = {};
+  let current: { stage: string; since: number } | undefined;
+  const close = (now: number) => {
+    if (current)
+      seconds[current.stage] = (seconds[current.stage] ?? 0) + (now - current.since) / 1000;
+  };
+  return {
+    observe(progress: AnalysisProgress) {
+      if (current?.stage === progress.stage) return;
+      const now = performance.now();
+      close(now);
+      current = { stage: progress.stage, since: now };
+    },
+    finish(): Record<string, number> {
+      close(performance.now());
+      current = undefined;
+      return seconds;
+    },
+  };
+}
+
+async function run(input: EngineThreadInput) {
+  const clock = createStageClock();
+  const reference = input.weights ? await readReferenceWeights(input.weights) : undefined;
+  const dataset = openHashedObject(input.dataset);
+  const layout = input.layout ? openHashedObject(input.layout) : undefined;
+  const summary = await analyzePartition(
+    {
+      data: dataset.stream,
+      dataName: input.dataset.name,
+      dataBytes: input.dataset.sizeBytes,
+      partition: layout?.stream,
+      partitionName: input.layout?.name,
+      referenceName: input.weights?.name,
+      options: reference ? { ...input.options, reference: reference.weights } : input.options,
+    },
+    (progress) => {
+      clock.observe(progress);
+      post({ type: "progress", progress });
+    },
+  );
+  const inputs = [dataset.describe()];
+  if (layout) inputs.push(layout.describe());
+  if (reference) inputs.push(reference.input);
+  post({ type: "finished", summary, inputs, stageSeconds: clock.finish() });
+}
+
+// Set by engine-thread.ts, the only code that starts this thread.
+run(workerData as EngineThreadInput).catch((error: unknown) => {
+  if (error instanceof AnalysisInputError) {
+    post({ type: "input-error", message: error.message });
+  } else {
+    const detail = error instanceof Error ? (error.stack ?? error.message) : String(error);
+    post({ type: "internal-error", detail });
+  }
+});

@@ -1,0 +1,27 @@
+import type { ReportInput } from "@/db/schema/analyses";
+import type { AnalysisProgress, PartitionSummary } from "@/lib/analysis";
+import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
+import type { StoredFile } from "./hashed-object";
+
+/** What the engine thread is started with (structured-cloned into it). */
+export interface EngineThreadInput {
+  dataset: StoredFile;
+  layout: StoredFile | null;
+  weights: StoredFile | null;
+  options: AnalysisOptionsInput;
+}
+
+/** Everything the engine thread tells its parent. */
+export type EngineThreadMessage =
+  | { type: "progress"; progress: AnalysisProgress }
+  | {
+      type: "finished";
+      summary: PartitionSummary;
+      inputs: ReportInput[];
+      /** Seconds per engine stage. */
+      stageSeconds: Record<string, number>;
+    }
+  /** Bad input: the engine's message, written for the user. */
+  | { type: "input-error"; message: string }
+  /** Anything else, with its stack, for the server's log only. */
+  | { type: "internal-error"; detail: string };

@@ -1,0 +1,110 @@
+import {
+  claimAnalysis,
+  endRunUnsuccessfully,
+  findAnalysisStatus,
+  type AnalysisInputFile,
+} from "@/db/queries/analyses";
+import { storeReport } from "@/db/queries/report-store";
+import type { AnalysisJob } from "@/lib/jobs";
+import { runEngineInThread } from "./engine-thread";
+import type { StoredFile } from "./hashed-object";
+import { createProgressWriter } from "./progress-writer";
+
+export type RunOutcome =
+  | { outcome: "succeeded"; reportId: string }
+  /** Bad input: the analysis failed with the engine's message; retrying would not help. */
+  | { outcome: "failed"; message: string }
+  | { outcome: "cancelled" }
+  /** Nothing to do: the analysis was already finished or cancelled when the job arrived. */
+  | { outcome: "skipped" };
+
+export interface RunOptions {
+  /** Whether the job will be tried again if this run throws; decides how an internal error ends. */
+  willRetry: boolean;
+  /** Aborted when the worker shuts down: the run stops and its job is handed back to the queue. */
+  signal?: AbortSignal;
+  /** At least this long between progress writes; 500 ms keeps it to two writes a second. */
+  progressIntervalMs?: number;
+}
+
+const INTERNAL_FAILURE =
+  "The analysis stopped because of an internal error, not because of your files. It was tried several times; please run it again later.";
+const INTERNAL_RETRY =
+  "The analysis was interrupted (an internal error or a worker restart, not a problem with your files). It will be tried again shortly.";
+
+function storedFile(file: AnalysisInputFile): StoredFile {
+  return { kind: file.kind, name: file.name, objectKey: file.objectKey, sizeBytes: file.sizeBytes };
+}
+
+/**
+ * One run of an analysis job, from claiming the analysis to storing its report. Framework-free so
+ * the worker process and the tests call it the same way.
+ *
+ * - Bad input (AnalysisInputError) fails the analysis with the engine's message and resolves: the
+ *   job completes, since a retry would read the same files.
+ * - A cancellation seen during the run stops the engine and resolves "cancelled".
+ * - Anything else — an internal error, or the worker shutting down (`options.signal`) — is logged
+ *   here (never shown to users), the analysis goes back to "queued", or to "failed" on the last
+ *   attempt, and the error is rethrown so the queue retries the job.
+ */
+export async function runAnalysis(job: AnalysisJob, options: RunOptions): Promise<RunOutcome> {
+  const started = performance.now();
+  const analysis = await claimAnalysis(job.workspaceId, job.analysisId);
+  if (!analysis) return { outcome: "skipped" };
+
+  const stoppedFromOutside = new AbortController();
+  const signal = options.signal
+    ? AbortSignal.any([stoppedFromOutside.signal, options.signal])
+    : stoppedFromOutside.signal;
+  const progress = createProgressWriter(job, {
+    intervalMs: options.progressIntervalMs ?? 500,
+    pollMs: 1000,
+    onStopped: () => stoppedFromOutside.abort(),
+  });
+  try {
+    const result = await runEngineInThread(
+      {
+        dataset: storedFile(analysis.dataset),
+        layout: analysis.layout && storedFile(analysis.layout),
+        weights: analysis.weights && storedFile(analysis.weights),
+        options: analysis.parameters,
+      },
+      { onProgress: (value) => progress.report(value), signal },
+    );
+    await progress.stop();
+    if (result.type === "input-error") {
+      await endRunUnsuccessfully(job.workspaceId, job.analysisId, {
+        status: "failed",
+        message: result.message,
+      });
+      return { outcome: "failed", message: result.message };
+    }
+    const stored = await storeReport({
+      ...job,
+      summary: result.summary,
+      inputs: result.inputs,
+      timings: { ...result.stageSeconds, total: (performance.now() - started) / 1000 },
+    });
+    if (stored.stored) return { outcome: "succeeded", reportId: stored.reportId };
+    return stored.status === "cancelled" ? { outcome: "cancelled" } : { outcome: "skipped" };
+  } catch (error) {
+    await progress.stop();
+    if (stoppedFromOutside.signal.aborted) {
+      const status = await findAnalysisStatus(job.workspaceId, job.analysisId);
+      return status?.status === "cancelled" ? { outcome: "cancelled" } : { outcome: "skipped" };
+    }
+    if (options.signal?.aborted) {
+      console.warn(`[analysis ${job.analysisId}] interrupted: the worker is stopping`);
+    } else {
+      console.error(
+        `[analysis ${job.analysisId}] run failed:`,
+        error instanceof Error ? (error.stack ?? error.message) : error,
+      );
+    }
+    await endRunUnsuccessfully(job.workspaceId, job.analysisId, {
+      status: options.willRetry ? "queued" : "failed",
+      message: options.willRetry ? INTERNAL_RETRY : INTERNAL_FAILURE,
+    });
+    throw error;
+  }
+}

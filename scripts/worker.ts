@@ -1,0 +1,76 @@
+// The analysis worker: takes analysis jobs from the pg-boss queue in PostgreSQL and runs them, one
+// at a time (the engine keeps a core busy; with two cores the web app keeps the other). Start as many
+// as you like, on one machine or several, with the same DATABASE_URL and S3_* configuration:
+// pg-boss hands each job to exactly one of them, and any of them retries a crashed worker's job.
+//
+//   node --conditions=react-server --import tsx scripts/worker.ts
+//
+// (`npm start` and `npm test` start one.) SIGINT or SIGTERM stops it: a run in progress is
+// interrupted and its job handed back to the queue for another worker or the next start.
+import type PgBoss from "pg-boss";
+import { closeDb } from "@/db/client";
+import { ANALYSIS_QUEUE, analysisJobSchema, startBoss, type AnalysisJob } from "@/lib/jobs";
+import { runAnalysis } from "@/lib/reports/run-analysis";
+
+const shutdown = new AbortController();
+
+function log(line: string) {
+  console.log(`[worker] ${line}`);
+}
+
+async function handleJob(job: PgBoss.JobWithMetadata<AnalysisJob>): Promise<void> {
+  const parsed = analysisJobSchema.safeParse(job.data);
+  if (!parsed.success) {
+    // Retrying a malformed job would fail the same way; completing it keeps the queue moving.
+    log(`job ${job.id}: not an analysis job, skipped`);
+    return;
+  }
+  const { analysisId } = parsed.data;
+  const attempt = `attempt ${job.retryCount + 1} of ${job.retryLimit + 1}`;
+  const started = performance.now();
+  const elapsed = () => `${((performance.now() - started) / 1000).toFixed(1)} s`;
+  try {
+    const result = await runAnalysis(parsed.data, {
+      willRetry: job.retryCount < job.retryLimit,
+      signal: shutdown.signal,
+    });
+    const detail = result.outcome === "succeeded" ? ` (report ${result.reportId})` : "";
+    log(`analysis ${analysisId}, ${attempt}: ${result.outcome}${detail} in ${elapsed()}`);
+  } catch (error) {
+    const next = job.retryCount < job.retryLimit ? "will be retried" : "failed for good";
+    log(`analysis ${analysisId}, ${attempt}: stopped after ${elapsed()}, ${next}`);
+    throw error;
+  }
+}
+
+async function main() {
+  const boss = await startBoss({
+    applicationName: "partita-worker",
+    supervise: true,
+    maxConnections: 3,
+  });
+  let stopping = false;
+  const stop = async (signal: string) => {
+    if (stopping) return;
+    stopping = true;
+    log(`${signal}: stopping`);
+    shutdown.abort();
+    await boss.stop({ graceful: true, timeout: 10_000 });
+    await closeDb();
+    process.exit(0);
+  };
+  process.on("SIGINT", () => void stop("SIGINT"));
+  process.on("SIGTERM", () => void stop("SIGTERM"));
+
+  await boss.work<AnalysisJob>(
+    ANALYSIS_QUEUE,
+    { includeMetadata: true, batchSize: 1, pollingIntervalSeconds: 1 },
+    async ([job]) => handleJob(job),
+  );
+  log(`ready: taking jobs from queue "${ANALYSIS_QUEUE}"`);
+}
+
+main().catch((error: unknown) => {
+  console.error(`[worker] could not start: ${error instanceof Error ? error.message : error}`);
+  process.exit(1);
+});
