@@ -1,6 +1,7 @@
 import Link from "next/link";
 import type { ReactNode } from "react";
 import { Wordmark } from "@/components/brand/wordmark";
+import { QueryProvider } from "@/components/providers/query-provider";
 import { NavLink } from "@/components/workspace/nav-link";
 import { SignOutButton } from "@/components/workspace/sign-out-button";
 import { WorkspaceSwitcher } from "@/components/workspace/workspace-switcher";
@@ -50,7 +51,9 @@ export default async function WorkspaceLayout({
           </div>
         </div>
       </header>
-      <main className="mx-auto max-w-6xl px-6 py-10">{children}</main>
+      <main className="mx-auto max-w-6xl px-6 py-10">
+        <QueryProvider>{children}</QueryProvider>
+      </main>
     </div>
   );
 }
