@@ -162,30 +162,6 @@ export async function findAnalysisStatus(
   return row;
 }
 
-/**
- * What was asked for in an analysis, in the shape of a start request, so a form can offer to run
- * it again (e.g. after fixing a file): files, title, options and the report it revises.
- */
-export async function findAnalysisRequest(
-  workspaceId: string,
-  analysisId: string,
-): Promise<(StartAnalysisRequest & { title: string }) | undefined> {
-  const [row] = await db()
-    .select()
-    .from(analyses)
-    .where(and(eq(analyses.workspaceId, workspaceId), eq(analyses.id, analysisId)));
-  if (!row) return undefined;
-  return {
-    title: row.title,
-    datasetFileId: row.datasetFileId,
-    layoutFileId: row.layoutFileId ?? undefined,
-    weightsFileId: row.weightsFileId ?? undefined,
-    previousReportId: row.previousReportId ?? undefined,
-    // Stored after validation, so the defaults are filled in.
-    options: row.parameters as StartAnalysisRequest["options"],
-  };
-}
-
 // ——— The worker's side: one analysis run, keyed by the job's workspace and analysis ids. ———
 
 /** An analysis a worker has taken on, with the files it reads. */

@@ -1,0 +1,263 @@
+// startAnalysis / cancelAnalysis against the real PostgreSQL and S3 fake: who may call them, and
+// what they accept. Jobs are captured instead of sent (the job path has its own tests).
+import { eq } from "drizzle-orm";
+import { afterAll, beforeEach, describe, expect, it, vi } from "vitest";
+import type { AnalysisJob } from "@/lib/jobs";
+
+vi.mock("@/lib/auth/session", () => import("@/tests/support/fake-session"));
+
+const queue = vi.hoisted(() => ({ jobs: [] as AnalysisJob[], failNext: false }));
+vi.mock("@/lib/jobs", async (importOriginal) => ({
+  ...(await importOriginal<typeof import("@/lib/jobs")>()),
+  enqueueAnalysis: async (job: AnalysisJob) => {
+    if (queue.failNext) {
+      queue.failNext = false;
+      throw new Error("queue unavailable");
+    }
+    queue.jobs.push(job);
+    return `captured-${queue.jobs.length}`;
+  },
+}));
+
+import { cancelAnalysis, startAnalysis } from "@/app/(workspace)/w/[workspaceId]/analyses/actions";
+import { closeDb, db } from "@/db/client";
+import { findAnalysisStatus } from "@/db/queries/analyses";
+import { analyses } from "@/db/schema";
+import { runAnalysis } from "@/lib/reports/run-analysis";
+import { createAccount, createTeam } from "@/tests/support/accounts";
+import { actAs } from "@/tests/support/fake-session";
+import {
+  PENGUIN_OPTIONS,
+  storeInput,
+  storePenguins,
+} from "@/tests/lib/reports/support/stored-inputs";
+
+afterAll(closeDb);
+beforeEach(() => {
+  queue.jobs.length = 0;
+  queue.failNext = false;
+});
+
+const statusOf = (result: { ok: boolean; status?: number }) => (result.ok ? 200 : result.status);
+
+async function teamWithPenguins() {
+  const team = await createTeam();
+  const files = await storePenguins({ workspaceId: team.workspaceId, uploadedBy: team.analyst.id });
+  const request = {
+    datasetFileId: files.dataset.id,
+    layoutFileId: files.layout.id,
+    options: PENGUIN_OPTIONS,
+  };
+  return { team, files, request };
+}
+
+async function analysesIn(workspaceId: string) {
+  return db().select().from(analyses).where(eq(analyses.workspaceId, workspaceId));
+}
+
+describe("startAnalysis and cancelAnalysis: who may call them", () => {
+  it("lets owners and analysts start and cancel; reviewers get 403", async () => {
+    const { team, request } = await teamWithPenguins();
+    for (const role of ["owner", "analyst"] as const) {
+      actAs(team[role]);
+      const started = await startAnalysis(team.workspaceId, request);
+      if (!started.ok) throw new Error(started.message);
+      expect(statusOf(await cancelAnalysis(team.workspaceId, started.data.analysisId))).toBe(200);
+    }
+    actAs(team.analyst);
+    const started = await startAnalysis(team.workspaceId, request);
+    if (!started.ok) throw new Error(started.message);
+
+    actAs(team.reviewer);
+    expect(statusOf(await startAnalysis(team.workspaceId, request))).toBe(403);
+    expect(statusOf(await cancelAnalysis(team.workspaceId, started.data.analysisId))).toBe(403);
+    expect(await findAnalysisStatus(team.workspaceId, started.data.analysisId)).toMatchObject({
+      status: "queued",
+    });
+    expect(await analysesIn(team.workspaceId)).toHaveLength(3);
+    expect(queue.jobs).toHaveLength(3);
+  });
+
+  it("gives 401 when signed out and 404 in someone else's workspace", async () => {
+    const { team, request } = await teamWithPenguins();
+    actAs(team.analyst);
+    const started = await startAnalysis(team.workspaceId, request);
+    if (!started.ok) throw new Error(started.message);
+
+    actAs(null);
+    expect(statusOf(await startAnalysis(team.workspaceId, request))).toBe(401);
+    expect(statusOf(await cancelAnalysis(team.workspaceId, started.data.analysisId))).toBe(401);
+    const stranger = await createAccount("stranger");
+    actAs(stranger);
+    expect(statusOf(await startAnalysis(team.workspaceId, request))).toBe(404);
+    expect(statusOf(await cancelAnalysis(team.workspaceId, started.data.analysisId))).toBe(404);
+    // Through their own workspace, the team's analysis does not exist either.
+    expect(await cancelAnalysis(stranger.workspaceId, started.data.analysisId)).toMatchObject({
+      ok: false,
+      status: 404,
+    });
+    expect(await findAnalysisStatus(team.workspaceId, started.data.analysisId)).toMatchObject({
+      status: "queued",
+    });
+  });
+});
+
+describe("startAnalysis: what it accepts", () => {
+  it("queues the analysis with a title from the file names, or the one given", async () => {
+    const { team, files, request } = await teamWithPenguins();
+    actAs(team.analyst);
+    const byMap = await startAnalysis(team.workspaceId, request);
+    const byColumn = await startAnalysis(team.workspaceId, {
+      datasetFileId: files.dataset.id,
+      title: "  Islands, by column  ",
+      options: { labelColumn: "Species", shardColumn: "Island" },
+    });
+    const untitledByColumn = await startAnalysis(team.workspaceId, {
+      datasetFileId: files.dataset.id,
+      options: { labelColumn: "Species", shardColumn: "Island" },
+    });
+    const ids = [byMap, byColumn, untitledByColumn].map((result) => {
+      if (!result.ok) throw new Error(result.message);
+      return result.data.analysisId;
+    });
+    const titles = await Promise.all(
+      ids.map(async (id) => (await findAnalysisStatus(team.workspaceId, id))?.title),
+    );
+    expect(titles).toEqual([
+      "penguins.csv · islands.csv",
+      "Islands, by column",
+      "penguins.csv · Island",
+    ]);
+    expect(queue.jobs).toEqual(
+      ids.map((analysisId) => ({ analysisId, workspaceId: team.workspaceId })),
+    );
+    const [stored] = await db().select().from(analyses).where(eq(analyses.id, ids[0]));
+    expect(stored).toMatchObject({
+      status: "queued",
+      createdBy: team.analyst.id,
+      jobId: "captured-1",
+      datasetFileId: files.dataset.id,
+      layoutFileId: files.layout.id,
+      weightsFileId: null,
+      // Stored with the defaults of methods.md filled in.
+      parameters: { ...PENGUIN_OPTIONS, lambda: 1e-3, localSteps: 10, rounds: 100, batchSize: 32 },
+    });
+  });
+
+  it("explains invalid requests on their fields and stores nothing", async () => {
+    const { team, files } = await teamWithPenguins();
+    actAs(team.analyst);
+    const noPartition = await startAnalysis(team.workspaceId, {
+      datasetFileId: files.dataset.id,
+      options: { labelColumn: "Species" },
+    });
+    expect(noPartition).toMatchObject({ ok: false, status: 422 });
+    expect(!noPartition.ok && noPartition.fieldErrors.layoutFileId).toMatch(/shard column/);
+
+    const badLambda = await startAnalysis(team.workspaceId, {
+      datasetFileId: files.dataset.id,
+      layoutFileId: files.layout.id,
+      options: { ...PENGUIN_OPTIONS, lambda: -1 },
+    });
+    expect(badLambda).toMatchObject({ ok: false, status: 422 });
+    // failWith keys field errors by the first path segment, so option errors land on "options".
+    expect(!badLambda.ok && badLambda.fieldErrors.options).toMatch(/λ must be positive/);
+    expect(await analysesIn(team.workspaceId)).toEqual([]);
+  });
+
+  it("refuses files and reports of another workspace, and files of the wrong kind", async () => {
+    const { team, files, request } = await teamWithPenguins();
+    const other = await teamWithPenguins();
+    actAs(team.analyst);
+
+    const foreignDataset = await startAnalysis(team.workspaceId, {
+      ...request,
+      datasetFileId: other.files.dataset.id,
+    });
+    expect(foreignDataset).toMatchObject({ ok: false, status: 422 });
+    expect(!foreignDataset.ok && foreignDataset.fieldErrors.datasetFileId).toMatch(
+      /not in this workspace/,
+    );
+
+    const swapped = await startAnalysis(team.workspaceId, {
+      ...request,
+      datasetFileId: files.layout.id,
+      layoutFileId: files.dataset.id,
+    });
+    expect(!swapped.ok && swapped.fieldErrors.datasetFileId).toBe(
+      "“islands.csv” was uploaded as a partition map, not as a dataset.",
+    );
+
+    const weights = await storeInput(
+      { workspaceId: team.workspaceId, uploadedBy: team.analyst.id },
+      "dataset",
+      "weights.json",
+      "{}",
+    );
+    const notWeights = await startAnalysis(team.workspaceId, {
+      ...request,
+      weightsFileId: weights.id,
+    });
+    expect(!notWeights.ok && notWeights.fieldErrors.weightsFileId).toMatch(
+      /as a dataset, not as reference weights/,
+    );
+
+    // A report of the other workspace, made the way every report is made.
+    actAs(other.team.analyst);
+    const otherStarted = await startAnalysis(other.team.workspaceId, other.request);
+    if (!otherStarted.ok) throw new Error(otherStarted.message);
+    const otherRun = await runAnalysis(queue.jobs.at(-1)!, { willRetry: true });
+    if (otherRun.outcome !== "succeeded") throw new Error(`the other run ${otherRun.outcome}`);
+    actAs(team.analyst);
+    const foreignReport = await startAnalysis(team.workspaceId, {
+      ...request,
+      previousReportId: otherRun.reportId,
+    });
+    expect(!foreignReport.ok && foreignReport.fieldErrors.previousReportId).toBe(
+      "The report to revise is not in this workspace.",
+    );
+    expect(await analysesIn(team.workspaceId)).toEqual([]);
+  });
+
+  it("keeps no analysis that could not be queued", async () => {
+    const { team, request } = await teamWithPenguins();
+    actAs(team.analyst);
+    queue.failNext = true;
+    const quiet = vi.spyOn(console, "error").mockImplementation(() => undefined);
+    try {
+      expect(await startAnalysis(team.workspaceId, request)).toMatchObject({
+        ok: false,
+        status: 500,
+      });
+    } finally {
+      quiet.mockRestore();
+    }
+    expect(await analysesIn(team.workspaceId)).toEqual([]);
+  });
+});
+
+describe("cancelAnalysis: what it refuses", () => {
+  it("says when there is nothing to cancel", async () => {
+    const { team, request } = await teamWithPenguins();
+    actAs(team.analyst);
+    const started = await startAnalysis(team.workspaceId, request);
+    if (!started.ok) throw new Error(started.message);
+    const { analysisId } = started.data;
+    expect(statusOf(await cancelAnalysis(team.workspaceId, analysisId))).toBe(200);
+    expect(await cancelAnalysis(team.workspaceId, analysisId)).toMatchObject({
+      ok: false,
+      status: 409,
+      message: "This analysis was already cancelled.",
+    });
+    await db().update(analyses).set({ status: "succeeded" }).where(eq(analyses.id, analysisId));
+    expect(await cancelAnalysis(team.workspaceId, analysisId)).toMatchObject({
+      ok: false,
+      status: 409,
+      message: "This analysis has already succeeded; there is nothing to cancel.",
+    });
+    expect(await cancelAnalysis(team.workspaceId, "no-such-analysis")).toMatchObject({
+      ok: false,
+      status: 404,
+    });
+  });
+});
