@@ -7,6 +7,7 @@ import { SignOutButton } from "@/components/workspace/sign-out-button";
 import { WorkspaceSwitcher } from "@/components/workspace/workspace-switcher";
 import { listWorkspacesForUser } from "@/db/queries/workspaces";
 import { guardPage } from "@/lib/auth/page-guard";
+import { roleAllows } from "@/lib/auth/roles";
 import { env } from "@/lib/env";
 
 export default async function WorkspaceLayout({
@@ -33,6 +34,9 @@ export default async function WorkspaceLayout({
               Overview
             </NavLink>
             <NavLink href={`${base}/reports`}>Reports</NavLink>
+            {roleAllows(workspace.role, "uploadData") ? (
+              <NavLink href={`${base}/analyses/new`}>New analysis</NavLink>
+            ) : null}
             <NavLink href={`${base}/members`}>Members</NavLink>
             {env().DEV_MAIL_DIR ? (
               <Link
