@@ -1,0 +1,90 @@
+import type { Metadata } from "next";
+import { AnalysisForm } from "@/components/analyses/analysis-form";
+import { EMPTY_FORM, formValuesFrom } from "@/components/analyses/analysis-form-schema";
+import { Notice } from "@/components/ui/notice";
+import { findAnalysisForForm, findReportAnalysisForForm } from "@/db/queries/analysis-prefill";
+import { findDataFile, listDataFiles, type DataFileSummary } from "@/db/queries/data-files";
+import { guardPage } from "@/lib/auth/page-guard";
+import { env } from "@/lib/env";
+
+export const metadata: Metadata = { title: "New analysis" };
+
+/** The file behind a prefilled choice stays pickable even when it is not among the newest. */
+async function withFile(
+  workspaceId: string,
+  files: DataFileSummary[],
+  fileId: string | null | undefined,
+): Promise<DataFileSummary[]> {
+  if (!fileId || files.some((file) => file.id === fileId)) return files;
+  const found = await findDataFile(workspaceId, fileId);
+  if (!found) return files;
+  const { id, kind, name, sizeBytes, createdAt, preview } = found;
+  return [...files, { id, kind, name, sizeBytes, createdAt, preview }];
+}
+
+export default async function NewAnalysisPage({
+  params,
+  searchParams,
+}: {
+  params: Promise<{ workspaceId: string }>;
+  searchParams: Promise<{ from?: string | string[]; revise?: string | string[] }>;
+}) {
+  const { workspaceId } = await params;
+  const query = await searchParams;
+  const from = typeof query.from === "string" ? query.from : undefined;
+  const revise = typeof query.revise === "string" ? query.revise : undefined;
+  const returnTo = `/w/${workspaceId}/analyses/new${
+    revise
+      ? `?revise=${encodeURIComponent(revise)}`
+      : from
+        ? `?from=${encodeURIComponent(from)}`
+        : ""
+  }`;
+  await guardPage(workspaceId, "uploadData", returnTo);
+
+  const saved = revise
+    ? await findReportAnalysisForForm(workspaceId, revise)
+    : from
+      ? await findAnalysisForForm(workspaceId, from)
+      : undefined;
+  const [datasets, layouts, weights] = await Promise.all([
+    listDataFiles(workspaceId, "dataset").then((files) =>
+      withFile(workspaceId, files, saved?.datasetFileId),
+    ),
+    listDataFiles(workspaceId, "layout").then((files) =>
+      withFile(workspaceId, files, saved?.layoutFileId),
+    ),
+    listDataFiles(workspaceId, "weights").then((files) =>
+      withFile(workspaceId, files, saved?.weightsFileId),
+    ),
+  ]);
+  const initialValues = saved ? formValuesFrom(saved, revise) : EMPTY_FORM;
+  const missing = (revise || from) && !saved;
+
+  return (
+    <div className="space-y-6">
+      <header className="space-y-1">
+        <h1 className="text-2xl font-semibold">
+          {revise ? "Revise a report" : from ? "Run again" : "New analysis"}
+        </h1>
+        <p className="max-w-prose text-ink-soft">
+          {saved
+            ? "The choices of the earlier run are filled in; change what you need and run it again."
+            : "Upload a labelled dataset and say how it is split into shards; Partita measures the shards' heterogeneity and advises local updates or large minibatches for your plan."}
+        </p>
+      </header>
+      {missing ? (
+        <Notice tone="error">
+          The {revise ? "report" : "analysis"} to start from is not in this workspace; the form
+          starts empty.
+        </Notice>
+      ) : null}
+      <AnalysisForm
+        workspaceId={workspaceId}
+        maxBytes={env().UPLOAD_MAX_BYTES}
+        initialFiles={{ datasets, layouts, weights }}
+        initialValues={initialValues}
+      />
+    </div>
+  );
+}

@@ -1,0 +1,47 @@
+import "server-only";
+import { and, eq } from "drizzle-orm";
+import { db } from "@/db/client";
+import { analyses, reports } from "@/db/schema";
+import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
+
+/** What the new-analysis form needs of an earlier analysis to fill itself in. */
+export type AnalysisForForm = {
+  title: string;
+  datasetFileId: string;
+  layoutFileId: string | null;
+  weightsFileId: string | null;
+  parameters: AnalysisOptionsInput;
+};
+
+const formColumns = {
+  title: analyses.title,
+  datasetFileId: analyses.datasetFileId,
+  layoutFileId: analyses.layoutFileId,
+  weightsFileId: analyses.weightsFileId,
+  parameters: analyses.parameters,
+};
+
+/** An analysis of this workspace as the form's starting point ("run again"), or undefined. */
+export async function findAnalysisForForm(
+  workspaceId: string,
+  analysisId: string,
+): Promise<AnalysisForForm | undefined> {
+  const [row] = await db()
+    .select(formColumns)
+    .from(analyses)
+    .where(and(eq(analyses.workspaceId, workspaceId), eq(analyses.id, analysisId)));
+  return row;
+}
+
+/** The analysis behind a report of this workspace, to revise it with other parameters. */
+export async function findReportAnalysisForForm(
+  workspaceId: string,
+  reportId: string,
+): Promise<AnalysisForForm | undefined> {
+  const [row] = await db()
+    .select(formColumns)
+    .from(reports)
+    .innerJoin(analyses, eq(analyses.id, reports.analysisId))
+    .where(and(eq(reports.workspaceId, workspaceId), eq(reports.id, reportId)));
+  return row;
+}

@@ -1,0 +1,134 @@
+import { describe, expect, it } from "vitest";
+import {
+  analysisFormSchema,
+  EMPTY_FORM,
+  formValuesFrom,
+  toStartAnalysisInput,
+  type AnalysisFormValues,
+} from "@/components/analyses/analysis-form-schema";
+import { startAnalysisSchema } from "@/lib/validation/start-analysis";
+
+const filled: AnalysisFormValues = {
+  ...EMPTY_FORM,
+  datasetFileId: "d1",
+  options: {
+    ...EMPTY_FORM.options,
+    labelColumn: "Species",
+    shardColumn: "Island",
+    features: ["Beak Length (mm)", "Sex"],
+  },
+};
+
+/** Field path → first message, as react-hook-form shows them. */
+function errorsOf(values: AnalysisFormValues): Record<string, string> {
+  const result = analysisFormSchema.safeParse(values);
+  const errors: Record<string, string> = {};
+  if (!result.success) {
+    for (const issue of result.error.issues) errors[issue.path.join(".")] ??= issue.message;
+  }
+  return errors;
+}
+
+describe("the new-analysis form's values", () => {
+  it("start at methods.md's plan defaults: λ 1e-3, K 10, R 100, b 32, all shards", () => {
+    expect(EMPTY_FORM.options).toMatchObject({
+      lambda: 1e-3,
+      localSteps: 10,
+      rounds: 100,
+      batchSize: 32,
+      task: "auto",
+    });
+    expect(EMPTY_FORM.participantsMode).toBe("all");
+  });
+
+  it("become a request the server's schema accepts", () => {
+    expect(errorsOf(filled)).toEqual({});
+    const input = toStartAnalysisInput(filled);
+    expect(input).toEqual({
+      title: undefined,
+      datasetFileId: "d1",
+      layoutFileId: undefined,
+      weightsFileId: undefined,
+      previousReportId: undefined,
+      options: {
+        labelColumn: "Species",
+        idColumn: undefined,
+        shardColumn: "Island",
+        features: ["Beak Length (mm)", "Sex"],
+        task: undefined,
+        lambda: 1e-3,
+        reference: "optimum",
+        participants: undefined,
+        localSteps: 10,
+        rounds: 100,
+        batchSize: 32,
+        dropUnassignedRows: false,
+      },
+    });
+    expect(startAnalysisSchema.safeParse(input).success).toBe(true);
+  });
+
+  it("explain each invalid choice on its own field", () => {
+    const errors = errorsOf({
+      ...EMPTY_FORM,
+      layoutSource: "file",
+      referenceSource: "weights",
+      participantsMode: "sample",
+      options: {
+        ...EMPTY_FORM.options,
+        lambda: Number.NaN,
+        localSteps: 2.5,
+        rounds: 0,
+        participants: Number.NaN,
+      },
+    });
+    expect(errors).toEqual({
+      datasetFileId: "Upload or choose a dataset.",
+      "options.labelColumn": "Choose the column that holds the label.",
+      "options.lambda": "Enter λ as a number, e.g. 0.001.",
+      "options.localSteps": "Enter the number of local steps as a whole number.",
+      "options.rounds": "The number of rounds must be at least 1.",
+    });
+    // Choices that depend on each other are checked once every field is well-formed.
+    expect(
+      errorsOf({
+        ...filled,
+        layoutSource: "file",
+        referenceSource: "weights",
+        participantsMode: "sample",
+        options: { ...filled.options, idColumn: "Species", features: [], participants: 0 },
+      }),
+    ).toEqual({
+      "options.idColumn": "The id column cannot also be the label.",
+      layoutFileId: "Upload or choose a partition map.",
+      "options.features": "Choose at least one feature column.",
+      weightsFileId: "Upload or choose a reference weights file.",
+      "options.participants": "Enter how many shards take part in each round.",
+    });
+  });
+
+  it("refill from an earlier analysis, keeping its files and plan", () => {
+    const values = formValuesFrom(
+      {
+        title: "By island",
+        datasetFileId: "d1",
+        layoutFileId: "l1",
+        weightsFileId: null,
+        parameters: { labelColumn: "Species", reference: "zero", localSteps: 50, participants: 2 },
+      },
+      "r1",
+    );
+    expect(values).toMatchObject({
+      title: "By island",
+      layoutSource: "file",
+      layoutFileId: "l1",
+      referenceSource: "zero",
+      participantsMode: "sample",
+      previousReportId: "r1",
+      options: { labelColumn: "Species", localSteps: 50, rounds: 100, participants: 2 },
+    });
+    expect(
+      toStartAnalysisInput({ ...values, options: { ...values.options, features: ["x"] } }),
+    ).toMatchObject({ layoutFileId: "l1", previousReportId: "r1", options: { reference: "zero" } });
+  });
+});
