@@ -115,6 +115,15 @@ async function main() {
   step("Seeding the demo workspace");
   const accounts = await seedDemoAccounts(postgres.url);
 
+  step("Starting the analysis worker");
+  supervisor.startService({
+    name: "Analysis worker",
+    command: process.execPath,
+    args: ["--conditions=react-server", "--import", "tsx", "scripts/worker.ts"],
+    cwd: projectRoot,
+    env: appEnvironment,
+  });
+
   if (isBuildStale(projectRoot)) {
     step("Building the app (next build)");
     if ((await buildNextApp(supervisor, projectRoot, appEnvironment)) !== 0) {
@@ -141,6 +150,7 @@ async function main() {
       `  SMTP fake   127.0.0.1:${ports.smtp}, mail in ${shown(services.fakeSmtp.mailDirectory)}, inbox at ${appUrl}/dev/inbox`,
     );
   }
+  console.log("  Worker      one analysis worker (scripts/worker.ts), output below");
   console.log(`  Logs        ${shown(logDir)}`);
   if (accounts.length > 0) {
     console.log("\nDemo accounts (demo data only):");

@@ -136,6 +136,14 @@ async function main(): Promise<number> {
     [bin("prettier", "bin", "prettier.cjs"), "--check", "."],
     env,
   );
+  // The analysis worker, as `npm start` runs it, for tests that need jobs to be taken.
+  supervisor.startService({
+    name: "Analysis worker",
+    command: process.execPath,
+    args: ["--conditions=react-server", "--import", "tsx", "scripts/worker.ts"],
+    cwd: projectRoot,
+    env,
+  });
   const unitReport = path.join(workDir, "vitest-unit.json");
   await runStage(
     "Unit and integration tests (vitest)",
