@@ -18,7 +18,7 @@ type UploadState =
   | { phase: "idle" }
   | { phase: "uploading"; file: File; loaded: number }
   | { phase: "checking"; file: File }
-  | { phase: "failed"; file: File; message: string };
+  | { phase: "failed"; file: File; message: string; retryable: boolean };
 
 /** Filters the file picker; the checks that decide are findUploadProblem's. */
 const PICKER_TYPES: Record<DataFileKind, Accept> = {
@@ -61,7 +61,8 @@ export function FileDrop({
       maxBytes,
     );
     if (problem) {
-      setState({ phase: "failed", file, message: problem });
+      // Sending the same file again cannot help; choosing another one can.
+      setState({ phase: "failed", file, message: problem, retryable: false });
       return;
     }
     const controller = new AbortController();
@@ -78,7 +79,12 @@ export function FileDrop({
       setState({ phase: "checking", file });
       const result = await registerDataFile(workspaceId, { key, name: file.name, kind });
       if (!result.ok) {
-        setState({ phase: "failed", file, message: result.fieldErrors.file ?? result.message });
+        setState({
+          phase: "failed",
+          file,
+          message: result.fieldErrors.file ?? result.message,
+          retryable: result.status >= 500,
+        });
         return;
       }
       setState({ phase: "idle" });
@@ -88,6 +94,7 @@ export function FileDrop({
       setState({
         phase: "failed",
         file,
+        retryable: true,
         message: cancelled
           ? `The upload of "${file.name}" was cancelled.`
           : error instanceof Error
@@ -154,9 +161,11 @@ function UploadStatus({
         className="flex flex-wrap items-center gap-3 rounded-md border border-cadmium/40 bg-cadmium-soft px-4 py-3 text-sm"
       >
         <p className="min-w-0 flex-1">{state.message}</p>
-        <Button type="button" tone="quiet" onClick={() => onRetry(file)}>
-          Try again
-        </Button>
+        {state.retryable ? (
+          <Button type="button" tone="quiet" onClick={() => onRetry(file)}>
+            Try again
+          </Button>
+        ) : null}
       </div>
     );
   }
