@@ -1,0 +1,66 @@
+import type { Metadata } from "next";
+import { notFound } from "next/navigation";
+import { KeyFigures } from "@/components/reports/key-figures";
+import { MethodsSection } from "@/components/reports/methods-section";
+import { PreprocessingNotes } from "@/components/reports/preprocessing-notes";
+import { ReportEvidence } from "@/components/reports/report-evidence";
+import { ReportHeader } from "@/components/reports/report-header";
+import { ReportProvenance } from "@/components/reports/report-provenance";
+import { ShardTable } from "@/components/reports/shard-table";
+import { VerdictPanel } from "@/components/reports/verdict-panel";
+import { Cautions } from "@/components/workspace/cautions";
+import { findReport } from "@/db/queries/reports";
+import { guardPage } from "@/lib/auth/page-guard";
+import { roleAllows } from "@/lib/auth/roles";
+
+export const metadata: Metadata = { title: "Report" };
+
+// A4 with margins that leave 182 mm (about 688 CSS px) of width: charts are at most 680 px wide.
+const PRINT_PAGE = "@page { size: A4; margin: 14mm; }";
+
+export default async function ReportPage({
+  params,
+}: {
+  params: Promise<{ workspaceId: string; reportId: string }>;
+}) {
+  const { workspaceId, reportId } = await params;
+  const { workspace } = await guardPage(
+    workspaceId,
+    "readWorkspace",
+    `/w/${workspaceId}/reports/${reportId}`,
+  );
+  const report = await findReport(workspace.id, reportId);
+  if (!report) notFound();
+  const { summary } = report;
+  return (
+    <article
+      className="space-y-10"
+      // Backgrounds carry meaning here (verdict bands, chart keys), so print them as on screen.
+      style={{ printColorAdjust: "exact", WebkitPrintColorAdjust: "exact" }}
+    >
+      <style>{PRINT_PAGE}</style>
+      <ReportHeader
+        report={report}
+        workspaceId={workspace.id}
+        canRunAnalysis={roleAllows(workspace.role, "runAnalysis")}
+      />
+      <VerdictPanel summary={summary} />
+      <KeyFigures summary={summary} />
+      <ReportProvenance report={report} />
+      <Cautions sharing />
+      <ReportEvidence summary={summary} />
+      <section aria-labelledby="shards-heading" className="space-y-3">
+        <h2 id="shards-heading" className="text-xl font-semibold text-ink">
+          Per-shard table
+        </h2>
+        <p className="max-w-prose text-sm text-ink-soft">
+          Every shard&apos;s size, label-mix divergences, gradient figures at the reference point
+          and feature shift; the CSV download holds the same table.
+        </p>
+        <ShardTable rows={report.shards} />
+      </section>
+      <PreprocessingNotes summary={summary} />
+      <MethodsSection summary={summary} />
+    </article>
+  );
+}

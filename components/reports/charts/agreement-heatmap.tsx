@@ -1,0 +1,90 @@
+"use client";
+
+import { ResponsiveHeatMap, ResponsiveHeatMapCanvas } from "@nivo/heatmap";
+import { CHART_THEME, PALETTE, shortenLabel } from "./chart-style";
+
+/** Above this many shards the names no longer fit beside the cells, which are then drawn on a canvas. */
+const SVG_LIMIT = 24;
+
+/**
+ * Cosine similarity of every pair of shard gradients at the training start: agreement shades to
+ * slate, opposition to cadmium, orthogonal gradients stay paper-coloured.
+ */
+export function AgreementHeatmap({
+  names,
+  matrix,
+  label,
+}: {
+  names: string[];
+  matrix: (number | null)[][];
+  label: string;
+}) {
+  const keys = names.map((_, index) => `s${index}`);
+  const nameOf = new Map(keys.map((key, index) => [key, names[index]]));
+  const data = matrix.map((row, rowIndex) => ({
+    id: keys[rowIndex],
+    data: row.map((value, column) => ({ x: keys[column], y: value })),
+  }));
+  const named = names.length <= SVG_LIMIT;
+  const margin = named
+    ? { top: 90, right: 16, bottom: 16, left: 110 }
+    : { top: 16, right: 16, bottom: 16, left: 16 };
+  const axis = named
+    ? { tickSize: 0, tickPadding: 6, format: (key: string) => shortenLabel(nameOf.get(key) ?? key) }
+    : null;
+  const common = {
+    data,
+    margin,
+    forceSquare: true,
+    colors: {
+      type: "diverging" as const,
+      colors: [PALETTE.cadmium, PALETTE.paper, PALETTE.inkSoft] as [string, string, string],
+      minValue: -1,
+      maxValue: 1,
+      divergeAt: 0.5,
+    },
+    emptyColor: PALETTE.paperDeep,
+    enableLabels: names.length <= 8,
+    valueFormat: ">-.2f",
+    labelTextColor: PALETTE.ink,
+    axisTop: axis ? { ...axis, tickRotation: -45 } : null,
+    axisLeft: axis,
+    theme: CHART_THEME,
+    hoverTarget: "cell" as const,
+    animate: false,
+    ariaLabel: label,
+    tooltip: ({
+      cell,
+    }: {
+      cell: { serieId: string; data: { x: string | number }; formattedValue: string | null };
+    }) => (
+      <div className="rounded bg-white px-2 py-1 text-xs shadow">
+        <strong>{nameOf.get(cell.serieId)}</strong> and{" "}
+        <strong>{nameOf.get(String(cell.data.x))}</strong>: cosine {cell.formattedValue ?? "—"}
+      </div>
+    ),
+  };
+  return (
+    <div>
+      <div className="aspect-square w-full max-w-[560px]">
+        {named ? <ResponsiveHeatMap {...common} /> : <ResponsiveHeatMapCanvas {...common} />}
+      </div>
+      <GradientKey />
+    </div>
+  );
+}
+
+function GradientKey() {
+  return (
+    <div className="mt-2 flex items-center gap-2 text-xs text-ink-soft" aria-hidden>
+      <span>−1 opposed</span>
+      <span
+        className="inline-block h-2.5 w-40 rounded-sm"
+        style={{
+          background: `linear-gradient(to right, ${PALETTE.cadmium}, ${PALETTE.paper}, ${PALETTE.inkSoft})`,
+        }}
+      />
+      <span>+1 aligned</span>
+    </div>
+  );
+}

@@ -1,0 +1,71 @@
+import type { BarCommonProps, BarDatum } from "@nivo/bar";
+
+// @nivo/theming is not a direct dependency; its theme type is reachable through the bar package.
+type ChartTheme = BarCommonProps<BarDatum>["theme"];
+
+/** The palette of tailwind.config.ts as values, for chart libraries that need colours, not classes. */
+export const PALETTE = {
+  paper: "#f6f4ee",
+  paperDeep: "#ece8dc",
+  ink: "#1c2230",
+  inkSoft: "#4a5266",
+  inkFaint: "#8a90a0",
+  cadmium: "#d9652b",
+  cadmiumSoft: "#f6dccb",
+  verdigris: "#2f8f83",
+  verdigrisSoft: "#d3ece8",
+  indigo: "#3d4a9e",
+  indigoSoft: "#dcdff3",
+} as const;
+
+/**
+ * Colours for label categories. None is a signal colour of the palette (verdigris and indigo mean
+ * local updates and minibatches in a report), so a class never looks like a verdict. Twenty is the
+ * most a classification report has (methods.md §1); regression has ten decile bins.
+ */
+export const CATEGORY_COLOURS = [
+  "#5b6bbf",
+  "#e0a33a",
+  "#7a9e4d",
+  "#b8577a",
+  "#4f9bb8",
+  "#8c6bb1",
+  "#c97b4a",
+  "#5e8c7a",
+  "#a3a04a",
+  "#6d7486",
+  "#a9b2e3",
+  "#f0cf8f",
+  "#b9d39a",
+  "#e3a6bd",
+  "#a4d0e0",
+  "#c6b2db",
+  "#e8b894",
+  "#a9c9bb",
+  "#d6d39a",
+  "#b5b9c4",
+];
+
+export const CHART_THEME: ChartTheme = {
+  text: { fontFamily: "inherit", fontSize: 11, fill: PALETTE.inkSoft },
+  axis: {
+    domain: { line: { stroke: PALETTE.inkFaint, strokeWidth: 1 } },
+    ticks: { line: { stroke: PALETTE.inkFaint, strokeWidth: 1 } },
+    legend: { text: { fontSize: 12, fill: PALETTE.ink, fontWeight: 600 } },
+  },
+  grid: { line: { stroke: PALETTE.paperDeep, strokeWidth: 1 } },
+  tooltip: {
+    container: {
+      background: "#ffffff",
+      color: PALETTE.ink,
+      fontSize: 12,
+      borderRadius: 6,
+      boxShadow: "0 2px 8px rgba(28, 34, 48, 0.15)",
+    },
+  },
+};
+
+/** Shortens long user-given names (shard ids, class names) on an axis; tooltips show them whole. */
+export function shortenLabel(label: string, length = 14): string {
+  return label.length > length ? `${label.slice(0, length - 1)}…` : label;
+}

@@ -1,0 +1,149 @@
+"use client";
+
+import { ResponsiveHeatMap, type CustomLayerProps } from "@nivo/heatmap";
+import type { Verdict } from "@/lib/analysis/advise-plan";
+import { classifyRegimeCell, type RegimeMap } from "@/lib/reports/regime-map";
+import { formatFigure, VERDICT_LABELS } from "@/lib/reports/report-view";
+import { CHART_THEME, PALETTE } from "./chart-style";
+
+/** How far past its threshold (in decades of ρ) a cell reaches its band's full colour. */
+const FULL_STRENGTH = 1;
+
+const BAND_COLOURS: Record<Verdict, [string, string]> = {
+  "local-updates": [PALETTE.verdigrisSoft, PALETTE.verdigris],
+  "large-minibatch": [PALETTE.indigoSoft, PALETTE.indigo],
+  "no-clear-winner": [PALETTE.paperDeep, PALETTE.paperDeep],
+};
+
+function mixColours(from: string, to: string, weight: number): string {
+  const channel = (hex: string, index: number) =>
+    parseInt(hex.slice(1 + index * 2, 3 + index * 2), 16);
+  const mixed = [0, 1, 2].map((index) =>
+    Math.round(channel(from, index) * (1 - weight) + channel(to, index) * weight)
+      .toString(16)
+      .padStart(2, "0"),
+  );
+  return `#${mixed.join("")}`;
+}
+
+/**
+ * A cell's colour says which verdict it stands for (the thresholds ρ ≤ ½ and ρ ≥ 2); its depth says
+ * by how much, so the bands never blur into each other the way a continuous scale would.
+ */
+function colourCell(value: number | null): string {
+  if (value === null) return PALETTE.paper;
+  const [soft, strong] = BAND_COLOURS[classifyRegimeCell(value)];
+  const strength = Math.min(1, Math.max(0, (Math.abs(value) - Math.log10(2)) / FULL_STRENGTH));
+  return mixColours(soft, strong, strength);
+}
+
+type RegimeDatum = { x: string; y: number | null };
+
+const rowKey = (localSteps: number) => `K${localSteps}`;
+const columnKey = (rounds: number) => `R${rounds}`;
+
+/** log₁₀ ρ over local steps K (rows, largest on top) and rounds R (columns), the plan outlined. */
+export function RegimeMapChart({ map, label }: { map: RegimeMap; label: string }) {
+  const data: { id: string; data: RegimeDatum[] }[] = map.localSteps
+    .map((localSteps, row) => ({
+      id: rowKey(localSteps),
+      data: map.rounds.map((rounds, column) => ({
+        x: columnKey(rounds),
+        y: map.log10Ratio[row][column],
+      })),
+    }))
+    .reverse();
+  const planCell = `${rowKey(map.plan.localSteps)}.${columnKey(map.plan.rounds)}`;
+  const PlanOutline = ({ cells }: CustomLayerProps<RegimeDatum>) => {
+    const cell = cells.find((candidate) => candidate.id === planCell);
+    if (!cell) return null;
+    return (
+      <g pointerEvents="none">
+        <rect
+          x={cell.x - cell.width / 2}
+          y={cell.y - cell.height / 2}
+          width={cell.width}
+          height={cell.height}
+          fill="none"
+          stroke={PALETTE.ink}
+          strokeWidth={2.5}
+        />
+        <text
+          x={cell.x}
+          y={cell.y}
+          textAnchor="middle"
+          dominantBaseline="central"
+          fontSize={10}
+          fontWeight={700}
+          fill={PALETTE.ink}
+        >
+          plan
+        </text>
+      </g>
+    );
+  };
+  return (
+    <div>
+      <div className="h-[380px] w-full">
+        <ResponsiveHeatMap
+          data={data}
+          margin={{ top: 44, right: 16, bottom: 16, left: 64 }}
+          colors={(cell) => colourCell(cell.value)}
+          xInnerPadding={0.04}
+          yInnerPadding={0.04}
+          enableLabels={false}
+          axisTop={{
+            tickSize: 0,
+            tickPadding: 6,
+            format: (key: string) => key.slice(1),
+            legend: "Rounds R",
+            legendPosition: "middle",
+            legendOffset: -34,
+          }}
+          axisLeft={{
+            tickSize: 0,
+            tickPadding: 6,
+            format: (key: string) => key.slice(1),
+            legend: "Local steps K",
+            legendPosition: "middle",
+            legendOffset: -52,
+          }}
+          layers={["grid", "axes", "cells", PlanOutline]}
+          hoverTarget="cell"
+          theme={CHART_THEME}
+          animate={false}
+          role="img"
+          ariaLabel={label}
+          tooltip={({ cell }) => (
+            <div className="rounded bg-white px-2 py-1 text-xs shadow">
+              K = {cell.serieId.slice(1)}, R = {String(cell.data.x).slice(1)}: ρ ={" "}
+              {cell.value === null ? "—" : formatFigure(10 ** cell.value, 3)} (
+              {VERDICT_LABELS[classifyRegimeCell(cell.value)].toLowerCase()})
+            </div>
+          )}
+        />
+      </div>
+      <ul className="mt-2 flex flex-wrap gap-x-4 gap-y-1 text-xs text-ink-soft" aria-label="Key">
+        {(
+          [
+            ["local-updates", "ρ ≤ ½: local updates"],
+            ["no-clear-winner", "½ < ρ < 2: no clear winner"],
+            ["large-minibatch", "ρ ≥ 2: large minibatches"],
+          ] as const
+        ).map(([verdict, text]) => (
+          <li key={verdict} className="flex items-center gap-1.5">
+            <span
+              aria-hidden
+              className="inline-block h-3 w-6 rounded-sm"
+              style={{
+                background: `linear-gradient(to right, ${BAND_COLOURS[verdict][0]}, ${BAND_COLOURS[verdict][1]})`,
+              }}
+            />
+            {text}
+          </li>
+        ))}
+        <li>darker = more decisive</li>
+      </ul>
+    </div>
+  );
+}

@@ -1,0 +1,149 @@
+import { execFile } from "node:child_process";
+import { mkdtempSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
+import { promisify } from "node:util";
+import { eq } from "drizzle-orm";
+import { db } from "@/db/client";
+import { analyses, dataFiles, reports, reportShards } from "@/db/schema";
+import type { PartitionSummary } from "@/lib/analysis";
+import { loadPenguinsCsv } from "@/tests/lib/analysis/support/open-data";
+
+const run = promisify(execFile);
+const root = path.resolve(import.meta.dirname, "../..");
+
+/**
+ * The summary `npm run analyze` prints for penguins (vega-datasets, BSD-3) with the shard column
+ * Island, run as a child process exactly as a user or pipeline would, plus any extra flags.
+ */
+export async function analyzePenguinsWithCli(extraFlags: string[] = []): Promise<PartitionSummary> {
+  const directory = mkdtempSync(path.join(tmpdir(), "partita-report-fixture-"));
+  const data = path.join(directory, "penguins.csv");
+  writeFileSync(data, loadPenguinsCsv().csv);
+  const { stdout } = await run(
+    process.execPath,
+    [
+      "--import",
+      "tsx",
+      "scripts/analyze.ts",
+      "--data",
+      data,
+      "--label",
+      "Species",
+      "--shard-column",
+      "Island",
+      "--id-column",
+      "row",
+      ...extraFlags,
+    ],
+    { cwd: root, env: { ...process.env, DEBUG: "" }, maxBuffer: 64 * 1024 * 1024 },
+  );
+  return JSON.parse(stdout) as PartitionSummary;
+}
+
+/**
+ * Stores a finished report the way the worker does (an analysis, the report, its per-shard table),
+ * without running a job. A `previousReportId` continues that report's lineage with the next version.
+ */
+export async function insertReport(input: {
+  workspaceId: string;
+  authorId: string;
+  summary: PartitionSummary;
+  title?: string;
+  previousReportId?: string;
+  createdAt?: Date;
+}): Promise<{ reportId: string; analysisId: string }> {
+  const { workspaceId, authorId, summary } = input;
+  const title = input.title ?? "Penguins by island";
+  const [dataset] = await db()
+    .insert(dataFiles)
+    .values({
+      workspaceId,
+      kind: "dataset",
+      name: "penguins.csv",
+      objectKey: `workspaces/${workspaceId}/files/${crypto.randomUUID()}/penguins.csv`,
+      sizeBytes: 15_000,
+      contentType: "text/csv",
+      uploadedBy: authorId,
+    })
+    .returning({ id: dataFiles.id });
+  const parameters = {
+    labelColumn: "Species",
+    shardColumn: "Island",
+    localSteps: summary.advice.localSteps,
+    rounds: summary.advice.rounds,
+    batchSize: summary.advice.batchSize,
+  };
+  const [analysis] = await db()
+    .insert(analyses)
+    .values({
+      workspaceId,
+      title,
+      datasetFileId: dataset.id,
+      parameters,
+      previousReportId: input.previousReportId,
+      status: "succeeded",
+      fraction: 1,
+      createdBy: authorId,
+    })
+    .returning({ id: analyses.id });
+  const previous = input.previousReportId
+    ? (
+        await db()
+          .select({ lineageId: reports.lineageId, version: reports.version })
+          .from(reports)
+          .where(eq(reports.id, input.previousReportId))
+      )[0]
+    : undefined;
+  const reportId = crypto.randomUUID();
+  await db()
+    .insert(reports)
+    .values({
+      id: reportId,
+      workspaceId,
+      analysisId: analysis.id,
+      lineageId: previous?.lineageId ?? reportId,
+      version: (previous?.version ?? 0) + 1,
+      previousReportId: input.previousReportId,
+      title,
+      verdict: summary.advice.verdict,
+      summary,
+      parameters,
+      inputs: [
+        {
+          kind: "dataset",
+          name: "penguins.csv",
+          objectKey: `workspaces/${workspaceId}/files/fixture/penguins.csv`,
+          sizeBytes: 15_000,
+          sha256: "0".repeat(64),
+        },
+      ],
+      engineVersion: summary.engineVersion,
+      timings: { total: 1 },
+      authorId,
+      createdAt: input.createdAt,
+    });
+  if (summary.shards.length > 0) {
+    await db()
+      .insert(reportShards)
+      .values(
+        summary.shards.map((shard, ordinal) => ({
+          reportId,
+          ordinal,
+          shardId: shard.id,
+          rows: shard.rows,
+          tv: shard.tv,
+          hellinger: shard.hellinger,
+          js: shard.js,
+          kl: shard.kl,
+          gradNorm2: shard.gradNorm2,
+          sigma2: shard.sigma2,
+          loss: shard.loss,
+          classesPresent: shard.classesPresent,
+          effectiveClasses: shard.effectiveClasses,
+          featureShift: shard.featureShift,
+        })),
+      );
+  }
+  return { reportId, analysisId: analysis.id };
+}
