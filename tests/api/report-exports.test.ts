@@ -1,0 +1,148 @@
+import Papa from "papaparse";
+import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
+
+vi.mock("@/lib/auth/session", () => import("@/tests/support/fake-session"));
+
+import { GET as getShardsCsv } from "@/app/api/workspaces/[workspaceId]/reports/[reportId]/shards.csv/route";
+import { GET as getSummaryJson } from "@/app/api/workspaces/[workspaceId]/reports/[reportId]/summary.json/route";
+import { closeDb } from "@/db/client";
+import type { PartitionSummary } from "@/lib/analysis";
+import type { SessionUser } from "@/lib/auth/session";
+import { createAccount, createTeam } from "@/tests/support/accounts";
+import { actAs } from "@/tests/support/fake-session";
+import { analyzePenguinsWithCli, insertReport } from "@/tests/support/report-fixtures";
+
+afterAll(closeDb);
+
+type Handler = typeof getSummaryJson;
+
+function call(handler: Handler, workspaceId: string, reportId: string): Promise<Response> {
+  const request = new Request(
+    `http://partita.test/api/workspaces/${workspaceId}/reports/${reportId}`,
+  );
+  return handler(request, { params: Promise.resolve({ workspaceId, reportId }) });
+}
+
+let cliSummary: PartitionSummary;
+let team: Awaited<ReturnType<typeof createTeam>>;
+let reportId: string;
+
+beforeAll(async () => {
+  // The CLI as a child process on open data: penguins (vega-datasets, BSD-3), shards = island.
+  cliSummary = await analyzePenguinsWithCli();
+  team = await createTeam();
+  ({ reportId } = await insertReport({
+    workspaceId: team.workspaceId,
+    authorId: team.analyst.id,
+    summary: cliSummary,
+    title: "Penguins by island",
+  }));
+});
+
+describe("GET …/reports/[reportId]/summary.json", () => {
+  it("returns what the CLI printed for the same input and parameters, as a download", async () => {
+    actAs(team.reviewer);
+    const response = await call(getSummaryJson, team.workspaceId, reportId);
+    expect(response.status).toBe(200);
+    expect(response.headers.get("content-type")).toBe("application/json; charset=utf-8");
+    expect(response.headers.get("content-disposition")).toBe(
+      'attachment; filename="penguins-by-island-v1.summary.json"',
+    );
+    const exported = (await response.json()) as PartitionSummary;
+    expect(exported).toEqual(cliSummary);
+    // The island split of methods.md's test data: three shards in code-point order.
+    expect(exported.shards.map((shard) => shard.id)).toEqual(["Biscoe", "Dream", "Torgersen"]);
+  });
+});
+
+describe("GET …/reports/[reportId]/shards.csv", () => {
+  it("parses back to the per-shard rows of the summary", async () => {
+    actAs(team.owner);
+    const response = await call(getShardsCsv, team.workspaceId, reportId);
+    expect(response.status).toBe(200);
+    expect(response.headers.get("content-type")).toBe("text/csv; charset=utf-8");
+    expect(response.headers.get("content-disposition")).toContain(
+      "penguins-by-island-v1.shards.csv",
+    );
+    const parsed = Papa.parse<Record<string, string>>(await response.text(), {
+      header: true,
+      skipEmptyLines: true,
+    });
+    expect(parsed.errors).toEqual([]);
+    expect(
+      parsed.data.map((row) => ({
+        id: row.shard,
+        rows: Number(row.rows),
+        tv: Number(row.tv),
+        hellinger: Number(row.hellinger),
+        js: Number(row.js),
+        kl: Number(row.kl),
+        gradNorm2: Number(row.gradNorm2),
+        sigma2: Number(row.sigma2),
+        loss: Number(row.loss),
+        classesPresent: Number(row.classesPresent),
+        effectiveClasses: Number(row.effectiveClasses),
+        featureShift: Number(row.featureShift),
+      })),
+    ).toEqual(
+      cliSummary.shards.map((shard) => {
+        const figures: Partial<typeof shard> = { ...shard };
+        delete figures.labelCounts; // the CSV holds the per-shard table, not the label counts
+        return figures;
+      }),
+    );
+  });
+
+  it("neutralizes a shard id that a spreadsheet would run as a formula (OWASP CSV injection)", async () => {
+    const hostile = structuredClone(cliSummary);
+    hostile.shards[0].id = '=HYPERLINK("http://x.invalid","open")';
+    const { reportId: hostileId } = await insertReport({
+      workspaceId: team.workspaceId,
+      authorId: team.owner.id,
+      summary: hostile,
+    });
+    actAs(team.analyst);
+    const text = await (await call(getShardsCsv, team.workspaceId, hostileId)).text();
+    const firstCell = Papa.parse<string[]>(text, { skipEmptyLines: true }).data[1][0];
+    expect(firstCell).toBe('\'=HYPERLINK("http://x.invalid","open")');
+  });
+});
+
+describe("report exports: who may download", () => {
+  const handlers = { "summary.json": getSummaryJson, "shards.csv": getShardsCsv };
+
+  it.each(Object.entries(handlers))(
+    "%s: every member 200, stranger 404, signed out 401",
+    async (_, handler) => {
+      for (const member of [team.owner, team.analyst, team.reviewer]) {
+        actAs(member);
+        expect((await call(handler, team.workspaceId, reportId)).status).toBe(200);
+      }
+      const stranger = await createAccount("stranger");
+      actAs(stranger);
+      expect((await call(handler, team.workspaceId, reportId)).status).toBe(404);
+      actAs(null);
+      const signedOut = await call(handler, team.workspaceId, reportId);
+      expect(signedOut.status).toBe(401);
+      expect(await signedOut.json()).toMatchObject({ error: { code: "unauthenticated" } });
+    },
+  );
+
+  it.each(Object.entries(handlers))(
+    "%s: 404 for another workspace's report asked for through this one, and for an unknown id",
+    async (_, handler) => {
+      const other: SessionUser & { workspaceId: string } = await createAccount("other");
+      const { reportId: foreignReport } = await insertReport({
+        workspaceId: other.workspaceId,
+        authorId: other.id,
+        summary: cliSummary,
+      });
+      actAs(team.owner);
+      const response = await call(handler, team.workspaceId, foreignReport);
+      expect(response.status).toBe(404);
+      expect(await response.json()).toMatchObject({ error: { code: "not_found" } });
+      actAs(team.owner);
+      expect((await call(handler, team.workspaceId, "no-such-report")).status).toBe(404);
+    },
+  );
+});
