@@ -51,7 +51,8 @@ export function FileDrop({
   const cancelRef = useRef<AbortController | null>(null);
   const busy = state.phase === "uploading" || state.phase === "checking";
 
-  // Leaving the page stops an upload in flight instead of letting it run on unseen.
+  // When the drop zone goes away (leaving the page, or choosing a shard column instead of a map),
+  // the upload in flight stops instead of running on unseen.
   useEffect(() => () => cancelRef.current?.abort(), []);
 
   async function upload(file: File) {

@@ -170,15 +170,22 @@ async function uploadParts(
     request.onProgress(loaded);
   };
 
+  // One renewal at a time: the parallel senders all notice old URLs at about the same moment.
+  let renewal: Promise<void> | undefined;
   const renewUrlsIfOld = async () => {
-    if (Date.now() - signedAt < PART_URL_RENEW_MS || pending.length === 0) return;
-    signedAt = Date.now();
-    const { parts } = await postJson<{ parts: { partNumber: number; url: string }[] }>(
-      `${uploadsPath(workspaceId)}/multipart/parts`,
-      { key: ticket.key, uploadId: ticket.uploadId, partNumbers: pending },
-      signal,
-    );
-    for (const part of parts) urls.set(part.partNumber, part.url);
+    if (!renewal && (Date.now() - signedAt < PART_URL_RENEW_MS || pending.length === 0)) return;
+    renewal ??= (async () => {
+      const { parts } = await postJson<{ parts: { partNumber: number; url: string }[] }>(
+        `${uploadsPath(workspaceId)}/multipart/parts`,
+        { key: ticket.key, uploadId: ticket.uploadId, partNumbers: [...pending] },
+        signal,
+      );
+      for (const part of parts) urls.set(part.partNumber, part.url);
+      signedAt = Date.now();
+    })().finally(() => {
+      renewal = undefined;
+    });
+    await renewal;
   };
 
   const sendPart = async (partNumber: number) => {
