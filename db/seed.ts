@@ -4,7 +4,10 @@ import { eq } from "drizzle-orm";
 import { Pool } from "pg";
 import { hashPassword } from "@/lib/auth/password";
 import type { Role } from "@/lib/auth/roles";
+import { stopSendingBoss } from "@/lib/jobs";
+import { closeDb } from "./client";
 import * as schema from "./schema";
+import { seedDemoAnalyses } from "./seed-demo-analyses";
 
 export type DemoAccount = { email: string; password: string; role: Role };
 
@@ -32,8 +35,9 @@ export const DEMO_ACCOUNTS: readonly (DemoAccount & { name: string })[] = [
 ];
 
 /**
- * Creates the demo workspace with an owner, an analyst and a reviewer. Idempotent: when the demo
- * owner already exists nothing changes, so every start may call it.
+ * Creates the demo workspace with an owner, an analyst and a reviewer, then uploads the demo files
+ * and queues its two analyses for the worker. Idempotent: what exists already is left alone, so
+ * every start may call it.
  */
 export async function seedDemo(databaseUrl: string): Promise<DemoAccount[]> {
   const pool = new Pool({ connectionString: databaseUrl, max: 1 });
@@ -63,6 +67,17 @@ export async function seedDemo(databaseUrl: string): Promise<DemoAccount[]> {
             .values({ workspaceId: workspace.id, userId: user.id, role: account.role });
         }
       });
+    }
+    const [analyst] = await database
+      .select({ userId: schema.memberships.userId, workspaceId: schema.memberships.workspaceId })
+      .from(schema.memberships)
+      .innerJoin(schema.users, eq(schema.users.id, schema.memberships.userId))
+      .where(eq(schema.users.email, DEMO_ACCOUNTS[1].email));
+    try {
+      await seedDemoAnalyses(analyst.workspaceId, analyst.userId);
+    } finally {
+      await stopSendingBoss();
+      await closeDb();
     }
     return DEMO_ACCOUNTS.map(({ email, password, role }) => ({ email, password, role }));
   } finally {

@@ -3,7 +3,8 @@
 import { randomBytes } from "node:crypto";
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from "node:fs";
 import path from "node:path";
-import { fileURLToPath, pathToFileURL } from "node:url";
+import { fileURLToPath } from "node:url";
+import { seedDemo } from "../db/seed";
 import { fakeS3Credentials, startFakeS3 } from "../fakes/s3";
 import { startFakeSmtp } from "../fakes/smtp";
 import { buildAppEnvironment, type AppServices } from "./services/app-environment";
@@ -38,26 +39,6 @@ function readOrCreateSecret(file: string): string {
 
 function step(message: string) {
   console.log(`\n▸ ${message}`);
-}
-
-interface DemoAccount {
-  email: string;
-  password: string;
-  role: string;
-}
-
-/** The contract of db/seed.ts: idempotent, returns the demo sign-ins to print. */
-type SeedDemo = (databaseUrl: string) => Promise<DemoAccount[]>;
-
-async function seedDemoAccounts(databaseUrl: string): Promise<DemoAccount[]> {
-  const seedFile = path.join(projectRoot, "db", "seed.ts");
-  if (!existsSync(seedFile)) {
-    console.log("  (no db/seed.ts yet: no demo accounts)");
-    return [];
-  }
-  // Imported by URL so this script also runs (and type-checks) before the seed exists.
-  const { seedDemo } = (await import(pathToFileURL(seedFile).href)) as { seedDemo: SeedDemo };
-  return seedDemo(databaseUrl);
 }
 
 const supervisor = new Supervisor();
@@ -113,7 +94,7 @@ async function main() {
   Object.assign(process.env, appEnvironment);
 
   step("Seeding the demo workspace");
-  const accounts = await seedDemoAccounts(postgres.url);
+  const accounts = await seedDemo(postgres.url);
 
   step("Starting the analysis worker");
   supervisor.startService({

@@ -22,6 +22,9 @@ export function buildAppEnvironment(services: AppServices): NodeJS.ProcessEnv {
     NEXTAUTH_SECRET: services.nextAuthSecret,
     NEXTAUTH_URL: services.appUrl,
     NEXT_TELEMETRY_DISABLED: "1",
+    // The SDK is pinned to a release that supports Node 20 (stack.md); its notice that later
+    // releases will not is known and would only repeat in every process's output.
+    AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED: "true",
   };
   if (services.fakeS3) {
     Object.assign(environment, {
