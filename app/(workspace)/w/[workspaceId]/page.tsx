@@ -1,10 +1,16 @@
 import type { Metadata } from "next";
+import Link from "next/link";
+import { LatestReports } from "@/components/reports/latest-reports";
+import { buttonClasses } from "@/components/ui/button";
 import { Cautions } from "@/components/workspace/cautions";
 import { LabelMixSketch } from "@/components/workspace/label-mix-sketch";
+import { listReports } from "@/db/queries/reports";
 import { guardPage } from "@/lib/auth/page-guard";
 import { roleAllows } from "@/lib/auth/roles";
 
 export const metadata: Metadata = { title: "Overview" };
+
+const LATEST_COUNT = 6;
 
 const STEPS = [
   {
@@ -29,6 +35,43 @@ export default async function WorkspaceOverviewPage({
   const { workspaceId } = await params;
   const { workspace } = await guardPage(workspaceId, "readWorkspace", `/w/${workspaceId}`);
   const canUpload = roleAllows(workspace.role, "uploadData");
+  const latest = await listReports(workspace.id, {}, LATEST_COUNT);
+  if (latest.length > 0) {
+    const base = `/w/${workspace.id}`;
+    return (
+      <div className="space-y-10">
+        <section className="space-y-3">
+          <p className="text-sm font-medium tracking-wide text-verdigris uppercase">
+            Latest reports
+          </p>
+          <h1 className="text-3xl font-semibold tracking-tight">{workspace.name}</h1>
+          <p className="max-w-prose text-ink-soft">
+            Each report measures how different the shards of a partitioned dataset are and says
+            whether local updates or large minibatches suit the split for the training plan given.
+          </p>
+        </section>
+        <section aria-labelledby="latest-reports" className="space-y-4">
+          <div className="flex flex-wrap items-center justify-between gap-3">
+            <h2 id="latest-reports" className="text-lg font-semibold">
+              Newest first
+            </h2>
+            <div className="flex gap-2">
+              <Link href={`${base}/reports`} className={buttonClasses("quiet")}>
+                All reports
+              </Link>
+              {canUpload ? (
+                <Link href={`${base}/analyses/new`} className={buttonClasses("primary")}>
+                  New analysis
+                </Link>
+              ) : null}
+            </div>
+          </div>
+          <LatestReports workspaceId={workspace.id} reports={latest} />
+        </section>
+        <Cautions sharing />
+      </div>
+    );
+  }
   return (
     <div className="space-y-10">
       <section className="grid items-center gap-8 md:grid-cols-[1.4fr_1fr]">

@@ -1,0 +1,103 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { ReportFiltersForm } from "@/components/reports/report-filters-form";
+import { ReportList } from "@/components/reports/report-list";
+import { buttonClasses } from "@/components/ui/button";
+import { Cautions } from "@/components/workspace/cautions";
+import { listReportAuthors, listReports } from "@/db/queries/reports";
+import { guardPage } from "@/lib/auth/page-guard";
+import { roleAllows } from "@/lib/auth/roles";
+import { hasReportFilters, readReportFilters } from "@/lib/reports/report-filters";
+
+export const metadata: Metadata = { title: "Reports" };
+
+const LIST_LIMIT = 200;
+
+export default async function ReportsPage({
+  params,
+  searchParams,
+}: {
+  params: Promise<{ workspaceId: string }>;
+  searchParams: Promise<Record<string, string | string[] | undefined>>;
+}) {
+  const { workspaceId } = await params;
+  const { workspace } = await guardPage(workspaceId, "readWorkspace", `/w/${workspaceId}/reports`);
+  const filters = readReportFilters(await searchParams);
+  const filtered = hasReportFilters(filters);
+  const [reports, authors] = await Promise.all([
+    listReports(workspace.id, filters, LIST_LIMIT),
+    listReportAuthors(workspace.id),
+  ]);
+  const canRun = roleAllows(workspace.role, "runAnalysis");
+  const base = `/w/${workspace.id}`;
+  const hasAny = reports.length > 0 || authors.length > 0;
+  return (
+    <div className="space-y-6">
+      <div className="flex flex-wrap items-end justify-between gap-4">
+        <div>
+          <h1 className="text-3xl font-semibold tracking-tight">Reports</h1>
+          <p className="mt-1 text-sm text-ink-soft">
+            Every analysis of {workspace.name}, newest first. Reports never change; a re-run with
+            other parameters is a new version of the same report.
+          </p>
+        </div>
+        {canRun ? (
+          <Link href={`${base}/analyses/new`} className={buttonClasses("primary")}>
+            New analysis
+          </Link>
+        ) : null}
+      </div>
+
+      {hasAny ? (
+        <ReportFiltersForm action={`${base}/reports`} filters={filters} authors={authors} />
+      ) : null}
+
+      {reports.length > 0 ? (
+        <>
+          <ReportList
+            workspaceId={workspace.id}
+            reports={reports.map((report) => ({
+              ...report,
+              createdAt: report.createdAt.toISOString(),
+            }))}
+          />
+          {reports.length === LIST_LIMIT ? (
+            <p className="text-sm text-ink-soft">
+              Showing the newest {LIST_LIMIT}; narrow the filters to find older reports.
+            </p>
+          ) : null}
+        </>
+      ) : filtered && hasAny ? (
+        <div className="rounded-lg border border-dashed border-ink/20 bg-white p-8 text-center">
+          <p className="font-medium">No report matches these filters.</p>
+          <Link
+            href={`${base}/reports`}
+            className="mt-2 inline-block text-sm text-indigo underline"
+          >
+            Clear the filters
+          </Link>
+        </div>
+      ) : (
+        <div className="rounded-lg border border-dashed border-ink/20 bg-white p-8 text-center">
+          <p className="font-medium">No reports yet.</p>
+          {canRun ? (
+            <>
+              <p className="mx-auto mt-1 max-w-prose text-sm text-ink-soft">
+                Upload a labelled dataset and its layout, state your training plan, and Partita
+                turns the analysis into a report here.
+              </p>
+              <Link href={`${base}/analyses/new`} className={`${buttonClasses("primary")} mt-4`}>
+                New analysis
+              </Link>
+            </>
+          ) : (
+            <p className="mx-auto mt-1 max-w-prose text-sm text-ink-soft">
+              Reports appear here once an analyst or owner of this workspace runs an analysis.
+            </p>
+          )}
+        </div>
+      )}
+      <Cautions sharing />
+    </div>
+  );
+}
