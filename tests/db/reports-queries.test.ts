@@ -1,0 +1,145 @@
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { closeDb } from "@/db/client";
+import {
+  findReport,
+  findReportShardTable,
+  findReportSummary,
+  listReportAuthors,
+  listReports,
+} from "@/db/queries/reports";
+import type { PartitionSummary } from "@/lib/analysis";
+import { createAccount, createTeam } from "@/tests/support/accounts";
+import { analyzePenguinsWithCli, insertReport } from "@/tests/support/report-fixtures";
+
+afterAll(closeDb);
+
+let summary: PartitionSummary;
+let team: Awaited<ReturnType<typeof createTeam>>;
+const ids: Record<string, string> = {};
+
+function withVerdict(verdict: PartitionSummary["advice"]["verdict"]): PartitionSummary {
+  const copy = structuredClone(summary);
+  copy.advice.verdict = verdict;
+  return copy;
+}
+
+const day = (date: number) => new Date(Date.UTC(2026, 2, date, 12));
+
+beforeAll(async () => {
+  summary = await analyzePenguinsWithCli();
+  team = await createTeam();
+  const { workspaceId } = team;
+  ids.first = (
+    await insertReport({
+      workspaceId,
+      authorId: team.analyst.id,
+      summary: withVerdict("no-clear-winner"),
+      title: "Orchard split 100% by valley",
+      createdAt: day(1),
+    })
+  ).reportId;
+  ids.revision = (
+    await insertReport({
+      workspaceId,
+      authorId: team.owner.id,
+      summary: withVerdict("local-updates"),
+      title: "Orchard split 100% by valley",
+      previousReportId: ids.first,
+      createdAt: day(3),
+    })
+  ).reportId;
+  ids.shuffled = (
+    await insertReport({
+      workspaceId,
+      authorId: team.analyst.id,
+      summary: withVerdict("large-minibatch"),
+      title: "Shuffled_orchards",
+      createdAt: day(5),
+    })
+  ).reportId;
+  const outsider = await createAccount("outsider");
+  ids.foreign = (
+    await insertReport({
+      workspaceId: outsider.workspaceId,
+      authorId: outsider.id,
+      summary,
+      title: "Orchard split 100% by valley",
+      createdAt: day(4),
+    })
+  ).reportId;
+});
+
+const titlesOf = (reports: { title: string; version: number }[]) =>
+  reports.map((report) => `${report.title} v${report.version}`);
+
+describe("listReports", () => {
+  it("lists only the workspace's reports, newest first, with lineage and summary figures", async () => {
+    const reports = await listReports(team.workspaceId);
+    expect(titlesOf(reports)).toEqual([
+      "Shuffled_orchards v1",
+      "Orchard split 100% by valley v2",
+      "Orchard split 100% by valley v1",
+    ]);
+    expect(reports.map((report) => report.id)).not.toContain(ids.foreign);
+    const first = reports[2];
+    expect(first).toMatchObject({ latestVersion: 2, lineageId: ids.first, shardCount: 3 });
+    expect(first.ratio).toBe(summary.advice.ratio);
+    expect(first.datasetRows).toBe(344);
+    expect(first.authorName).toBe(team.analyst.name);
+  });
+
+  it("filters by verdict, author and whole UTC days (both ends included)", async () => {
+    const { workspaceId } = team;
+    expect(titlesOf(await listReports(workspaceId, { verdict: "local-updates" }))).toEqual([
+      "Orchard split 100% by valley v2",
+    ]);
+    expect(titlesOf(await listReports(workspaceId, { author: team.owner.id }))).toEqual([
+      "Orchard split 100% by valley v2",
+    ]);
+    expect(
+      titlesOf(await listReports(workspaceId, { from: "2026-03-01", to: "2026-03-03" })),
+    ).toEqual(["Orchard split 100% by valley v2", "Orchard split 100% by valley v1"]);
+    expect(await listReports(workspaceId, { from: "2026-03-06" })).toEqual([]);
+  });
+
+  it("searches titles case-insensitively, taking % and _ literally", async () => {
+    const { workspaceId } = team;
+    expect(await listReports(workspaceId, { q: "orchard SPLIT" })).toHaveLength(2);
+    expect(titlesOf(await listReports(workspaceId, { q: "100%" }))).toHaveLength(2);
+    expect(titlesOf(await listReports(workspaceId, { q: "d_o" }))).toEqual([
+      "Shuffled_orchards v1",
+    ]);
+    // Unescaped, "%" and "_" would match any title.
+    expect(await listReports(workspaceId, { q: "1_0" })).toEqual([]);
+    expect(await listReports(workspaceId, { q: "100%by" })).toEqual([]);
+  });
+});
+
+describe("findReport", () => {
+  it("returns the report with its lineage, neighbours and per-shard table", async () => {
+    const report = await findReport(team.workspaceId, ids.first);
+    expect(report?.versions.map((version) => version.id)).toEqual([ids.first, ids.revision]);
+    expect(report?.previousVersion).toBeNull();
+    expect(report?.nextVersion?.id).toBe(ids.revision);
+    expect(report?.shards.map((shard) => shard.shardId)).toEqual(["Biscoe", "Dream", "Torgersen"]);
+    expect(report?.summary).toEqual(withVerdict("no-clear-winner"));
+    const revision = await findReport(team.workspaceId, ids.revision);
+    expect(revision?.previousVersion?.id).toBe(ids.first);
+    expect(revision?.nextVersion).toBeNull();
+  });
+
+  it("finds nothing of another workspace, whichever query asks", async () => {
+    expect(await findReport(team.workspaceId, ids.foreign)).toBeUndefined();
+    expect(await findReportSummary(team.workspaceId, ids.foreign)).toBeUndefined();
+    expect(await findReportShardTable(team.workspaceId, ids.foreign)).toBeUndefined();
+  });
+});
+
+describe("listReportAuthors", () => {
+  it("names each author once", async () => {
+    const authors = await listReportAuthors(team.workspaceId);
+    expect(authors.map((author) => author.id).sort()).toEqual(
+      [team.analyst.id, team.owner.id].sort(),
+    );
+  });
+});
