@@ -7,10 +7,14 @@ export const VERDICTS = [
   "no-clear-winner",
 ] as const satisfies readonly Verdict[];
 
+// A calendar day that exists: 2026-02-30 parses (it rolls over into March), so round-trip it.
 const day = z
   .string()
   .regex(/^\d{4}-\d{2}-\d{2}$/)
-  .refine((value) => !Number.isNaN(Date.parse(`${value}T00:00:00Z`)));
+  .refine((value) => {
+    const parsed = new Date(`${value}T00:00:00Z`);
+    return !Number.isNaN(parsed.getTime()) && parsed.toISOString().slice(0, 10) === value;
+  });
 
 // Each filter is read on its own and a bad one is dropped, so a hand-edited or stale bookmark
 // still shows the list rather than an error.

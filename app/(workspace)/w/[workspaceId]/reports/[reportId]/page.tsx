@@ -1,5 +1,6 @@
 import type { Metadata } from "next";
 import { notFound } from "next/navigation";
+import { cache } from "react";
 import { KeyFigures } from "@/components/reports/key-figures";
 import { MethodsSection } from "@/components/reports/methods-section";
 import { PreprocessingNotes } from "@/components/reports/preprocessing-notes";
@@ -13,17 +14,10 @@ import { findReport } from "@/db/queries/reports";
 import { guardPage } from "@/lib/auth/page-guard";
 import { roleAllows } from "@/lib/auth/roles";
 
-export const metadata: Metadata = { title: "Report" };
+type PageProps = { params: Promise<{ workspaceId: string; reportId: string }> };
 
-// A4 with margins that leave 182 mm (about 688 CSS px) of width: charts are at most 680 px wide.
-const PRINT_PAGE = "@page { size: A4; margin: 14mm; }";
-
-export default async function ReportPage({
-  params,
-}: {
-  params: Promise<{ workspaceId: string; reportId: string }>;
-}) {
-  const { workspaceId, reportId } = await params;
+/** Guarded read shared by the page and its metadata, so one request queries once. */
+const loadReport = cache(async (workspaceId: string, reportId: string) => {
   const { workspace } = await guardPage(
     workspaceId,
     "readWorkspace",
@@ -31,6 +25,21 @@ export default async function ReportPage({
   );
   const report = await findReport(workspace.id, reportId);
   if (!report) notFound();
+  return { workspace, report };
+});
+
+export async function generateMetadata({ params }: PageProps): Promise<Metadata> {
+  const { workspaceId, reportId } = await params;
+  const { report } = await loadReport(workspaceId, reportId);
+  return { title: `${report.title} (v${report.version})` };
+}
+
+// A4 with margins that leave 182 mm (about 688 CSS px) of width: charts are at most 680 px wide.
+const PRINT_PAGE = "@page { size: A4; margin: 14mm; }";
+
+export default async function ReportPage({ params }: PageProps) {
+  const { workspaceId, reportId } = await params;
+  const { workspace, report } = await loadReport(workspaceId, reportId);
   const { summary } = report;
   return (
     <article
