@@ -1,5 +1,7 @@
 import { describe, expect, it } from "vitest";
+import { computeGram } from "@/lib/analysis/analyze-partition";
 import { evaluateObjective } from "@/lib/analysis/objective";
+import { computeSoftmaxHessian } from "@/lib/analysis/softmax-hessian";
 import { analyzeText } from "./support/analyze-text";
 import { designFromText } from "./support/design-from-text";
 import { runPythonJson } from "./support/run-python";
@@ -114,6 +116,48 @@ describe("identities of methods.md §2-§3", () => {
       }
     },
   );
+
+  it("the softmax Hessian matches central differences of the gradient", async () => {
+    const design = await designFromText(makeCsv(200, 13), "label", "shard");
+    const lambda = 0.05;
+    const size = 3 * design.x.cols;
+    const weights = Float64Array.from({ length: size }, (_, k) => 0.4 * Math.sin(2 * k + 1));
+    const hessian = computeSoftmaxHessian(design, weights, lambda);
+    const step = 1e-5;
+    for (let k = 0; k < size; k++) {
+      const plus = Float64Array.from(weights);
+      const minus = Float64Array.from(weights);
+      plus[k] += step;
+      minus[k] -= step;
+      const gradientPlus = evaluateObjective(design, plus, lambda).gradient;
+      const gradientMinus = evaluateObjective(design, minus, lambda).gradient;
+      for (let j = 0; j < size; j++) {
+        const numeric = (gradientPlus[j] - gradientMinus[j]) / (2 * step);
+        // Central differences: truncation O(h²) ≈ 1e-10 plus rounding ~ε/h ≈ 1e-11.
+        expect(Math.abs(hessian[j * size + k] - numeric)).toBeLessThan(1e-8);
+      }
+    }
+  });
+
+  it("the softmax Hessian at W = 0 is (I/C − 11ᵀ/C²) ⊗ X̃ᵀX̃/N + λ off the biases (uniform pᵢ)", async () => {
+    const design = await designFromText(makeCsv(150, 17), "label", "shard");
+    const width = design.x.cols;
+    const size = 3 * width;
+    const lambda = 0.01;
+    const hessian = computeSoftmaxHessian(design, new Float64Array(size), lambda);
+    const gram = computeGram(design);
+    for (let a = 0; a < 3; a++) {
+      for (let b = 0; b < 3; b++) {
+        for (let j = 0; j < width; j++) {
+          for (let k = 0; k < width; k++) {
+            const penalty = a === b && j === k && j !== width - 1 ? lambda : 0;
+            const expected = ((a === b ? 1 / 3 : 0) - 1 / 9) * gram[j * width + k] + penalty;
+            expect(hessian[(a * width + j) * size + b * width + k]).toBeCloseTo(expected, 14);
+          }
+        }
+      }
+    }
+  });
 });
 
 describe("least squares against scikit-learn's Ridge (diabetes data bundled with scikit-learn)", () => {

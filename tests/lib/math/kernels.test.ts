@@ -1,7 +1,11 @@
 import { describe, expect, it } from "vitest";
 import { choleskyDecompose, choleskySolveInPlace } from "@/lib/math/cholesky";
 import { largestEigenvalueSymmetric } from "@/lib/math/eigen";
-import { accumulateGramUpper, symmetrizeFromUpper } from "@/lib/math/gram";
+import {
+  accumulateGramUpper,
+  accumulateWeightedGramUpper,
+  symmetrizeFromUpper,
+} from "@/lib/math/gram";
 import { createMatrix, matrixFromValues } from "@/lib/math/matrix";
 import { quantileSorted } from "@/lib/math/quantile";
 import { maximizeOnInterval } from "@/lib/math/scalar-search";
@@ -85,6 +89,34 @@ print(json.dumps({"gram":G.ravel().tolist(),"solution":np.linalg.solve(A,np.arra
 
     const top = largestEigenvalueSymmetric(matrixFromValues(cols, cols, gram));
     expect(Math.abs(top - reference.top) / reference.top).toBeLessThan(1e-10);
+  });
+
+  it("accumulates Xᵀ diag(a) X like NumPy, and the doc example by hand", () => {
+    const weights = seededValues(rows, 19);
+    const weighted = new Float64Array(cols * cols);
+    accumulateWeightedGramUpper(x, weights, 0, 9, weighted);
+    accumulateWeightedGramUpper(x, weights, 9, rows, weighted);
+    symmetrizeFromUpper(weighted, cols);
+    // Outside reference: NumPy X.T @ diag(a) @ X.
+    const reference = runPythonJson<number[]>(
+      `import json,sys
+import numpy as np
+d=json.load(sys.stdin)
+X=np.array(d["x"]).reshape(${rows},${cols})
+print(json.dumps((X.T@np.diag(d["a"])@X).ravel().tolist()))`,
+      { x: Array.from(x.data), a: Array.from(weights) },
+    );
+    weighted.forEach((value, index) => expect(value).toBeCloseTo(reference[index], 13));
+
+    const example = new Float64Array(4);
+    accumulateWeightedGramUpper(
+      matrixFromValues(2, 2, [1, 2, 3, 4]),
+      Float64Array.of(2, -1),
+      0,
+      2,
+      example,
+    );
+    expect(Array.from(example)).toEqual([-7, -8, 0, -8]);
   });
 
   it("gives the textbook factor of [[4, 2], [2, 3]] (hand-computed)", () => {
