@@ -24,7 +24,10 @@ export function ReportEvidence({ summary }: { summary: PartitionSummary }) {
   const agreement = heterogeneity.gradientAgreement;
   return (
     <section aria-labelledby="evidence-heading">
-      <h2 id="evidence-heading" className="mb-4 text-xl font-semibold text-ink">
+      <h2
+        id="evidence-heading"
+        className="mb-4 text-xl font-semibold text-ink print:break-after-avoid"
+      >
         Evidence
       </h2>
       <div className="grid gap-6 lg:grid-cols-2 print:block print:space-y-6">

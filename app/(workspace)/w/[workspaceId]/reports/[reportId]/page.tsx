@@ -58,7 +58,7 @@ export default async function ReportPage({ params }: PageProps) {
       <ReportProvenance report={report} />
       <Cautions sharing />
       <ReportEvidence summary={summary} />
-      <section aria-labelledby="shards-heading" className="space-y-3">
+      <section aria-labelledby="shards-heading" className="space-y-3 print:break-before-page">
         <h2 id="shards-heading" className="text-xl font-semibold text-ink">
           Per-shard table
         </h2>
