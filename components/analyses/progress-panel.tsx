@@ -115,6 +115,7 @@ export function ProgressPanel({
           stage={data.stage}
           fraction={data.fraction}
           allDone={data.status === "succeeded"}
+          halted={data.status === "failed" || data.status === "cancelled"}
         />
         {!finished && canRun ? (
           <div className="flex items-center gap-3 pt-2">
