@@ -20,7 +20,7 @@ export function NavLink({
     <Link
       href={href}
       aria-current={current ? "page" : undefined}
-      className="rounded px-2 py-1 hover:bg-paper-deep aria-[current=page]:bg-paper-deep aria-[current=page]:font-medium"
+      className="rounded px-2 py-1 whitespace-nowrap hover:bg-paper-deep aria-[current=page]:bg-paper-deep aria-[current=page]:font-medium"
     >
       {children}
     </Link>

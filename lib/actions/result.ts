@@ -1,7 +1,7 @@
 import { z } from "zod";
 import { AccessError } from "@/lib/auth/errors";
 import { RuleError } from "@/lib/errors";
-import { firstFieldErrors } from "@/lib/validation/auth";
+import { firstFieldErrors } from "@/lib/validation/field-errors";
 
 /** What every form action returns: success, or errors on the fields plus what the user typed. */
 export type ActionResult<TData = undefined> =

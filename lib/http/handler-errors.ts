@@ -1,7 +1,7 @@
 import { z } from "zod";
 import { AccessError } from "@/lib/auth/errors";
 import { RuleError } from "@/lib/errors";
-import { firstFieldErrors } from "@/lib/validation/auth";
+import { firstFieldErrors } from "@/lib/validation/field-errors";
 
 /** The body of every error a route handler returns. */
 export type HandlerErrorBody = {

@@ -46,13 +46,3 @@ export const roleChangeSchema = z.object({
   userId: z.string().min(1),
   role: z.enum(ROLES, { message: "Choose a role." }),
 });
-
-/** Field errors keyed by field name, first message only: one clear sentence per field. */
-export function firstFieldErrors(error: z.ZodError): Record<string, string> {
-  const result: Record<string, string> = {};
-  for (const issue of error.issues) {
-    const key = String(issue.path[0] ?? "form");
-    result[key] ??= issue.message;
-  }
-  return result;
-}
