@@ -49,6 +49,7 @@ export function ReportEvidence({ summary }: { summary: PartitionSummary }) {
             <LabelMixChart
               bars={labelMix.bars}
               categories={labelMix.categories}
+              ordered={summary.dataset.task === "regression"}
               label={`Stacked bars: the label mix of ${labelMix.shownShards} shards beside the pooled mix.`}
             />
           )}

@@ -69,3 +69,25 @@ export const CHART_THEME: ChartTheme = {
 export function shortenLabel(label: string, length = 14): string {
   return label.length > length ? `${label.slice(0, length - 1)}…` : label;
 }
+
+/** A colour `weight` of the way from `from` to `to` (both #rrggbb), mixed channel by channel. */
+export function mixColours(from: string, to: string, weight: number): string {
+  const channel = (hex: string, index: number) =>
+    parseInt(hex.slice(1 + index * 2, 3 + index * 2), 16);
+  const mixed = [0, 1, 2].map((index) =>
+    Math.round(channel(from, index) * (1 - weight) + channel(to, index) * weight)
+      .toString(16)
+      .padStart(2, "0"),
+  );
+  return `#${mixed.join("")}`;
+}
+
+/**
+ * Colours for ordered categories (the decile bins of a regression target): a light-to-dark ramp,
+ * so neighbouring bins look alike and the order reads at a glance.
+ */
+export function rampColours(count: number): string[] {
+  return Array.from({ length: count }, (_, index) =>
+    mixColours("#d4dcec", "#243056", count === 1 ? 1 : index / (count - 1)),
+  );
+}

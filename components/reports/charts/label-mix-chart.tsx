@@ -2,24 +2,29 @@
 
 import { ResponsiveBar } from "@nivo/bar";
 import type { LabelMixBar } from "@/lib/reports/report-view";
-import { CATEGORY_COLOURS, CHART_THEME, PALETTE, shortenLabel } from "./chart-style";
+import { CATEGORY_COLOURS, CHART_THEME, PALETTE, rampColours, shortenLabel } from "./chart-style";
 
 const BAR_HEIGHT = 22;
 
-/** Each shard's label mix as one 100 % bar, the pooled mix on top, categories in a shared legend. */
+/**
+ * Each shard's label mix as one 100 % bar, the pooled mix on top, categories in a shared legend.
+ * Ordered categories (a regression target's decile bins) get a ramp instead of distinct hues.
+ */
 export function LabelMixChart({
   bars,
   categories,
+  ordered = false,
   label,
 }: {
   bars: LabelMixBar[];
   categories: string[];
+  ordered?: boolean;
   label: string;
 }) {
   const keys = categories.map((_, index) => `c${index}`);
   const nameOf = new Map(bars.map((bar) => [bar.key, bar.name]));
-  const colourOf = (key: string | number) =>
-    CATEGORY_COLOURS[Number(String(key).slice(1)) % CATEGORY_COLOURS.length];
+  const palette = ordered ? rampColours(categories.length) : CATEGORY_COLOURS;
+  const colourOf = (key: string | number) => palette[Number(String(key).slice(1)) % palette.length];
   return (
     <div>
       <div style={{ height: 56 + bars.length * BAR_HEIGHT }} className="w-full">

@@ -4,7 +4,7 @@ import { ResponsiveHeatMap, type CustomLayerProps } from "@nivo/heatmap";
 import type { Verdict } from "@/lib/analysis/advise-plan";
 import { classifyRegimeCell, type RegimeMap } from "@/lib/reports/regime-map";
 import { formatFigure, VERDICT_LABELS } from "@/lib/reports/report-view";
-import { CHART_THEME, PALETTE } from "./chart-style";
+import { CHART_THEME, mixColours, PALETTE } from "./chart-style";
 
 /** How far past its threshold (in decades of ρ) a cell reaches its band's full colour. */
 const FULL_STRENGTH = 1;
@@ -14,17 +14,6 @@ const BAND_COLOURS: Record<Verdict, [string, string]> = {
   "large-minibatch": [PALETTE.indigoSoft, PALETTE.indigo],
   "no-clear-winner": [PALETTE.paperDeep, PALETTE.paperDeep],
 };
-
-function mixColours(from: string, to: string, weight: number): string {
-  const channel = (hex: string, index: number) =>
-    parseInt(hex.slice(1 + index * 2, 3 + index * 2), 16);
-  const mixed = [0, 1, 2].map((index) =>
-    Math.round(channel(from, index) * (1 - weight) + channel(to, index) * weight)
-      .toString(16)
-      .padStart(2, "0"),
-  );
-  return `#${mixed.join("")}`;
-}
 
 /**
  * A cell's colour says which verdict it stands for (the thresholds ρ ≤ ½ and ρ ≥ 2); its depth says

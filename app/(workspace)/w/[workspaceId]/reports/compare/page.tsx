@@ -124,6 +124,7 @@ export default async function CompareReportsPage({
                   <LabelMixChart
                     bars={mix.bars}
                     categories={mix.categories}
+                    ordered={report.summary.dataset.task === "regression"}
                     label={`Stacked bars: label mix of report ${index === 0 ? "A" : "B"}'s shards beside the pooled mix.`}
                   />
                 ) : (
