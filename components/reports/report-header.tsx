@@ -61,6 +61,15 @@ export function ReportHeader({
               </Link>
             </>
           ) : null}
+          {report.nextVersion ? (
+            <>
+              {" "}
+              · revised by{" "}
+              <Link href={`${base}/${report.nextVersion.id}`} className="underline">
+                version {report.nextVersion.version}
+              </Link>
+            </>
+          ) : null}
         </p>
         {latest.id !== report.id ? (
           <p className="no-print text-sm">
