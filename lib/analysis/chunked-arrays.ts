@@ -1,4 +1,5 @@
-const CHUNK_LENGTH = 1 << 16;
+/** Values per chunk: row r of a column read in chunks is at offset r % CHUNK_LENGTH of chunk ⌊r / CHUNK_LENGTH⌋. */
+export const CHUNK_LENGTH = 1 << 16;
 
 /**
  * A growable list of numbers kept in fixed-size typed-array chunks, so reading a file of unknown
@@ -21,12 +22,9 @@ export class ChunkedFloat64 {
     this.length++;
   }
 
-  /** Calls visit(value, index) for every value in order. */
-  forEach(visit: (value: number, index: number) => void): void {
-    let index = 0;
-    for (const chunk of [...this.chunks, this.current.subarray(0, this.used)]) {
-      for (let k = 0; k < chunk.length; k++) visit(chunk[k], index++);
-    }
+  /** The values as consecutive arrays, without copying (views; only the last may be shorter). */
+  views(): Float64Array[] {
+    return [...this.chunks, this.current.subarray(0, this.used)];
   }
 
   /** Copies all values into one array. */
@@ -64,6 +62,11 @@ export class ChunkedInt32 {
     }
     this.current[this.used++] = value;
     this.length++;
+  }
+
+  /** The values as consecutive arrays, without copying (views; only the last may be shorter). */
+  views(): Int32Array[] {
+    return [...this.chunks, this.current.subarray(0, this.used)];
   }
 
   toArray(): Int32Array {

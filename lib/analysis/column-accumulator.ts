@@ -1,6 +1,6 @@
 import { ChunkedFloat64, ChunkedInt32 } from "./chunked-arrays";
 import { AnalysisInputError } from "./errors";
-import { isMissingToken, parseNumberToken, trimToken } from "./tokens";
+import { isMissingToken, parseNumberToken, parseSimpleDecimal, trimToken } from "./tokens";
 
 /** Most distinct values a non-numeric feature may have and still be one-hot encoded (methods.md §1). */
 export const MAX_ONE_HOT_LEVELS = 32;
@@ -34,6 +34,16 @@ export class ColumnAccumulator {
 
   /** Adds one raw field of a kept row. */
   add(field: string, rowIndex: number): void {
+    if (this.numeric) {
+      // Most fields of a numeric column are plain decimals: take them without trimming or checking
+      // for missing-value tokens (a plain decimal is neither padded nor missing).
+      const value = parseSimpleDecimal(field);
+      if (value === value) {
+        this.values.push(value);
+        if (this.codes !== null) this.addLevel(field);
+        return;
+      }
+    }
     const token = trimToken(field);
     if (isMissingToken(token)) {
       this.missingCount++;
@@ -61,18 +71,7 @@ export class ColumnAccumulator {
     } else {
       this.values.push(Number.NaN);
     }
-    if (this.codes !== null) {
-      let code = this.levelCodes.get(token);
-      if (code === undefined) {
-        code = this.levelCodes.size;
-        if (code >= this.levelLimit) {
-          this.dropLevels();
-          return;
-        }
-        this.levelCodes.set(token, code);
-      }
-      this.codes.push(code);
-    }
+    if (this.codes !== null) this.addLevel(token);
   }
 
   /** True when the column can be one-hot encoded or used as class labels. */
@@ -87,8 +86,12 @@ export class ColumnAccumulator {
 
   /** Per-row codes into `levels`, -1 for missing. Only valid when `hasLevels`. */
   takeCodes(): Int32Array {
-    if (this.codes === null) throw new Error(`column ${this.name} has no level codes`);
-    return this.codes.toArray();
+    return this.requireCodes().toArray();
+  }
+
+  /** The per-row codes as consecutive arrays of CHUNK_LENGTH (views, not copies). */
+  codeViews(): Int32Array[] {
+    return this.requireCodes().views();
   }
 
   get distinctCount(): number {
@@ -98,6 +101,25 @@ export class ColumnAccumulator {
   release(): void {
     this.values.release();
     this.codes?.release();
+  }
+
+  private requireCodes(): ChunkedInt32 {
+    if (this.codes === null) throw new Error(`column ${this.name} has no level codes`);
+    return this.codes;
+  }
+
+  private addLevel(token: string): void {
+    const codes = this.codes as ChunkedInt32;
+    let code = this.levelCodes.get(token);
+    if (code === undefined) {
+      code = this.levelCodes.size;
+      if (code >= this.levelLimit) {
+        this.dropLevels();
+        return;
+      }
+      this.levelCodes.set(token, code);
+    }
+    codes.push(code);
   }
 
   private dropLevels(): void {

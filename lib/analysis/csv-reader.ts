@@ -1,4 +1,4 @@
-import type { Readable } from "node:stream";
+import { Readable } from "node:stream";
 import Papa from "papaparse";
 import { AnalysisInputError } from "./errors";
 import { trimToken } from "./tokens";
@@ -30,14 +30,15 @@ export function readCsvStream(
     let charactersRead = 0;
     let failed = false;
 
+    stream.setEncoding("utf8");
+    const text = relayWithReadAhead(stream);
     const fail = (error: unknown) => {
       if (failed) return;
       failed = true;
       stream.destroy();
+      text.destroy();
       reject(error);
     };
-
-    stream.setEncoding("utf8");
     stream.on("error", fail);
     if (handler.onProgress) {
       const onProgress = handler.onProgress;
@@ -47,7 +48,7 @@ export function readCsvStream(
       });
     }
 
-    Papa.parse<string[]>(stream, {
+    Papa.parse<string[]>(text, {
       header: false,
       skipEmptyLines: true,
       chunk(results, parser) {
@@ -101,6 +102,50 @@ export function readCsvStream(
       },
     });
   });
+}
+
+/** Text held back for papaparse before the source is paused (characters). */
+const MAX_PENDING_CHARACTERS = 1 << 22;
+
+/**
+ * Passes a text stream on one event-loop turn late, joining what arrived meanwhile into one string.
+ * Papaparse parses synchronously as text arrives; fed directly, a file stream starts its next read
+ * only after the parse of the previous chunk, and waits for it. Deferred, the next read runs in the
+ * background during the parse, and papaparse gets fewer, larger strings.
+ */
+function relayWithReadAhead(source: Readable): Readable {
+  const relay = new Readable({ read() {} });
+  let pending: string[] = [];
+  let pendingLength = 0;
+  let scheduled = false;
+  let ended = false;
+  const flush = () => {
+    scheduled = false;
+    if (pending.length > 0) {
+      const text = pending.length === 1 ? pending[0] : pending.join("");
+      pending = [];
+      pendingLength = 0;
+      relay.push(text);
+    }
+    if (ended) relay.push(null);
+    else if (source.isPaused()) source.resume();
+  };
+  const schedule = () => {
+    if (scheduled) return;
+    scheduled = true;
+    setImmediate(flush);
+  };
+  source.on("data", (chunk: string) => {
+    pending.push(chunk);
+    pendingLength += chunk.length;
+    if (pendingLength >= MAX_PENDING_CHARACTERS) source.pause();
+    schedule();
+  });
+  source.on("end", () => {
+    ended = true;
+    schedule();
+  });
+  return relay;
 }
 
 function readHeader(fields: string[], fileName: string): string[] {

@@ -1,8 +1,9 @@
-import { createMatrix } from "../math/matrix";
-import { measureMoments } from "../math/moments";
+import { createMatrix, type Matrix } from "../math/matrix";
+import { measureMoments, measureMomentsOfChunks } from "../math/moments";
 import { quantileSorted } from "../math/quantile";
 import { CompensatedSum } from "../math/summation";
 import { compareCodePoints } from "./code-point-order";
+import { CHUNK_LENGTH } from "./chunked-arrays";
 import type { ColumnAccumulator } from "./column-accumulator";
 import { MAX_ONE_HOT_LEVELS } from "./column-accumulator";
 import type { Design, OmittedColumn, Task } from "./design";
@@ -20,7 +21,6 @@ type EncodedColumn =
       kind: "numeric";
       source: ColumnAccumulator;
       name: string;
-      fill: number;
       mean: number;
       std: number;
     }
@@ -64,12 +64,7 @@ export function encodeDesign(raw: RawDataset, requestedTask: Task | undefined): 
   const omittedColumns = columns.omitted;
   const width = columns.kept.length + 1;
   const x = createMatrix(rows, width);
-  columns.kept.forEach((column, j) => {
-    writeColumn(column, j, width, position, x.data);
-    // Free each raw column as soon as its last encoded column is written, to bound peak memory.
-    if (columns.kept[j + 1]?.source !== column.source) column.source.release();
-  });
-  for (let row = 0; row < rows; row++) x.data[row * width + width - 1] = 1;
+  writeDesign(columns.kept, position, x);
   for (const feature of raw.features) feature.release();
   if (columns.kept.length === 0) {
     warnings.push("no usable feature columns: the model has only the bias");
@@ -208,18 +203,14 @@ function planFeatureColumns(
       continue;
     }
     if (source.numeric) {
-      const values = source.values.toArray();
-      const present = new CompensatedSum();
-      for (let row = 0; row < rows; row++)
-        if (values[row] === values[row]) present.add(values[row]);
-      const fill = present.value / (rows - source.missingCount);
-      for (let row = 0; row < rows; row++) if (values[row] !== values[row]) values[row] = fill;
-      const { mean, std } = measureMoments(values);
+      const chunks = source.values.views();
+      if (source.missingCount > 0) imputeMean(chunks, rows - source.missingCount);
+      const { mean, std } = measureMomentsOfChunks(chunks);
       if (std < MIN_FEATURE_STD) {
         omitted.push({ column: source.name, reason: "constant" });
         continue;
       }
-      kept.push({ kind: "numeric", source, name: source.name, fill, mean, std });
+      kept.push({ kind: "numeric", source, name: source.name, mean, std });
       continue;
     }
     if (!source.hasLevels) {
@@ -243,8 +234,9 @@ function planFeatureColumns(
     }
     const levels = source.levels;
     const counts = new Float64Array(levels.length);
-    const codes = source.takeCodes();
-    for (let row = 0; row < rows; row++) if (codes[row] >= 0) counts[codes[row]]++;
+    for (const codes of source.codeViews()) {
+      for (let row = 0; row < codes.length; row++) if (codes[row] >= 0) counts[codes[row]]++;
+    }
     for (const code of sortedOrder(levels)) {
       const mean = counts[code] / rows;
       const std = Math.sqrt(mean * (1 - mean));
@@ -259,27 +251,75 @@ function planFeatureColumns(
   return { kept, omitted };
 }
 
-function writeColumn(
-  column: EncodedColumn,
-  j: number,
-  width: number,
-  position: Int32Array,
-  out: Float64Array,
-): void {
-  const inverseStd = 1 / column.std;
-  if (column.kind === "numeric") {
-    const values = column.source.values.toArray();
-    for (let row = 0; row < values.length; row++) {
-      const value = values[row] === values[row] ? values[row] : column.fill;
-      out[position[row] * width + j] = (value - column.mean) * inverseStd;
-    }
-    return;
+/**
+ * Replaces the missing values (NaN) of a numeric column in place by the mean of its present values
+ * (methods.md §1).
+ */
+function imputeMean(chunks: Float64Array[], presentCount: number): void {
+  const present = new CompensatedSum();
+  for (const values of chunks) {
+    for (let row = 0; row < values.length; row++)
+      if (values[row] === values[row]) present.add(values[row]);
   }
-  const codes = column.source.takeCodes();
-  const high = (1 - column.mean) * inverseStd;
-  const low = -column.mean * inverseStd;
-  for (let row = 0; row < codes.length; row++) {
-    out[position[row] * width + j] = codes[row] === column.code ? high : low;
+  const fill = present.value / presentCount;
+  for (const values of chunks) {
+    for (let row = 0; row < values.length; row++)
+      if (values[row] !== values[row]) values[row] = fill;
+  }
+}
+
+/** Stands in for a raw chunk already written (a subarray would keep the chunk's memory alive). */
+const EMPTY_CHUNK = new Float64Array(0);
+
+/** Rows transposed together: their design rows (≤ 512 × width doubles) stay in cache meanwhile. */
+const TRANSPOSE_ROWS = 512;
+
+/**
+ * Writes the standardized columns and the bias into the design, each kept row at its shard-ordered
+ * `position`. The raw columns are stored column by column in chunks and the design row by row, so
+ * rows are handled in small blocks, all columns per block, which keeps the design rows being
+ * written in cache; each raw chunk is dropped once written, so the raw copy shrinks as the design
+ * fills.
+ */
+function writeDesign(columns: EncodedColumn[], position: Int32Array, x: Matrix): void {
+  const width = x.cols;
+  const out = x.data;
+  const chunksOfSource = new Map<ColumnAccumulator, Array<Float64Array | Int32Array>>();
+  const sourceChunks = columns.map((column) => {
+    let chunks = chunksOfSource.get(column.source);
+    if (chunks === undefined) {
+      chunks = column.kind === "numeric" ? column.source.values.views() : column.source.codeViews();
+      chunksOfSource.set(column.source, chunks);
+      column.source.release();
+    }
+    return chunks;
+  });
+  const scales = columns.map((column) => 1 / column.std);
+  for (let chunk = 0; chunk * CHUNK_LENGTH < x.rows; chunk++) {
+    const chunkStart = chunk * CHUNK_LENGTH;
+    const chunkEnd = Math.min(x.rows, chunkStart + CHUNK_LENGTH);
+    for (let blockStart = chunkStart; blockStart < chunkEnd; blockStart += TRANSPOSE_ROWS) {
+      const blockEnd = Math.min(chunkEnd, blockStart + TRANSPOSE_ROWS);
+      for (let j = 0; j < columns.length; j++) {
+        const column = columns[j];
+        const inverseStd = scales[j];
+        if (column.kind === "numeric") {
+          const values = sourceChunks[j][chunk] as Float64Array;
+          for (let row = blockStart; row < blockEnd; row++) {
+            out[position[row] * width + j] = (values[row - chunkStart] - column.mean) * inverseStd;
+          }
+        } else {
+          const codes = sourceChunks[j][chunk] as Int32Array;
+          const high = (1 - column.mean) * inverseStd;
+          const low = -column.mean * inverseStd;
+          for (let row = blockStart; row < blockEnd; row++) {
+            out[position[row] * width + j] = codes[row - chunkStart] === column.code ? high : low;
+          }
+        }
+      }
+      for (let row = blockStart; row < blockEnd; row++) out[position[row] * width + width - 1] = 1;
+    }
+    for (const chunks of chunksOfSource.values()) chunks[chunk] = EMPTY_CHUNK;
   }
 }
 

@@ -2,6 +2,7 @@ import { describe, expect, it } from "vitest";
 import { AnalysisInputError } from "@/lib/analysis";
 import { compareCodePoints } from "@/lib/analysis/code-point-order";
 import { binIntoDeciles } from "@/lib/analysis/encode-design";
+import { parseSimpleDecimal } from "@/lib/analysis/tokens";
 import { analyzeText } from "./support/analyze-text";
 import { designFromText } from "./support/design-from-text";
 import { runPythonJson } from "./support/run-python";
@@ -155,5 +156,47 @@ print(json.dumps([int(np.where(u==v)[0][0]) for v in b]))`,
     const { categories, count } = binIntoDeciles(values);
     expect(Array.from(categories)).toEqual(reference);
     expect(count).toBe(new Set(reference).size);
+  });
+});
+
+describe("parseSimpleDecimal", () => {
+  it("gives exactly Number(token) on plain decimals (ECMAScript's correctly rounded conversion)", () => {
+    let state = 12345;
+    const random = () => {
+      state = (state * 1103515245 + 12345) % 2147483648;
+      return state / 2147483648;
+    };
+    const tokens = ["0", "-0", "+7", "007", "5.", ".5", "-.25", "123456789012345", "0.1", "-2.675"];
+    for (let k = 0; k < 20_000; k++) {
+      const digits = 1 + Math.floor(random() * 15);
+      let token = random() < 0.3 ? "-" : "";
+      const point = Math.floor(random() * (digits + 1));
+      for (let d = 0; d < digits; d++) {
+        if (d === point) token += ".";
+        token += String(Math.floor(random() * 10));
+      }
+      tokens.push(token);
+    }
+    for (const token of tokens)
+      expect(Object.is(parseSimpleDecimal(token), Number(token))).toBe(true);
+  });
+
+  it("declines everything else, which the general rules then handle", () => {
+    const declined = [
+      "",
+      "-",
+      ".",
+      "+.",
+      "1e5",
+      " 7",
+      "7 ",
+      "0x1F",
+      "1,5",
+      "1.2.3",
+      "NaN",
+      "Infinity",
+    ];
+    declined.push("1234567890123456"); // 16 digits: beyond the exact-integer fast path
+    for (const token of declined) expect(parseSimpleDecimal(token)).toBeNaN();
   });
 });

@@ -7,6 +7,7 @@ import {
   symmetrizeFromUpper,
 } from "@/lib/math/gram";
 import { createMatrix, matrixFromValues } from "@/lib/math/matrix";
+import { measureMoments, measureMomentsOfChunks } from "@/lib/math/moments";
 import { quantileSorted } from "@/lib/math/quantile";
 import { maximizeOnInterval } from "@/lib/math/scalar-search";
 import { softmaxInPlace } from "@/lib/math/softmax";
@@ -134,6 +135,32 @@ print(json.dumps((X.T@np.diag(d["a"])@X).ravel().tolist()))`,
   it("finds λ_max of [[2, 1], [1, 2]] = 3 and of the zero matrix = 0 (hand-computed)", () => {
     expect(largestEigenvalueSymmetric(matrixFromValues(2, 2, [2, 1, 1, 2]))).toBeCloseTo(3, 12);
     expect(largestEigenvalueSymmetric(createMatrix(3, 3))).toBe(0);
+  });
+});
+
+describe("measureMoments", () => {
+  it("matches NumPy's mean and std, whole or in chunks, and the doc example by hand", () => {
+    const values = seededValues(5000, 23).map((value) => 1e6 + 3 * value);
+    // Outside reference: numpy.mean and numpy.std (population, ddof = 0).
+    const reference = runPythonJson<{ mean: number; std: number }>(
+      `import json,sys
+import numpy as np
+x=np.array(json.load(sys.stdin))
+print(json.dumps({"mean":float(x.mean()),"std":float(x.std())}))`,
+      Array.from(values),
+    );
+    const chunked = measureMomentsOfChunks([
+      values.subarray(0, 1024),
+      values.subarray(1024, 3000),
+      values.subarray(3000),
+    ]);
+    for (const moments of [measureMoments(values), chunked]) {
+      expect(moments.mean).toBeCloseTo(reference.mean, 8);
+      expect(Math.abs(moments.std - reference.std) / reference.std).toBeLessThan(1e-10);
+    }
+    expect(
+      measureMomentsOfChunks([Float64Array.of(2, 4, 4, 4), Float64Array.of(5, 5, 7, 9)]),
+    ).toEqual({ mean: 5, std: 2 });
   });
 });
 
