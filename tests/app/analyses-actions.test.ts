@@ -160,8 +160,7 @@ describe("startAnalysis: what it accepts", () => {
       options: { ...PENGUIN_OPTIONS, lambda: -1 },
     });
     expect(badLambda).toMatchObject({ ok: false, status: 422 });
-    // failWith keys field errors by the first path segment, so option errors land on "options".
-    expect(!badLambda.ok && badLambda.fieldErrors.options).toMatch(/λ must be positive/);
+    expect(!badLambda.ok && badLambda.fieldErrors["options.lambda"]).toMatch(/λ must be positive/);
     expect(await analysesIn(team.workspaceId)).toEqual([]);
   });
 

@@ -25,7 +25,8 @@ export async function storeInput(
 ): Promise<StoredInput> {
   const objectKey = `workspaces/${workspace.workspaceId}/files/${randomUUID()}/${name}`;
   const bytes = Buffer.from(text, "utf8");
-  await putObject({ key: objectKey, body: bytes, contentType: "text/csv" });
+  const contentType = kind === "weights" ? "application/json" : "text/csv";
+  await putObject({ key: objectKey, body: bytes, contentType });
   const [row] = await db()
     .insert(dataFiles)
     .values({
@@ -34,7 +35,7 @@ export async function storeInput(
       name,
       objectKey,
       sizeBytes: bytes.length,
-      contentType: kind === "weights" ? "application/json" : "text/csv",
+      contentType,
       uploadedBy: workspace.uploadedBy,
     })
     .returning({ id: dataFiles.id });
