@@ -148,7 +148,8 @@ function relayWithReadAhead(source: Readable): Readable {
   return relay;
 }
 
-function readHeader(fields: string[], fileName: string): string[] {
+/** The header row's column names, trimmed; empty or repeated names are input errors. */
+export function readHeader(fields: string[], fileName: string): string[] {
   const columns = fields.map(trimToken);
   const seen = new Set<string>();
   columns.forEach((column, index) => {

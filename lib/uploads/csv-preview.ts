@@ -1,5 +1,6 @@
 import Papa from "papaparse";
 import type { DataFilePreview } from "@/db/schema/analyses";
+import { readHeader } from "@/lib/analysis/csv-reader";
 import { AnalysisInputError } from "@/lib/analysis/errors";
 import { isMissingToken, parseNumberToken, trimToken } from "@/lib/analysis/tokens";
 
@@ -133,28 +134,6 @@ export function readCsvHead({ bytes, totalBytes, fileName }: CsvPreviewSource): 
     });
   }
   return { header, rows, truncated };
-}
-
-function readHeader(fields: string[], fileName: string): string[] {
-  const columns = fields.map(trimToken);
-  const seen = new Set<string>();
-  columns.forEach((column, index) => {
-    if (column === "") {
-      throw new AnalysisInputError(`header column ${index + 1} has no name`, {
-        file: fileName,
-        expected: "a name for every column in the first row",
-      });
-    }
-    if (seen.has(column)) {
-      throw new AnalysisInputError("the header names this column twice", {
-        file: fileName,
-        column,
-        expected: "unique column names",
-      });
-    }
-    seen.add(column);
-  });
-  return columns;
 }
 
 /** A preview of a parsed CSV head: detected columns over every row read, and the first rows. */
