@@ -3,6 +3,7 @@ import {
   doublePrecision,
   index,
   integer,
+  json,
   jsonb,
   pgEnum,
   pgTable,
@@ -136,7 +137,9 @@ export const reports = pgTable(
     previousReportId: text("previous_report_id"),
     title: text("title").notNull(),
     verdict: text("verdict").$type<PartitionSummary["advice"]["verdict"]>().notNull(),
-    summary: jsonb("summary").$type<PartitionSummary>().notNull(),
+    // json, not jsonb: PostgreSQL keeps json text as written, so the exported summary has the CLI's
+    // key order byte for byte (jsonb would reorder keys).
+    summary: json("summary").$type<PartitionSummary>().notNull(),
     parameters: jsonb("parameters").$type<AnalysisOptionsInput>().notNull(),
     inputs: jsonb("inputs").$type<ReportInput[]>().notNull(),
     engineVersion: text("engine_version").notNull(),

@@ -10,7 +10,7 @@ import type { PartitionSummary } from "@/lib/analysis";
 import type { SessionUser } from "@/lib/auth/session";
 import { createAccount, createTeam } from "@/tests/support/accounts";
 import { actAs } from "@/tests/support/fake-session";
-import { analyzePenguinsWithCli, insertReport } from "@/tests/support/report-fixtures";
+import { insertReport, printPenguinsSummaryWithCli } from "@/tests/support/report-fixtures";
 
 afterAll(closeDb);
 
@@ -23,13 +23,15 @@ function call(handler: Handler, workspaceId: string, reportId: string): Promise<
   return handler(request, { params: Promise.resolve({ workspaceId, reportId }) });
 }
 
+let cliOutput: string;
 let cliSummary: PartitionSummary;
 let team: Awaited<ReturnType<typeof createTeam>>;
 let reportId: string;
 
 beforeAll(async () => {
   // The CLI as a child process on open data: penguins (vega-datasets, BSD-3), shards = island.
-  cliSummary = await analyzePenguinsWithCli();
+  cliOutput = await printPenguinsSummaryWithCli();
+  cliSummary = JSON.parse(cliOutput) as PartitionSummary;
   team = await createTeam();
   ({ reportId } = await insertReport({
     workspaceId: team.workspaceId,
@@ -48,8 +50,10 @@ describe("GET …/reports/[reportId]/summary.json", () => {
     expect(response.headers.get("content-disposition")).toBe(
       'attachment; filename="penguins-by-island-v1.summary.json"',
     );
-    const exported = (await response.json()) as PartitionSummary;
-    expect(exported).toEqual(cliSummary);
+    // Byte for byte: the same keys in the same order, the same numbers, the same layout.
+    const text = await response.text();
+    expect(text).toBe(cliOutput);
+    const exported = JSON.parse(text) as PartitionSummary;
     // The island split of methods.md's test data: three shards in code-point order.
     expect(exported.shards.map((shard) => shard.id)).toEqual(["Biscoe", "Dream", "Torgersen"]);
   });

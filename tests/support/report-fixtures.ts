@@ -1,5 +1,5 @@
 import { execFile } from "node:child_process";
-import { mkdtempSync, writeFileSync } from "node:fs";
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { promisify } from "node:util";
@@ -17,28 +17,37 @@ const root = path.resolve(import.meta.dirname, "../..");
  * Island, run as a child process exactly as a user or pipeline would, plus any extra flags.
  */
 export async function analyzePenguinsWithCli(extraFlags: string[] = []): Promise<PartitionSummary> {
+  return JSON.parse(await printPenguinsSummaryWithCli(extraFlags)) as PartitionSummary;
+}
+
+/** The CLI's JSON output, as text, for penguins split by island (see analyzePenguinsWithCli). */
+export async function printPenguinsSummaryWithCli(extraFlags: string[] = []): Promise<string> {
   const directory = mkdtempSync(path.join(tmpdir(), "partita-report-fixture-"));
   const data = path.join(directory, "penguins.csv");
   writeFileSync(data, loadPenguinsCsv().csv);
-  const { stdout } = await run(
-    process.execPath,
-    [
-      "--import",
-      "tsx",
-      "scripts/analyze.ts",
-      "--data",
-      data,
-      "--label",
-      "Species",
-      "--shard-column",
-      "Island",
-      "--id-column",
-      "row",
-      ...extraFlags,
-    ],
-    { cwd: root, env: { ...process.env, DEBUG: "" }, maxBuffer: 64 * 1024 * 1024 },
-  );
-  return JSON.parse(stdout) as PartitionSummary;
+  try {
+    const { stdout } = await run(
+      process.execPath,
+      [
+        "--import",
+        "tsx",
+        "scripts/analyze.ts",
+        "--data",
+        data,
+        "--label",
+        "Species",
+        "--shard-column",
+        "Island",
+        "--id-column",
+        "row",
+        ...extraFlags,
+      ],
+      { cwd: root, env: { ...process.env, DEBUG: "" }, maxBuffer: 64 * 1024 * 1024 },
+    );
+    return stdout;
+  } finally {
+    rmSync(directory, { recursive: true, force: true });
+  }
 }
 
 /**

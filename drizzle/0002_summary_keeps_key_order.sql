@@ -1,0 +1,1 @@
+ALTER TABLE "reports" ALTER COLUMN "summary" SET DATA TYPE json;
