@@ -7,7 +7,6 @@ import {
   type ReferenceWeights,
 } from "../validation/analysis-options";
 import { largestEigenvalueSymmetric } from "../math/eigen";
-import { accumulateGramUpper, symmetrizeFromUpper } from "../math/gram";
 import { matrixFromValues } from "../math/matrix";
 import { norm } from "../math/summation";
 import { advisePlan } from "./advise-plan";
@@ -25,6 +24,7 @@ import { measureLabelSkew } from "./measure-label-skew";
 import { measureQuantitySkew } from "./measure-quantity-skew";
 import { countWeightRows } from "./objective";
 import { readPartitionMap } from "./partition-map";
+import { countAvailableThreads, PassPool, type PassResult } from "./pass-pool";
 import { readDataset } from "./read-dataset";
 import type { AnalysisProgress, PartitionSummary } from "./summary";
 import { ENGINE_VERSION } from "./version";
@@ -42,7 +42,19 @@ export interface PartitionInput {
   /** Name of the file the given reference weights came from, for messages. */
   referenceName?: string;
   options: AnalysisOptionsInput;
+  /**
+   * Threads sharing the passes over the rows, the calling thread included (1: no worker threads).
+   * Default: every core (at most 8) when the data is large enough to gain — at least 16 MB by
+   * `dataBytes`, or, when the size is unknown, at least 2²⁶ multiply-adds per pass. The summary is
+   * the same bit for bit whatever the number.
+   */
+  threads?: number;
 }
+
+/** Data files from this size on are analysed with worker threads by default. */
+const PARALLEL_MIN_BYTES = 16 * 2 ** 20;
+/** Without a file size: rows × width × weight rows from which worker threads pay for their start. */
+const PARALLEL_MIN_WORK = 2 ** 26;
 
 /** Points along the path W_t = t·W* where ζ² is measured (methods.md §3). */
 export const PATH_POINTS = [0, 0.25, 0.5, 0.75, 1];
@@ -60,7 +72,6 @@ export async function analyzePartition(
   onProgress: (progress: AnalysisProgress) => void = () => {},
 ): Promise<PartitionSummary> {
   const options = parseOptions(input.options);
-  const dataName = input.dataName ?? "dataset";
   if ((input.partition === undefined) === (options.shardColumn === undefined)) {
     throw new AnalysisInputError(
       input.partition
@@ -70,6 +81,28 @@ export async function analyzePartition(
     );
   }
 
+  // Worker threads take about a second to start: when the number is known (asked for, or by the
+  // file's size), they start now and load while the data is read.
+  const threadsNow =
+    input.threads ?? (input.dataBytes === undefined ? null : countThreadsForBytes(input.dataBytes));
+  let pool = threadsNow === null ? null : new PassPool(threadsNow);
+  try {
+    return await analyzeWithPool(input, options, onProgress, (design) => {
+      pool ??= new PassPool(countThreadsForDesign(design));
+      return pool;
+    });
+  } finally {
+    await pool?.close();
+  }
+}
+
+async function analyzeWithPool(
+  input: PartitionInput,
+  options: AnalysisOptions,
+  onProgress: (progress: AnalysisProgress) => void,
+  openPool: (design: Design) => PassPool,
+): Promise<PartitionSummary> {
+  const dataName = input.dataName ?? "dataset";
   onProgress({ stage: "reading", fraction: 0 });
   const partition = input.partition
     ? await readPartitionMap(input.partition, input.partitionName ?? "partition map", {
@@ -96,7 +129,8 @@ export async function analyzePartition(
       expected: `at most the number of shards (${shardCount})`,
     });
   }
-  const gram = computeGram(design);
+  const passes = openPool(design).share(design, design.shardOffsets);
+  const gram = await passes.computeGram();
   const curvature = largestEigenvalueSymmetric(
     matrixFromValues(design.x.cols, design.x.cols, gram),
   );
@@ -105,26 +139,30 @@ export async function analyzePartition(
   onProgress({ stage: "encoding", fraction: 1 });
 
   onProgress({ stage: "fitting", fraction: 0 });
-  const fitted = fitReferenceModel(design, gram, options.lambda, (fraction) =>
+  const fitted = await fitReferenceModel(design, passes, gram, options.lambda, (fraction) =>
     onProgress({ stage: "fitting", fraction }),
   );
   onProgress({ stage: "fitting", fraction: 1 });
 
   onProgress({ stage: "measuring", fraction: 0 });
   const reference = chooseReference(options.reference, design, fitted.weights, input.referenceName);
-  const measure = (weights: Float64Array, withNoise: boolean) =>
-    measureAtPoint(design, weights, options.lambda, {
+  const summarize = (weights: Float64Array, pass: PassResult, withNoise: boolean) =>
+    measureAtPoint(design, weights, options.lambda, pass.shards, {
       withNoise,
       vanishingGradient: fitted.tolerance,
     });
-  const atReference = measure(reference.weights, true);
-  const path: PointMeasurement[] = PATH_POINTS.map((t, index) => {
+  const measure = async (weights: Float64Array, withNoise: boolean) =>
+    summarize(weights, await passes.evaluate(weights, withNoise), withNoise);
+  const atReference = await measure(reference.weights, true);
+  const path: PointMeasurement[] = [];
+  for (const [index, t] of PATH_POINTS.entries()) {
     onProgress({ stage: "measuring", fraction: (index + 1) / (PATH_POINTS.length + 1) });
-    return measure(
-      fitted.weights.map((value) => t * value),
-      false,
-    );
-  });
+    const weights = fitted.weights.map((value) => t * value);
+    // Passes already made at the same point: the fit's first, at W = 0, and the reference's at W*.
+    if (t === 0) path.push(summarize(weights, fitted.atZero, false));
+    else if (t === 1 && reference.kind === "optimum") path.push(atReference);
+    else path.push(await measure(weights, false));
+  }
   const atOptimum = path[path.length - 1];
   const labelCounts = countLabelsPerShard(design);
   const labelSkew = measureLabelSkew(labelCounts);
@@ -244,14 +282,15 @@ function parseOptions(options: AnalysisOptionsInput): AnalysisOptions {
   });
 }
 
-/** G = X̃ᵀX̃/N, (d + 1) × (d + 1). */
-export function computeGram(design: Design): Float64Array {
-  const width = design.x.cols;
-  const gram = new Float64Array(width * width);
-  accumulateGramUpper(design.x, 0, design.x.rows, gram);
-  symmetrizeFromUpper(gram, width);
-  for (let k = 0; k < gram.length; k++) gram[k] /= design.x.rows;
-  return gram;
+/** Threads for a data file of this size. */
+function countThreadsForBytes(dataBytes: number): number {
+  return dataBytes >= PARALLEL_MIN_BYTES ? countAvailableThreads() : 1;
+}
+
+/** Threads for a design read from a stream of unknown size: by the work in one pass. */
+function countThreadsForDesign(design: Design): number {
+  const work = design.x.rows * design.x.cols * countWeightRows(design);
+  return work >= PARALLEL_MIN_WORK ? countAvailableThreads() : 1;
 }
 
 function countLabelsPerShard(design: Design): number[][] {

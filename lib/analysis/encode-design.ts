@@ -63,7 +63,8 @@ export function encodeDesign(raw: RawDataset, requestedTask: Task | undefined): 
   const columns = planFeatureColumns(raw, warnings);
   const omittedColumns = columns.omitted;
   const width = columns.kept.length + 1;
-  const x = createMatrix(rows, width);
+  // In shared memory, so the pass threads read it without a copy.
+  const x = createMatrix(rows, width, { shared: true });
   writeDesign(columns.kept, position, x);
   for (const feature of raw.features) feature.release();
   if (columns.kept.length === 0) {

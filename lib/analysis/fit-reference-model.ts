@@ -3,8 +3,9 @@ import { minimizeLbfgs } from "../math/lbfgs";
 import { createMatrix, matrixFromValues } from "../math/matrix";
 import { norm } from "../math/summation";
 import type { Design } from "./design";
-import { countWeightRows, evaluateObjective } from "./objective";
-import { computeSoftmaxHessian } from "./softmax-hessian";
+import { countWeightRows, finishPass, type ObjectiveValue } from "./objective";
+import type { PassData } from "./objective-pass";
+import type { PassResult, SharedDesign } from "./pass-pool";
 
 /** ‖∇F(W*)‖ ≤ this × max(1, ‖∇F(0)‖) (methods.md §2). */
 export const OPTIMUM_RELATIVE_TOLERANCE = 1e-8;
@@ -33,6 +34,8 @@ export interface FittedModel {
   iterations: number;
   /** Full-data objective evaluations (passes over the rows). */
   evaluations: number;
+  /** The pass at W = 0 the tolerance came from, per shard (for the path point t = 0). */
+  atZero: PassResult;
 }
 
 /**
@@ -52,16 +55,18 @@ export interface FittedModel {
  * zero: the minimum-norm optimum (methods.md §2); a final re-centring removes rounding drift.
  * `gram` is G (width × width), used by the least-squares solve.
  */
-export function fitReferenceModel(
+export async function fitReferenceModel(
   design: Design,
+  passes: SharedDesign,
   gram: Float64Array,
   lambda: number,
   onProgress?: (fraction: number) => void,
-): FittedModel {
+): Promise<FittedModel> {
   const width = design.x.cols;
   const weightRows = countWeightRows(design);
   const start = new Float64Array(weightRows * width);
-  const atZero = evaluateObjective(design, start, lambda);
+  const zeroPass = await passes.evaluate(start, false);
+  const atZero = finishPass(zeroPass.pooled, start, width, lambda, false);
   const tolerance = OPTIMUM_RELATIVE_TOLERANCE * Math.max(1, norm(atZero.gradient));
   const reportGradient = (gradientNorm: number) => {
     const span = Math.log(Math.max(norm(atZero.gradient), tolerance * 10) / tolerance);
@@ -71,25 +76,32 @@ export function fitReferenceModel(
   };
 
   if (design.classes === null) {
-    return solveLeastSquares(design, gram, lambda, atZero.gradient, tolerance);
+    const solved = await solveLeastSquares(passes, gram, lambda, atZero.gradient, tolerance);
+    return { ...solved, atZero: zeroPass };
   }
 
   const stride = Math.max(1, Math.floor(design.x.rows / SAMPLE_ROWS));
-  const sample = stride > 1 ? subsampleDesign(design, stride) : design;
-  const rough = minimizeLbfgs(
-    (weights, gradient) => {
-      const result = evaluateObjective(sample, weights, lambda);
+  const sample =
+    stride > 1
+      ? passes.pool.share(
+          subsampleRows(design, stride),
+          Int32Array.of(0, Math.ceil(design.x.rows / stride)),
+        )
+      : passes;
+  const rough = await minimizeLbfgs(
+    async (weights, gradient) => {
+      const result = await evaluatePooled(sample, weights, lambda);
       gradient.set(result.gradient);
       return result.value;
     },
     start,
     { gradientTolerance: tolerance * WARM_START_TOLERANCE_FACTOR, maxIterations: 2000 },
   );
-  const precondition = createNewtonPreconditioner(sample, rough.x, lambda);
+  const precondition = await createNewtonPreconditioner(sample, rough.x, lambda);
   let evaluations = 1;
-  const result = minimizeLbfgs(
-    (weights, gradient) => {
-      const evaluation = evaluateObjective(design, weights, lambda);
+  const result = await minimizeLbfgs(
+    async (weights, gradient) => {
+      const evaluation = await evaluatePooled(passes, weights, lambda);
       evaluations++;
       gradient.set(evaluation.gradient);
       return evaluation.value;
@@ -112,7 +124,18 @@ export function fitReferenceModel(
     converged: result.converged,
     iterations: result.iterations + (sampleIsAllRows ? rough.iterations : 0),
     evaluations: evaluations + (sampleIsAllRows ? rough.evaluations : 0),
+    atZero: zeroPass,
   };
+}
+
+/** F and ∇F over all rows of a shared design, in one pass. */
+async function evaluatePooled(
+  passes: SharedDesign,
+  weights: Float64Array,
+  lambda: number,
+): Promise<ObjectiveValue> {
+  const { pooled } = await passes.evaluate(weights, false);
+  return finishPass(pooled, weights, passes.x.cols, lambda, false);
 }
 
 /**
@@ -120,14 +143,14 @@ export function fitReferenceModel(
  * The bias term makes the direction that shifts every intercept alike (flat for softmax) curved;
  * ρ = 1e-10 × the largest diagonal entry keeps the factorization clear of rounding.
  */
-function createNewtonPreconditioner(
-  sample: Design,
+async function createNewtonPreconditioner(
+  sample: SharedDesign,
   weights: Float64Array,
   lambda: number,
-): (vector: Float64Array) => void {
+): Promise<(vector: Float64Array) => void> {
   const width = sample.x.cols;
   const size = weights.length;
-  const hessian = computeSoftmaxHessian(sample, weights, lambda);
+  const hessian = await sample.computeSoftmaxHessian(weights, lambda);
   let largestDiagonal = 0;
   for (let k = 0; k < size; k++) largestDiagonal = Math.max(largestDiagonal, hessian[k * size + k]);
   const floor = PRECONDITIONER_FLOOR * largestDiagonal;
@@ -139,14 +162,14 @@ function createNewtonPreconditioner(
   return (vector) => choleskySolveInPlace(lower, vector);
 }
 
-function solveLeastSquares(
-  design: Design,
+async function solveLeastSquares(
+  passes: SharedDesign,
   gram: Float64Array,
   lambda: number,
   gradientAtZero: Float64Array,
   tolerance: number,
-): FittedModel {
-  const width = design.x.cols;
+): Promise<Omit<FittedModel, "atZero">> {
+  const width = passes.x.cols;
   const system = matrixFromValues(width, width, Float64Array.from(gram));
   for (let j = 0; j < width - 1; j++) system.data[j * width + j] += lambda;
   const lower = createMatrix(width, width);
@@ -154,13 +177,13 @@ function solveLeastSquares(
   // ∇F(0) = −X̃ᵀy/N, so W* = −(G + Λ)⁻¹ ∇F(0); refine with Newton steps on the true gradient.
   const weights = gradientAtZero.map((value) => -value);
   choleskySolveInPlace(lower, weights);
-  let evaluation = evaluateObjective(design, weights, lambda);
+  let evaluation = await evaluatePooled(passes, weights, lambda);
   let evaluations = 2;
   for (let step = 0; step < 5 && norm(evaluation.gradient) > tolerance; step++) {
     const correction = Float64Array.from(evaluation.gradient);
     choleskySolveInPlace(lower, correction);
     for (let k = 0; k < width; k++) weights[k] -= correction[k];
-    evaluation = evaluateObjective(design, weights, lambda);
+    evaluation = await evaluatePooled(passes, weights, lambda);
     evaluations++;
   }
   const gradientNorm = norm(evaluation.gradient);
@@ -182,15 +205,18 @@ function centerIntercepts(weights: Float64Array, width: number, classCount: numb
   for (let c = 0; c < classCount; c++) weights[c * width + width - 1] -= mean;
 }
 
-/** Every `stride`-th row (rows are grouped by shard, so each shard is represented in proportion). */
-function subsampleDesign(design: Design, stride: number): Design {
+/**
+ * Every `stride`-th row, in shared memory (rows are grouped by shard, so each shard is represented
+ * in proportion).
+ */
+function subsampleRows(design: Design, stride: number): PassData {
   const width = design.x.cols;
   const rows = Math.ceil(design.x.rows / stride);
-  const x = createMatrix(rows, width);
+  const x = createMatrix(rows, width, { shared: true });
   const labels = design.labels ? new Int32Array(rows) : null;
   for (let k = 0; k < rows; k++) {
     x.data.set(design.x.data.subarray(k * stride * width, (k * stride + 1) * width), k * width);
     if (labels && design.labels) labels[k] = design.labels[k * stride];
   }
-  return { ...design, x, labels };
+  return { x, labels, targets: null };
 }

@@ -1,6 +1,7 @@
 import { dot, squaredNorm } from "../math/summation";
 import type { Design } from "./design";
-import { evaluateObjective } from "./objective";
+import { finishPass } from "./objective";
+import type { PassTotals } from "./objective-pass";
 
 export interface ShardMeasurement {
   rows: number;
@@ -33,8 +34,9 @@ export interface PointMeasurement {
 }
 
 /**
- * Measures methods.md §3 at the point W in one pass per shard: each shard's Fₘ, gₘ and (when
- * `withNoise`) σₘ², then the weighted and uniform ζ², the dissimilarity B(W) and σ², σ²_pooled.
+ * Measures methods.md §3 at the point W from one pass's per-shard totals at W (`shardTotals`, with
+ * squared norms when `withNoise`): each shard's Fₘ, gₘ and (when `withNoise`) σₘ², then the
+ * weighted and uniform ζ², the dissimilarity B(W) and σ², σ²_pooled.
  * Sources: ζ², Woodworth et al. NeurIPS 2020 (from memory); B(W), Li et al. MLSys 2020, Definition 3;
  * σ² and the law of total variance σ²_pooled = σ² + ζ², standard.
  * `vanishingGradient` is the gradient norm treated as zero (the optimizer's tolerance).
@@ -43,9 +45,11 @@ export function measureAtPoint(
   design: Design,
   weights: Float64Array,
   lambda: number,
+  shardTotals: PassTotals[],
   { withNoise, vanishingGradient }: { withNoise: boolean; vanishingGradient: number },
 ): PointMeasurement {
   const totalRows = design.x.rows;
+  const width = design.x.cols;
   const shardCount = design.shardIds.length;
   const size = weights.length;
   const gradient = new Float64Array(size);
@@ -57,13 +61,7 @@ export function measureAtPoint(
   const shards: ShardMeasurement[] = [];
 
   for (let m = 0; m < shardCount; m++) {
-    const rowStart = design.shardOffsets[m];
-    const rowEnd = design.shardOffsets[m + 1];
-    const evaluation = evaluateObjective(design, weights, lambda, {
-      rowStart,
-      rowEnd,
-      withSquaredNorms: withNoise,
-    });
+    const evaluation = finishPass(shardTotals[m], weights, width, lambda, withNoise);
     const share = evaluation.rows / totalRows;
     const shardSigma2 = withNoise
       ? Math.max(0, evaluation.meanSquaredSampleNorm - squaredNorm(evaluation.dataGradient))

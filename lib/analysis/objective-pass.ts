@@ -2,6 +2,9 @@ import { softmaxInPlace } from "../math/softmax";
 import { addCompensated } from "../math/summation";
 import type { Design } from "./design";
 
+/** What a pass reads of a design: the rows and their classes or targets. */
+export type PassData = Pick<Design, "x" | "labels" | "targets">;
+
 /**
  * Sums over a set of rows that every statistic of methods.md §2–§3 is built from, at one point W:
  * Σ ℓᵢ(W), Σ ∇ℓᵢ(W) (data term only, no regularizer) and Σ ‖∇ℓᵢ(W)‖². They are plain sums, so
@@ -93,7 +96,7 @@ export function createWorkspace(classCount: number, width: number): PassWorkspac
  * ‖∇ℓᵢ‖² = rᵢ² ‖x̃ᵢ‖². The per-sample gradient is never formed: its norm factorizes (§3).
  */
 export function accumulatePass(
-  design: Design,
+  design: PassData,
   weights: Float64Array,
   rowStart: number,
   rowEnd: number,
@@ -140,7 +143,7 @@ export function accumulatePass(
 }
 
 function accumulateSoftmaxBlock(
-  design: Design,
+  design: PassData,
   labels: Int32Array,
   weights: Float64Array,
   rowStart: number,
@@ -253,7 +256,7 @@ function squaredResidualTimesRowNorm(
 }
 
 function accumulateLeastSquaresBlock(
-  design: Design,
+  design: PassData,
   targets: Float64Array,
   weights: Float64Array,
   rowStart: number,

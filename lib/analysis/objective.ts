@@ -1,5 +1,11 @@
 import type { Design } from "./design";
-import { accumulatePass, createTotals, createWorkspace, readTotals } from "./objective-pass";
+import {
+  accumulatePass,
+  createTotals,
+  createWorkspace,
+  readTotals,
+  type PassTotals,
+} from "./objective-pass";
 
 /** Number of weight rows: C for softmax, 1 for least squares. */
 export function countWeightRows(design: Design): number {
@@ -59,6 +65,17 @@ export function evaluateObjective(
     createWorkspace(weights.length / width, width),
     withSquaredNorms,
   );
+  return finishPass(totals, weights, width, lambda, withSquaredNorms);
+}
+
+/** The objective of the rows a pass summed (their means, plus the regularizer). */
+export function finishPass(
+  totals: PassTotals,
+  weights: Float64Array,
+  width: number,
+  lambda: number,
+  withSquaredNorms: boolean,
+): ObjectiveValue {
   return finishObjective(readTotals(totals), totals.rows, weights, width, lambda, withSquaredNorms);
 }
 

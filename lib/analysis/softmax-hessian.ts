@@ -1,21 +1,21 @@
 import { accumulateWeightedGramUpper } from "../math/gram";
+import type { Matrix } from "../math/matrix";
 import { softmaxInPlace } from "../math/softmax";
-import type { Design } from "./design";
 
 /**
- * pᵢ = softmax(W x̃ᵢ) for every row of a classification design, rows × C row-major (the inputs of
+ * pᵢ = softmax(W x̃ᵢ) for every row x̃ᵢ of the design matrix `x`, rows × C row-major (the inputs of
  * the Hessian blocks below).
  */
-export function computeClassProbabilities(design: Design, weights: Float64Array): Float64Array {
-  const width = design.x.cols;
-  const x = design.x.data;
+export function computeClassProbabilities(x: Matrix, weights: Float64Array): Float64Array {
+  const width = x.cols;
+  const values = x.data;
   const classCount = weights.length / width;
-  const probabilities = new Float64Array(design.x.rows * classCount);
-  for (let row = 0; row < design.x.rows; row++) {
+  const probabilities = new Float64Array(x.rows * classCount);
+  for (let row = 0; row < x.rows; row++) {
     const offset = row * classCount;
     for (let c = 0; c < classCount; c++) {
       let score = 0;
-      for (let j = 0; j < width; j++) score += weights[c * width + j] * x[row * width + j];
+      for (let j = 0; j < width; j++) score += weights[c * width + j] * values[row * width + j];
       probabilities[offset + c] = score;
     }
     softmaxInPlace(probabilities, offset, classCount);
@@ -47,13 +47,13 @@ export function classPairAt(pair: number, classCount: number): [number, number] 
  * Böhning, Ann. Inst. Stat. Math. 1992, from memory).
  */
 export function computeHessianBlock(
-  design: Design,
+  x: Matrix,
   probabilities: Float64Array,
   [a, b]: [number, number],
   rowWeights: Float64Array,
   block: Float64Array,
 ): void {
-  const rows = design.x.rows;
+  const rows = x.rows;
   const classCount = probabilities.length / rows;
   for (let row = 0; row < rows; row++) {
     const pa = probabilities[row * classCount + a];
@@ -61,7 +61,7 @@ export function computeHessianBlock(
     rowWeights[row] = ((a === b ? pa : 0) - pa * pb) / rows;
   }
   block.fill(0);
-  accumulateWeightedGramUpper(design.x, rowWeights, 0, rows, block);
+  accumulateWeightedGramUpper(x, rowWeights, 0, rows, block);
 }
 
 /**
@@ -91,26 +91,4 @@ export function assembleSoftmaxHessian(
   });
   for (let k = 0; k < size; k++) if (k % width !== width - 1) hessian[k * size + k] += lambda;
   return hessian;
-}
-
-/**
- * ∇²F(W) of the softmax objective over all rows of `design` (methods.md §2), C·width square.
- *
- * Example: at W = 0 with C classes every pᵢ is uniform, so block (a, b) is (δ_ab/C − 1/C²) X̃ᵀX̃/n.
- */
-export function computeSoftmaxHessian(
-  design: Design,
-  weights: Float64Array,
-  lambda: number,
-): Float64Array {
-  const width = design.x.cols;
-  const classCount = weights.length / width;
-  const probabilities = computeClassProbabilities(design, weights);
-  const rowWeights = new Float64Array(design.x.rows);
-  const blocks = Array.from({ length: countClassPairs(classCount) }, (_, pair) => {
-    const block = new Float64Array(width * width);
-    computeHessianBlock(design, probabilities, classPairAt(pair, classCount), rowWeights, block);
-    return block;
-  });
-  return assembleSoftmaxHessian(blocks, classCount, width, lambda);
 }

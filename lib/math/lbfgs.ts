@@ -1,7 +1,10 @@
 import { norm } from "./summation";
 
-/** Writes ∇f(x) into `gradient` and returns f(x). */
-export type ValueAndGradient = (x: Float64Array, gradient: Float64Array) => number;
+/**
+ * Writes ∇f(x) into `gradient` and resolves with f(x). Asynchronous, so an evaluation can be shared
+ * with other threads (a pass over a large design).
+ */
+export type ValueAndGradient = (x: Float64Array, gradient: Float64Array) => Promise<number>;
 
 export interface LbfgsOptions {
   /** Stop when ‖∇f(x)‖ ≤ this (absolute). */
@@ -45,14 +48,14 @@ const MAX_LINE_SEARCH_STEPS = 50;
  * rely on the directional derivative instead of f and so can reach gradients near 1e-8; otherwise it
  * backtracks with safeguarded quadratic interpolation.
  *
- * Example: f(x) = (x₀ − 1)² + 10 (x₁ + 2)² from x = (0, 0) converges to (1, −2) in a handful of
+ * Example: f(x) = (x₀ − 1)² + 10 (x₁ + 2)² from x = (0, 0) resolves to (1, −2) in a handful of
  * iterations.
  */
-export function minimizeLbfgs(
+export async function minimizeLbfgs(
   valueAndGradient: ValueAndGradient,
   start: Float64Array,
   { gradientTolerance, maxIterations = 1000, memory = 10, precondition, onIteration }: LbfgsOptions,
-): LbfgsResult {
+): Promise<LbfgsResult> {
   const size = start.length;
   const x = Float64Array.from(start);
   const gradient = new Float64Array(size);
@@ -67,7 +70,7 @@ export function minimizeLbfgs(
   let newest = -1;
   let scale = 1;
 
-  let value = valueAndGradient(x, gradient);
+  let value = await valueAndGradient(x, gradient);
   let evaluations = 1;
   let gradientNorm = norm(gradient);
   let iterations = 0;
@@ -108,7 +111,7 @@ export function minimizeLbfgs(
       for (let index = 0; index < size; index++) {
         candidate[index] = x[index] + stepLength * direction[index];
       }
-      candidateValue = valueAndGradient(candidate, candidateGradient);
+      candidateValue = await valueAndGradient(candidate, candidateGradient);
       evaluations++;
       if (Number.isFinite(candidateValue)) {
         const armijo = candidateValue <= value + ARMIJO_CONSTANT * stepLength * slope;

@@ -10,15 +10,20 @@ export interface Matrix {
 }
 
 /**
- * Allocates a zero-filled rows × cols matrix.
+ * Allocates a zero-filled rows × cols matrix; with `shared`, in a SharedArrayBuffer, so worker
+ * threads can read it without a copy.
  *
  * Example: `createMatrix(2, 3).data.length` is 6.
  */
-export function createMatrix(rows: number, cols: number): Matrix {
+export function createMatrix(rows: number, cols: number, { shared = false } = {}): Matrix {
   if (!Number.isInteger(rows) || !Number.isInteger(cols) || rows < 0 || cols < 0) {
     throw new RangeError(`matrix shape must be non-negative integers, got ${rows} × ${cols}`);
   }
-  return { data: new Float64Array(rows * cols), rows, cols };
+  const length = rows * cols;
+  const data = shared
+    ? new Float64Array(new SharedArrayBuffer(length * Float64Array.BYTES_PER_ELEMENT))
+    : new Float64Array(length);
+  return { data, rows, cols };
 }
 
 /**

@@ -1,7 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { computeGram } from "@/lib/analysis/analyze-partition";
 import { evaluateObjective } from "@/lib/analysis/objective";
-import { computeSoftmaxHessian } from "@/lib/analysis/softmax-hessian";
+import { PassPool } from "@/lib/analysis/pass-pool";
 import { analyzeText } from "./support/analyze-text";
 import { designFromText } from "./support/design-from-text";
 import { runPythonJson } from "./support/run-python";
@@ -122,7 +121,8 @@ describe("identities of methods.md §2-§3", () => {
     const lambda = 0.05;
     const size = 3 * design.x.cols;
     const weights = Float64Array.from({ length: size }, (_, k) => 0.4 * Math.sin(2 * k + 1));
-    const hessian = computeSoftmaxHessian(design, weights, lambda);
+    const passes = new PassPool(1).share(design, design.shardOffsets);
+    const hessian = await passes.computeSoftmaxHessian(weights, lambda);
     const step = 1e-5;
     for (let k = 0; k < size; k++) {
       const plus = Float64Array.from(weights);
@@ -144,8 +144,9 @@ describe("identities of methods.md §2-§3", () => {
     const width = design.x.cols;
     const size = 3 * width;
     const lambda = 0.01;
-    const hessian = computeSoftmaxHessian(design, new Float64Array(size), lambda);
-    const gram = computeGram(design);
+    const passes = new PassPool(1).share(design, design.shardOffsets);
+    const hessian = await passes.computeSoftmaxHessian(new Float64Array(size), lambda);
+    const gram = await passes.computeGram();
     for (let a = 0; a < 3; a++) {
       for (let b = 0; b < 3; b++) {
         for (let j = 0; j < width; j++) {

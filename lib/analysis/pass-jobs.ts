@@ -1,0 +1,207 @@
+/**
+ * The work that threads share (see pass-pool.ts), written so that any thread can run any task: a
+ * job is split into numbered tasks, each task writes only its own slot of a shared result buffer,
+ * and the calling thread combines the slots in task order. The result therefore never depends on
+ * how many threads ran or which thread ran which task.
+ */
+import { accumulateGramUpper } from "../math/gram";
+import type { Matrix } from "../math/matrix";
+import {
+  accumulatePass,
+  createTotals,
+  createWorkspace,
+  type PassTotals,
+  type PassWorkspace,
+} from "./objective-pass";
+import { classPairAt, computeHessianBlock, countClassPairs } from "./softmax-hessian";
+
+/** The parts of a design the passes read, every array backed by a SharedArrayBuffer. */
+export interface SharedDesignData {
+  id: number;
+  x: Matrix;
+  labels: Int32Array | null;
+  targets: Float64Array | null;
+  /** Task t of a pass covers rows chunkStarts[t] … chunkStarts[t + 1]; no chunk spans two shards. */
+  chunkStarts: Int32Array;
+}
+
+/** Most rows per pass task: small enough to balance threads, large enough to amortize merging. */
+export const PASS_CHUNK_ROWS = 4096;
+/** Rows per Gram task. */
+export const GRAM_CHUNK_ROWS = 16_384;
+
+/** Chunk borders: every shard cut into pieces of at most PASS_CHUNK_ROWS rows. */
+export function planChunks(shardOffsets: Int32Array): Int32Array {
+  const starts: number[] = [0];
+  for (let m = 0; m + 1 < shardOffsets.length; m++) {
+    for (let row = shardOffsets[m]; row < shardOffsets[m + 1];) {
+      row = Math.min(shardOffsets[m + 1], row + PASS_CHUNK_ROWS);
+      starts.push(row);
+    }
+  }
+  return Int32Array.from(starts);
+}
+
+/** Task counter, busy-thread count and failure flag of one job, shared by all threads. */
+export const CONTROL_NEXT_TASK = 0;
+export const CONTROL_ACTIVE = 1;
+export const CONTROL_FAILED = 2;
+
+export type Job =
+  | {
+      kind: "pass";
+      designId: number;
+      weights: Float64Array;
+      withSquaredNorms: boolean;
+      /** Per chunk: rows, loss sum and compensation, squared-norm sum and compensation, gradient sum, its compensation. */
+      results: Float64Array;
+    }
+  | { kind: "gram"; designId: number; results: Float64Array }
+  | {
+      kind: "hessian";
+      designId: number;
+      /** pᵢ for every row, rows × C. */
+      probabilities: Float64Array;
+      classCount: number;
+      results: Float64Array;
+    };
+
+/** What the calling thread posts to the pool's worker threads. */
+export type PassThreadMessage =
+  { type: "share"; design: SharedDesignData } | { type: "job"; job: Job; control: Int32Array };
+
+/**
+ * What a worker thread posts back: that it has loaded, and failures (completion of a job is
+ * signalled in shared memory).
+ */
+export type PassThreadReport = { type: "ready" } | { type: "failed"; detail: string };
+
+/** workerData of a pass thread: where it counts the tasks it runs (Int32Array of one). */
+export interface PassThreadData {
+  workerTasks: Int32Array;
+}
+
+export function countTasks(job: Job, design: SharedDesignData): number {
+  switch (job.kind) {
+    case "pass":
+      return design.chunkStarts.length - 1;
+    case "gram":
+      return Math.ceil(design.x.rows / GRAM_CHUNK_ROWS);
+    case "hessian":
+      return countClassPairs(job.classCount);
+  }
+}
+
+/** Doubles in one pass task's result slot for P parameters. */
+export function passSlotSize(parameterCount: number): number {
+  return 5 + 2 * parameterCount;
+}
+
+/** Reusable scratch space of one thread. */
+export interface TaskScratch {
+  pass: PassWorkspace | null;
+  totals: PassTotals | null;
+  rowWeights: Float64Array | null;
+}
+
+export function createScratch(): TaskScratch {
+  return { pass: null, totals: null, rowWeights: null };
+}
+
+/**
+ * Runs tasks of `job` until none are left, claiming each from the shared counter, so fast threads
+ * take more. Returns, when every task has been claimed (others may still be finishing theirs), the
+ * number of tasks this thread ran.
+ */
+export function runTasks(
+  job: Job,
+  design: SharedDesignData,
+  control: Int32Array,
+  scratch: TaskScratch,
+): number {
+  const taskCount = countTasks(job, design);
+  for (let ran = 0; ; ran++) {
+    const task = Atomics.add(control, CONTROL_NEXT_TASK, 1);
+    if (task >= taskCount) return ran;
+    runTask(job, design, task, scratch);
+  }
+}
+
+function runTask(job: Job, design: SharedDesignData, task: number, scratch: TaskScratch): void {
+  const width = design.x.cols;
+  if (job.kind === "pass") {
+    const size = job.weights.length;
+    if (scratch.totals?.gradientSum.length !== size) {
+      scratch.totals = createTotals(size);
+      scratch.pass = createWorkspace(size / width, width);
+    }
+    const totals = resetTotals(scratch.totals);
+    accumulatePass(
+      design,
+      job.weights,
+      design.chunkStarts[task],
+      design.chunkStarts[task + 1],
+      totals,
+      scratch.pass as PassWorkspace,
+      job.withSquaredNorms,
+    );
+    writeTotals(totals, job.results, task * passSlotSize(size));
+    return;
+  }
+  if (job.kind === "gram") {
+    const block = job.results.subarray(task * width * width, (task + 1) * width * width);
+    block.fill(0);
+    const start = task * GRAM_CHUNK_ROWS;
+    accumulateGramUpper(design.x, start, Math.min(design.x.rows, start + GRAM_CHUNK_ROWS), block);
+    return;
+  }
+  if (scratch.rowWeights?.length !== design.x.rows) {
+    scratch.rowWeights = new Float64Array(design.x.rows);
+  }
+  computeHessianBlock(
+    design.x,
+    job.probabilities,
+    classPairAt(task, job.classCount),
+    scratch.rowWeights,
+    job.results.subarray(task * width * width, (task + 1) * width * width),
+  );
+}
+
+function resetTotals(totals: PassTotals): PassTotals {
+  totals.rows = 0;
+  totals.lossSum = 0;
+  totals.lossCompensation = 0;
+  totals.squaredGradientNormSum = 0;
+  totals.squaredGradientNormCompensation = 0;
+  totals.gradientSum.fill(0);
+  totals.gradientCompensation.fill(0);
+  return totals;
+}
+
+function writeTotals(totals: PassTotals, results: Float64Array, offset: number): void {
+  const size = totals.gradientSum.length;
+  results[offset] = totals.rows;
+  results[offset + 1] = totals.lossSum;
+  results[offset + 2] = totals.lossCompensation;
+  results[offset + 3] = totals.squaredGradientNormSum;
+  results[offset + 4] = totals.squaredGradientNormCompensation;
+  results.set(totals.gradientSum, offset + 5);
+  results.set(totals.gradientCompensation, offset + 5 + size);
+}
+
+/** The totals a pass task wrote into its slot. */
+export function readSlot(results: Float64Array, task: number, parameterCount: number): PassTotals {
+  const offset = task * passSlotSize(parameterCount);
+  return {
+    rows: results[offset],
+    lossSum: results[offset + 1],
+    lossCompensation: results[offset + 2],
+    squaredGradientNormSum: results[offset + 3],
+    squaredGradientNormCompensation: results[offset + 4],
+    gradientSum: results.slice(offset + 5, offset + 5 + parameterCount),
+    gradientCompensation: results.slice(
+      offset + 5 + parameterCount,
+      offset + 5 + 2 * parameterCount,
+    ),
+  };
+}

@@ -1,0 +1,269 @@
+import { availableParallelism } from "node:os";
+import { Worker } from "node:worker_threads";
+import { symmetrizeFromUpper } from "../math/gram";
+import type { Matrix } from "../math/matrix";
+import {
+  CONTROL_ACTIVE,
+  CONTROL_FAILED,
+  countTasks,
+  createScratch,
+  GRAM_CHUNK_ROWS,
+  passSlotSize,
+  planChunks,
+  readSlot,
+  runTasks,
+  type Job,
+  type PassThreadData,
+  type PassThreadMessage,
+  type PassThreadReport,
+  type SharedDesignData,
+} from "./pass-jobs";
+import { createTotals, mergeTotals, type PassData, type PassTotals } from "./objective-pass";
+import {
+  assembleSoftmaxHessian,
+  computeClassProbabilities,
+  countClassPairs,
+} from "./softmax-hessian";
+
+/** Most threads a pool uses by default; the passes stop gaining well before this. */
+const MAX_DEFAULT_THREADS = 8;
+
+/** Threads the machine offers (capped), the default size of a pool. */
+export function countAvailableThreads(): number {
+  return Math.max(1, Math.min(MAX_DEFAULT_THREADS, availableParallelism()));
+}
+
+/** Totals of one pass: per shard (in shard order) and over all rows. */
+export interface PassResult {
+  shards: PassTotals[];
+  pooled: PassTotals;
+}
+
+/**
+ * Threads that share the passes over the rows (objective and gradient, Gram matrix, Hessian blocks).
+ * The calling thread works too, so a pool of n threads starts n − 1 worker threads; a pool of one
+ * runs everything on the calling thread. Designs are shared, not copied: their arrays live in
+ * SharedArrayBuffers. Tasks are claimed from a shared counter and every task writes its own result
+ * slot, which the calling thread combines in a fixed order, so results are the same bit for bit
+ * whatever the number of threads.
+ *
+ * Worker threads start at once and load in the background (a TypeScript loader and the kernels,
+ * about a second), so a pool is best started before the data is read. `close` ends them.
+ */
+export class PassPool {
+  private readonly workers: Worker[];
+  private readonly scratch = createScratch();
+  private readonly workerTasks = new Int32Array(new SharedArrayBuffer(4));
+  private readonly ready: Promise<unknown>;
+  private readonly failure: Promise<never>;
+  private failureError: Error | null = null;
+  private reportFailure: (error: Error) => void = () => {};
+  private closing = false;
+  private nextDesignId = 0;
+
+  constructor(threads: number) {
+    if (!Number.isInteger(threads) || threads < 1) {
+      throw new RangeError(`a pass pool needs a positive whole number of threads, got ${threads}`);
+    }
+    this.failure = new Promise<never>((_, reject) => {
+      this.reportFailure = (error) => {
+        if (this.failureError !== null) return;
+        this.failureError = error;
+        reject(error);
+      };
+    });
+    // Nobody may be waiting when a thread fails; the next `run` reports it.
+    this.failure.catch(() => {});
+    const loaded: Promise<void>[] = [];
+    this.workers = Array.from({ length: threads - 1 }, () => {
+      const worker = this.startWorker();
+      loaded.push(
+        new Promise((resolve) =>
+          worker.on("message", (report: PassThreadReport) => {
+            if (report.type === "ready") resolve();
+          }),
+        ),
+      );
+      return worker;
+    });
+    this.ready = Promise.all(loaded);
+  }
+
+  /**
+   * Resolves once every worker thread has loaded (jobs started earlier begin without them). The
+   * analysis never waits for this; tests and diagnostics do.
+   */
+  async whenReady(): Promise<void> {
+    await Promise.race([this.ready, this.failure]);
+  }
+
+  /** Tasks run by the worker threads so far, the rest ran on the calling thread (diagnostics). */
+  get tasksRunByWorkers(): number {
+    return Atomics.load(this.workerTasks, 0);
+  }
+
+  /** Shares a design with the threads; passes then run over its rows, chunked within shards. */
+  share(design: PassData, shardOffsets: Int32Array): SharedDesign {
+    const data: SharedDesignData = {
+      id: this.nextDesignId++,
+      x: { rows: design.x.rows, cols: design.x.cols, data: toShared(design.x.data) },
+      labels: design.labels && toShared(design.labels),
+      targets: design.targets && toShared(design.targets),
+      chunkStarts: planChunks(shardOffsets),
+    };
+    this.post({ type: "share", design: data });
+    return new SharedDesign(this, data, shardOffsets);
+  }
+
+  /** Runs every task of `job`, on this thread and the workers, and waits until all are done. */
+  async run(job: Job, design: SharedDesignData): Promise<void> {
+    if (this.failureError !== null) throw this.failureError;
+    const control = new Int32Array(new SharedArrayBuffer(3 * Int32Array.BYTES_PER_ELEMENT));
+    this.post({ type: "job", job, control });
+    runTasks(job, design, control, this.scratch);
+    await Promise.race([waitUntilIdle(control), this.failure]);
+    // A failed task is flagged before its thread goes idle; its message may still be on the way.
+    if (Atomics.load(control, CONTROL_FAILED) !== 0) await this.failure;
+  }
+
+  /** Ends the worker threads. */
+  async close(): Promise<void> {
+    this.closing = true;
+    await Promise.all(this.workers.map((worker) => worker.terminate()));
+  }
+
+  private post(message: PassThreadMessage): void {
+    for (const worker of this.workers) worker.postMessage(message);
+  }
+
+  private startWorker(): Worker {
+    // No inherited flags (a test runner's, say): the entry registers its own TypeScript loader,
+    // like lib/reports/analysis-thread-entry.mjs.
+    const worker = new Worker(new URL("./pass-thread-entry.mjs", import.meta.url), {
+      execArgv: [],
+      workerData: { workerTasks: this.workerTasks } satisfies PassThreadData,
+    });
+    worker.on("message", (report: PassThreadReport) => {
+      if (report.type === "failed") this.reportFailure(new Error(`pass thread: ${report.detail}`));
+    });
+    worker.on("error", (error) => this.reportFailure(error));
+    worker.on("exit", (code) => {
+      if (!this.closing) this.reportFailure(new Error(`pass thread exited (code ${code})`));
+    });
+    return worker;
+  }
+}
+
+/** A design shared with a pool's threads, with the passes the analysis needs over its rows. */
+export class SharedDesign {
+  private passResults: Float64Array | null = null;
+
+  constructor(
+    readonly pool: PassPool,
+    private readonly data: SharedDesignData,
+    private readonly shardOffsets: Int32Array,
+  ) {}
+
+  get x(): Matrix {
+    return this.data.x;
+  }
+
+  /**
+   * Σ ℓᵢ(W), Σ ∇ℓᵢ(W) and (when asked) Σ ‖∇ℓᵢ(W)‖² per shard and over all rows (see
+   * objective-pass.ts), in one pass shared by the pool's threads.
+   */
+  async evaluate(weights: Float64Array, withSquaredNorms: boolean): Promise<PassResult> {
+    const size = weights.length;
+    const chunkStarts = this.data.chunkStarts;
+    const taskCount = chunkStarts.length - 1;
+    if (this.passResults?.length !== taskCount * passSlotSize(size)) {
+      this.passResults = sharedFloat64(taskCount * passSlotSize(size));
+    }
+    const results = this.passResults;
+    await this.pool.run(
+      { kind: "pass", designId: this.data.id, weights, withSquaredNorms, results },
+      this.data,
+    );
+    const shards: PassTotals[] = [];
+    let chunk = 0;
+    for (let m = 0; m + 1 < this.shardOffsets.length; m++) {
+      const totals = createTotals(size);
+      for (; chunk < taskCount && chunkStarts[chunk] < this.shardOffsets[m + 1]; chunk++) {
+        mergeTotals(totals, readSlot(results, chunk, size));
+      }
+      shards.push(totals);
+    }
+    const pooled = createTotals(size);
+    for (const totals of shards) mergeTotals(pooled, totals);
+    return { shards, pooled };
+  }
+
+  /**
+   * G = X̃ᵀX̃/N, width × width: partial sums over blocks of 16 384 rows, added in block order.
+   *
+   * Example: rows [1, 2] and [3, 4] give [[5, 7], [7, 10]].
+   */
+  async computeGram(): Promise<Float64Array> {
+    const width = this.data.x.cols;
+    const tasks = Math.ceil(this.data.x.rows / GRAM_CHUNK_ROWS);
+    const results = sharedFloat64(tasks * width * width);
+    await this.pool.run({ kind: "gram", designId: this.data.id, results }, this.data);
+    const gram = new Float64Array(width * width);
+    for (let task = 0; task < tasks; task++) {
+      for (let k = 0; k < gram.length; k++) gram[k] += results[task * width * width + k];
+    }
+    symmetrizeFromUpper(gram, width);
+    for (let k = 0; k < gram.length; k++) gram[k] /= this.data.x.rows;
+    return gram;
+  }
+
+  /**
+   * ∇²F(W) of the softmax objective over these rows (methods.md §2), C·width square, parameters
+   * ordered as in W; its class-pair blocks are shared among the threads.
+   *
+   * Example: at W = 0 with C classes every pᵢ is uniform, so block (a, b) is
+   * (δ_ab/C − 1/C²) X̃ᵀX̃/n, plus λ on the diagonal off the biases.
+   */
+  async computeSoftmaxHessian(weights: Float64Array, lambda: number): Promise<Float64Array> {
+    const width = this.data.x.cols;
+    const classCount = weights.length / width;
+    const probabilities = toShared(computeClassProbabilities(this.data.x, weights));
+    const job: Job = {
+      kind: "hessian",
+      designId: this.data.id,
+      probabilities,
+      classCount,
+      results: sharedFloat64(countClassPairs(classCount) * width * width),
+    };
+    await this.pool.run(job, this.data);
+    const blocks = Array.from({ length: countTasks(job, this.data) }, (_, pair) =>
+      job.results.subarray(pair * width * width, (pair + 1) * width * width),
+    );
+    return assembleSoftmaxHessian(blocks, classCount, width, lambda);
+  }
+}
+
+async function waitUntilIdle(control: Int32Array): Promise<void> {
+  for (;;) {
+    const active = Atomics.load(control, CONTROL_ACTIVE);
+    if (active === 0) return;
+    const wait = Atomics.waitAsync(control, CONTROL_ACTIVE, active);
+    if (wait.async) await wait.value;
+  }
+}
+
+function sharedFloat64(length: number): Float64Array {
+  return new Float64Array(new SharedArrayBuffer(length * Float64Array.BYTES_PER_ELEMENT));
+}
+
+/** The array itself when it already lives in shared memory, else a shared copy. */
+function toShared<T extends Float64Array | Int32Array>(values: T): T {
+  if (values.buffer instanceof SharedArrayBuffer) return values;
+  const copy = (
+    values instanceof Float64Array
+      ? sharedFloat64(values.length)
+      : new Int32Array(new SharedArrayBuffer(values.length * Int32Array.BYTES_PER_ELEMENT))
+  ) as T;
+  copy.set(values);
+  return copy;
+}
