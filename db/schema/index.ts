@@ -1,3 +1,4 @@
 export * from "./auth";
 export * from "./workspaces";
 export * from "./analyses";
+export * from "./api-tokens";
