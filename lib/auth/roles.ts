@@ -11,6 +11,8 @@ export const CAPABILITIES = {
   manageMembers: ["owner"],
   uploadData: ["owner", "analyst"],
   runAnalysis: ["owner", "analyst"],
+  /** Personal API tokens let a pipeline upload and analyse, so only roles that may do so hold them. */
+  manageApiTokens: ["owner", "analyst"],
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Capability = keyof typeof CAPABILITIES;

@@ -29,6 +29,8 @@ const EXPECTED: Record<Capability, Record<(typeof ROLES)[number], number>> = {
   manageMembers: { owner: 200, analyst: 403, reviewer: 403 },
   uploadData: { owner: 200, analyst: 200, reviewer: 403 },
   runAnalysis: { owner: 200, analyst: 200, reviewer: 403 },
+  // Issue 5: "Personal API tokens (owners and analysts)".
+  manageApiTokens: { owner: 200, analyst: 200, reviewer: 403 },
 };
 
 describe("guards", () => {
