@@ -38,6 +38,9 @@ export default async function WorkspaceLayout({
               <NavLink href={`${base}/analyses/new`}>New analysis</NavLink>
             ) : null}
             <NavLink href={`${base}/members`}>Members</NavLink>
+            {roleAllows(workspace.role, "manageApiTokens") ? (
+              <NavLink href={`${base}/tokens`}>API tokens</NavLink>
+            ) : null}
             {env().DEV_MAIL_DIR ? (
               <Link
                 className="rounded px-2 py-1 text-ink-soft hover:bg-paper-deep"
