@@ -2,3 +2,4 @@ export * from "./auth";
 export * from "./workspaces";
 export * from "./analyses";
 export * from "./api-tokens";
+export * from "./reviews";

@@ -1,0 +1,156 @@
+import {
+  boolean,
+  index,
+  jsonb,
+  pgEnum,
+  pgTable,
+  primaryKey,
+  text,
+  timestamp,
+  uniqueIndex,
+  type AnyPgColumn,
+} from "drizzle-orm/pg-core";
+import { reports } from "./analyses";
+import { users } from "./auth";
+import { workspaces } from "./workspaces";
+
+/**
+ * A request that one reviewer read one report version. One row per (version, reviewer): asking the
+ * same person again is a no-op, and a new version starts with no requests at all.
+ */
+export const reviewRequests = pgTable(
+  "review_requests",
+  {
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
+    reportId: text("report_id")
+      .notNull()
+      .references(() => reports.id, { onDelete: "cascade" }),
+    reviewerId: text("reviewer_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    requestedBy: text("requested_by")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    note: text("note"),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (table) => [
+    uniqueIndex("review_requests_report_reviewer_idx").on(table.reportId, table.reviewerId),
+    index("review_requests_workspace_idx").on(table.workspaceId),
+  ],
+);
+
+export const commentAnchorKind = pgEnum("comment_anchor_kind", ["section", "shard"]);
+
+/**
+ * Comments on one report version. A reply names its thread's first comment in parentId; an anchor
+ * pins a thread to a section of the page (e.g. "evidence") or to a shard id.
+ */
+export const reviewComments = pgTable(
+  "review_comments",
+  {
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
+    reportId: text("report_id")
+      .notNull()
+      .references(() => reports.id, { onDelete: "cascade" }),
+    parentId: text("parent_id").references((): AnyPgColumn => reviewComments.id, {
+      onDelete: "cascade",
+    }),
+    anchorKind: commentAnchorKind("anchor_kind"),
+    anchor: text("anchor"),
+    body: text("body").notNull(),
+    authorId: text("author_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    /** User ids of the members the body mentions (resolved when the comment was written). */
+    mentions: text("mentions").array().notNull().default([]),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (table) => [index("review_comments_report_idx").on(table.reportId, table.createdAt)],
+);
+
+export const reviewDecisionKind = pgEnum("review_decision_kind", ["approve", "changes-requested"]);
+
+/**
+ * A reviewer's decision on exactly one report version. A reviewer may decide again (the newest
+ * row counts); earlier rows stay as the record of who decided what.
+ */
+export const reviewDecisions = pgTable(
+  "review_decisions",
+  {
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
+    reportId: text("report_id")
+      .notNull()
+      .references(() => reports.id, { onDelete: "cascade" }),
+    reviewerId: text("reviewer_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    decision: reviewDecisionKind("decision").notNull(),
+    reason: text("reason").notNull(),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (table) => [index("review_decisions_report_idx").on(table.reportId, table.createdAt)],
+);
+
+/**
+ * The workspace's record of who did what. Append-only: the product has no update or delete path,
+ * and the migration adds a trigger that makes PostgreSQL refuse UPDATE, DELETE and TRUNCATE.
+ * Actor and workspace carry no foreign keys so that no cascade can ever try to remove an entry;
+ * the actor's e-mail is copied in so the entry still reads after the account is gone.
+ */
+export const auditLog = pgTable(
+  "audit_log",
+  {
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
+    workspaceId: text("workspace_id").notNull(),
+    actorId: text("actor_id").notNull(),
+    actorEmail: text("actor_email").notNull(),
+    action: text("action").notNull(),
+    targetType: text("target_type").notNull(),
+    targetId: text("target_id").notNull(),
+    details: jsonb("details").$type<Record<string, unknown>>().notNull().default({}),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (table) => [
+    index("audit_log_workspace_idx").on(table.workspaceId, table.createdAt),
+    index("audit_log_workspace_action_idx").on(table.workspaceId, table.action),
+  ],
+);
+
+export const notificationKind = pgEnum("notification_kind", [
+  "review-requested",
+  "decision-made",
+  "mentioned",
+  "analysis-finished",
+]);
+
+/** A user's choice per kind of e-mail. No row means the default: the e-mail is sent. */
+export const notificationPreferences = pgTable(
+  "notification_preferences",
+  {
+    userId: text("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    kind: notificationKind("kind").notNull(),
+    enabled: boolean("enabled").notNull(),
+    updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (table) => [primaryKey({ columns: [table.userId, table.kind] })],
+);
