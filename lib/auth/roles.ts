@@ -13,6 +13,14 @@ export const CAPABILITIES = {
   runAnalysis: ["owner", "analyst"],
   /** Personal API tokens let a pipeline upload and analyse, so only roles that may do so hold them. */
   manageApiTokens: ["owner", "analyst"],
+  /** Those who publish reports ask for their review. */
+  requestReview: ["owner", "analyst"],
+  /** Everyone in the workspace may discuss a report: reviewers ask, analysts answer. */
+  commentOnReport: ["owner", "analyst", "reviewer"],
+  /** Sign-off is a reviewer's job; an owner may stand in for one. */
+  decideReview: ["owner", "reviewer"],
+  /** The record of who decided what is for the people who answer for the workspace. */
+  readAuditLog: ["owner"],
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Capability = keyof typeof CAPABILITIES;
