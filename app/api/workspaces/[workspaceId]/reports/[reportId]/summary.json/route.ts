@@ -3,6 +3,7 @@ import { AccessError } from "@/lib/auth/errors";
 import { requireRole } from "@/lib/auth/guards";
 import { respondWithError } from "@/lib/http/handler-errors";
 import { describeDownload, nameExportFile } from "@/lib/reports/export-file-name";
+import { serializeSummary } from "@/lib/reports/summary-json";
 
 type RouteContext = { params: Promise<{ workspaceId: string; reportId: string }> };
 
@@ -16,7 +17,7 @@ export async function GET(_request: Request, context: RouteContext): Promise<Res
     const { workspace } = await requireRole(workspaceId, "readWorkspace");
     const report = await findReportSummary(workspace.id, reportId);
     if (!report) throw new AccessError(404, "That report does not exist in this workspace.");
-    return new Response(`${JSON.stringify(report.summary, null, 2)}\n`, {
+    return new Response(serializeSummary(report.summary), {
       headers: describeDownload(
         nameExportFile(report.title, report.version, "summary.json"),
         "application/json; charset=utf-8",

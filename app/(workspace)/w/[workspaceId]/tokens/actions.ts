@@ -1,0 +1,54 @@
+"use server";
+
+import { revalidatePath } from "next/cache";
+import { insertApiToken, revokeApiToken } from "@/db/queries/api-tokens";
+import { failWith, succeed, type ActionResult } from "@/lib/actions/result";
+import { createApiTokenSchema, type CreateApiTokenInput } from "@/lib/auth/api-token-schema";
+import { createApiTokenSecret } from "@/lib/auth/api-token-secret";
+import { requireRole } from "@/lib/auth/guards";
+import { RuleError } from "@/lib/errors";
+
+const DAY_MS = 24 * 60 * 60 * 1000;
+
+/**
+ * Creates a personal API token for this workspace. The token is in this answer and nowhere else:
+ * only its hash is stored, so the page shows it once.
+ */
+export async function createApiToken(
+  workspaceId: string,
+  input: CreateApiTokenInput,
+): Promise<ActionResult<{ token: string; name: string; expiresAt: Date }>> {
+  try {
+    const { user } = await requireRole(workspaceId, "manageApiTokens");
+    const { name, lifetimeDays } = createApiTokenSchema.parse(input);
+    const { token, tokenHash } = createApiTokenSecret();
+    const created = await insertApiToken({
+      workspaceId,
+      userId: user.id,
+      name,
+      tokenHash,
+      expiresAt: new Date(Date.now() + lifetimeDays * DAY_MS),
+    });
+    revalidatePath(`/w/${workspaceId}/tokens`);
+    return succeed({ token, name: created.name, expiresAt: created.expiresAt });
+  } catch (error) {
+    return failWith(error, "create-api-token");
+  }
+}
+
+/** Revokes one of the caller's own tokens in this workspace; it stops working at once. */
+export async function revokeApiTokenAction(
+  workspaceId: string,
+  tokenId: string,
+): Promise<ActionResult> {
+  try {
+    const { user } = await requireRole(workspaceId, "manageApiTokens");
+    if (!(await revokeApiToken(workspaceId, user.id, tokenId))) {
+      throw new RuleError(404, "That token does not exist or is already revoked.");
+    }
+    revalidatePath(`/w/${workspaceId}/tokens`);
+    return succeed();
+  } catch (error) {
+    return failWith(error, "revoke-api-token");
+  }
+}

@@ -1,0 +1,18 @@
+import { answerApiRequest, respondWithJson } from "@/lib/api/respond";
+import { requireToken } from "@/lib/auth/api-token-guard";
+import { registerUpload } from "@/lib/uploads/register-upload";
+import { readJsonBody } from "@/lib/uploads/read-json-body";
+import { registerDataFileSchema } from "@/lib/validation/upload";
+
+/**
+ * Registers an uploaded object as a dataset, layout (partition map) or reference weights file,
+ * after the server has read it back from storage; the answer's id goes into POST /api/v1/analyses.
+ */
+export async function POST(request: Request): Promise<Response> {
+  return answerApiRequest("register-file", async () => {
+    const { user, workspace } = await requireToken(request, "uploadData");
+    const input = registerDataFileSchema.parse(await readJsonBody(request));
+    const file = await registerUpload(workspace.id, user.id, input);
+    return respondWithJson(file, 201);
+  });
+}

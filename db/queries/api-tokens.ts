@@ -1,0 +1,128 @@
+import "server-only";
+import { and, desc, eq, isNull } from "drizzle-orm";
+import { db } from "@/db/client";
+import { apiTokens, memberships, users, workspaces } from "@/db/schema";
+import type { Role } from "@/lib/auth/roles";
+
+// Token rows are personal: every function that lists or changes them takes the workspace and the
+// acting user and filters by both, so nobody reaches another person's tokens.
+
+/** What the tokens page shows of a token: never its hash. */
+export type ApiTokenListItem = {
+  id: string;
+  name: string;
+  expiresAt: Date;
+  revokedAt: Date | null;
+  lastUsedAt: Date | null;
+  createdAt: Date;
+};
+
+const listColumns = {
+  id: apiTokens.id,
+  name: apiTokens.name,
+  expiresAt: apiTokens.expiresAt,
+  revokedAt: apiTokens.revokedAt,
+  lastUsedAt: apiTokens.lastUsedAt,
+  createdAt: apiTokens.createdAt,
+};
+
+export async function insertApiToken(values: {
+  workspaceId: string;
+  userId: string;
+  name: string;
+  tokenHash: string;
+  expiresAt: Date;
+}): Promise<ApiTokenListItem> {
+  const [inserted] = await db().insert(apiTokens).values(values).returning(listColumns);
+  return inserted;
+}
+
+/** The user's tokens in this workspace, newest first, revoked and expired ones included. */
+export async function listApiTokens(
+  workspaceId: string,
+  userId: string,
+): Promise<ApiTokenListItem[]> {
+  return db()
+    .select(listColumns)
+    .from(apiTokens)
+    .where(and(eq(apiTokens.workspaceId, workspaceId), eq(apiTokens.userId, userId)))
+    .orderBy(desc(apiTokens.createdAt));
+}
+
+/** Revokes one of the user's own tokens; false when there is no such live token of theirs. */
+export async function revokeApiToken(
+  workspaceId: string,
+  userId: string,
+  tokenId: string,
+  now = new Date(),
+): Promise<boolean> {
+  const revoked = await db()
+    .update(apiTokens)
+    .set({ revokedAt: now })
+    .where(
+      and(
+        eq(apiTokens.id, tokenId),
+        eq(apiTokens.workspaceId, workspaceId),
+        eq(apiTokens.userId, userId),
+        isNull(apiTokens.revokedAt),
+      ),
+    )
+    .returning({ id: apiTokens.id });
+  return revoked.length > 0;
+}
+
+/**
+ * What a presented token grants: its user and workspace, with the role the user holds there now
+ * (null once they left the workspace). The caller decides about expiry and revocation so that it
+ * can say which one applies.
+ */
+export type ApiTokenGrant = {
+  tokenId: string;
+  tokenName: string;
+  expiresAt: Date;
+  revokedAt: Date | null;
+  user: { id: string; email: string; name: string | null };
+  workspace: { id: string; name: string };
+  role: Role | null;
+};
+
+export async function findApiTokenGrant(tokenHash: string): Promise<ApiTokenGrant | undefined> {
+  const [row] = await db()
+    .select({
+      tokenId: apiTokens.id,
+      tokenName: apiTokens.name,
+      expiresAt: apiTokens.expiresAt,
+      revokedAt: apiTokens.revokedAt,
+      userId: users.id,
+      email: users.email,
+      userName: users.name,
+      workspaceId: workspaces.id,
+      workspaceName: workspaces.name,
+      role: memberships.role,
+    })
+    .from(apiTokens)
+    .innerJoin(users, eq(users.id, apiTokens.userId))
+    .innerJoin(workspaces, eq(workspaces.id, apiTokens.workspaceId))
+    .leftJoin(
+      memberships,
+      and(
+        eq(memberships.workspaceId, apiTokens.workspaceId),
+        eq(memberships.userId, apiTokens.userId),
+      ),
+    )
+    .where(eq(apiTokens.tokenHash, tokenHash));
+  if (!row) return undefined;
+  return {
+    tokenId: row.tokenId,
+    tokenName: row.tokenName,
+    expiresAt: row.expiresAt,
+    revokedAt: row.revokedAt,
+    user: { id: row.userId, email: row.email, name: row.userName },
+    workspace: { id: row.workspaceId, name: row.workspaceName },
+    role: row.role,
+  };
+}
+
+export async function recordApiTokenUse(tokenId: string, now = new Date()): Promise<void> {
+  await db().update(apiTokens).set({ lastUsedAt: now }).where(eq(apiTokens.id, tokenId));
+}

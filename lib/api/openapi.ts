@@ -1,0 +1,198 @@
+import type { z } from "zod";
+import { createDocument, type ZodOpenApiOperationObject } from "zod-openapi";
+import {
+  createUploadSchema,
+  abortMultipartSchema,
+  completeMultipartSchema,
+} from "@/lib/validation/upload";
+import { registerDataFileSchema, signPartsSchema } from "@/lib/validation/upload";
+import { startAnalysisSchema } from "@/lib/validation/start-analysis";
+import { API_TOKEN_PREFIX } from "@/lib/auth/api-token-secret";
+import { API_REQUESTS_PER_MINUTE } from "./rate-limit";
+import {
+  analysisPathSchema,
+  analysisStatusSchema,
+  apiErrorSchema,
+  callerSchema,
+  completedUploadSchema,
+  dataFileSchema,
+  listReportsQuerySchema,
+  partitionSummarySchema,
+  queuedAnalysisSchema,
+  reportListSchema,
+  reportPathSchema,
+  signedPartsSchema,
+  uploadTicketSchema,
+} from "./schemas";
+
+const json = (schema: z.ZodType) => ({ content: { "application/json": { schema } } });
+
+const ERROR_DESCRIPTIONS = {
+  "401":
+    "No token, or a token that is unknown, expired, revoked or whose owner left the workspace.",
+  "403": "The token's user does not hold the role this needs in the workspace.",
+  "404": "Nothing with that id in the token's workspace.",
+  "422": "The input is malformed or breaks a rule; `fieldErrors` says where.",
+  "429": `More than ${API_REQUESTS_PER_MINUTE} requests a minute with this token; see Retry-After.`,
+} as const;
+
+type ErrorStatus = keyof typeof ERROR_DESCRIPTIONS;
+
+function errors(...statuses: ErrorStatus[]) {
+  return Object.fromEntries(
+    (["401", ...statuses, "429"] as ErrorStatus[]).map((status) => [
+      status,
+      { description: ERROR_DESCRIPTIONS[status], ...json(apiErrorSchema) },
+    ]),
+  );
+}
+
+function operation(
+  spec: Omit<ZodOpenApiOperationObject, "responses"> & {
+    success: [status: string, description: string, schema?: z.ZodType];
+    failures: ErrorStatus[];
+  },
+): ZodOpenApiOperationObject {
+  const { success, failures, ...rest } = spec;
+  const [status, description, schema] = success;
+  return {
+    ...rest,
+    responses: {
+      [status]: schema ? { description, ...json(schema) } : { description },
+      ...errors(...failures),
+    },
+  };
+}
+
+/**
+ * The OpenAPI 3.1 description of /api/v1, generated from the zod schemas the handlers validate
+ * with, so the document cannot drift from what the API accepts.
+ */
+export function createApiDocument() {
+  return createDocument({
+    openapi: "3.1.0",
+    info: {
+      title: "Partita pipeline API",
+      version: "1.0.0",
+      description:
+        "Run partition analyses from a pipeline: upload a dataset and a layout, start an analysis, " +
+        "follow it, and read the report's JSON summary. Authenticate with a personal API token " +
+        `(\`Authorization: Bearer ${API_TOKEN_PREFIX}…\`) made on a workspace's API tokens page; ` +
+        "it acts with its owner's current role in that workspace.",
+    },
+    servers: [{ url: "/" }],
+    security: [{ bearerToken: [] }],
+    components: {
+      securitySchemes: {
+        bearerToken: {
+          type: "http",
+          scheme: "bearer",
+          description: `A personal API token, starting with ${API_TOKEN_PREFIX}.`,
+        },
+      },
+    },
+    paths: {
+      "/api/v1/workspace": {
+        get: operation({
+          operationId: "getCaller",
+          summary: "The token's workspace, user and current role",
+          success: ["200", "Who the token acts as.", callerSchema],
+          failures: [],
+        }),
+      },
+      "/api/v1/uploads": {
+        post: operation({
+          operationId: "createUpload",
+          summary: "Presigned URL(s) to upload a dataset, layout or weights file",
+          description:
+            "With method `single`, PUT the file to `url` with `headers`. With `multipart`, PUT " +
+            "each part to its URL, keep each answer's ETag, then POST /api/v1/uploads/complete.",
+          requestBody: json(createUploadSchema),
+          success: ["201", "Where to send the bytes.", uploadTicketSchema],
+          failures: ["403", "422"],
+        }),
+      },
+      "/api/v1/uploads/parts": {
+        post: operation({
+          operationId: "signUploadParts",
+          summary: "Fresh URLs for parts of a multipart upload",
+          requestBody: json(signPartsSchema),
+          success: ["200", "One URL per part number.", signedPartsSchema],
+          failures: ["403", "404", "422"],
+        }),
+      },
+      "/api/v1/uploads/complete": {
+        post: operation({
+          operationId: "completeUpload",
+          summary: "Assemble a multipart upload from its parts",
+          requestBody: json(completeMultipartSchema),
+          success: ["200", "The assembled object's key.", completedUploadSchema],
+          failures: ["403", "404", "422"],
+        }),
+      },
+      "/api/v1/uploads/abort": {
+        post: operation({
+          operationId: "abortUpload",
+          summary: "Drop an unfinished multipart upload",
+          requestBody: json(abortMultipartSchema),
+          success: ["204", "Dropped (or already gone)."],
+          failures: ["403", "404", "422"],
+        }),
+      },
+      "/api/v1/files": {
+        post: operation({
+          operationId: "registerFile",
+          summary: "Register an uploaded object as a dataset, layout or weights file",
+          description: "The server reads the object back and previews it; bad files answer 422.",
+          requestBody: json(registerDataFileSchema),
+          success: ["201", "The registered file.", dataFileSchema],
+          failures: ["403", "404", "422"],
+        }),
+      },
+      "/api/v1/analyses": {
+        post: operation({
+          operationId: "startAnalysis",
+          summary: "Queue an analysis of registered files with the plan's parameters",
+          requestBody: json(startAnalysisSchema),
+          success: ["202", "Queued; poll statusUrl.", queuedAnalysisSchema],
+          failures: ["403", "422"],
+        }),
+      },
+      "/api/v1/analyses/{analysisId}": {
+        get: operation({
+          operationId: "getAnalysisStatus",
+          summary: "Status, stage and progress of an analysis",
+          requestParams: { path: analysisPathSchema },
+          success: ["200", "The analysis's state.", analysisStatusSchema],
+          failures: ["404", "422"],
+        }),
+      },
+      "/api/v1/reports": {
+        get: operation({
+          operationId: "listReports",
+          summary: "The workspace's reports, newest first",
+          requestParams: { query: listReportsQuerySchema },
+          success: ["200", "Matching reports.", reportListSchema],
+          failures: ["422"],
+        }),
+      },
+      "/api/v1/reports/{reportId}": {
+        get: operation({
+          operationId: "getReportSummary",
+          summary: "A report's JSON summary (the CLI's output)",
+          requestParams: { path: reportPathSchema },
+          success: ["200", "The summary.", partitionSummarySchema],
+          failures: ["404", "422"],
+        }),
+      },
+      "/api/v1/openapi.json": {
+        get: {
+          operationId: "getOpenApiDocument",
+          summary: "This document",
+          security: [],
+          responses: { "200": { description: "The OpenAPI 3.1 description of /api/v1." } },
+        },
+      },
+    },
+  });
+}

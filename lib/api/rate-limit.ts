@@ -1,0 +1,28 @@
+import { RateLimiterMemory, RateLimiterRes } from "rate-limiter-flexible";
+import { rateLimited } from "./errors";
+
+/**
+ * Requests per token per minute. A pipeline polling an analysis once a second uses 60, and an
+ * upload of a 2 GiB file in 64 MiB parts a few dozen more, so only a runaway loop reaches it.
+ */
+export const API_REQUESTS_PER_MINUTE = 240;
+
+// In process memory, like the sign-in limits (lib/auth/rate-limit.ts): one app process serves an
+// installation today; several would share the package's PostgreSQL store instead.
+const perToken = new RateLimiterMemory({
+  keyPrefix: "api-token",
+  points: API_REQUESTS_PER_MINUTE,
+  duration: 60,
+});
+
+/** Counts one request of a token; throws a 429 ApiError (with Retry-After) once the minute is spent. */
+export async function consumeApiRequest(tokenId: string): Promise<void> {
+  try {
+    await perToken.consume(tokenId);
+  } catch (rejection) {
+    if (rejection instanceof RateLimiterRes) {
+      throw rateLimited(Math.max(1, Math.ceil(rejection.msBeforeNext / 1000)));
+    }
+    throw rejection;
+  }
+}

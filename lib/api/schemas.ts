@@ -1,0 +1,175 @@
+import { z } from "zod";
+import { VERDICTS } from "@/lib/reports/report-filters";
+import { DATA_FILE_KINDS } from "@/lib/uploads/file-rules";
+
+// Schemas the API reads (queries, path ids) and those it answers with, for validation and for the
+// OpenAPI description. Request bodies reuse the product's own schemas (lib/validation), so the
+// API, the upload form and the analysis form accept exactly the same input.
+
+const resourceId = z.string().trim().min(1).max(100);
+
+export const analysisPathSchema = z.object({
+  analysisId: resourceId.meta({ description: "The id returned by POST /api/v1/analyses." }),
+});
+
+export const reportPathSchema = z.object({
+  reportId: resourceId.meta({ description: "A report id, e.g. from GET /api/v1/reports." }),
+});
+
+/** GET /api/v1/reports: unlike the list page, a bad filter is the caller's mistake (422). */
+export const listReportsQuerySchema = z.object({
+  verdict: z.enum(VERDICTS).optional().meta({ description: "Only reports with this verdict." }),
+  q: z
+    .string()
+    .trim()
+    .min(1)
+    .max(100)
+    .optional()
+    .meta({ description: "Only reports whose title contains this text." }),
+  limit: z.coerce
+    .number()
+    .int()
+    .min(1)
+    .max(100)
+    .default(50)
+    .meta({ description: "How many reports, newest first (1–100)." }),
+});
+
+export const apiErrorSchema = z
+  .object({
+    error: z.object({
+      code: z.string().meta({
+        description:
+          "Stable: missing_token, invalid_token, token_expired, token_revoked, token_no_access, " +
+          "forbidden, not_found, invalid, conflict, gone, rate_limited, internal.",
+      }),
+      message: z.string().meta({ description: "Written for a person; safe to show." }),
+      fieldErrors: z
+        .record(z.string(), z.string())
+        .optional()
+        .meta({ description: "The first problem per input field, keyed by its dotted path." }),
+    }),
+  })
+  .meta({ id: "Error" });
+
+export const callerSchema = z
+  .object({
+    workspace: z.object({ id: z.string(), name: z.string() }),
+    role: z.enum(["owner", "analyst", "reviewer"]),
+    user: z.object({ id: z.string(), email: z.string() }),
+    token: z.object({ name: z.string() }),
+  })
+  .meta({ id: "Caller" });
+
+export const uploadTicketSchema = z
+  .discriminatedUnion("method", [
+    z.object({
+      method: z.literal("single"),
+      key: z.string(),
+      url: z.string().meta({ description: "PUT the whole file here within 5 minutes." }),
+      headers: z
+        .record(z.string(), z.string())
+        .meta({ description: "Headers the PUT must carry exactly." }),
+    }),
+    z.object({
+      method: z.literal("multipart"),
+      key: z.string(),
+      uploadId: z.string(),
+      partSize: z.number().int().meta({ description: "Bytes per part; the last may be shorter." }),
+      parts: z.array(z.object({ partNumber: z.number().int(), url: z.string() })),
+    }),
+  ])
+  .meta({ id: "UploadTicket" });
+
+export const signedPartsSchema = z.object({
+  parts: z.array(z.object({ partNumber: z.number().int(), url: z.string() })),
+});
+
+export const completedUploadSchema = z.object({ key: z.string() });
+
+export const dataFileSchema = z
+  .object({
+    id: z.string(),
+    kind: z.enum(DATA_FILE_KINDS),
+    name: z.string(),
+    sizeBytes: z.number().int(),
+    createdAt: z.iso.datetime(),
+    preview: z
+      .object({
+        columns: z.array(
+          z.object({
+            name: z.string(),
+            type: z.enum(["numeric", "categorical", "empty"]),
+            distinct: z.number().int(),
+          }),
+        ),
+        rows: z.array(z.array(z.string())),
+        truncated: z.boolean(),
+      })
+      .nullable(),
+  })
+  .meta({ id: "DataFile" });
+
+export const queuedAnalysisSchema = z
+  .object({
+    analysisId: z.string(),
+    statusUrl: z.string().meta({ description: "Poll this for status and progress." }),
+  })
+  .meta({ id: "QueuedAnalysis" });
+
+const ANALYSIS_STAGES = ["reading", "encoding", "fitting", "measuring", "advising"] as const;
+
+export const analysisStatusSchema = z
+  .object({
+    status: z.enum(["queued", "running", "succeeded", "failed", "cancelled"]),
+    stage: z.enum(ANALYSIS_STAGES).nullable(),
+    fraction: z.number().meta({ description: "Progress within the stage, 0 to 1." }),
+    progress: z.number().meta({ description: "Overall progress, 0 to 1." }),
+    failureMessage: z.string().nullable(),
+    attempts: z.number().int(),
+    reportId: z.string().nullable().meta({ description: "Set once the analysis succeeded." }),
+    title: z.string(),
+    createdAt: z.iso.datetime(),
+    startedAt: z.iso.datetime().nullable(),
+    finishedAt: z.iso.datetime().nullable(),
+  })
+  .meta({ id: "AnalysisStatus" });
+
+export const reportListSchema = z
+  .object({
+    reports: z.array(
+      z.object({
+        id: z.string(),
+        title: z.string(),
+        verdict: z.enum(VERDICTS),
+        version: z.number().int(),
+        latestVersion: z.number().int(),
+        lineageId: z.string(),
+        createdAt: z.iso.datetime(),
+        authorName: z.string(),
+        ratio: z.number().nullable().meta({ description: "Local / minibatch bound ratio ρ." }),
+        datasetRows: z.number().int(),
+        shardCount: z.number().int(),
+      }),
+    ),
+  })
+  .meta({ id: "ReportList" });
+
+export const partitionSummarySchema = z
+  .looseObject({
+    engineVersion: z.string(),
+    dataset: z.looseObject({}),
+    shards: z.array(z.looseObject({})),
+    labelSkew: z.looseObject({}),
+    quantitySkew: z.looseObject({}),
+    model: z.looseObject({}),
+    heterogeneity: z.looseObject({}),
+    advice: z.looseObject({ verdict: z.enum(VERDICTS) }),
+    preprocessing: z.looseObject({}),
+  })
+  .meta({
+    id: "PartitionSummary",
+    description:
+      "The report's JSON summary, byte for byte what `npm run analyze` prints for the same input " +
+      "and parameters and what the report page's JSON export downloads.",
+  });

@@ -1,0 +1,58 @@
+import "server-only";
+import { findApiTokenGrant, recordApiTokenUse } from "@/db/queries/api-tokens";
+import type { WorkspaceSummary } from "@/db/queries/workspaces";
+import {
+  expiredToken,
+  formerMemberToken,
+  missingToken,
+  revokedToken,
+  unknownToken,
+} from "@/lib/api/errors";
+import { consumeApiRequest } from "@/lib/api/rate-limit";
+import { forbidden } from "./errors";
+import { hashApiToken, looksLikeApiToken } from "./api-token-secret";
+import { roleAllows, type Capability } from "./roles";
+import type { SessionUser } from "./session";
+
+export type TokenCaller = {
+  user: SessionUser;
+  workspace: WorkspaceSummary;
+  tokenId: string;
+  tokenName: string;
+};
+
+function readBearerToken(request: Request): string {
+  const header = request.headers.get("authorization") ?? "";
+  const match = /^Bearer\s+(\S+)\s*$/i.exec(header);
+  if (!match) throw missingToken();
+  return match[1];
+}
+
+/**
+ * First line of every /api/v1 handler, the API's requireRole: the bearer token names a user and a
+ * workspace, and the user's role there is read from the database on every request, so a role
+ * change or a removal takes effect at once. Then the same capability check as requireRole, the
+ * per-token rate limit, and the token's last use is recorded.
+ */
+export async function requireToken(
+  request: Request,
+  capability: Capability,
+  now = new Date(),
+): Promise<TokenCaller> {
+  const token = readBearerToken(request);
+  if (!looksLikeApiToken(token)) throw unknownToken();
+  const grant = await findApiTokenGrant(hashApiToken(token));
+  if (!grant) throw unknownToken();
+  if (grant.revokedAt) throw revokedToken();
+  if (grant.expiresAt <= now) throw expiredToken(grant.expiresAt);
+  if (!grant.role) throw formerMemberToken();
+  await consumeApiRequest(grant.tokenId);
+  await recordApiTokenUse(grant.tokenId, now);
+  if (!roleAllows(grant.role, capability)) throw forbidden();
+  return {
+    user: grant.user,
+    workspace: { ...grant.workspace, role: grant.role },
+    tokenId: grant.tokenId,
+    tokenName: grant.tokenName,
+  };
+}
