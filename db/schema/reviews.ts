@@ -107,6 +107,16 @@ export const reviewDecisions = pgTable(
   (table) => [index("review_decisions_report_idx").on(table.reportId, table.createdAt)],
 );
 
+/** Every kind of event the audit log records; the column is text so a new kind needs no migration. */
+export const AUDIT_ACTIONS = [
+  "member.invited",
+  "member.role-changed",
+  "member.removed",
+  "review.requested",
+  "review.decided",
+] as const;
+export type AuditAction = (typeof AUDIT_ACTIONS)[number];
+
 /**
  * The workspace's record of who did what. Append-only: the product has no update or delete path,
  * and the migration adds a trigger that makes PostgreSQL refuse UPDATE, DELETE and TRUNCATE.
@@ -122,7 +132,7 @@ export const auditLog = pgTable(
     workspaceId: text("workspace_id").notNull(),
     actorId: text("actor_id").notNull(),
     actorEmail: text("actor_email").notNull(),
-    action: text("action").notNull(),
+    action: text("action").$type<AuditAction>().notNull(),
     targetType: text("target_type").notNull(),
     targetId: text("target_id").notNull(),
     details: jsonb("details").$type<Record<string, unknown>>().notNull().default({}),
@@ -134,12 +144,14 @@ export const auditLog = pgTable(
   ],
 );
 
-export const notificationKind = pgEnum("notification_kind", [
+export const NOTIFICATION_KINDS = [
   "review-requested",
   "decision-made",
   "mentioned",
   "analysis-finished",
-]);
+] as const;
+export type NotificationKind = (typeof NOTIFICATION_KINDS)[number];
+export const notificationKind = pgEnum("notification_kind", NOTIFICATION_KINDS);
 
 /** A user's choice per kind of e-mail. No row means the default: the e-mail is sent. */
 export const notificationPreferences = pgTable(

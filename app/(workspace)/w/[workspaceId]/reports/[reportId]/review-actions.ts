@@ -1,0 +1,197 @@
+"use server";
+
+import { revalidatePath } from "next/cache";
+import { recordAudit } from "@/db/queries/audit";
+import {
+  addComment,
+  createReviewRequests,
+  listRequesters,
+  listWorkspacePeople,
+  recordDecision,
+  requireReportInWorkspace,
+  type ReportForReview,
+} from "@/db/queries/reviews";
+import { failWith, succeed, type ActionResult } from "@/lib/actions/result";
+import { requireRole } from "@/lib/auth/guards";
+import { deliverNotification } from "@/lib/notifications/deliver";
+import { linkTo, notificationSettingsPath, reportPath } from "@/lib/notifications/links";
+import {
+  decisionMadeMessage,
+  mentionedMessage,
+  reviewRequestedMessage,
+} from "@/lib/notifications/messages";
+import { findMentionedMembers } from "@/lib/reviews/mentions";
+import {
+  commentSchema,
+  decisionSchema,
+  reviewRequestSchema,
+  type CommentInput,
+  type DecisionInput,
+  type ReviewRequestInput,
+} from "@/lib/reviews/review-input";
+
+function reportRef(report: ReportForReview) {
+  return {
+    title: report.title,
+    version: report.version,
+    url: linkTo(reportPath(report.workspaceId, report.id)),
+  };
+}
+
+const settingsUrl = (workspaceId: string) => linkTo(notificationSettingsPath(workspaceId));
+
+/** An analyst (or owner) asks chosen owners/reviewers to review this version; each gets an e-mail. */
+export async function requestReview(
+  workspaceId: string,
+  reportId: string,
+  input: ReviewRequestInput,
+): Promise<ActionResult<{ asked: number }>> {
+  try {
+    const { user, workspace } = await requireRole(workspaceId, "requestReview");
+    const values = reviewRequestSchema.parse(input);
+    const report = await requireReportInWorkspace(workspace.id, reportId);
+    const asked = await createReviewRequests({
+      report,
+      requestedBy: user.id,
+      reviewerIds: values.reviewerIds,
+      note: values.note,
+    });
+    if (asked.length > 0) {
+      await recordAudit({
+        workspaceId: workspace.id,
+        actor: user,
+        action: "review.requested",
+        targetType: "report",
+        targetId: report.id,
+        details: {
+          title: report.title,
+          version: report.version,
+          reviewers: asked.map((person) => person.email),
+        },
+      });
+    }
+    await Promise.all(
+      asked.map((person) =>
+        deliverNotification({
+          workspaceId: workspace.id,
+          recipient: person,
+          kind: "review-requested",
+          message: reviewRequestedMessage({
+            report: reportRef(report),
+            requesterName: user.name ?? user.email,
+            workspaceName: workspace.name,
+            note: values.note,
+            settingsUrl: settingsUrl(workspace.id),
+          }),
+        }),
+      ),
+    );
+    revalidatePath(reportPath(workspace.id, report.id));
+    return succeed({ asked: asked.length });
+  } catch (error) {
+    return failWith(error, "request-review");
+  }
+}
+
+/** A comment (or a reply) on this version; members it @mentions get an e-mail. */
+export async function postComment(
+  workspaceId: string,
+  reportId: string,
+  input: CommentInput,
+): Promise<ActionResult<{ commentId: string; mentioned: number }>> {
+  try {
+    const { user, workspace } = await requireRole(workspaceId, "commentOnReport");
+    const values = commentSchema.parse(input);
+    const report = await requireReportInWorkspace(workspace.id, reportId);
+    const members = await listWorkspacePeople(workspace.id);
+    const mentioned = findMentionedMembers(values.body, members).filter(
+      (member) => member.userId !== user.id,
+    );
+    const { id } = await addComment({
+      report,
+      authorId: user.id,
+      body: values.body,
+      parentId: values.parentId,
+      anchorKind: values.anchorKind,
+      anchor: values.anchor,
+      mentions: mentioned.map((member) => member.userId),
+    });
+    await Promise.all(
+      mentioned.map((member) =>
+        deliverNotification({
+          workspaceId: workspace.id,
+          recipient: member,
+          kind: "mentioned",
+          message: mentionedMessage({
+            report: reportRef(report),
+            authorName: user.name ?? user.email,
+            body: values.body,
+            settingsUrl: settingsUrl(workspace.id),
+          }),
+        }),
+      ),
+    );
+    revalidatePath(reportPath(workspace.id, report.id));
+    return succeed({ commentId: id, mentioned: mentioned.length });
+  } catch (error) {
+    return failWith(error, "post-comment");
+  }
+}
+
+/**
+ * A reviewer's (or owner's) approve / request changes on this version, with a reason. Audited, and
+ * everyone who requested the review gets an e-mail.
+ */
+export async function decideReview(
+  workspaceId: string,
+  reportId: string,
+  input: DecisionInput,
+): Promise<ActionResult<{ decisionId: string }>> {
+  try {
+    const { user, workspace } = await requireRole(workspaceId, "decideReview");
+    const values = decisionSchema.parse(input);
+    const report = await requireReportInWorkspace(workspace.id, reportId);
+    const { id } = await recordDecision({
+      report,
+      reviewerId: user.id,
+      decision: values.decision,
+      reason: values.reason,
+    });
+    await recordAudit({
+      workspaceId: workspace.id,
+      actor: user,
+      action: "review.decided",
+      targetType: "report",
+      targetId: report.id,
+      details: {
+        title: report.title,
+        version: report.version,
+        decision: values.decision,
+        reason: values.reason,
+      },
+    });
+    const requesters = (await listRequesters(report.id)).filter(
+      (person) => person.userId !== user.id,
+    );
+    await Promise.all(
+      requesters.map((person) =>
+        deliverNotification({
+          workspaceId: workspace.id,
+          recipient: person,
+          kind: "decision-made",
+          message: decisionMadeMessage({
+            report: reportRef(report),
+            reviewerName: user.name ?? user.email,
+            decision: values.decision,
+            reason: values.reason,
+            settingsUrl: settingsUrl(workspace.id),
+          }),
+        }),
+      ),
+    );
+    revalidatePath(reportPath(workspace.id, report.id));
+    return succeed({ decisionId: id });
+  } catch (error) {
+    return failWith(error, "decide-review");
+  }
+}

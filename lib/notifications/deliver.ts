@@ -1,0 +1,55 @@
+import { RateLimiterMemory, RateLimiterRes } from "rate-limiter-flexible";
+import { wantsEmail } from "@/db/queries/notification-preferences";
+import type { NotificationKind } from "@/db/schema";
+import { sendMail } from "@/lib/mail";
+import type { NotificationMessage } from "./messages";
+
+/**
+ * Limits on notification e-mail, so a loop of comments or requests cannot flood an inbox or the
+ * relay: per recipient within a workspace, and per workspace overall. In process memory, like the
+ * sign-in limits (lib/auth/rate-limit.ts): one app process and one worker serve an installation.
+ */
+const perRecipient = new RateLimiterMemory({
+  keyPrefix: "mail-recipient",
+  points: 20,
+  duration: 10 * 60,
+});
+const perWorkspace = new RateLimiterMemory({
+  keyPrefix: "mail-workspace",
+  points: 300,
+  duration: 60 * 60,
+});
+
+export type DeliveryOutcome = "sent" | "turned-off" | "rate-limited" | "failed";
+
+/**
+ * Sends one notification unless the recipient turned this kind off or a limit is spent. Never
+ * throws: the action that caused the e-mail already happened, so a mail problem is logged (without
+ * the address) and reported as an outcome rather than undoing or failing the action.
+ */
+export async function deliverNotification(input: {
+  workspaceId: string;
+  recipient: { userId: string; email: string };
+  kind: NotificationKind;
+  message: NotificationMessage;
+}): Promise<DeliveryOutcome> {
+  try {
+    if (!(await wantsEmail(input.recipient.userId, input.kind))) return "turned-off";
+    await Promise.all([
+      perRecipient.consume(`${input.workspaceId}:${input.recipient.userId}`),
+      perWorkspace.consume(input.workspaceId),
+    ]);
+    await sendMail({ to: input.recipient.email, ...input.message });
+    return "sent";
+  } catch (error) {
+    if (error instanceof RateLimiterRes) {
+      console.warn(`[notifications] ${input.kind} e-mail skipped: rate limit reached`);
+      return "rate-limited";
+    }
+    console.error(
+      `[notifications] ${input.kind} e-mail failed:`,
+      error instanceof Error ? error.message : error,
+    );
+    return "failed";
+  }
+}

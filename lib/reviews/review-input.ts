@@ -1,0 +1,40 @@
+import { z } from "zod";
+
+export const reviewRequestSchema = z.object({
+  reviewerIds: z
+    .array(z.string().min(1))
+    .min(1, "Choose at least one reviewer.")
+    .max(20, "Ask at most 20 reviewers at once."),
+  note: z.string().trim().max(2000, "Keep the note under 2,000 characters.").optional(),
+});
+
+export const commentSchema = z
+  .object({
+    body: z
+      .string()
+      .trim()
+      .min(1, "Write a comment first.")
+      .max(10_000, "Keep a comment under 10,000 characters."),
+    parentId: z.string().min(1).optional(),
+    anchorKind: z.enum(["section", "shard"]).optional(),
+    anchor: z.string().trim().min(1).max(200).optional(),
+  })
+  .refine((value) => (value.anchorKind === undefined) === (value.anchor === undefined), {
+    message: "A pinned comment needs both what it is pinned to and its name.",
+    path: ["anchor"],
+  });
+
+export const decisionSchema = z.object({
+  decision: z.enum(["approve", "changes-requested"], {
+    message: "Choose approve or request changes.",
+  }),
+  reason: z
+    .string()
+    .trim()
+    .min(1, "Give a reason: the analyst reads it in the e-mail.")
+    .max(5000, "Keep the reason under 5,000 characters."),
+});
+
+export type ReviewRequestInput = z.input<typeof reviewRequestSchema>;
+export type CommentInput = z.input<typeof commentSchema>;
+export type DecisionInput = z.input<typeof decisionSchema>;
