@@ -1,8 +1,9 @@
 "use server";
 
 import { revalidatePath } from "next/cache";
+import { recordAudit } from "@/db/queries/audit";
 import { createInvitation } from "@/db/queries/invitations";
-import { updateMembership } from "@/db/queries/members";
+import { listMembers, updateMembership } from "@/db/queries/members";
 import { failWith, succeed, type ActionResult } from "@/lib/actions/result";
 import { invitationMessage } from "@/lib/auth/emails";
 import { requireRole } from "@/lib/auth/guards";
@@ -23,6 +24,14 @@ export async function inviteMember(
       invitedBy: user.id,
       email: values.email,
       role: values.role,
+    });
+    await recordAudit({
+      workspaceId,
+      actor: user,
+      action: "member.invited",
+      targetType: "invitation",
+      targetId: values.email,
+      details: { email: values.email, role: values.role },
     });
     await sendMail({
       to: values.email,
@@ -46,9 +55,18 @@ export async function changeMemberRole(
   input: { userId: string; role: string },
 ): Promise<ActionResult> {
   try {
-    await requireRole(workspaceId, "manageMembers");
+    const { user } = await requireRole(workspaceId, "manageMembers");
     const values = roleChangeSchema.parse(input);
+    const before = await findMember(user.id, workspaceId, values.userId);
     await updateMembership(workspaceId, values.userId, values.role);
+    await recordAudit({
+      workspaceId,
+      actor: user,
+      action: "member.role-changed",
+      targetType: "member",
+      targetId: values.userId,
+      details: { email: before?.email, from: before?.role, to: values.role },
+    });
     revalidatePath(`/w/${workspaceId}/members`);
     return succeed();
   } catch (error) {
@@ -58,11 +76,26 @@ export async function changeMemberRole(
 
 export async function removeMember(workspaceId: string, userId: string): Promise<ActionResult> {
   try {
-    await requireRole(workspaceId, "manageMembers");
+    const { user } = await requireRole(workspaceId, "manageMembers");
+    const before = await findMember(user.id, workspaceId, userId);
     await updateMembership(workspaceId, userId, null);
+    await recordAudit({
+      workspaceId,
+      actor: user,
+      action: "member.removed",
+      targetType: "member",
+      targetId: userId,
+      details: { email: before?.email, role: before?.role },
+    });
     revalidatePath(`/w/${workspaceId}/members`);
     return succeed();
   } catch (error) {
     return failWith(error, "remove-member");
   }
+}
+
+/** The member as they were before a change, so the audit entry can say who and from what. */
+async function findMember(actorId: string, workspaceId: string, userId: string) {
+  const members = await listMembers(actorId, workspaceId);
+  return members.find((member) => member.userId === userId);
 }
