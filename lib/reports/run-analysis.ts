@@ -6,6 +6,7 @@ import {
 } from "@/db/queries/analyses";
 import { storeReport } from "@/db/queries/report-store";
 import type { AnalysisJob } from "@/lib/jobs";
+import { notifyAnalysisEnded, type EndedRun } from "@/lib/notifications/analysis-ended";
 import { runEngineInThread } from "./engine-thread";
 import type { StoredFile } from "./hashed-object";
 import { createProgressWriter } from "./progress-writer";
@@ -52,6 +53,16 @@ export async function runAnalysis(job: AnalysisJob, options: RunOptions): Promis
   const analysis = await claimAnalysis(job.workspaceId, job.analysisId);
   if (!analysis) return { outcome: "skipped" };
 
+  // A long run e-mails whoever started it at the end (lib/notifications/analysis-ended.ts).
+  const notifyEnded = (run: EndedRun) =>
+    notifyAnalysisEnded({
+      ...job,
+      title: analysis.title,
+      startedBy: analysis.createdBy,
+      seconds: (performance.now() - started) / 1000,
+      run,
+    });
+
   const stoppedFromOutside = new AbortController();
   const signal = options.signal
     ? AbortSignal.any([stoppedFromOutside.signal, options.signal])
@@ -77,6 +88,7 @@ export async function runAnalysis(job: AnalysisJob, options: RunOptions): Promis
         status: "failed",
         message: result.message,
       });
+      await notifyEnded({ outcome: "failed", message: result.message });
       return { outcome: "failed", message: result.message };
     }
     const stored = await storeReport({
@@ -85,7 +97,10 @@ export async function runAnalysis(job: AnalysisJob, options: RunOptions): Promis
       inputs: result.inputs,
       timings: { ...result.stageSeconds, total: (performance.now() - started) / 1000 },
     });
-    if (stored.stored) return { outcome: "succeeded", reportId: stored.reportId };
+    if (stored.stored) {
+      await notifyEnded({ outcome: "succeeded", reportId: stored.reportId });
+      return { outcome: "succeeded", reportId: stored.reportId };
+    }
     return stored.status === "cancelled" ? { outcome: "cancelled" } : { outcome: "skipped" };
   } catch (error) {
     await progress.stop();
@@ -105,6 +120,7 @@ export async function runAnalysis(job: AnalysisJob, options: RunOptions): Promis
       status: options.willRetry ? "queued" : "failed",
       message: options.willRetry ? INTERNAL_RETRY : INTERNAL_FAILURE,
     });
+    if (!options.willRetry) await notifyEnded({ outcome: "failed", message: INTERNAL_FAILURE });
     throw error;
   }
 }
