@@ -1,0 +1,372 @@
+// Every /api/v1 route × each role, no token, an expired or revoked token, and a token of another
+// workspace, against PostgreSQL and the S3 fake that `npm test` starts. The expected statuses are
+// written out by hand from issue 5 and product.md (reviewers read but never upload or analyse;
+// nobody sees another workspace), not derived from lib/auth/roles.ts. Open data: penguins from the
+// `vega-datasets` npm package (BSD-3), split by island.
+import { randomUUID } from "node:crypto";
+import { eq } from "drizzle-orm";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { POST as startAnalysis } from "@/app/api/v1/analyses/route";
+import { GET as getAnalysis } from "@/app/api/v1/analyses/[analysisId]/route";
+import { POST as registerFile } from "@/app/api/v1/files/route";
+import { GET as listReports } from "@/app/api/v1/reports/route";
+import { GET as getReport } from "@/app/api/v1/reports/[reportId]/route";
+import { POST as abortUpload } from "@/app/api/v1/uploads/abort/route";
+import { POST as completeUpload } from "@/app/api/v1/uploads/complete/route";
+import { POST as signParts } from "@/app/api/v1/uploads/parts/route";
+import { POST as createUpload } from "@/app/api/v1/uploads/route";
+import { GET as getCaller } from "@/app/api/v1/workspace/route";
+import { closeDb, db } from "@/db/client";
+import { apiTokens } from "@/db/schema";
+import { API_REQUESTS_PER_MINUTE } from "@/lib/api/rate-limit";
+import { analysisStatusSchema, reportListSchema, uploadTicketSchema } from "@/lib/api/schemas";
+import { createMultipartUpload, presignUploadPart, putObject } from "@/lib/storage";
+import { buildUploadKey } from "@/lib/uploads/file-rules";
+import { registerUpload } from "@/lib/uploads/register-upload";
+import { loadPenguinsCsv } from "@/tests/lib/analysis/support/open-data";
+import { createAccount, createTeam } from "@/tests/support/accounts";
+import { apiRequest, issueTestToken } from "@/tests/support/api-tokens";
+import { insertReport, printPenguinsSummaryWithCli } from "@/tests/support/report-fixtures";
+
+afterAll(closeDb);
+
+type Team = Awaited<ReturnType<typeof createTeam>>;
+type Fixtures = {
+  team: Team;
+  tokens: Record<"owner" | "analyst" | "reviewer" | "stranger" | "expired" | "revoked", string>;
+  datasetKey: string;
+  datasetFileId: string;
+  analysisId: string;
+  reportId: string;
+  cliOutput: string;
+};
+
+let fixtures: Fixtures;
+
+async function storePenguins(workspaceId: string): Promise<string> {
+  const body = Buffer.from(loadPenguinsCsv().csv);
+  const key = buildUploadKey(workspaceId, "penguins.csv", randomUUID());
+  await putObject({ key, body, contentLength: body.length, contentType: "text/csv" });
+  return key;
+}
+
+beforeAll(async () => {
+  const team = await createTeam();
+  const stranger = await createAccount("stranger");
+  const cliOutput = await printPenguinsSummaryWithCli();
+  const { reportId, analysisId } = await insertReport({
+    workspaceId: team.workspaceId,
+    authorId: team.analyst.id,
+    summary: JSON.parse(cliOutput),
+    title: "Penguins by island",
+  });
+  const datasetKey = await storePenguins(team.workspaceId);
+  const dataset = await registerUpload(team.workspaceId, team.owner.id, {
+    key: datasetKey,
+    name: "penguins.csv",
+    kind: "dataset",
+  });
+  const issue = (userId: string, workspaceId = team.workspaceId, expiresAt?: Date) =>
+    issueTestToken(userId, workspaceId, expiresAt).then(({ token }) => token);
+  const revoked = await issueTestToken(team.analyst.id, team.workspaceId);
+  await db()
+    .update(apiTokens)
+    .set({ revokedAt: new Date() })
+    .where(eq(apiTokens.id, revoked.tokenId));
+  fixtures = {
+    team,
+    tokens: {
+      owner: await issue(team.owner.id),
+      analyst: await issue(team.analyst.id),
+      reviewer: await issue(team.reviewer.id),
+      stranger: await issue(stranger.id, stranger.workspaceId),
+      expired: await issue(team.analyst.id, team.workspaceId, new Date(Date.now() - 60_000)),
+      revoked: revoked.token,
+    },
+    datasetKey,
+    datasetFileId: dataset.id,
+    analysisId,
+    reportId,
+    cliOutput,
+  };
+});
+
+type Probe = {
+  route: string;
+  /** Status for a role allowed to call it (a well-formed request in the token's workspace). */
+  allowed: number;
+  reviewer: number;
+  /** Status for a token of another workspace naming this workspace's objects. */
+  stranger: number;
+  call: (token: string | undefined) => Promise<Response>;
+};
+
+const foreignKey = () => buildUploadKey(fixtures.team.workspaceId, "layout.csv", randomUUID());
+
+const PROBES: Probe[] = [
+  {
+    route: "GET /api/v1/workspace",
+    allowed: 200,
+    reviewer: 200,
+    stranger: 200, // it answers with the stranger's own workspace
+    call: (token) => getCaller(apiRequest("/api/v1/workspace", token)),
+  },
+  {
+    route: "POST /api/v1/uploads",
+    allowed: 201,
+    reviewer: 403,
+    stranger: 201, // a fresh key under the stranger's own workspace
+    call: (token) =>
+      createUpload(
+        apiRequest("/api/v1/uploads", token, {
+          name: "penguins.csv",
+          size: 1000,
+          kind: "dataset",
+          contentType: "text/csv",
+        }),
+      ),
+  },
+  {
+    route: "POST /api/v1/uploads/parts",
+    allowed: 200,
+    reviewer: 403,
+    stranger: 404,
+    call: (token) =>
+      signParts(
+        apiRequest("/api/v1/uploads/parts", token, {
+          key: foreignKey(),
+          uploadId: "an-upload",
+          partNumbers: [1, 2],
+        }),
+      ),
+  },
+  {
+    route: "POST /api/v1/uploads/complete",
+    allowed: 200,
+    reviewer: 403,
+    stranger: 404,
+    call: async (token) => {
+      // A real one-part multipart upload in the team's workspace, waiting to be assembled.
+      const key = foreignKey();
+      const uploadId = await createMultipartUpload({ key, contentType: "text/csv" });
+      const url = await presignUploadPart({ key, uploadId, partNumber: 1, expiresInSeconds: 60 });
+      const part = await fetch(url, { method: "PUT", body: "row_id,shard\n0,a\n" });
+      const etag = part.headers.get("etag") ?? "";
+      return completeUpload(
+        apiRequest("/api/v1/uploads/complete", token, {
+          key,
+          uploadId,
+          parts: [{ partNumber: 1, etag }],
+        }),
+      );
+    },
+  },
+  {
+    route: "POST /api/v1/uploads/abort",
+    allowed: 204,
+    reviewer: 403,
+    stranger: 404,
+    call: (token) =>
+      abortUpload(
+        apiRequest("/api/v1/uploads/abort", token, {
+          key: foreignKey(),
+          uploadId: "no-such-upload",
+        }),
+      ),
+  },
+  {
+    route: "POST /api/v1/files",
+    allowed: 201,
+    reviewer: 403,
+    stranger: 404,
+    call: (token) =>
+      registerFile(
+        apiRequest("/api/v1/files", token, {
+          key: fixtures.datasetKey,
+          name: "penguins.csv",
+          kind: "dataset",
+        }),
+      ),
+  },
+  {
+    route: "POST /api/v1/analyses",
+    allowed: 202,
+    reviewer: 403,
+    stranger: 422, // the dataset id names no file in the stranger's workspace
+    call: (token) =>
+      startAnalysis(
+        apiRequest("/api/v1/analyses", token, {
+          title: "Penguins by island (API)",
+          datasetFileId: fixtures.datasetFileId,
+          options: { labelColumn: "Species", shardColumn: "Island", idColumn: "row" },
+        }),
+      ),
+  },
+  {
+    route: "GET /api/v1/analyses/{analysisId}",
+    allowed: 200,
+    reviewer: 200,
+    stranger: 404,
+    call: (token) =>
+      getAnalysis(apiRequest(`/api/v1/analyses/${fixtures.analysisId}`, token), {
+        params: Promise.resolve({ analysisId: fixtures.analysisId }),
+      }),
+  },
+  {
+    route: "GET /api/v1/reports",
+    allowed: 200,
+    reviewer: 200,
+    stranger: 200, // the stranger's own (empty) list
+    call: (token) => listReports(apiRequest("/api/v1/reports", token)),
+  },
+  {
+    route: "GET /api/v1/reports/{reportId}",
+    allowed: 200,
+    reviewer: 200,
+    stranger: 404,
+    call: (token) =>
+      getReport(apiRequest(`/api/v1/reports/${fixtures.reportId}`, token), {
+        params: Promise.resolve({ reportId: fixtures.reportId }),
+      }),
+  },
+];
+
+async function outcome(response: Response): Promise<{ status: number; code?: string }> {
+  if (response.status < 400) return { status: response.status };
+  const body = (await response.json()) as { error: { code: string; message: string } };
+  expect(body.error.message.length).toBeGreaterThan(0);
+  return { status: response.status, code: body.error.code };
+}
+
+describe("/api/v1 access", () => {
+  it.each(PROBES.map((probe) => [probe.route, probe] as const))(
+    "%s answers each caller as expected",
+    async (_route, probe) => {
+      const { tokens } = fixtures;
+      const seen = {
+        owner: (await outcome(await probe.call(tokens.owner))).status,
+        analyst: (await outcome(await probe.call(tokens.analyst))).status,
+        reviewer: await outcome(await probe.call(tokens.reviewer)),
+        none: await outcome(await probe.call(undefined)),
+        expired: await outcome(await probe.call(tokens.expired)),
+        revoked: await outcome(await probe.call(tokens.revoked)),
+        stranger: (await outcome(await probe.call(tokens.stranger))).status,
+      };
+      expect(seen).toEqual({
+        owner: probe.allowed,
+        analyst: probe.allowed,
+        reviewer:
+          probe.reviewer === 403 ? { status: 403, code: "forbidden" } : { status: probe.reviewer },
+        none: { status: 401, code: "missing_token" },
+        expired: { status: 401, code: "token_expired" },
+        revoked: { status: 401, code: "token_revoked" },
+        stranger: probe.stranger,
+      });
+    },
+  );
+
+  it("never lists another workspace's reports", async () => {
+    const response = await listReports(apiRequest("/api/v1/reports", fixtures.tokens.stranger));
+    expect(reportListSchema.parse(await response.json()).reports).toEqual([]);
+  });
+});
+
+describe("/api/v1 answers", () => {
+  it("serves the report's summary byte for byte as the CLI printed it", async () => {
+    const response = await getReport(
+      apiRequest(`/api/v1/reports/${fixtures.reportId}`, fixtures.tokens.reviewer),
+      { params: Promise.resolve({ reportId: fixtures.reportId }) },
+    );
+    expect(response.headers.get("content-type")).toBe("application/json; charset=utf-8");
+    expect(await response.text()).toBe(fixtures.cliOutput);
+  });
+
+  it("lists reports and analysis status in the documented shapes", async () => {
+    const list = await listReports(
+      apiRequest("/api/v1/reports?verdict=large-minibatch&limit=5", fixtures.tokens.reviewer),
+    );
+    const reports = reportListSchema.parse(await list.json()).reports;
+    const verdict = JSON.parse(fixtures.cliOutput).advice.verdict;
+    expect(reports.map((report) => report.id)).toEqual(
+      verdict === "large-minibatch" ? [fixtures.reportId] : [],
+    );
+    const status = await getAnalysis(
+      apiRequest(`/api/v1/analyses/${fixtures.analysisId}`, fixtures.tokens.reviewer),
+      { params: Promise.resolve({ analysisId: fixtures.analysisId }) },
+    );
+    expect(analysisStatusSchema.parse(await status.json())).toMatchObject({
+      status: "succeeded",
+      progress: 1,
+      reportId: fixtures.reportId,
+    });
+  });
+
+  it("takes a file through an upload URL it issued, then registers it with a preview", async () => {
+    const { islandMap } = loadPenguinsCsv();
+    const ticketResponse = await createUpload(
+      apiRequest("/api/v1/uploads", fixtures.tokens.analyst, {
+        name: "islands.csv",
+        size: Buffer.byteLength(islandMap),
+        kind: "layout",
+      }),
+    );
+    const ticket = uploadTicketSchema.parse(await ticketResponse.json());
+    if (ticket.method !== "single") throw new Error("a small file is sent in one PUT");
+    const put = await fetch(ticket.url, {
+      method: "PUT",
+      headers: ticket.headers,
+      body: islandMap,
+    });
+    expect(put.status).toBe(200);
+    const registered = await registerFile(
+      apiRequest("/api/v1/files", fixtures.tokens.analyst, {
+        key: ticket.key,
+        name: "islands.csv",
+        kind: "layout",
+      }),
+    );
+    expect(registered.status).toBe(201);
+    const file = (await registered.json()) as { kind: string; preview: { columns: unknown[] } };
+    expect(file.kind).toBe("layout");
+    expect(file.preview.columns).toMatchObject([{ name: "row_id" }, { name: "shard" }]);
+  });
+
+  it("answers malformed input with 422, a stable code and field errors", async () => {
+    const noOptions = await startAnalysis(
+      apiRequest("/api/v1/analyses", fixtures.tokens.analyst, { datasetFileId: "x" }),
+    );
+    expect(noOptions.status).toBe(422);
+    expect(await noOptions.json()).toMatchObject({
+      error: { code: "invalid", fieldErrors: { options: expect.any(String) } },
+    });
+    const badLimit = await listReports(
+      apiRequest("/api/v1/reports?limit=0", fixtures.tokens.analyst),
+    );
+    expect(badLimit.status).toBe(422);
+    const notJson = await registerFile(
+      new Request("http://partita.test/api/v1/files", {
+        method: "POST",
+        headers: { authorization: `Bearer ${fixtures.tokens.analyst}` },
+        body: "key=1",
+      }),
+    );
+    expect([
+      notJson.status,
+      ((await notJson.json()) as { error: { code: string } }).error.code,
+    ]).toEqual([422, "invalid"]);
+  });
+
+  it("limits each token's requests per minute with 429 and Retry-After", async () => {
+    const { token } = await issueTestToken(fixtures.team.reviewer.id, fixtures.team.workspaceId);
+    for (let request = 0; request < API_REQUESTS_PER_MINUTE; request += 1) {
+      expect((await getCaller(apiRequest("/api/v1/workspace", token))).status).toBe(200);
+    }
+    const limited = await getCaller(apiRequest("/api/v1/workspace", token));
+    expect(limited.status).toBe(429);
+    expect(Number(limited.headers.get("retry-after"))).toBeGreaterThan(0);
+    expect(((await limited.json()) as { error: { code: string } }).error.code).toBe("rate_limited");
+    // Another token of the same user has its own budget.
+    const other = await issueTestToken(fixtures.team.reviewer.id, fixtures.team.workspaceId);
+    expect((await getCaller(apiRequest("/api/v1/workspace", other.token))).status).toBe(200);
+  });
+});
