@@ -26,6 +26,12 @@ import { countWeightRows } from "./objective";
 import { readPartitionMap } from "./partition-map";
 import { countAvailableThreads, PassPool, type PassResult } from "./pass-pool";
 import { readDataset } from "./read-dataset";
+import {
+  checkSimulationBudget,
+  estimateSimulationCost,
+  simulatePlan,
+  type SimulationProgress,
+} from "./simulation/simulate-plan";
 import type { AnalysisProgress, PartitionSummary } from "./summary";
 import { ENGINE_VERSION } from "./version";
 
@@ -49,6 +55,10 @@ export interface PartitionInput {
    * the same bit for bit whatever the number.
    */
   threads?: number;
+  /** Cancels the simulation (`options.simulate`) between rounds; it then throws the signal's reason. */
+  signal?: AbortSignal;
+  /** Progress of the simulation by run and round. */
+  onSimulationProgress?: (progress: SimulationProgress) => void;
 }
 
 /** Data files from this size on are analysed with worker threads by default. */
@@ -129,6 +139,22 @@ async function analyzeWithPool(
       expected: `at most the number of shards (${shardCount})`,
     });
   }
+  const plan = {
+    participants,
+    localSteps: options.localSteps,
+    rounds: options.rounds,
+    batchSize: options.batchSize,
+  };
+  if (options.simulate) {
+    // Refuse before the fit, not after it: the cost is known once the design's width is.
+    const { seeds, budget } = options.simulate;
+    const weightRows = countWeightRows(design);
+    checkSimulationBudget(
+      estimateSimulationCost(plan, design.x.cols, weightRows, seeds),
+      budget,
+      plan,
+    );
+  }
   const passes = openPool(design).share(design, design.shardOffsets);
   const gram = await passes.computeGram();
   const curvature = largestEigenvalueSymmetric(
@@ -189,6 +215,22 @@ async function analyzeWithPool(
     atOptimum.zeta2,
   );
   onProgress({ stage: "advising", fraction: 1 });
+
+  const simulation = options.simulate
+    ? await simulatePlan(
+        {
+          design,
+          lambda: options.lambda,
+          optimumValue: fitted.value,
+          startValue: path[0].loss,
+          smoothness,
+          boundVerdict: advice.verdict,
+        },
+        plan,
+        options.simulate,
+        { onProgress: input.onSimulationProgress, signal: input.signal },
+      )
+    : undefined;
 
   const width = design.x.cols;
   return {
@@ -270,6 +312,7 @@ async function analyzeWithPool(
       omittedColumns: design.omittedColumns,
       warnings: design.warnings,
     },
+    ...(simulation && { simulation }),
   };
 }
 

@@ -22,11 +22,6 @@ export class ChunkedFloat64 {
     this.length++;
   }
 
-  /** The values as consecutive arrays, without copying (views; only the last may be shorter). */
-  views(): Float64Array[] {
-    return [...this.chunks, this.current.subarray(0, this.used)];
-  }
-
   /** Copies all values into one array. */
   toArray(): Float64Array {
     const out = new Float64Array(this.length);

@@ -1,4 +1,4 @@
-import { ChunkedFloat64, ChunkedInt32 } from "./chunked-arrays";
+import { ChunkedInt32 } from "./chunked-arrays";
 import { AnalysisInputError } from "./errors";
 import { isMissingToken, parseNumberToken, parseSimpleDecimal, trimToken } from "./tokens";
 
@@ -6,15 +6,15 @@ import { isMissingToken, parseNumberToken, parseSimpleDecimal, trimToken } from 
 export const MAX_ONE_HOT_LEVELS = 32;
 
 /**
- * Collects one column of the dataset while it streams by, without keeping its strings: the numeric
- * value of every kept row (NaN when missing) and, while the column has few distinct values, a code
- * per row into a dictionary of its distinct tokens. Whether the column is numeric or categorical is
- * only known at the end, and both views are kept until then; a dictionary that outgrows its limit
- * is dropped (such a column can only end up numeric or too varied to encode).
+ * Follows one column of the dataset while it streams by, without keeping its strings: `add` turns
+ * each field into its numeric value (NaN when missing or not a number) for the caller to store, and
+ * while the column has few distinct values the accumulator keeps a code per row into a dictionary
+ * of its distinct tokens. Whether the column is numeric or categorical is only known at the end, and
+ * both views are kept until then; a dictionary that outgrows its limit is dropped (such a column can
+ * only end up numeric or too varied to encode).
  */
 export class ColumnAccumulator {
   readonly name: string;
-  readonly values = new ChunkedFloat64();
   private codes: ChunkedInt32 | null = new ChunkedInt32();
   private readonly levelCodes = new Map<string, number>();
   private levelsDropped = false;
@@ -32,27 +32,26 @@ export class ColumnAccumulator {
     this.name = name;
   }
 
-  /** Adds one raw field of a kept row. */
-  add(field: string, rowIndex: number): void {
+  /** Takes one raw field of a kept row; returns its number, NaN when missing or not a number. */
+  add(field: string, rowIndex: number): number {
     if (this.numeric) {
       // Most fields of a numeric column are plain decimals: take them without trimming or checking
       // for missing-value tokens (a plain decimal is neither padded nor missing).
       const value = parseSimpleDecimal(field);
       if (value === value) {
-        this.values.push(value);
         if (this.codes !== null) this.addLevel(field);
-        return;
+        return value;
       }
     }
     const token = trimToken(field);
     if (isMissingToken(token)) {
       this.missingCount++;
-      this.values.push(Number.NaN);
       this.codes?.push(-1);
-      return;
+      return Number.NaN;
     }
+    let value = Number.NaN;
     if (this.numeric) {
-      const value = parseNumberToken(token);
+      value = parseNumberToken(token);
       if (value === Infinity || value === -Infinity) {
         throw new AnalysisInputError(`the value "${token}" is too large`, {
           file: this.fileName,
@@ -61,17 +60,13 @@ export class ColumnAccumulator {
           expected: "a finite number (|x| < 1.8e308) or a missing-value token",
         });
       }
-      if (value === value) {
-        this.values.push(value);
-      } else {
+      if (value !== value) {
         this.numeric = false;
         this.firstNonNumeric = { row: rowIndex, token };
-        this.values.push(Number.NaN);
       }
-    } else {
-      this.values.push(Number.NaN);
     }
     if (this.codes !== null) this.addLevel(token);
+    return value;
   }
 
   /** True when the column can be one-hot encoded or used as class labels. */
@@ -99,7 +94,6 @@ export class ColumnAccumulator {
   }
 
   release(): void {
-    this.values.release();
     this.codes?.release();
   }
 

@@ -1,5 +1,5 @@
-import { createMatrix, type Matrix } from "../math/matrix";
-import { measureMoments, measureMomentsOfChunks } from "../math/moments";
+import { createMatrix, matrixFromValues, type Matrix } from "../math/matrix";
+import { measureColumnMoments, measureMoments } from "../math/moments";
 import { quantileSorted } from "../math/quantile";
 import { CompensatedSum } from "../math/summation";
 import { compareCodePoints } from "./code-point-order";
@@ -20,6 +20,8 @@ type EncodedColumn =
   | {
       kind: "numeric";
       source: ColumnAccumulator;
+      /** Index of the source among the feature columns (its slot in `featureValues`). */
+      sourceIndex: number;
       name: string;
       mean: number;
       std: number;
@@ -36,7 +38,8 @@ type EncodedColumn =
 /**
  * Turns the raw columns into the design of methods.md §1: task and classes, shard order,
  * imputation, one-hot encoding, standardization with pooled mean and population deviation, the bias
- * column, and rows regrouped shard by shard. Releases each raw column once it is encoded.
+ * column, and rows regrouped shard by shard. When every feature column is numeric and kept — the
+ * common case — the design is built in place in the memory the values were read into.
  */
 export function encodeDesign(raw: RawDataset, requestedTask: Task | undefined): Design {
   const warnings: string[] = [];
@@ -62,10 +65,7 @@ export function encodeDesign(raw: RawDataset, requestedTask: Task | undefined): 
   const target = encodeTarget(raw, requestedTask, position);
   const columns = planFeatureColumns(raw, warnings);
   const omittedColumns = columns.omitted;
-  const width = columns.kept.length + 1;
-  // In shared memory, so the pass threads read it without a copy.
-  const x = createMatrix(rows, width, { shared: true });
-  writeDesign(columns.kept, position, x);
+  const x = encodeFeatures(raw, columns.kept, position);
   for (const feature of raw.features) feature.release();
   if (columns.kept.length === 0) {
     warnings.push("no usable feature columns: the model has only the bias");
@@ -145,7 +145,7 @@ function encodeTarget(
       expected: "a number",
     });
   }
-  const values = label.values.toArray();
+  const values = raw.labelValues;
   label.release();
   const { mean, std } = measureMoments(values);
   if (!(std >= MIN_FEATURE_STD)) {
@@ -197,21 +197,20 @@ function planFeatureColumns(
   const kept: EncodedColumn[] = [];
   const omitted: OmittedColumn[] = [];
   const rows = raw.keptRows;
-  for (const source of raw.features) {
+  const moments = measureNumericColumns(raw);
+  for (const [sourceIndex, source] of raw.features.entries()) {
     if (source.missingCount === rows) {
       omitted.push({ column: source.name, reason: "all-missing" });
       warnings.push(`column "${source.name}" has no values and was left out`);
       continue;
     }
     if (source.numeric) {
-      const chunks = source.values.views();
-      if (source.missingCount > 0) imputeMean(chunks, rows - source.missingCount);
-      const { mean, std } = measureMomentsOfChunks(chunks);
+      const { mean, std } = moments.get(sourceIndex) as { mean: number; std: number };
       if (std < MIN_FEATURE_STD) {
         omitted.push({ column: source.name, reason: "constant" });
         continue;
       }
-      kept.push({ kind: "numeric", source, name: source.name, mean, std });
+      kept.push({ kind: "numeric", source, sourceIndex, name: source.name, mean, std });
       continue;
     }
     if (!source.hasLevels) {
@@ -253,47 +252,119 @@ function planFeatureColumns(
 }
 
 /**
- * Replaces the missing values (NaN) of a numeric column in place by the mean of its present values
- * (methods.md §1).
+ * Mean and population deviation of every numeric feature column with values, after its missing
+ * values are replaced in place by the mean of its present values (methods.md §1); by source index.
  */
-function imputeMean(chunks: Float64Array[], presentCount: number): void {
-  const present = new CompensatedSum();
-  for (const values of chunks) {
-    for (let row = 0; row < values.length; row++)
-      if (values[row] === values[row]) present.add(values[row]);
+function measureNumericColumns(raw: RawDataset): Map<number, { mean: number; std: number }> {
+  const rows = raw.keptRows;
+  const stride = raw.features.length + 1;
+  const values = raw.featureValues;
+  const numeric: number[] = [];
+  raw.features.forEach((source, index) => {
+    if (source.numeric && source.missingCount < rows) numeric.push(index);
+  });
+  for (const index of numeric) {
+    if (raw.features[index].missingCount === 0) continue;
+    const present = new CompensatedSum();
+    for (let row = 0; row < rows; row++) {
+      const value = values[row * stride + index];
+      if (value === value) present.add(value);
+    }
+    const fill = present.value / (rows - raw.features[index].missingCount);
+    for (let row = 0; row < rows; row++) {
+      if (values[row * stride + index] !== values[row * stride + index]) {
+        values[row * stride + index] = fill;
+      }
+    }
   }
-  const fill = present.value / presentCount;
-  for (const values of chunks) {
-    for (let row = 0; row < values.length; row++)
-      if (values[row] !== values[row]) values[row] = fill;
-  }
+  const moments = measureColumnMoments(values, rows, stride, numeric);
+  return new Map(numeric.map((index, k) => [index, moments[k]]));
 }
 
-/** Stands in for a raw chunk already written (a subarray would keep the chunk's memory alive). */
-const EMPTY_CHUNK = new Float64Array(0);
+/**
+ * The design matrix of the kept columns: standardized features, then the bias 1, each kept row at
+ * its shard-ordered `position`, in shared memory so the pass threads read it without a copy. When
+ * the kept columns are exactly the feature columns, all numeric, the values read are standardized
+ * and reordered where they are; otherwise the design is written anew.
+ */
+function encodeFeatures(raw: RawDataset, columns: EncodedColumn[], position: Int32Array): Matrix {
+  const rows = raw.keptRows;
+  const width = columns.length + 1;
+  const inPlace =
+    columns.length === raw.features.length &&
+    columns.every((column, j) => column.kind === "numeric" && column.sourceIndex === j);
+  if (!inPlace) {
+    const x = createMatrix(rows, width, { shared: true });
+    writeDesign(raw, columns, position, x);
+    return x;
+  }
+  const values = raw.featureValues;
+  const means = Float64Array.from(columns, (column) => column.mean);
+  const inverseStds = Float64Array.from(columns, (column) => 1 / column.std);
+  for (let row = 0; row < rows; row++) {
+    const base = row * width;
+    for (let j = 0; j < width - 1; j++) {
+      values[base + j] = (values[base + j] - means[j]) * inverseStds[j];
+    }
+    values[base + width - 1] = 1;
+  }
+  permuteRowsInPlace(values, width, position);
+  return matrixFromValues(rows, width, values);
+}
+
+/**
+ * Moves row r of a row-major table to row position[r] (a permutation) in place, cycle by cycle,
+ * with one row of scratch per step; does nothing when every row is already in place.
+ */
+function permuteRowsInPlace(values: Float64Array, width: number, position: Int32Array): void {
+  const rows = position.length;
+  if (position.every((target, row) => target === row)) return;
+  const moved = new Uint8Array(rows);
+  const carried = new Float64Array(width);
+  const displaced = new Float64Array(width);
+  for (let start = 0; start < rows; start++) {
+    if (moved[start] === 1 || position[start] === start) continue;
+    carried.set(values.subarray(start * width, (start + 1) * width));
+    let source = start;
+    do {
+      const target = position[source];
+      displaced.set(values.subarray(target * width, (target + 1) * width));
+      values.set(carried, target * width);
+      carried.set(displaced);
+      moved[source] = 1;
+      source = target;
+    } while (source !== start);
+  }
+}
 
 /** Rows transposed together: their design rows (≤ 512 × width doubles) stay in cache meanwhile. */
 const TRANSPOSE_ROWS = 512;
 
 /**
- * Writes the standardized columns and the bias into the design, each kept row at its shard-ordered
- * `position`. The raw columns are stored column by column in chunks and the design row by row, so
- * rows are handled in small blocks, all columns per block, which keeps the design rows being
- * written in cache; each raw chunk is dropped once written, so the raw copy shrinks as the design
- * fills.
+ * Writes the standardized columns and the bias into a new design, each kept row at its
+ * shard-ordered `position`: numbers from the row-major values read, one-hot levels from the
+ * columns' codes (stored column by column in chunks). Rows are handled in small blocks, all
+ * columns per block, which keeps the design rows being written in cache.
  */
-function writeDesign(columns: EncodedColumn[], position: Int32Array, x: Matrix): void {
+function writeDesign(
+  raw: RawDataset,
+  columns: EncodedColumn[],
+  position: Int32Array,
+  x: Matrix,
+): void {
   const width = x.cols;
   const out = x.data;
-  const chunksOfSource = new Map<ColumnAccumulator, Array<Float64Array | Int32Array>>();
-  const sourceChunks = columns.map((column) => {
-    let chunks = chunksOfSource.get(column.source);
-    if (chunks === undefined) {
-      chunks = column.kind === "numeric" ? column.source.values.views() : column.source.codeViews();
-      chunksOfSource.set(column.source, chunks);
-      column.source.release();
+  const stride = raw.features.length + 1;
+  const values = raw.featureValues;
+  const codesOfSource = new Map<ColumnAccumulator, Int32Array[]>();
+  const sourceCodes = columns.map((column) => {
+    if (column.kind === "numeric") return [];
+    let codes = codesOfSource.get(column.source);
+    if (codes === undefined) {
+      codes = column.source.codeViews();
+      codesOfSource.set(column.source, codes);
     }
-    return chunks;
+    return codes;
   });
   const scales = columns.map((column) => 1 / column.std);
   for (let chunk = 0; chunk * CHUNK_LENGTH < x.rows; chunk++) {
@@ -305,12 +376,13 @@ function writeDesign(columns: EncodedColumn[], position: Int32Array, x: Matrix):
         const column = columns[j];
         const inverseStd = scales[j];
         if (column.kind === "numeric") {
-          const values = sourceChunks[j][chunk] as Float64Array;
+          const source = column.sourceIndex;
           for (let row = blockStart; row < blockEnd; row++) {
-            out[position[row] * width + j] = (values[row - chunkStart] - column.mean) * inverseStd;
+            out[position[row] * width + j] =
+              (values[row * stride + source] - column.mean) * inverseStd;
           }
         } else {
-          const codes = sourceChunks[j][chunk] as Int32Array;
+          const codes = sourceCodes[j][chunk];
           const high = (1 - column.mean) * inverseStd;
           const low = -column.mean * inverseStd;
           for (let row = blockStart; row < blockEnd; row++) {
@@ -320,7 +392,6 @@ function writeDesign(columns: EncodedColumn[], position: Int32Array, x: Matrix):
       }
       for (let row = blockStart; row < blockEnd; row++) out[position[row] * width + width - 1] = 1;
     }
-    for (const chunks of chunksOfSource.values()) chunks[chunk] = EMPTY_CHUNK;
   }
 }
 

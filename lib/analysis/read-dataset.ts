@@ -1,9 +1,10 @@
 import type { Readable } from "node:stream";
-import { ChunkedInt32 } from "./chunked-arrays";
+import { ChunkedFloat64, ChunkedInt32 } from "./chunked-arrays";
 import { ColumnAccumulator, MAX_ONE_HOT_LEVELS } from "./column-accumulator";
 import { readCsvStream } from "./csv-reader";
 import { AnalysisInputError, listFirst } from "./errors";
 import type { PartitionMap } from "./partition-map";
+import { RowStore } from "./row-store";
 import { isMissingToken, trimToken } from "./tokens";
 
 export interface DatasetColumnChoice {
@@ -24,7 +25,14 @@ export interface RawDataset {
   droppedMissingLabel: number;
   droppedUnassigned: number;
   label: ColumnAccumulator;
+  /** The label's number per kept row (NaN when it is not a number). */
+  labelValues: Float64Array;
   features: ColumnAccumulator[];
+  /**
+   * Per kept row, the numbers of the feature columns in order (NaN where missing or not a number)
+   * and one free slot (for the bias): keptRows × (features + 1), row-major, in a SharedArrayBuffer.
+   */
+  featureValues: Float64Array;
   /** True when the user named the features (then an unusable one is an error, not a warning). */
   featuresNamed: boolean;
   /** Per kept row, an index into `shardIds`. */
@@ -60,6 +68,8 @@ export async function readDataset(
   // Assigned in the header callback; the cast keeps TypeScript from narrowing it to null.
   let label = null as ColumnAccumulator | null;
   let features: ColumnAccumulator[] = [];
+  let featureValues = new RowStore(1);
+  const labelValues = new ChunkedFloat64();
   const shardCodes = new ChunkedInt32();
   const shardIds: string[] = partition ? partition.shardIds : [];
   const shardCodeOfId = new Map<string, number>();
@@ -105,6 +115,7 @@ export async function readDataset(
       features = featureIndices.map(
         (index) => new ColumnAccumulator(header[index], fileName, MAX_ONE_HOT_LEVELS),
       );
+      featureValues = new RowStore(features.length + 1);
     },
     onRow(fields, rowIndex) {
       let shardCode: number;
@@ -141,9 +152,12 @@ export async function readDataset(
         if (unassignedRows.length < LISTED_OFFENDERS) unassignedRows.push(rowIndex);
         return;
       }
-      (label as ColumnAccumulator).add(fields[labelIndex], rowIndex);
-      for (let k = 0; k < featureIndices.length; k++)
-        features[k].add(fields[featureIndices[k]], rowIndex);
+      labelValues.push((label as ColumnAccumulator).add(fields[labelIndex], rowIndex));
+      const offset = featureValues.appendRow();
+      const values = featureValues.values;
+      for (let k = 0; k < featureIndices.length; k++) {
+        values[offset + k] = features[k].add(fields[featureIndices[k]], rowIndex);
+      }
       shardCodes.push(shardCode);
       keptRows++;
     },
@@ -184,7 +198,9 @@ export async function readDataset(
     droppedMissingLabel,
     droppedUnassigned: dropUnassignedRows ? unassignedCount : 0,
     label: label as ColumnAccumulator,
+    labelValues: labelValues.toArray(),
     features,
+    featureValues: featureValues.finish(),
     featuresNamed: columns.features !== undefined,
     shardCodes: shardCodes.toArray(),
     shardIds,

@@ -1,5 +1,6 @@
 import type { Advice } from "./advise-plan";
 import type { OmittedColumn, Task } from "./design";
+import type { SimulationSummary } from "./simulation/simulate-plan";
 
 /**
  * The machine-readable report of methods.md §6. The keys §6 lists have exactly its meanings; the
@@ -80,6 +81,8 @@ export interface PartitionSummary {
     omittedColumns: OmittedColumn[];
     warnings: string[];
   };
+  /** The simulation of methods.md §7, when one was asked for. */
+  simulation?: SimulationSummary;
 }
 
 export interface ShardSummary {

@@ -2,6 +2,7 @@ import { describe, expect, it } from "vitest";
 import { AnalysisInputError } from "@/lib/analysis";
 import { compareCodePoints } from "@/lib/analysis/code-point-order";
 import { binIntoDeciles } from "@/lib/analysis/encode-design";
+import { RowStore } from "@/lib/analysis/row-store";
 import { parseSimpleDecimal } from "@/lib/analysis/tokens";
 import { analyzeText } from "./support/analyze-text";
 import { designFromText } from "./support/design-from-text";
@@ -198,5 +199,22 @@ describe("parseSimpleDecimal", () => {
     ];
     declined.push("1234567890123456"); // 16 digits: beyond the exact-integer fast path
     for (const token of declined) expect(parseSimpleDecimal(token)).toBeNaN();
+  });
+});
+
+describe("RowStore", () => {
+  it("keeps every row as it grows, in place and past its growable maximum", () => {
+    const width = 3;
+    // Room for 2¹⁷ rows in the growable buffer, so the store has to move to plain buffers later.
+    const store = new RowStore(width, { maxGrowableBytes: width * 8 * 2 ** 17 });
+    const rows = 300_001;
+    for (let row = 0; row < rows; row++) {
+      const offset = store.appendRow();
+      for (let k = 0; k < width; k++) store.values[offset + k] = row * width + k;
+    }
+    const values = store.finish();
+    expect(values.length).toBe(rows * width);
+    expect(values.buffer).toBeInstanceOf(SharedArrayBuffer);
+    expect(values.every((value, index) => value === index)).toBe(true);
   });
 });

@@ -7,7 +7,7 @@ import {
   symmetrizeFromUpper,
 } from "@/lib/math/gram";
 import { createMatrix, matrixFromValues } from "@/lib/math/matrix";
-import { measureMoments, measureMomentsOfChunks } from "@/lib/math/moments";
+import { measureColumnMoments, measureMoments } from "@/lib/math/moments";
 import { quantileSorted } from "@/lib/math/quantile";
 import { maximizeOnInterval } from "@/lib/math/scalar-search";
 import { softmaxInPlace } from "@/lib/math/softmax";
@@ -139,28 +139,34 @@ print(json.dumps((X.T@np.diag(d["a"])@X).ravel().tolist()))`,
 });
 
 describe("measureMoments", () => {
-  it("matches NumPy's mean and std, whole or in chunks, and the doc example by hand", () => {
-    const values = seededValues(5000, 23).map((value) => 1e6 + 3 * value);
-    // Outside reference: numpy.mean and numpy.std (population, ddof = 0).
-    const reference = runPythonJson<{ mean: number; std: number }>(
+  it("matches NumPy's mean and std, whole or column by column of a table, and the doc example", () => {
+    const rows = 5000;
+    const table = seededValues(rows * 3, 23).map((value, k) =>
+      k % 3 === 1 ? 1e6 + 3 * value : value,
+    );
+    // Outside reference: numpy.mean and numpy.std (population, ddof = 0) of each column.
+    const reference = runPythonJson<{ mean: number[]; std: number[] }>(
       `import json,sys
 import numpy as np
-x=np.array(json.load(sys.stdin))
-print(json.dumps({"mean":float(x.mean()),"std":float(x.std())}))`,
-      Array.from(values),
+x=np.array(json.load(sys.stdin)).reshape(${rows},3)
+print(json.dumps({"mean":x.mean(0).tolist(),"std":x.std(0).tolist()}))`,
+      Array.from(table),
     );
-    const chunked = measureMomentsOfChunks([
-      values.subarray(0, 1024),
-      values.subarray(1024, 3000),
-      values.subarray(3000),
+    const columns = measureColumnMoments(table, rows, 3, [1, 2]);
+    const middle = Float64Array.from({ length: rows }, (_, row) => table[row * 3 + 1]);
+    [measureMoments(middle), columns[0]].forEach((moments) => {
+      // NumPy sums pairwise, these in compensated blocks: both to a few ε relative.
+      expect(Math.abs(moments.mean - reference.mean[1]) / reference.mean[1]).toBeLessThan(1e-14);
+      expect(Math.abs(moments.std - reference.std[1]) / reference.std[1]).toBeLessThan(1e-10);
+    });
+    expect(columns[0]).toEqual(measureMoments(middle));
+    expect(columns[1].mean).toBeCloseTo(reference.mean[2], 14);
+    expect(Math.abs(columns[1].std - reference.std[2]) / reference.std[2]).toBeLessThan(1e-12);
+    expect(measureMoments(Float64Array.of(2, 4, 4, 4, 5, 5, 7, 9))).toEqual({ mean: 5, std: 2 });
+    expect(measureColumnMoments(Float64Array.of(2, 5, 4, 5, 4, 7, 4, 9), 4, 2, [0, 1])).toEqual([
+      { mean: 3.5, std: 0.8660254037844386 },
+      { mean: 6.5, std: 1.6583123951777 },
     ]);
-    for (const moments of [measureMoments(values), chunked]) {
-      expect(moments.mean).toBeCloseTo(reference.mean, 8);
-      expect(Math.abs(moments.std - reference.std) / reference.std).toBeLessThan(1e-10);
-    }
-    expect(
-      measureMomentsOfChunks([Float64Array.of(2, 4, 4, 4), Float64Array.of(5, 5, 7, 9)]),
-    ).toEqual({ mean: 5, std: 2 });
   });
 });
 

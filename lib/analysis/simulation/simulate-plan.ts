@@ -1,0 +1,306 @@
+import { decideVerdict, type Verdict } from "../advise-plan";
+import { AnalysisInputError } from "../errors";
+import { countWeightRows } from "../objective";
+import {
+  runAlgorithm,
+  type AlgorithmName,
+  type RunOutcome,
+  type SimulationProblem,
+  type TrainingPlan,
+} from "./run-algorithm";
+
+/** The algorithms of methods.md §7, in report order. */
+export const ALGORITHMS: readonly AlgorithmName[] = ["minibatch", "local", "scaffold"];
+/** Step sizes tried: η = 2⁻ᵏ/H for k = 0 … 7 (methods.md §7). */
+export const STEP_SIZE_COUNT = 8;
+/** A curve has at most this many points (methods.md §7). */
+export const MAX_CURVE_POINTS = 100;
+/** The generator every run draws from, named in the summary (methods.md §7, determinism). */
+export const GENERATOR_NAME = "xoshiro128**";
+
+export interface SimulationOptions {
+  /** S, the seeds the chosen step size is re-run on. */
+  seeds: number;
+  /** The grid's seed; the re-runs use seed + 1 … seed + S. */
+  seed: number;
+  /** Refuse above this many multiply-adds (the estimate of `estimateSimulationCost`). */
+  budget: number;
+}
+
+export interface SimulationInput extends SimulationProblem {
+  /** H of methods.md §3: the grid's largest step size is 1/H. */
+  smoothness: number;
+  /** The bound-based verdict of methods.md §5, compared with the simulation's. */
+  boundVerdict: Verdict;
+}
+
+export interface SimulationProgress {
+  algorithm: AlgorithmName;
+  /** Searching the step size on one seed, or re-running the chosen one on S seeds. */
+  phase: "step-size" | "seeds";
+  /** 1-based run number among `runs` = 3 × (8 + S). */
+  run: number;
+  runs: number;
+  /** Rounds finished in this run. */
+  round: number;
+  rounds: number;
+  /** The whole simulation's progress, 0 to 1. */
+  fraction: number;
+}
+
+export interface SimulationHooks {
+  onProgress?: (progress: SimulationProgress) => void;
+  signal?: AbortSignal;
+}
+
+export interface AlgorithmResult {
+  name: AlgorithmName;
+  /** The chosen η; null when every step size of the grid diverged. */
+  stepSize: number | null;
+  /** Final suboptimality F(W_R) − F(W*) over the seeds that did not diverge: mean, min, max. */
+  final: number | null;
+  finalMin: number | null;
+  finalMax: number | null;
+  /** [round, mean suboptimality over the seeds], at most 100 points. */
+  curve: [number, number][];
+  /** [round, min, max] over the seeds at the curve's rounds: the seed band. */
+  band: [number, number, number][];
+  /** Every step size tried and its final suboptimality on the grid's seed (null: discarded). */
+  grid: { stepSize: number; final: number | null }[];
+  /** Re-runs of the chosen step size that diverged (left out of the figures above). */
+  divergedSeeds: number;
+}
+
+export interface SimulationSummary {
+  generator: string;
+  seed: number;
+  /** S. */
+  seeds: number;
+  /** Estimated multiply-adds (methods.md §7) and the budget it was checked against. */
+  cost: number;
+  budget: number;
+  algorithms: AlgorithmResult[];
+  /** ρ_sim = local / minibatch mean final suboptimality; null when it is undefined. */
+  ratio: number | null;
+  verdict: Verdict;
+  agreesWithBounds: boolean;
+  /** One plain sentence on how the simulation compares with the bounds. */
+  note: string;
+}
+
+/**
+ * The simulation's cost in multiply-adds, as methods.md §7 estimates it before starting:
+ * 3 algorithms × (8 + S) runs × R·M·K·b·(d+1)·C (C = 1 for least squares).
+ *
+ * Example: M = 100, K = 10, R = 100, b = 32, d + 1 = 33, C = 10, S = 3 gives 3.4848e10.
+ */
+export function estimateSimulationCost(
+  plan: TrainingPlan,
+  width: number,
+  weightRows: number,
+  seeds: number,
+): number {
+  const perRun =
+    plan.rounds * plan.participants * plan.localSteps * plan.batchSize * width * weightRows;
+  return ALGORITHMS.length * (STEP_SIZE_COUNT + seeds) * perRun;
+}
+
+/**
+ * Throws AnalysisInputError when the estimated cost is above the budget, with the largest rounds R
+ * and participants M that would fit so the user knows what to ask for instead.
+ */
+export function checkSimulationBudget(cost: number, budget: number, plan: TrainingPlan): void {
+  if (cost <= budget) return;
+  const scale = budget / cost;
+  const rounds = Math.floor(plan.rounds * scale);
+  const participants = Math.floor(plan.participants * scale);
+  const suggestions = [
+    rounds >= 1 ? `at most ${rounds} rounds` : null,
+    participants >= 1 ? `at most ${participants} participants per round` : null,
+  ].filter((text) => text !== null);
+  throw new AnalysisInputError(
+    `the simulation would take about ${formatCount(cost)} multiply-adds, above the budget of ${formatCount(budget)}`,
+    {
+      column: "simulate",
+      expected:
+        (suggestions.length > 0
+          ? `fewer rounds or participants (${suggestions.join(", or ")})`
+          : "fewer rounds, participants, local steps or a smaller batch") +
+        ", fewer seeds, or a larger budget",
+    },
+  );
+}
+
+/**
+ * Runs methods.md §7 on the engine's objective: for each algorithm the step-size grid on one seed
+ * (diverged runs discarded, lowest final F wins), then the chosen η on S fresh seeds; the curves,
+ * the final suboptimality, ρ_sim, its verdict with §5's thresholds and whether it agrees with the
+ * bounds. Refuses (AnalysisInputError) above the budget. Deterministic: same input, plan and seed,
+ * same result, on any machine.
+ */
+export async function simulatePlan(
+  input: SimulationInput,
+  plan: TrainingPlan,
+  options: SimulationOptions,
+  hooks: SimulationHooks = {},
+): Promise<SimulationSummary> {
+  const { design } = input;
+  const cost = estimateSimulationCost(plan, design.x.cols, countWeightRows(design), options.seeds);
+  checkSimulationBudget(cost, options.budget, plan);
+  const curveRounds = chooseCurveRounds(plan.rounds);
+  const runs = ALGORITHMS.length * (STEP_SIZE_COUNT + options.seeds);
+  let runIndex = 0;
+  const runOnce = async (
+    algorithm: AlgorithmName,
+    phase: SimulationProgress["phase"],
+    stepSize: number,
+    seed: number,
+  ): Promise<RunOutcome> => {
+    const run = ++runIndex;
+    const report = (round: number) =>
+      hooks.onProgress?.({
+        algorithm,
+        phase,
+        run,
+        runs,
+        round,
+        rounds: plan.rounds,
+        fraction: (run - 1 + round / plan.rounds) / runs,
+      });
+    report(0);
+    const outcome = await runAlgorithm(algorithm, input, plan, stepSize, seed, curveRounds, {
+      onRound: report,
+      signal: hooks.signal,
+    });
+    if (outcome.diverged) report(plan.rounds);
+    return outcome;
+  };
+
+  const algorithms: AlgorithmResult[] = [];
+  for (const algorithm of ALGORITHMS) {
+    const grid: AlgorithmResult["grid"] = [];
+    let chosen: number | null = null;
+    let best = Infinity;
+    for (let k = 0; k < STEP_SIZE_COUNT; k++) {
+      const stepSize = 2 ** -k / input.smoothness;
+      const outcome = await runOnce(algorithm, "step-size", stepSize, options.seed);
+      const final = outcome.diverged ? null : outcome.suboptimality[curveRounds.length - 1];
+      grid.push({ stepSize, final });
+      if (final !== null && final < best) {
+        best = final;
+        chosen = stepSize;
+      }
+    }
+    const outcomes: RunOutcome[] = [];
+    for (let s = 1; s <= options.seeds; s++) {
+      if (chosen === null) {
+        runIndex++;
+        continue;
+      }
+      outcomes.push(await runOnce(algorithm, "seeds", chosen, options.seed + s));
+    }
+    algorithms.push(summarizeAlgorithm(algorithm, chosen, grid, outcomes, curveRounds));
+  }
+
+  const [minibatch, local] = algorithms;
+  const ratio =
+    minibatch.final !== null && local.final !== null && minibatch.final > 0
+      ? local.final / minibatch.final
+      : null;
+  const verdict = decideVerdict(ratio);
+  const agreesWithBounds = verdict === input.boundVerdict;
+  return {
+    generator: GENERATOR_NAME,
+    seed: options.seed,
+    seeds: options.seeds,
+    cost,
+    budget: options.budget,
+    algorithms,
+    ratio,
+    verdict,
+    agreesWithBounds,
+    note: describeAgreement(verdict, input.boundVerdict, ratio),
+  };
+}
+
+/** Every round up to R when R + 1 ≤ 100 points, else 100 evenly spaced rounds from 0 to R. */
+export function chooseCurveRounds(rounds: number): Int32Array {
+  if (rounds + 1 <= MAX_CURVE_POINTS) return Int32Array.from({ length: rounds + 1 }, (_, r) => r);
+  // Steps of R/99 ≥ 1 round apart, so rounding keeps the rounds distinct.
+  return Int32Array.from({ length: MAX_CURVE_POINTS }, (_, i) =>
+    Math.round((i * rounds) / (MAX_CURVE_POINTS - 1)),
+  );
+}
+
+function summarizeAlgorithm(
+  name: AlgorithmName,
+  stepSize: number | null,
+  grid: AlgorithmResult["grid"],
+  outcomes: RunOutcome[],
+  curveRounds: Int32Array,
+): AlgorithmResult {
+  const kept = outcomes.filter((outcome) => !outcome.diverged);
+  const divergedSeeds = outcomes.length - kept.length;
+  if (kept.length === 0) {
+    return {
+      name,
+      stepSize,
+      final: null,
+      finalMin: null,
+      finalMax: null,
+      curve: [],
+      band: [],
+      grid,
+      divergedSeeds,
+    };
+  }
+  const curve: [number, number][] = [];
+  const band: [number, number, number][] = [];
+  curveRounds.forEach((round, index) => {
+    const values = kept.map((outcome) => outcome.suboptimality[index]);
+    curve.push([round, mean(values)]);
+    band.push([round, Math.min(...values), Math.max(...values)]);
+  });
+  const last = band[band.length - 1];
+  return {
+    name,
+    stepSize,
+    final: curve[curve.length - 1][1],
+    finalMin: last[1],
+    finalMax: last[2],
+    curve,
+    band,
+    grid,
+    divergedSeeds,
+  };
+}
+
+function mean(values: number[]): number {
+  let total = 0;
+  for (const value of values) total += value;
+  return total / values.length;
+}
+
+const VERDICT_WORDS: Record<Verdict, string> = {
+  "local-updates": "local updates",
+  "large-minibatch": "large minibatches",
+  "no-clear-winner": "no clear winner",
+};
+
+function describeAgreement(simulated: Verdict, bound: Verdict, ratio: number | null): string {
+  const measured =
+    ratio === null
+      ? "the simulation gives no usable ratio"
+      : `on this split local SGD ended at ${ratio.toPrecision(3)} times minibatch SGD's suboptimality`;
+  if (simulated === bound) {
+    return `The simulation agrees with the bounds (${VERDICT_WORDS[bound]}): ${measured}.`;
+  }
+  return (
+    `The simulation disagrees with the bounds: they point to ${VERDICT_WORDS[bound]}, ` +
+    `but ${measured} (${VERDICT_WORDS[simulated]}).`
+  );
+}
+
+function formatCount(value: number): string {
+  return value.toExponential(2).replace("e+", "e");
+}
