@@ -13,6 +13,22 @@ export const referenceWeightsSchema = z.object({
 
 export type ReferenceWeights = z.infer<typeof referenceWeightsSchema>;
 
+/**
+ * The simulation of methods.md §7: S seeds for the chosen step size (default 3), the grid's seed
+ * (re-runs use seed + 1 … seed + S) and the largest estimated cost in multiply-adds it may take
+ * (default 1e11, a few minutes on one core).
+ */
+export const simulateOptionsSchema = z.object({
+  seeds: z.number().int().min(1).max(20).default(3),
+  seed: z
+    .number()
+    .int()
+    .min(0)
+    .max(2 ** 32 - 1)
+    .default(1),
+  budget: z.number().finite().positive().default(1e11),
+});
+
 const columnName = z.string().trim().min(1, "a column name cannot be empty");
 
 /**
@@ -36,6 +52,8 @@ export const analysisOptionsSchema = z
     batchSize: z.number().int().positive().default(32),
     /** Drop labelled rows the partition does not assign instead of rejecting the input. */
     dropUnassignedRows: z.boolean().default(false),
+    /** Also simulate the algorithms under the plan (methods.md §7); absent: no simulation. */
+    simulate: simulateOptionsSchema.optional(),
   })
   .refine(
     (options) => !options.features || new Set(options.features).size === options.features.length,
