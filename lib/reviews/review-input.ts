@@ -34,7 +34,3 @@ export const decisionSchema = z.object({
     .min(1, "Give a reason: the analyst reads it in the e-mail.")
     .max(5000, "Keep the reason under 5,000 characters."),
 });
-
-export type ReviewRequestInput = z.input<typeof reviewRequestSchema>;
-export type CommentInput = z.input<typeof commentSchema>;
-export type DecisionInput = z.input<typeof decisionSchema>;

@@ -21,14 +21,7 @@ import {
   reviewRequestedMessage,
 } from "@/lib/notifications/messages";
 import { findMentionedMembers } from "@/lib/reviews/mentions";
-import {
-  commentSchema,
-  decisionSchema,
-  reviewRequestSchema,
-  type CommentInput,
-  type DecisionInput,
-  type ReviewRequestInput,
-} from "@/lib/reviews/review-input";
+import { commentSchema, decisionSchema, reviewRequestSchema } from "@/lib/reviews/review-input";
 
 function reportRef(report: ReportForReview) {
   return {
@@ -44,7 +37,7 @@ const settingsUrl = (workspaceId: string) => linkTo(notificationSettingsPath(wor
 export async function requestReview(
   workspaceId: string,
   reportId: string,
-  input: ReviewRequestInput,
+  input: { reviewerIds: string[]; note?: string },
 ): Promise<ActionResult<{ asked: number }>> {
   try {
     const { user, workspace } = await requireRole(workspaceId, "requestReview");
@@ -97,7 +90,7 @@ export async function requestReview(
 export async function postComment(
   workspaceId: string,
   reportId: string,
-  input: CommentInput,
+  input: { body: string; parentId?: string; anchorKind?: string; anchor?: string },
 ): Promise<ActionResult<{ commentId: string; mentioned: number }>> {
   try {
     const { user, workspace } = await requireRole(workspaceId, "commentOnReport");
@@ -145,7 +138,7 @@ export async function postComment(
 export async function decideReview(
   workspaceId: string,
   reportId: string,
-  input: DecisionInput,
+  input: { decision: string; reason: string },
 ): Promise<ActionResult<{ decisionId: string }>> {
   try {
     const { user, workspace } = await requireRole(workspaceId, "decideReview");

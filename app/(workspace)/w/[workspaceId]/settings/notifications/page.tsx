@@ -1,0 +1,33 @@
+import type { Metadata } from "next";
+import { NotificationToggles } from "@/components/reviews/notification-toggles";
+import { readNotificationSettings } from "@/db/queries/notification-preferences";
+import { guardPage } from "@/lib/auth/page-guard";
+import { notificationSettingsPath } from "@/lib/notifications/links";
+
+export const metadata: Metadata = { title: "E-mail notifications" };
+
+export default async function NotificationSettingsPage({
+  params,
+}: {
+  params: Promise<{ workspaceId: string }>;
+}) {
+  const { workspaceId } = await params;
+  const { user, workspace } = await guardPage(
+    workspaceId,
+    "readWorkspace",
+    notificationSettingsPath(workspaceId),
+  );
+  const settings = await readNotificationSettings(user.id);
+  return (
+    <div className="max-w-2xl space-y-6">
+      <div>
+        <h1 className="text-3xl font-semibold tracking-tight">E-mail notifications</h1>
+        <p className="mt-1 text-sm text-ink-soft">
+          Which e-mails Partita sends to {user.email}. The choice applies in every workspace you
+          belong to; invitations and sign-in links are always sent.
+        </p>
+      </div>
+      <NotificationToggles workspaceId={workspace.id} initial={settings} />
+    </div>
+  );
+}

@@ -1,0 +1,62 @@
+import type { AuditEntry } from "@/db/queries/audit";
+import { formatReportDate } from "@/lib/reports/report-view";
+import { AUDIT_ACTION_LABELS } from "@/lib/reviews/audit-filters";
+
+/** What happened, in words, from an entry's stored details (which vary by kind of event). */
+function describeEntry(entry: AuditEntry): string {
+  const details = entry.details as Record<string, string | number | string[] | undefined>;
+  switch (entry.action) {
+    case "member.invited":
+      return `${details.email} invited as ${details.role}`;
+    case "member.role-changed":
+      return `${details.email ?? entry.targetId}: ${details.from ?? "?"} → ${details.to}`;
+    case "member.removed":
+      return `${details.email ?? entry.targetId} (${details.role ?? "?"}) removed`;
+    case "review.requested":
+      return `"${details.title}" v${details.version}: asked ${
+        Array.isArray(details.reviewers) ? details.reviewers.join(", ") : ""
+      }`;
+    case "review.decided":
+      return `"${details.title}" v${details.version}: ${
+        details.decision === "approve" ? "approved" : "changes requested"
+      } — ${details.reason}`;
+  }
+}
+
+export function AuditTable({ entries }: { entries: AuditEntry[] }) {
+  return (
+    <div className="overflow-x-auto rounded-lg border border-ink/10 bg-white">
+      <table className="w-full text-left text-sm">
+        <caption className="sr-only">Audit log, newest first</caption>
+        <thead className="bg-paper-deep/60 text-xs text-ink-soft">
+          <tr>
+            <th scope="col" className="px-3 py-2">
+              When
+            </th>
+            <th scope="col" className="px-3 py-2">
+              Event
+            </th>
+            <th scope="col" className="px-3 py-2">
+              By
+            </th>
+            <th scope="col" className="px-3 py-2">
+              What
+            </th>
+          </tr>
+        </thead>
+        <tbody>
+          {entries.map((entry) => (
+            <tr key={entry.id} className="border-t border-ink/5 align-top">
+              <td className="px-3 py-2.5 whitespace-nowrap text-ink-soft">
+                {formatReportDate(entry.createdAt)}
+              </td>
+              <td className="px-3 py-2.5 whitespace-nowrap">{AUDIT_ACTION_LABELS[entry.action]}</td>
+              <td className="px-3 py-2.5">{entry.actorEmail}</td>
+              <td className="px-3 py-2.5">{describeEntry(entry)}</td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}

@@ -1,0 +1,80 @@
+import type { ReviewComment } from "@/db/queries/reviews";
+import { describeAnchor } from "@/lib/reviews/anchors";
+import { formatReportDate } from "@/lib/reports/report-view";
+import { CommentForm } from "./comment-form";
+
+type Thread = { first: ReviewComment; replies: ReviewComment[] };
+
+/** First comments (oldest first) each with their replies; comments arrive in time order. */
+function groupThreads(comments: ReviewComment[]): Thread[] {
+  const threads = new Map<string, Thread>();
+  for (const comment of comments) {
+    if (!comment.parentId) threads.set(comment.id, { first: comment, replies: [] });
+    else threads.get(comment.parentId)?.replies.push(comment);
+  }
+  return [...threads.values()];
+}
+
+function CommentBody({ comment }: { comment: ReviewComment }) {
+  return (
+    <div>
+      <p className="text-xs text-ink-soft">
+        <span className="font-medium text-ink">{comment.authorName}</span> ·{" "}
+        {formatReportDate(comment.createdAt)}
+      </p>
+      <p className="mt-1 text-sm whitespace-pre-wrap">{comment.body}</p>
+    </div>
+  );
+}
+
+export function CommentThreads({
+  workspaceId,
+  reportId,
+  comments,
+  canComment,
+}: {
+  workspaceId: string;
+  reportId: string;
+  comments: ReviewComment[];
+  canComment: boolean;
+}) {
+  const threads = groupThreads(comments);
+  if (threads.length === 0) {
+    return <p className="text-sm text-ink-soft">No comments on this version yet.</p>;
+  }
+  return (
+    <ol className="space-y-4" aria-label="Comment threads">
+      {threads.map(({ first, replies }) => {
+        const pin = describeAnchor(first.anchorKind, first.anchor);
+        return (
+          <li
+            key={first.id}
+            className="space-y-3 rounded-md border border-ink/10 bg-white p-4"
+            data-testid="comment-thread"
+          >
+            {pin ? (
+              <p className="text-xs font-semibold tracking-wide text-ink-soft uppercase">
+                On: {pin}
+              </p>
+            ) : null}
+            <CommentBody comment={first} />
+            {replies.length > 0 ? (
+              <ol className="space-y-3 border-l-2 border-ink/10 pl-4">
+                {replies.map((reply) => (
+                  <li key={reply.id}>
+                    <CommentBody comment={reply} />
+                  </li>
+                ))}
+              </ol>
+            ) : null}
+            {canComment ? (
+              <div className="no-print">
+                <CommentForm workspaceId={workspaceId} reportId={reportId} parentId={first.id} />
+              </div>
+            ) : null}
+          </li>
+        );
+      })}
+    </ol>
+  );
+}

@@ -1,0 +1,76 @@
+"use client";
+
+import { useState, useTransition } from "react";
+import { updateNotificationSetting } from "@/app/(workspace)/w/[workspaceId]/settings/notifications/actions";
+import { Notice } from "@/components/ui/notice";
+import type { NotificationKind } from "@/db/schema/reviews";
+
+const KINDS: { kind: NotificationKind; label: string; hint: string }[] = [
+  {
+    kind: "review-requested",
+    label: "Review requests",
+    hint: "Someone asks you to review a report version.",
+  },
+  {
+    kind: "decision-made",
+    label: "Decisions",
+    hint: "A reviewer approves or requests changes on a report you asked to have reviewed.",
+  },
+  { kind: "mentioned", label: "Mentions", hint: "Someone mentions you in a comment." },
+  {
+    kind: "analysis-finished",
+    label: "Long analyses",
+    hint: "An analysis you started that ran over a minute finishes or fails.",
+  },
+];
+
+/** One switch per kind of e-mail; each change is saved at once. */
+export function NotificationToggles({
+  workspaceId,
+  initial,
+}: {
+  workspaceId: string;
+  initial: Record<NotificationKind, boolean>;
+}) {
+  const [settings, setSettings] = useState(initial);
+  const [error, setError] = useState<string>();
+  const [pending, startTransition] = useTransition();
+
+  function toggle(kind: NotificationKind, enabled: boolean) {
+    setSettings((current) => ({ ...current, [kind]: enabled }));
+    startTransition(async () => {
+      const result = await updateNotificationSetting(workspaceId, { kind, enabled });
+      if (result.ok) {
+        setError(undefined);
+        return;
+      }
+      setSettings((current) => ({ ...current, [kind]: !enabled }));
+      setError(result.message);
+    });
+  }
+
+  return (
+    <div className="space-y-3">
+      {error ? <Notice tone="error">{error}</Notice> : null}
+      <ul className="divide-y divide-ink/5 rounded-lg border border-ink/10 bg-white">
+        {KINDS.map(({ kind, label, hint }) => (
+          <li key={kind} className="flex items-start gap-3 p-4">
+            <input
+              id={`notify-${kind}`}
+              type="checkbox"
+              role="switch"
+              checked={settings[kind]}
+              disabled={pending}
+              onChange={(event) => toggle(kind, event.target.checked)}
+              className="mt-1 h-4 w-4 accent-ink"
+            />
+            <label htmlFor={`notify-${kind}`} className="text-sm">
+              <span className="block font-medium">{label}</span>
+              <span className="block text-ink-soft">{hint}</span>
+            </label>
+          </li>
+        ))}
+      </ul>
+    </div>
+  );
+}
