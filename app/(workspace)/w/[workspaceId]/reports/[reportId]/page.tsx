@@ -8,9 +8,12 @@ import { ReportEvidence } from "@/components/reports/report-evidence";
 import { ReportHeader } from "@/components/reports/report-header";
 import { ReportProvenance } from "@/components/reports/report-provenance";
 import { ShardTable } from "@/components/reports/shard-table";
+import { ReviewPanel } from "@/components/reviews/review-panel";
+import { ReviewStateChip } from "@/components/reviews/review-state-chip";
 import { VerdictPanel } from "@/components/reports/verdict-panel";
 import { Cautions } from "@/components/workspace/cautions";
 import { findReport } from "@/db/queries/reports";
+import { findReviewOverview, listReviewerCandidates } from "@/db/queries/reviews";
 import { guardPage } from "@/lib/auth/page-guard";
 import { roleAllows } from "@/lib/auth/roles";
 
@@ -18,14 +21,14 @@ type PageProps = { params: Promise<{ workspaceId: string; reportId: string }> };
 
 /** Guarded read shared by the page and its metadata, so one request queries once. */
 const loadReport = cache(async (workspaceId: string, reportId: string) => {
-  const { workspace } = await guardPage(
+  const { user, workspace } = await guardPage(
     workspaceId,
     "readWorkspace",
     `/w/${workspaceId}/reports/${reportId}`,
   );
   const report = await findReport(workspace.id, reportId);
   if (!report) notFound();
-  return { workspace, report };
+  return { user, workspace, report };
 });
 
 export async function generateMetadata({ params }: PageProps): Promise<Metadata> {
@@ -39,8 +42,12 @@ const PRINT_PAGE = "@page { size: A4; margin: 14mm; }";
 
 export default async function ReportPage({ params }: PageProps) {
   const { workspaceId, reportId } = await params;
-  const { workspace, report } = await loadReport(workspaceId, reportId);
+  const { user, workspace, report } = await loadReport(workspaceId, reportId);
   const { summary } = report;
+  const [review, reviewerCandidates] = await Promise.all([
+    findReviewOverview(workspace.id, report.id),
+    listReviewerCandidates(workspace.id),
+  ]);
   return (
     <article
       className="space-y-10"
@@ -53,6 +60,9 @@ export default async function ReportPage({ params }: PageProps) {
         workspaceId={workspace.id}
         canRunAnalysis={roleAllows(workspace.role, "runAnalysis")}
       />
+      <a href="#review" className="inline-block" aria-label="Review state; go to the review">
+        <ReviewStateChip state={review.state} />
+      </a>
       <VerdictPanel summary={summary} />
       <KeyFigures summary={summary} />
       <ReportProvenance report={report} />
@@ -70,6 +80,22 @@ export default async function ReportPage({ params }: PageProps) {
       </section>
       <PreprocessingNotes summary={summary} />
       <MethodsSection summary={summary} />
+      <ReviewPanel
+        workspaceId={workspace.id}
+        report={{
+          id: report.id,
+          version: report.version,
+          shardIds: report.shards.map((shard) => shard.shardId),
+        }}
+        overview={review}
+        candidates={reviewerCandidates}
+        viewerId={user.id}
+        can={{
+          request: roleAllows(workspace.role, "requestReview"),
+          comment: roleAllows(workspace.role, "commentOnReport"),
+          decide: roleAllows(workspace.role, "decideReview"),
+        }}
+      />
     </article>
   );
 }
