@@ -2,13 +2,18 @@
 
 import Link from "next/link";
 import { useState } from "react";
+import { ReviewStateChip } from "@/components/reviews/review-state-chip";
 import { buttonClasses } from "@/components/ui/button";
 import { formatFigure, formatReportDate } from "@/lib/reports/report-view";
 import { VerdictChip } from "./verdict-chip";
 import type { ReportListItem } from "@/db/queries/reports";
+import type { ReviewState } from "@/lib/reviews/review-state";
 
 /** A row of the list as the browser gets it: dates travel as ISO strings. */
-export type ReportListEntry = Omit<ReportListItem, "createdAt"> & { createdAt: string };
+export type ReportListEntry = Omit<ReportListItem, "createdAt"> & {
+  createdAt: string;
+  reviewState: ReviewState;
+};
 
 /**
  * The reports as a table; ticking two of them enables the comparison. A third tick replaces the
@@ -66,6 +71,9 @@ export function ReportList({
               <th scope="col" className="px-3 py-2">
                 Verdict
               </th>
+              <th scope="col" className="px-3 py-2">
+                Review
+              </th>
               <th scope="col" className="px-3 py-2 text-right">
                 ρ
               </th>
@@ -108,6 +116,9 @@ export function ReportList({
                 </td>
                 <td className="px-3 py-2.5">
                   <VerdictChip verdict={report.verdict} />
+                </td>
+                <td className="px-3 py-2.5">
+                  <ReviewStateChip state={report.reviewState} />
                 </td>
                 <td className="px-3 py-2.5 text-right tabular-nums">
                   {formatFigure(report.ratio)}

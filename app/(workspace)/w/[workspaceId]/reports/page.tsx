@@ -5,6 +5,7 @@ import { ReportList } from "@/components/reports/report-list";
 import { buttonClasses } from "@/components/ui/button";
 import { Cautions } from "@/components/workspace/cautions";
 import { listReportAuthors, listReports } from "@/db/queries/reports";
+import { findReviewStates } from "@/db/queries/reviews";
 import { guardPage } from "@/lib/auth/page-guard";
 import { roleAllows } from "@/lib/auth/roles";
 import { hasReportFilters, readReportFilters } from "@/lib/reports/report-filters";
@@ -28,6 +29,10 @@ export default async function ReportsPage({
     listReports(workspace.id, filters, LIST_LIMIT),
     listReportAuthors(workspace.id),
   ]);
+  const reviewStates = await findReviewStates(
+    workspace.id,
+    reports.map((report) => report.id),
+  );
   const canRun = roleAllows(workspace.role, "runAnalysis");
   const base = `/w/${workspace.id}`;
   const hasAny = reports.length > 0 || authors.length > 0;
@@ -59,6 +64,7 @@ export default async function ReportsPage({
             reports={reports.map((report) => ({
               ...report,
               createdAt: report.createdAt.toISOString(),
+              reviewState: reviewStates.get(report.id) ?? { kind: "not-reviewed" },
             }))}
           />
           {reports.length === LIST_LIMIT ? (
