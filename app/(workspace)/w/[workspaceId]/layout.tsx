@@ -38,6 +38,9 @@ export default async function WorkspaceLayout({
               <NavLink href={`${base}/analyses/new`}>New analysis</NavLink>
             ) : null}
             <NavLink href={`${base}/members`}>Members</NavLink>
+            {roleAllows(workspace.role, "readAuditLog") ? (
+              <NavLink href={`${base}/audit`}>Audit log</NavLink>
+            ) : null}
             {roleAllows(workspace.role, "manageApiTokens") ? (
               <NavLink href={`${base}/tokens`}>API tokens</NavLink>
             ) : null}
@@ -51,9 +54,14 @@ export default async function WorkspaceLayout({
             ) : null}
           </nav>
           <div className="ml-auto flex items-center gap-3">
-            <span className="hidden text-sm text-ink-soft sm:inline" data-testid="signed-in-as">
+            <Link
+              href={`${base}/settings/notifications`}
+              className="hidden text-sm text-ink-soft hover:underline sm:inline"
+              data-testid="signed-in-as"
+              title="Your e-mail notifications"
+            >
               {user.email}
-            </span>
+            </Link>
             <SignOutButton />
           </div>
         </div>
