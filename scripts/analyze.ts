@@ -1,13 +1,24 @@
 /**
  * `npm run analyze -- --data FILE --label COL (--partition FILE | --shard-column COL) …`
- * Runs the analysis engine on local files: the JSON summary (methods.md §6) goes to --out or stdout,
- * a short human summary and progress go to stderr. Exit 0 on success, 2 on bad input (the message
- * names file, row, column and what was expected), 1 on an internal error (stack only with DEBUG set).
+ * Runs the analysis engine on local files, or with `--server URL --token T` on a Partita server
+ * through its API (lib/cli/server-run.ts): the JSON summary (methods.md §6) goes to --out or stdout,
+ * a short human summary and progress go to stderr. `--fail-on RULE` (repeatable, lib/cli/fail-on.ts)
+ * gates on the summary. Exit 0 on success, 3 when a --fail-on rule is crossed, 2 on bad input (the
+ * message names file, row, column and what was expected; also a malformed rule or a request the
+ * server refused), 1 on an internal error (stack only with DEBUG set).
  */
 import { createReadStream, readFileSync, statSync, writeFileSync } from "node:fs";
 import { parseArgs } from "node:util";
 import { analyzePartition, AnalysisInputError, type PartitionSummary } from "../lib/analysis";
 import type { AnalysisProgress } from "../lib/analysis/summary";
+import { ServerError } from "../lib/cli/api-client";
+import {
+  checkFailOnRules,
+  describeCrossedRules,
+  FailOnRuleError,
+  parseFailOnRule,
+} from "../lib/cli/fail-on";
+import { runOnServer, ServerAnalysisError } from "../lib/cli/server-run";
 import {
   referenceWeightsSchema,
   type AnalysisOptionsInput,
@@ -17,13 +28,17 @@ import {
 const USAGE = `usage: npm run analyze -- --data FILE --label COL (--partition FILE | --shard-column COL)
   [--id-column COL] [--features a,b,…] [--task classification|regression] [--lambda X]
   [--reference optimum|zero|FILE.json] [--participants M] [--local-steps K] [--rounds R]
-  [--batch-size b] [--out FILE]`;
+  [--batch-size b] [--out FILE] [--server URL [--token T]] [--fail-on RULE]…
+  --token defaults to $PARTITA_API_TOKEN; RULE is KEY OP VALUE, e.g. 'js>0.1' or verdict!=local-updates`;
 
 const EXIT_BAD_INPUT = 2;
 const EXIT_INTERNAL = 1;
+const EXIT_RULE_CROSSED = 3;
 
-async function main(): Promise<void> {
-  const flags = readFlags(process.argv.slice(2));
+/** Runs the analysis and answers the exit code: 0, or 3 when a --fail-on rule is crossed. */
+async function main(): Promise<number> {
+  const { flags, failOn } = readFlags(process.argv.slice(2));
+  const rules = failOn.map(parseFailOnRule);
   const dataSize = requireReadableFile(flags.data, "--data");
   if (flags.partition !== undefined) requireReadableFile(flags.partition, "--partition");
   const options: AnalysisOptionsInput = {
@@ -33,12 +48,40 @@ async function main(): Promise<void> {
     features: flags.features?.split(",").map((name) => name.trim()),
     task: readTask(flags.task),
     lambda: readNumber(flags.lambda, "--lambda"),
-    reference: readReference(flags.reference),
+    // On a server, given weights travel as an uploaded file (readWeightsPath) instead.
+    reference:
+      flags.server && isWeightsFile(flags.reference) ? undefined : readReference(flags.reference),
     participants: readNumber(flags.participants, "--participants"),
     localSteps: readNumber(flags["local-steps"], "--local-steps"),
     rounds: readNumber(flags.rounds, "--rounds"),
     batchSize: readNumber(flags["batch-size"], "--batch-size"),
   };
+  const json = flags.server
+    ? await runOnServer({
+        server: flags.server,
+        token: readToken(flags.token),
+        dataPath: flags.data,
+        partitionPath: flags.partition,
+        weightsPath: readWeightsPath(flags.reference),
+        options,
+        onProgress: createProgressPrinter(),
+      })
+    : await analyzeLocally(flags, options, dataSize);
+  if (flags.out) writeFileSync(flags.out, json);
+  else process.stdout.write(json);
+  const summary = JSON.parse(json) as PartitionSummary;
+  process.stderr.write(describeSummary(summary));
+  const crossed = describeCrossedRules(checkFailOnRules(summary, rules));
+  if (!crossed) return 0;
+  process.stderr.write(crossed);
+  return EXIT_RULE_CROSSED;
+}
+
+async function analyzeLocally(
+  flags: Flags,
+  options: AnalysisOptionsInput,
+  dataSize: number,
+): Promise<string> {
   const summary = await analyzePartition(
     {
       data: createReadStream(flags.data),
@@ -51,17 +94,34 @@ async function main(): Promise<void> {
     },
     createProgressPrinter(),
   );
-  const json = `${JSON.stringify(summary, null, 2)}\n`;
-  if (flags.out) writeFileSync(flags.out, json);
-  else process.stdout.write(json);
-  process.stderr.write(describeSummary(summary));
+  return `${JSON.stringify(summary, null, 2)}\n`;
+}
+
+/** A token on the command line shows in process lists, so the environment is offered too. */
+function readToken(value: string | undefined): string {
+  const token = value ?? process.env.PARTITA_API_TOKEN;
+  if (!token) {
+    throw new AnalysisInputError(`--server needs --token T or PARTITA_API_TOKEN\n${USAGE}`);
+  }
+  return token;
+}
+
+function isWeightsFile(value: string | undefined): value is string {
+  return value !== undefined && value !== "optimum" && value !== "zero";
+}
+
+/** On a server, given weights are uploaded as a file, checked here first as a local run would. */
+function readWeightsPath(value: string | undefined): string | undefined {
+  if (!isWeightsFile(value)) return undefined;
+  readReference(value);
+  return value;
 }
 
 type Flags = { data: string; label: string } & Partial<Record<string, string>>;
 
-function readFlags(argv: string[]): Flags {
+function readFlags(argv: string[]): { flags: Flags; failOn: string[] } {
   const text = { type: "string" } as const;
-  let values: Partial<Record<string, string>>;
+  let values: Partial<Record<string, string | string[]>>;
   try {
     values = parseArgs({
       args: argv,
@@ -80,10 +140,13 @@ function readFlags(argv: string[]): Flags {
         rounds: text,
         "batch-size": text,
         out: text,
+        server: text,
+        token: text,
+        "fail-on": { type: "string", multiple: true },
       },
       strict: true,
       allowPositionals: false,
-    }).values as Partial<Record<string, string>>;
+    }).values;
   } catch (error) {
     throw new AnalysisInputError(`${(error as Error).message}\n${USAGE}`);
   }
@@ -95,7 +158,8 @@ function readFlags(argv: string[]): Flags {
       `give exactly one of --partition FILE and --shard-column COL\n${USAGE}`,
     );
   }
-  return values as Flags;
+  const { "fail-on": failOn = [], ...single } = values;
+  return { flags: single as Flags, failOn: failOn as string[] };
 }
 
 function requireReadableFile(path: string, flag: string): number {
@@ -182,13 +246,23 @@ function describeSummary(summary: PartitionSummary): string {
 
 // exitCode instead of process.exit(): exiting at once would cut off JSON still queued for a pipe.
 main().then(
-  () => {
-    process.exitCode = 0;
+  (code) => {
+    process.exitCode = code;
   },
   (error: unknown) => {
-    if (error instanceof AnalysisInputError) {
+    if (error instanceof AnalysisInputError || error instanceof FailOnRuleError) {
       process.stderr.write(`partita: bad input: ${error.message}\n`);
       process.exitCode = EXIT_BAD_INPUT;
+      return;
+    }
+    if (error instanceof ServerError && error.status < 500) {
+      process.stderr.write(`partita: the server refused (${error.code}): ${error.message}\n`);
+      process.exitCode = EXIT_BAD_INPUT;
+      return;
+    }
+    if (error instanceof ServerAnalysisError) {
+      process.stderr.write(`partita: the analysis failed on the server: ${error.message}\n`);
+      process.exitCode = EXIT_INTERNAL;
       return;
     }
     const message = error instanceof Error ? error.message : String(error);
