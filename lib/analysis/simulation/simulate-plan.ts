@@ -121,7 +121,6 @@ export function checkSimulationBudget(cost: number, budget: number, plan: Traini
   throw new AnalysisInputError(
     `the simulation would take about ${formatCount(cost)} multiply-adds, above the budget of ${formatCount(budget)}`,
     {
-      column: "simulate",
       expected:
         (suggestions.length > 0
           ? `fewer rounds or participants (${suggestions.join(", or ")})`
