@@ -78,7 +78,10 @@ export interface PassWorkspace {
   blockGradient: Float64Array;
 }
 
-/** Rows handled together by the softmax kernel, so each weight and gradient entry is loaded once per group. */
+/**
+ * Rows handled together by the softmax kernel, so each weight and gradient entry is loaded once per
+ * group (and, two classes at a time, each row entry once per class pair).
+ */
 const ROW_GROUP = 4;
 
 export function createWorkspace(classCount: number, width: number): PassWorkspace {
@@ -164,7 +167,45 @@ function accumulateSoftmaxBlock(
     const base1 = base0 + width;
     const base2 = base1 + width;
     const base3 = base2 + width;
-    for (let c = 0; c < classCount; c++) {
+    // Two classes at a time: each x value loaded feeds two sums (eight sums fit in registers).
+    let c = 0;
+    for (; c + 1 < classCount; c += 2) {
+      const weightBaseA = c * width;
+      const weightBaseB = weightBaseA + width;
+      let scoreA0 = 0;
+      let scoreA1 = 0;
+      let scoreA2 = 0;
+      let scoreA3 = 0;
+      let scoreB0 = 0;
+      let scoreB1 = 0;
+      let scoreB2 = 0;
+      let scoreB3 = 0;
+      for (let j = 0; j < width; j++) {
+        const weightA = weights[weightBaseA + j];
+        const weightB = weights[weightBaseB + j];
+        const x0 = x[base0 + j];
+        const x1 = x[base1 + j];
+        const x2 = x[base2 + j];
+        const x3 = x[base3 + j];
+        scoreA0 += weightA * x0;
+        scoreA1 += weightA * x1;
+        scoreA2 += weightA * x2;
+        scoreA3 += weightA * x3;
+        scoreB0 += weightB * x0;
+        scoreB1 += weightB * x1;
+        scoreB2 += weightB * x2;
+        scoreB3 += weightB * x3;
+      }
+      scores[c] = scoreA0;
+      scores[classCount + c] = scoreA1;
+      scores[2 * classCount + c] = scoreA2;
+      scores[3 * classCount + c] = scoreA3;
+      scores[c + 1] = scoreB0;
+      scores[classCount + c + 1] = scoreB1;
+      scores[2 * classCount + c + 1] = scoreB2;
+      scores[3 * classCount + c + 1] = scoreB3;
+    }
+    if (c < classCount) {
       const weightBase = c * width;
       let score0 = 0;
       let score1 = 0;
@@ -199,7 +240,29 @@ function accumulateSoftmaxBlock(
         );
       }
     }
-    for (let c = 0; c < classCount; c++) {
+    for (c = 0; c + 1 < classCount; c += 2) {
+      const residualA0 = scores[c];
+      const residualA1 = scores[classCount + c];
+      const residualA2 = scores[2 * classCount + c];
+      const residualA3 = scores[3 * classCount + c];
+      const residualB0 = scores[c + 1];
+      const residualB1 = scores[classCount + c + 1];
+      const residualB2 = scores[2 * classCount + c + 1];
+      const residualB3 = scores[3 * classCount + c + 1];
+      const gradientBaseA = c * width;
+      const gradientBaseB = gradientBaseA + width;
+      for (let j = 0; j < width; j++) {
+        const x0 = x[base0 + j];
+        const x1 = x[base1 + j];
+        const x2 = x[base2 + j];
+        const x3 = x[base3 + j];
+        gradient[gradientBaseA + j] +=
+          residualA0 * x0 + residualA1 * x1 + residualA2 * x2 + residualA3 * x3;
+        gradient[gradientBaseB + j] +=
+          residualB0 * x0 + residualB1 * x1 + residualB2 * x2 + residualB3 * x3;
+      }
+    }
+    if (c < classCount) {
       const residual0 = scores[c];
       const residual1 = scores[classCount + c];
       const residual2 = scores[2 * classCount + c];
