@@ -5,7 +5,8 @@
  *   rule    := key operator value          (no spaces needed; quote the rule in a shell)
  *   key     := an alias below, or a dotted path into the summary (e.g. labelSkew.max.js)
  *   operator:= >  >=  <  <=  =  !=
- *   value   := a number (for all operators) or a word (for = and != only)
+ *   value   := a number (for all operators) or a word of letters, digits, - and _ that starts
+ *              with a letter (for = and != only), e.g. local-updates, true
  *
  * e.g. `--fail-on 'js>0.1'` (weighted JS divergence above 0.1), `--fail-on verdict!=local-updates`.
  * A key that the summary leaves null (not measured) fails its rule: a gate should not pass
@@ -59,6 +60,7 @@ export class FailOnRuleError extends Error {
   }
 }
 
+const WORD_PATTERN = /^[A-Za-z][\w-]*$/;
 const RULE_PATTERN = /^\s*([A-Za-z][\w.]*)\s*(>=|<=|!=|==|>|<|=)\s*(\S(?:.*\S)?)\s*$/;
 
 /** Parses one `--fail-on` rule; throws FailOnRuleError naming what is wrong. */
@@ -84,6 +86,11 @@ export function parseFailOnRule(text: string): FailOnRule {
   if (!isNumber && operator !== "=" && operator !== "!=") {
     throw new FailOnRuleError(
       `--fail-on "${text}": "${rawValue}" must be a number for ${operator}`,
+    );
+  }
+  if (!isNumber && !WORD_PATTERN.test(rawValue)) {
+    throw new FailOnRuleError(
+      `--fail-on "${text}": "${rawValue}" must be a number or a word such as local-updates`,
     );
   }
   return { text, path, operator, value: isNumber ? number : rawValue };
