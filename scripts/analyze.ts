@@ -3,13 +3,15 @@
  * Runs the analysis engine on local files, or with `--server URL --token T` on a Partita server
  * through its API (lib/cli/server-run.ts): the JSON summary (methods.md §6) goes to --out or stdout,
  * a short human summary and progress go to stderr. `--fail-on RULE` (repeatable, lib/cli/fail-on.ts)
- * gates on the summary. Exit 0 on success, 3 when a --fail-on rule is crossed, 2 on bad input (the
+ * gates on the summary. `--simulate` also runs methods.md §7's simulation of the plan (progress by
+ * run on stderr). Exit 0 on success, 3 when a --fail-on rule is crossed, 2 on bad input (the
  * message names file, row, column and what was expected; also a malformed rule or a request the
  * server refused), 1 on an internal error (stack only with DEBUG set).
  */
 import { createReadStream, readFileSync, statSync, writeFileSync } from "node:fs";
 import { parseArgs } from "node:util";
 import { analyzePartition, AnalysisInputError, type PartitionSummary } from "../lib/analysis";
+import type { SimulationProgress } from "../lib/analysis/simulation/simulate-plan";
 import type { AnalysisProgress } from "../lib/analysis/summary";
 import { ServerError } from "../lib/cli/api-client";
 import {
@@ -29,6 +31,7 @@ const USAGE = `usage: npm run analyze -- --data FILE --label COL (--partition FI
   [--id-column COL] [--features a,b,…] [--task classification|regression] [--lambda X]
   [--reference optimum|zero|FILE.json] [--participants M] [--local-steps K] [--rounds R]
   [--batch-size b] [--out FILE] [--server URL [--token T]] [--fail-on RULE]…
+  [--simulate [--seeds S] [--seed N] [--budget MULTIPLY_ADDS]]
   --token defaults to $PARTITA_API_TOKEN; RULE is KEY OP VALUE, e.g. 'js>0.1' or verdict!=local-updates`;
 
 const EXIT_BAD_INPUT = 2;
@@ -37,7 +40,7 @@ const EXIT_RULE_CROSSED = 3;
 
 /** Runs the analysis and answers the exit code: 0, or 3 when a --fail-on rule is crossed. */
 async function main(): Promise<number> {
-  const { flags, failOn } = readFlags(process.argv.slice(2));
+  const { flags, failOn, simulate } = readFlags(process.argv.slice(2));
   const rules = failOn.map(parseFailOnRule);
   const dataSize = requireReadableFile(flags.data, "--data");
   if (flags.partition !== undefined) requireReadableFile(flags.partition, "--partition");
@@ -55,6 +58,13 @@ async function main(): Promise<number> {
     localSteps: readNumber(flags["local-steps"], "--local-steps"),
     rounds: readNumber(flags.rounds, "--rounds"),
     batchSize: readNumber(flags["batch-size"], "--batch-size"),
+    simulate: simulate
+      ? {
+          seeds: readNumber(flags.seeds, "--seeds"),
+          seed: readNumber(flags.seed, "--seed"),
+          budget: readNumber(flags.budget, "--budget"),
+        }
+      : undefined,
   };
   const json = flags.server
     ? await runOnServer({
@@ -91,6 +101,7 @@ async function analyzeLocally(
       partitionName: flags.partition,
       referenceName: flags.reference,
       options,
+      onSimulationProgress: createSimulationProgressPrinter(),
     },
     createProgressPrinter(),
   );
@@ -119,9 +130,9 @@ function readWeightsPath(value: string | undefined): string | undefined {
 
 type Flags = { data: string; label: string } & Partial<Record<string, string>>;
 
-function readFlags(argv: string[]): { flags: Flags; failOn: string[] } {
+function readFlags(argv: string[]): { flags: Flags; failOn: string[]; simulate: boolean } {
   const text = { type: "string" } as const;
-  let values: Partial<Record<string, string | string[]>>;
+  let values: Partial<Record<string, string | string[] | boolean>>;
   try {
     values = parseArgs({
       args: argv,
@@ -143,6 +154,10 @@ function readFlags(argv: string[]): { flags: Flags; failOn: string[] } {
         server: text,
         token: text,
         "fail-on": { type: "string", multiple: true },
+        simulate: { type: "boolean" },
+        seeds: text,
+        seed: text,
+        budget: text,
       },
       strict: true,
       allowPositionals: false,
@@ -158,8 +173,14 @@ function readFlags(argv: string[]): { flags: Flags; failOn: string[] } {
       `give exactly one of --partition FILE and --shard-column COL\n${USAGE}`,
     );
   }
+  const simulate = values.simulate === true;
+  const simulationFlag = ["seeds", "seed", "budget"].find((name) => values[name] !== undefined);
+  if (!simulate && simulationFlag !== undefined) {
+    throw new AnalysisInputError(`--${simulationFlag} only applies with --simulate\n${USAGE}`);
+  }
   const { "fail-on": failOn = [], ...single } = values;
-  return { flags: single as Flags, failOn: failOn as string[] };
+  delete single.simulate; // a switch, not one of the string flags
+  return { flags: single as Flags, failOn: failOn as string[], simulate };
 }
 
 function requireReadableFile(path: string, flag: string): number {
@@ -226,6 +247,17 @@ function createProgressPrinter(): (progress: AnalysisProgress) => void {
   };
 }
 
+/** One line per simulation run (3 × (8 + S) runs), not per round. */
+function createSimulationProgressPrinter(): (progress: SimulationProgress) => void {
+  let lastRun = 0;
+  return ({ algorithm, phase, run, runs }) => {
+    if (run === lastRun) return;
+    lastRun = run;
+    const what = phase === "step-size" ? "step-size search" : "seeds";
+    process.stderr.write(`partita: simulating run ${run}/${runs} (${algorithm}, ${what})\n`);
+  };
+}
+
 function describeSummary(summary: PartitionSummary): string {
   const { dataset, advice, heterogeneity, labelSkew, model } = summary;
   const format = (value: number | null) => (value === null ? "n/a" : value.toPrecision(4));
@@ -239,9 +271,23 @@ function describeSummary(summary: PartitionSummary): string {
     `plan M=${advice.participants} K=${advice.localSteps} R=${advice.rounds} b=${advice.batchSize}: ` +
       `local/minibatch bound ratio ${format(advice.ratio)} → ${advice.verdict}` +
       (advice.heterogeneityBarrier ? " (heterogeneity barrier)" : ""),
+    ...describeSimulation(summary.simulation),
     ...summary.preprocessing.warnings.map((warning) => `warning: ${warning}`),
   ];
   return `${lines.join("\n")}\n`;
+}
+
+function describeSimulation(simulation: PartitionSummary["simulation"]): string[] {
+  if (!simulation) return [];
+  const format = (value: number | null) => (value === null ? "n/a" : value.toPrecision(3));
+  return [
+    `simulation (${simulation.seeds} seeds): ` +
+      simulation.algorithms
+        .map((algorithm) => `${algorithm.name} F−F* ${format(algorithm.final)}`)
+        .join(", ") +
+      ` → ${simulation.verdict}`,
+    simulation.note,
+  ];
 }
 
 // exitCode instead of process.exit(): exiting at once would cut off JSON still queued for a pipe.

@@ -6,4 +6,11 @@ export { analyzePartition, type PartitionInput } from "./analyze-partition";
 export { AnalysisInputError } from "./errors";
 export type { Advice, Verdict } from "./advise-plan";
 export type { AnalysisProgress, AnalysisStage, PartitionSummary, ShardSummary } from "./summary";
+export {
+  estimateSimulationCost,
+  simulatePlan,
+  type AlgorithmResult,
+  type SimulationProgress,
+  type SimulationSummary,
+} from "./simulation/simulate-plan";
 export { ENGINE_VERSION } from "./version";
