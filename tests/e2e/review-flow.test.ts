@@ -1,0 +1,118 @@
+// Request review → comment → approve in Chromium, with the reviewer arriving signed out from the
+// link in the e-mail the SMTP fake caught. The report is the CLI's summary of penguins by island
+// (vega-datasets, BSD-3) stored as the worker stores it; the accounts are made in the database.
+import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
+import { closeDb, db } from "@/db/client";
+import { memberships } from "@/db/schema";
+import { createAccountWithWorkspace } from "@/db/queries/workspaces";
+import { hashPassword } from "@/lib/auth/password";
+import { uniqueEmail } from "@/tests/support/accounts";
+import { waitForMessage } from "@/tests/support/mailbox";
+import { analyzePenguinsWithCli, insertReport } from "@/tests/support/report-fixtures";
+import { openBrowser, type BrowserSession } from "./support/browser";
+
+let browser: BrowserSession | undefined;
+afterEach(async () => {
+  await browser?.close();
+  browser = undefined;
+});
+afterAll(closeDb);
+
+const analyst = { name: "Ada Analyst", email: uniqueEmail("analyst"), password: "analyst pass 1" };
+const reviewer = {
+  name: "Rowan Reviewer",
+  email: uniqueEmail("reviewer"),
+  password: "reviewer 22",
+};
+let workspaceId: string;
+let reportPath: string;
+
+beforeAll(async () => {
+  const summary = await analyzePenguinsWithCli();
+  const analystAccount = await createAccountWithWorkspace({
+    name: analyst.name,
+    email: analyst.email,
+    passwordHash: await hashPassword(analyst.password),
+    workspaceName: "Penguin review",
+  });
+  const reviewerAccount = await createAccountWithWorkspace({
+    name: reviewer.name,
+    email: reviewer.email,
+    passwordHash: await hashPassword(reviewer.password),
+    workspaceName: "Rowan's own",
+  });
+  workspaceId = analystAccount.workspaceId;
+  await db()
+    .insert(memberships)
+    .values({ workspaceId, userId: reviewerAccount.userId, role: "reviewer" });
+  const { reportId } = await insertReport({
+    workspaceId,
+    authorId: analystAccount.userId,
+    summary,
+    title: "Penguins by island",
+  });
+  reportPath = `/w/${workspaceId}/reports/${reportId}`;
+});
+
+async function fillSignInForm(session: BrowserSession, person: typeof analyst) {
+  await session.page.getByLabel("E-mail").fill(person.email);
+  await session.page.getByLabel("Password").fill(person.password);
+  await session.page.getByRole("button", { name: "Sign in" }).click();
+}
+
+describe("review flow in the browser", () => {
+  it("requests a review, the reviewer follows the e-mail link, comments and approves", async () => {
+    browser = await openBrowser();
+    let { page } = browser;
+    await page.goto("/sign-in");
+    await fillSignInForm(browser, analyst);
+    await page.waitForURL(/\/w\/[\w-]+$/);
+    await page.goto(reportPath);
+    const review = page.getByRole("region", { name: "Review of version 1" });
+    expect(await review.getByTestId("review-state").textContent()).toContain("Not yet reviewed");
+    await review.getByRole("checkbox", { name: /Rowan Reviewer/ }).check();
+    await review.getByLabel("Note to the reviewers (optional)").fill("Is the island split fair?");
+    await review.getByRole("button", { name: "Request review" }).click();
+    await review.getByText("Review requested from 1 person").waitFor();
+    await review.getByText("Awaiting 1 reviewer").waitFor();
+    await browser.close();
+
+    const request = await waitForMessage(reviewer.email, /^Review requested: Penguins by island/);
+    const link = request.text.match(/https?:\/\/\S+\/reports\/[\w-]+/)?.[0];
+    expect(link && new URL(link).pathname).toBe(reportPath);
+
+    // Signed out, the link goes through sign-in and comes back to the report.
+    browser = await openBrowser();
+    page = browser.page;
+    await page.goto(link ?? "");
+    await page.waitForURL(/\/sign-in\?callbackUrl=/);
+    await fillSignInForm(browser, reviewer);
+    await page.waitForURL((url) => url.pathname === reportPath);
+    const panel = page.getByRole("region", { name: "Review of version 1" });
+    await panel
+      .getByLabel("Comment", { exact: true })
+      .fill("@Ada Analyst Torgersen holds only Adelie.");
+    await panel.getByLabel("Pin to").selectOption("shard:Torgersen");
+    await panel.getByRole("button", { name: "Post comment" }).click();
+    const thread = panel.getByTestId("comment-thread");
+    await thread.getByText("On: Shard Torgersen").waitFor();
+    expect(await thread.getByText("Torgersen holds only Adelie.").count()).toBe(1);
+
+    await panel.getByRole("radio", { name: /Approve/ }).check();
+    await panel.getByLabel("Reason").fill("The verdict follows from the island skew.");
+    await panel.getByRole("button", { name: "Record decision" }).click();
+    await panel.getByTestId("review-state").getByText("Approved").waitFor();
+    expect(await panel.getByRole("list", { name: "Decisions" }).textContent()).toContain(
+      "The verdict follows from the island skew.",
+    );
+
+    await page.goto(`/w/${workspaceId}/reports`);
+    const row = page.locator("tbody tr").first();
+    expect(await row.getByTestId("review-state").textContent()).toContain("Approved");
+
+    const mention = await waitForMessage(analyst.email, /mentioned you/);
+    expect(mention.text).toContain("Torgersen holds only Adelie.");
+    const approval = await waitForMessage(analyst.email, /^Approved: Penguins by island \(v1\)/);
+    expect(approval.text).toContain(reportPath);
+  });
+});
