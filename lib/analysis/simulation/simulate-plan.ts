@@ -15,6 +15,12 @@ export const ALGORITHMS: readonly AlgorithmName[] = ["minibatch", "local", "scaf
 export const STEP_SIZE_COUNT = 8;
 /** A curve has at most this many points (methods.md §7). */
 export const MAX_CURVE_POINTS = 100;
+/**
+ * A step-size search run evaluates F on all rows at this many rounds only (its final F decides, and
+ * the loss check against 10·F(W₀) runs there; the weights' finiteness is checked every round): on
+ * large data a full pass costs more than a round, and the grid has 8 runs per algorithm.
+ */
+export const GRID_CHECK_POINTS = 11;
 /** The generator every run draws from, named in the summary (methods.md §7, determinism). */
 export const GENERATOR_NAME = "xoshiro128**";
 
@@ -147,6 +153,7 @@ export async function simulatePlan(
   const cost = estimateSimulationCost(plan, design.x.cols, countWeightRows(design), options.seeds);
   checkSimulationBudget(cost, options.budget, plan);
   const curveRounds = chooseCurveRounds(plan.rounds);
+  const checkRounds = chooseCurveRounds(plan.rounds, GRID_CHECK_POINTS);
   const runs = ALGORITHMS.length * (STEP_SIZE_COUNT + options.seeds);
   let runIndex = 0;
   const runOnce = async (
@@ -154,6 +161,7 @@ export async function simulatePlan(
     phase: SimulationProgress["phase"],
     stepSize: number,
     seed: number,
+    evaluated: Int32Array,
   ): Promise<RunOutcome> => {
     const run = ++runIndex;
     const report = (round: number) =>
@@ -167,7 +175,7 @@ export async function simulatePlan(
         fraction: (run - 1 + round / plan.rounds) / runs,
       });
     report(0);
-    const outcome = await runAlgorithm(algorithm, input, plan, stepSize, seed, curveRounds, {
+    const outcome = await runAlgorithm(algorithm, input, plan, stepSize, seed, evaluated, {
       onRound: report,
       signal: hooks.signal,
     });
@@ -182,8 +190,8 @@ export async function simulatePlan(
     let best = Infinity;
     for (let k = 0; k < STEP_SIZE_COUNT; k++) {
       const stepSize = 2 ** -k / input.smoothness;
-      const outcome = await runOnce(algorithm, "step-size", stepSize, options.seed);
-      const final = outcome.diverged ? null : outcome.suboptimality[curveRounds.length - 1];
+      const outcome = await runOnce(algorithm, "step-size", stepSize, options.seed, checkRounds);
+      const final = outcome.diverged ? null : outcome.suboptimality[checkRounds.length - 1];
       grid.push({ stepSize, final });
       if (final !== null && final < best) {
         best = final;
@@ -196,7 +204,7 @@ export async function simulatePlan(
         runIndex++;
         continue;
       }
-      outcomes.push(await runOnce(algorithm, "seeds", chosen, options.seed + s));
+      outcomes.push(await runOnce(algorithm, "seeds", chosen, options.seed + s, curveRounds));
     }
     algorithms.push(summarizeAlgorithm(algorithm, chosen, grid, outcomes, curveRounds));
   }
@@ -222,13 +230,15 @@ export async function simulatePlan(
   };
 }
 
-/** Every round up to R when R + 1 ≤ 100 points, else 100 evenly spaced rounds from 0 to R. */
-export function chooseCurveRounds(rounds: number): Int32Array {
-  if (rounds + 1 <= MAX_CURVE_POINTS) return Int32Array.from({ length: rounds + 1 }, (_, r) => r);
-  // Steps of R/99 ≥ 1 round apart, so rounding keeps the rounds distinct.
-  return Int32Array.from({ length: MAX_CURVE_POINTS }, (_, i) =>
-    Math.round((i * rounds) / (MAX_CURVE_POINTS - 1)),
-  );
+/**
+ * Every round up to R when R + 1 ≤ `points`, else `points` evenly spaced rounds from 0 to R.
+ *
+ * Example: R = 1000 and 100 points give 0, 10, 20, …, 990, 1000 (rounded multiples of 1000/99).
+ */
+export function chooseCurveRounds(rounds: number, points = MAX_CURVE_POINTS): Int32Array {
+  if (rounds + 1 <= points) return Int32Array.from({ length: rounds + 1 }, (_, r) => r);
+  // Steps of R/(points − 1) ≥ 1 round apart, so rounding keeps the rounds distinct.
+  return Int32Array.from({ length: points }, (_, i) => Math.round((i * rounds) / (points - 1)));
 }
 
 function summarizeAlgorithm(
