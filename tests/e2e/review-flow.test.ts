@@ -18,6 +18,7 @@ afterEach(async () => {
 });
 afterAll(closeDb);
 
+const owner = { name: "Olive Owner", email: uniqueEmail("owner"), password: "owner pass 333" };
 const analyst = { name: "Ada Analyst", email: uniqueEmail("analyst"), password: "analyst pass 1" };
 const reviewer = {
   name: "Rowan Reviewer",
@@ -29,22 +30,23 @@ let reportPath: string;
 
 beforeAll(async () => {
   const summary = await analyzePenguinsWithCli();
-  const analystAccount = await createAccountWithWorkspace({
-    name: analyst.name,
-    email: analyst.email,
-    passwordHash: await hashPassword(analyst.password),
-    workspaceName: "Penguin review",
-  });
-  const reviewerAccount = await createAccountWithWorkspace({
-    name: reviewer.name,
-    email: reviewer.email,
-    passwordHash: await hashPassword(reviewer.password),
-    workspaceName: "Rowan's own",
-  });
-  workspaceId = analystAccount.workspaceId;
+  const [ownerAccount, analystAccount, reviewerAccount] = await Promise.all(
+    [owner, analyst, reviewer].map(async (person) =>
+      createAccountWithWorkspace({
+        name: person.name,
+        email: person.email,
+        passwordHash: await hashPassword(person.password),
+        workspaceName: `${person.name}'s workspace`,
+      }),
+    ),
+  );
+  workspaceId = ownerAccount.workspaceId;
   await db()
     .insert(memberships)
-    .values({ workspaceId, userId: reviewerAccount.userId, role: "reviewer" });
+    .values([
+      { workspaceId, userId: analystAccount.userId, role: "analyst" },
+      { workspaceId, userId: reviewerAccount.userId, role: "reviewer" },
+    ]);
   const { reportId } = await insertReport({
     workspaceId,
     authorId: analystAccount.userId,
@@ -64,12 +66,14 @@ describe("review flow in the browser", () => {
   it("requests a review, the reviewer follows the e-mail link, comments and approves", async () => {
     browser = await openBrowser();
     let { page } = browser;
-    await page.goto("/sign-in");
-    await fillSignInForm(browser, analyst);
-    await page.waitForURL(/\/w\/[\w-]+$/);
     await page.goto(reportPath);
+    await page.waitForURL(/\/sign-in\?callbackUrl=/);
+    await fillSignInForm(browser, analyst);
+    await page.waitForURL((url) => url.pathname === reportPath);
     const review = page.getByRole("region", { name: "Review of version 1" });
     expect(await review.getByTestId("review-state").textContent()).toContain("Not yet reviewed");
+    // Analysts request reviews but do not decide them.
+    expect(await review.getByRole("button", { name: "Record decision" }).count()).toBe(0);
     await review.getByRole("checkbox", { name: /Rowan Reviewer/ }).check();
     await review.getByLabel("Note to the reviewers (optional)").fill("Is the island split fair?");
     await review.getByRole("button", { name: "Request review" }).click();
@@ -114,5 +118,24 @@ describe("review flow in the browser", () => {
     expect(mention.text).toContain("Torgersen holds only Adelie.");
     const approval = await waitForMessage(analyst.email, /^Approved: Penguins by island \(v1\)/);
     expect(approval.text).toContain(reportPath);
+    await browser.close();
+
+    // The owner reads who decided what in the audit log, filtered to decisions.
+    browser = await openBrowser();
+    page = browser.page;
+    await page.goto(`/w/${workspaceId}/audit`);
+    await fillSignInForm(browser, owner);
+    await page.waitForURL((url) => url.pathname === `/w/${workspaceId}/audit`);
+    await page.getByLabel("Event").selectOption("review.decided");
+    await page.getByRole("button", { name: "Apply" }).click();
+    await page.waitForURL(/action=review.decided/);
+    const entries = page
+      .getByRole("table", { name: "Audit log, newest first" })
+      .locator("tbody tr");
+    expect(await entries.count()).toBe(1);
+    expect(await entries.first().textContent()).toContain(reviewer.email);
+    expect(await entries.first().textContent()).toContain(
+      "The verdict follows from the island skew.",
+    );
   });
 });
