@@ -60,7 +60,7 @@ export default async function ReportPage({ params }: PageProps) {
         workspaceId={workspace.id}
         canRunAnalysis={roleAllows(workspace.role, "runAnalysis")}
       />
-      <a href="#review" className="inline-block" aria-label="Review state; go to the review">
+      <a href="#review" className="inline-block" title="Go to the review of this version">
         <ReviewStateChip state={review.state} />
       </a>
       <VerdictPanel summary={summary} />
