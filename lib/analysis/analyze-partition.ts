@@ -156,7 +156,7 @@ async function analyzeWithPool(
     );
   }
   const passes = openPool(design).share(design, design.shardOffsets);
-  const gram = await passes.computeGram();
+  const gram = passes.computeGram();
   const curvature = largestEigenvalueSymmetric(
     matrixFromValues(design.x.cols, design.x.cols, gram),
   );
@@ -165,7 +165,7 @@ async function analyzeWithPool(
   onProgress({ stage: "encoding", fraction: 1 });
 
   onProgress({ stage: "fitting", fraction: 0 });
-  const fitted = await fitReferenceModel(design, passes, gram, options.lambda, (fraction) =>
+  const fitted = fitReferenceModel(design, passes, gram, options.lambda, (fraction) =>
     onProgress({ stage: "fitting", fraction }),
   );
   onProgress({ stage: "fitting", fraction: 1 });
@@ -177,9 +177,9 @@ async function analyzeWithPool(
       withNoise,
       vanishingGradient: fitted.tolerance,
     });
-  const measure = async (weights: Float64Array, withNoise: boolean) =>
-    summarize(weights, await passes.evaluate(weights, withNoise), withNoise);
-  const atReference = await measure(reference.weights, true);
+  const measure = (weights: Float64Array, withNoise: boolean) =>
+    summarize(weights, passes.evaluate(weights, withNoise), withNoise);
+  const atReference = measure(reference.weights, true);
   const path: PointMeasurement[] = [];
   for (const [index, t] of PATH_POINTS.entries()) {
     onProgress({ stage: "measuring", fraction: (index + 1) / (PATH_POINTS.length + 1) });
@@ -187,7 +187,7 @@ async function analyzeWithPool(
     // Passes already made at the same point: the fit's first, at W = 0, and the reference's at W*.
     if (t === 0) path.push(summarize(weights, fitted.atZero, false));
     else if (t === 1 && reference.kind === "optimum") path.push(atReference);
-    else path.push(await measure(weights, false));
+    else path.push(measure(weights, false));
   }
   const atOptimum = path[path.length - 1];
   const labelCounts = countLabelsPerShard(design);

@@ -55,17 +55,17 @@ export interface FittedModel {
  * zero: the minimum-norm optimum (methods.md §2); a final re-centring removes rounding drift.
  * `gram` is G (width × width), used by the least-squares solve.
  */
-export async function fitReferenceModel(
+export function fitReferenceModel(
   design: Design,
   passes: SharedDesign,
   gram: Float64Array,
   lambda: number,
   onProgress?: (fraction: number) => void,
-): Promise<FittedModel> {
+): FittedModel {
   const width = design.x.cols;
   const weightRows = countWeightRows(design);
   const start = new Float64Array(weightRows * width);
-  const zeroPass = await passes.evaluate(start, false);
+  const zeroPass = passes.evaluate(start, false);
   const atZero = finishPass(zeroPass.pooled, start, width, lambda, false);
   const tolerance = OPTIMUM_RELATIVE_TOLERANCE * Math.max(1, norm(atZero.gradient));
   const reportGradient = (gradientNorm: number) => {
@@ -76,7 +76,7 @@ export async function fitReferenceModel(
   };
 
   if (design.classes === null) {
-    const solved = await solveLeastSquares(passes, gram, lambda, atZero.gradient, tolerance);
+    const solved = solveLeastSquares(passes, gram, lambda, atZero.gradient, tolerance);
     return { ...solved, atZero: zeroPass };
   }
 
@@ -88,20 +88,20 @@ export async function fitReferenceModel(
           Int32Array.of(0, Math.ceil(design.x.rows / stride)),
         )
       : passes;
-  const rough = await minimizeLbfgs(
-    async (weights, gradient) => {
-      const result = await evaluatePooled(sample, weights, lambda);
+  const rough = minimizeLbfgs(
+    (weights, gradient) => {
+      const result = evaluatePooled(sample, weights, lambda);
       gradient.set(result.gradient);
       return result.value;
     },
     start,
     { gradientTolerance: tolerance * WARM_START_TOLERANCE_FACTOR, maxIterations: 2000 },
   );
-  const precondition = await createNewtonPreconditioner(sample, rough.x, lambda);
+  const precondition = createNewtonPreconditioner(sample, rough.x, lambda);
   let evaluations = 1;
-  const result = await minimizeLbfgs(
-    async (weights, gradient) => {
-      const evaluation = await evaluatePooled(passes, weights, lambda);
+  const result = minimizeLbfgs(
+    (weights, gradient) => {
+      const evaluation = evaluatePooled(passes, weights, lambda);
       evaluations++;
       gradient.set(evaluation.gradient);
       return evaluation.value;
@@ -129,12 +129,12 @@ export async function fitReferenceModel(
 }
 
 /** F and ∇F over all rows of a shared design, in one pass. */
-async function evaluatePooled(
+function evaluatePooled(
   passes: SharedDesign,
   weights: Float64Array,
   lambda: number,
-): Promise<ObjectiveValue> {
-  const { pooled } = await passes.evaluate(weights, false);
+): ObjectiveValue {
+  const { pooled } = passes.evaluate(weights, false);
   return finishPass(pooled, weights, passes.x.cols, lambda, false);
 }
 
@@ -143,14 +143,14 @@ async function evaluatePooled(
  * The bias term makes the direction that shifts every intercept alike (flat for softmax) curved;
  * ρ = 1e-10 × the largest diagonal entry keeps the factorization clear of rounding.
  */
-async function createNewtonPreconditioner(
+function createNewtonPreconditioner(
   sample: SharedDesign,
   weights: Float64Array,
   lambda: number,
-): Promise<(vector: Float64Array) => void> {
+): (vector: Float64Array) => void {
   const width = sample.x.cols;
   const size = weights.length;
-  const hessian = await sample.computeSoftmaxHessian(weights, lambda);
+  const hessian = sample.computeSoftmaxHessian(weights, lambda);
   let largestDiagonal = 0;
   for (let k = 0; k < size; k++) largestDiagonal = Math.max(largestDiagonal, hessian[k * size + k]);
   const floor = PRECONDITIONER_FLOOR * largestDiagonal;
@@ -162,13 +162,13 @@ async function createNewtonPreconditioner(
   return (vector) => choleskySolveInPlace(lower, vector);
 }
 
-async function solveLeastSquares(
+function solveLeastSquares(
   passes: SharedDesign,
   gram: Float64Array,
   lambda: number,
   gradientAtZero: Float64Array,
   tolerance: number,
-): Promise<Omit<FittedModel, "atZero">> {
+): Omit<FittedModel, "atZero"> {
   const width = passes.x.cols;
   const system = matrixFromValues(width, width, Float64Array.from(gram));
   for (let j = 0; j < width - 1; j++) system.data[j * width + j] += lambda;
@@ -177,13 +177,13 @@ async function solveLeastSquares(
   // ∇F(0) = −X̃ᵀy/N, so W* = −(G + Λ)⁻¹ ∇F(0); refine with Newton steps on the true gradient.
   const weights = gradientAtZero.map((value) => -value);
   choleskySolveInPlace(lower, weights);
-  let evaluation = await evaluatePooled(passes, weights, lambda);
+  let evaluation = evaluatePooled(passes, weights, lambda);
   let evaluations = 2;
   for (let step = 0; step < 5 && norm(evaluation.gradient) > tolerance; step++) {
     const correction = Float64Array.from(evaluation.gradient);
     choleskySolveInPlace(lower, correction);
     for (let k = 0; k < width; k++) weights[k] -= correction[k];
-    evaluation = await evaluatePooled(passes, weights, lambda);
+    evaluation = evaluatePooled(passes, weights, lambda);
     evaluations++;
   }
   const gradientNorm = norm(evaluation.gradient);

@@ -2,7 +2,7 @@
  * The work that threads share (see pass-pool.ts), written so that any thread can run any task: a
  * job is split into numbered tasks, each task writes only its own slot of a shared result buffer,
  * and the calling thread combines the slots in task order. The result therefore never depends on
- * how many threads ran or which thread ran which task.
+ * how many threads ran or which thread ran which task (or whether two ran the same one).
  */
 import { accumulateGramUpper } from "../math/gram";
 import type { Matrix } from "../math/matrix";
@@ -42,10 +42,20 @@ export function planChunks(shardOffsets: Int32Array): Int32Array {
   return Int32Array.from(starts);
 }
 
-/** Task counter, busy-thread count and failure flag of one job, shared by all threads. */
+/**
+ * Layout of a job's control array (Int32, shared by all threads): the next task to claim, how many
+ * worker threads are inside the job, a failure flag, then one done flag per task.
+ */
 export const CONTROL_NEXT_TASK = 0;
 export const CONTROL_ACTIVE = 1;
 export const CONTROL_FAILED = 2;
+const CONTROL_DONE = 3;
+
+export function createControl(taskCount: number): Int32Array {
+  return new Int32Array(
+    new SharedArrayBuffer((CONTROL_DONE + taskCount) * Int32Array.BYTES_PER_ELEMENT),
+  );
+}
 
 export type Job =
   | {
@@ -110,8 +120,8 @@ export function createScratch(): TaskScratch {
 
 /**
  * Runs tasks of `job` until none are left, claiming each from the shared counter, so fast threads
- * take more. Returns, when every task has been claimed (others may still be finishing theirs), the
- * number of tasks this thread ran.
+ * take more, and flags each as done once its slot is written. Returns, when every task has been
+ * claimed (others may still be running theirs), the number of tasks this thread ran.
  */
 export function runTasks(
   job: Job,
@@ -124,6 +134,27 @@ export function runTasks(
     const task = Atomics.add(control, CONTROL_NEXT_TASK, 1);
     if (task >= taskCount) return ran;
     runTask(job, design, task, scratch);
+    Atomics.store(control, CONTROL_DONE + task, 1);
+  }
+}
+
+/**
+ * Runs, on the calling thread, every task not yet flagged done — those another thread claimed but
+ * has not finished — instead of waiting for it (a thread the system has paused could take long).
+ * A task's result depends only on its inputs, so if that thread finishes too it writes the same
+ * values into the same slot.
+ */
+export function completeUnfinishedTasks(
+  job: Job,
+  design: SharedDesignData,
+  control: Int32Array,
+  scratch: TaskScratch,
+): void {
+  const taskCount = countTasks(job, design);
+  for (let task = 0; task < taskCount; task++) {
+    if (Atomics.load(control, CONTROL_DONE + task) === 1) continue;
+    runTask(job, design, task, scratch);
+    Atomics.store(control, CONTROL_DONE + task, 1);
   }
 }
 

@@ -3,9 +3,10 @@ import { Worker } from "node:worker_threads";
 import { symmetrizeFromUpper } from "../math/gram";
 import type { Matrix } from "../math/matrix";
 import {
+  completeUnfinishedTasks,
   CONTROL_ACTIVE,
-  CONTROL_FAILED,
   countTasks,
+  createControl,
   createScratch,
   GRAM_CHUNK_ROWS,
   passSlotSize,
@@ -45,19 +46,21 @@ export interface PassResult {
  * runs everything on the calling thread. Designs are shared, not copied: their arrays live in
  * SharedArrayBuffers. Tasks are claimed from a shared counter and every task writes its own result
  * slot, which the calling thread combines in a fixed order, so results are the same bit for bit
- * whatever the number of threads.
+ * whatever the number of threads. The calling thread never waits: once no task is left to claim it
+ * runs any that a worker has claimed but not finished (on a busy machine a worker thread can be
+ * paused for a while), so a job takes at worst about as long as on one thread.
  *
  * Worker threads start at once and load in the background (a TypeScript loader and the kernels,
- * about a second), so a pool is best started before the data is read. `close` ends them.
+ * about a second), so a pool is best started before the data is read; jobs begin without the
+ * workers that are not ready. `close` ends them.
  */
 export class PassPool {
   private readonly workers: Worker[];
   private readonly scratch = createScratch();
   private readonly workerTasks = new Int32Array(new SharedArrayBuffer(4));
   private readonly ready: Promise<unknown>;
-  private readonly failure: Promise<never>;
-  private failureError: Error | null = null;
-  private reportFailure: (error: Error) => void = () => {};
+  private failure: Error | null = null;
+  private rejectReady: (error: Error) => void = () => {};
   private closing = false;
   private nextDesignId = 0;
 
@@ -65,15 +68,6 @@ export class PassPool {
     if (!Number.isInteger(threads) || threads < 1) {
       throw new RangeError(`a pass pool needs a positive whole number of threads, got ${threads}`);
     }
-    this.failure = new Promise<never>((_, reject) => {
-      this.reportFailure = (error) => {
-        if (this.failureError !== null) return;
-        this.failureError = error;
-        reject(error);
-      };
-    });
-    // Nobody may be waiting when a thread fails; the next `run` reports it.
-    this.failure.catch(() => {});
     const loaded: Promise<void>[] = [];
     this.workers = Array.from({ length: threads - 1 }, () => {
       const worker = this.startWorker();
@@ -86,15 +80,18 @@ export class PassPool {
       );
       return worker;
     });
-    this.ready = Promise.all(loaded);
+    const failed = new Promise<never>((_, reject) => (this.rejectReady = reject));
+    this.ready = Promise.race([Promise.all(loaded), failed]);
+    // Nobody may be waiting when a thread fails; the next job reports it.
+    this.ready.catch(() => {});
   }
 
   /**
-   * Resolves once every worker thread has loaded (jobs started earlier begin without them). The
-   * analysis never waits for this; tests and diagnostics do.
+   * Resolves once every worker thread has loaded. The analysis never waits for this; tests and
+   * diagnostics do.
    */
   async whenReady(): Promise<void> {
-    await Promise.race([this.ready, this.failure]);
+    await this.ready;
   }
 
   /** Tasks run by the worker threads so far, the rest ran on the calling thread (diagnostics). */
@@ -115,15 +112,18 @@ export class PassPool {
     return new SharedDesign(this, data, shardOffsets);
   }
 
-  /** Runs every task of `job`, on this thread and the workers, and waits until all are done. */
-  async run(job: Job, design: SharedDesignData): Promise<void> {
-    if (this.failureError !== null) throw this.failureError;
-    const control = new Int32Array(new SharedArrayBuffer(3 * Int32Array.BYTES_PER_ELEMENT));
+  /**
+   * Runs every task of `job`, on this thread and the workers. Returns the job's control array,
+   * whose active count says whether a worker may still be writing one of the job's slots.
+   * A worker thread that failed (a defect, not bad input) is reported at the next job.
+   */
+  run(job: Job, design: SharedDesignData): Int32Array {
+    if (this.failure !== null) throw this.failure;
+    const control = createControl(countTasks(job, design));
     this.post({ type: "job", job, control });
     runTasks(job, design, control, this.scratch);
-    await Promise.race([waitUntilIdle(control), this.failure]);
-    // A failed task is flagged before its thread goes idle; its message may still be on the way.
-    if (Atomics.load(control, CONTROL_FAILED) !== 0) await this.failure;
+    completeUnfinishedTasks(job, design, control, this.scratch);
+    return control;
   }
 
   /** Ends the worker threads. */
@@ -152,11 +152,17 @@ export class PassPool {
     });
     return worker;
   }
+
+  private reportFailure(error: Error): void {
+    this.failure ??= error;
+    this.rejectReady(error);
+  }
 }
 
 /** A design shared with a pool's threads, with the passes the analysis needs over its rows. */
 export class SharedDesign {
-  private passResults: Float64Array | null = null;
+  /** The last pass's result slots, reused once no worker can still write them. */
+  private lastPass: { results: Float64Array; control: Int32Array } | null = null;
 
   constructor(
     readonly pool: PassPool,
@@ -172,18 +178,22 @@ export class SharedDesign {
    * Σ ℓᵢ(W), Σ ∇ℓᵢ(W) and (when asked) Σ ‖∇ℓᵢ(W)‖² per shard and over all rows (see
    * objective-pass.ts), in one pass shared by the pool's threads.
    */
-  async evaluate(weights: Float64Array, withSquaredNorms: boolean): Promise<PassResult> {
+  evaluate(weights: Float64Array, withSquaredNorms: boolean): PassResult {
     const size = weights.length;
     const chunkStarts = this.data.chunkStarts;
     const taskCount = chunkStarts.length - 1;
-    if (this.passResults?.length !== taskCount * passSlotSize(size)) {
-      this.passResults = sharedFloat64(taskCount * passSlotSize(size));
-    }
-    const results = this.passResults;
-    await this.pool.run(
+    const last = this.lastPass;
+    const results =
+      last !== null &&
+      last.results.length === taskCount * passSlotSize(size) &&
+      Atomics.load(last.control, CONTROL_ACTIVE) === 0
+        ? last.results
+        : sharedFloat64(taskCount * passSlotSize(size));
+    const control = this.pool.run(
       { kind: "pass", designId: this.data.id, weights, withSquaredNorms, results },
       this.data,
     );
+    this.lastPass = { results, control };
     const shards: PassTotals[] = [];
     let chunk = 0;
     for (let m = 0; m + 1 < this.shardOffsets.length; m++) {
@@ -203,11 +213,11 @@ export class SharedDesign {
    *
    * Example: rows [1, 2] and [3, 4] give [[5, 7], [7, 10]].
    */
-  async computeGram(): Promise<Float64Array> {
+  computeGram(): Float64Array {
     const width = this.data.x.cols;
     const tasks = Math.ceil(this.data.x.rows / GRAM_CHUNK_ROWS);
     const results = sharedFloat64(tasks * width * width);
-    await this.pool.run({ kind: "gram", designId: this.data.id, results }, this.data);
+    this.pool.run({ kind: "gram", designId: this.data.id, results }, this.data);
     const gram = new Float64Array(width * width);
     for (let task = 0; task < tasks; task++) {
       for (let k = 0; k < gram.length; k++) gram[k] += results[task * width * width + k];
@@ -224,7 +234,7 @@ export class SharedDesign {
    * Example: at W = 0 with C classes every pᵢ is uniform, so block (a, b) is
    * (δ_ab/C − 1/C²) X̃ᵀX̃/n, plus λ on the diagonal off the biases.
    */
-  async computeSoftmaxHessian(weights: Float64Array, lambda: number): Promise<Float64Array> {
+  computeSoftmaxHessian(weights: Float64Array, lambda: number): Float64Array {
     const width = this.data.x.cols;
     const classCount = weights.length / width;
     const probabilities = toShared(computeClassProbabilities(this.data.x, weights));
@@ -235,20 +245,11 @@ export class SharedDesign {
       classCount,
       results: sharedFloat64(countClassPairs(classCount) * width * width),
     };
-    await this.pool.run(job, this.data);
+    this.pool.run(job, this.data);
     const blocks = Array.from({ length: countTasks(job, this.data) }, (_, pair) =>
       job.results.subarray(pair * width * width, (pair + 1) * width * width),
     );
     return assembleSoftmaxHessian(blocks, classCount, width, lambda);
-  }
-}
-
-async function waitUntilIdle(control: Int32Array): Promise<void> {
-  for (;;) {
-    const active = Atomics.load(control, CONTROL_ACTIVE);
-    if (active === 0) return;
-    const wait = Atomics.waitAsync(control, CONTROL_ACTIVE, active);
-    if (wait.async) await wait.value;
   }
 }
 

@@ -1,6 +1,6 @@
 // The body of a pass-pool worker thread (see pass-pool.ts): keeps the designs it is given (shared
-// memory, nothing copied) and joins every job, claiming tasks until none are left. Completion is
-// signalled through the job's shared control counters; only readiness and failures are posted.
+// memory, nothing copied) and joins every job, claiming tasks until none are left. Progress is
+// signalled through the job's shared control array; only readiness and failures are posted.
 import { parentPort, workerData } from "node:worker_threads";
 import {
   CONTROL_ACTIVE,
@@ -35,7 +35,6 @@ port.on("message", (message: PassThreadMessage) => {
     port.postMessage({ type: "failed", detail } satisfies PassThreadReport);
   } finally {
     Atomics.sub(control, CONTROL_ACTIVE, 1);
-    Atomics.notify(control, CONTROL_ACTIVE);
   }
 });
 port.postMessage({ type: "ready" } satisfies PassThreadReport);

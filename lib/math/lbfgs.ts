@@ -1,10 +1,7 @@
 import { norm } from "./summation";
 
-/**
- * Writes ∇f(x) into `gradient` and resolves with f(x). Asynchronous, so an evaluation can be shared
- * with other threads (a pass over a large design).
- */
-export type ValueAndGradient = (x: Float64Array, gradient: Float64Array) => Promise<number>;
+/** Writes ∇f(x) into `gradient` and returns f(x). */
+export type ValueAndGradient = (x: Float64Array, gradient: Float64Array) => number;
 
 export interface LbfgsOptions {
   /** Stop when ‖∇f(x)‖ ≤ this (absolute). */
@@ -48,14 +45,14 @@ const MAX_LINE_SEARCH_STEPS = 50;
  * rely on the directional derivative instead of f and so can reach gradients near 1e-8; otherwise it
  * backtracks with safeguarded quadratic interpolation.
  *
- * Example: f(x) = (x₀ − 1)² + 10 (x₁ + 2)² from x = (0, 0) resolves to (1, −2) in a handful of
+ * Example: f(x) = (x₀ − 1)² + 10 (x₁ + 2)² from x = (0, 0) converges to (1, −2) in a handful of
  * iterations.
  */
-export async function minimizeLbfgs(
+export function minimizeLbfgs(
   valueAndGradient: ValueAndGradient,
   start: Float64Array,
   { gradientTolerance, maxIterations = 1000, memory = 10, precondition, onIteration }: LbfgsOptions,
-): Promise<LbfgsResult> {
+): LbfgsResult {
   const size = start.length;
   const x = Float64Array.from(start);
   const gradient = new Float64Array(size);
@@ -70,7 +67,7 @@ export async function minimizeLbfgs(
   let newest = -1;
   let scale = 1;
 
-  let value = await valueAndGradient(x, gradient);
+  let value = valueAndGradient(x, gradient);
   let evaluations = 1;
   let gradientNorm = norm(gradient);
   let iterations = 0;
@@ -111,7 +108,7 @@ export async function minimizeLbfgs(
       for (let index = 0; index < size; index++) {
         candidate[index] = x[index] + stepLength * direction[index];
       }
-      candidateValue = await valueAndGradient(candidate, candidateGradient);
+      candidateValue = valueAndGradient(candidate, candidateGradient);
       evaluations++;
       if (Number.isFinite(candidateValue)) {
         const armijo = candidateValue <= value + ARMIJO_CONSTANT * stepLength * slope;

@@ -113,7 +113,7 @@ print("null")`,
       try {
         await pool.whenReady();
         const shared = pool.share(design, Int32Array.of(0, 70_000, 70_001, 300_000));
-        const pass = await shared.evaluate(weights, true);
+        const pass = shared.evaluate(weights, true);
         outcomes.push([
           ...pass.shards.flatMap((totals) => [
             Float64Array.of(totals.rows, totals.lossSum, totals.squaredGradientNormSum),
@@ -121,8 +121,8 @@ print("null")`,
             totals.gradientCompensation,
           ]),
           pass.pooled.gradientSum,
-          await shared.computeGram(),
-          await pool.share(sample, Int32Array.of(0, 2000)).computeSoftmaxHessian(weights, 0.01),
+          shared.computeGram(),
+          pool.share(sample, Int32Array.of(0, 2000)).computeSoftmaxHessian(weights, 0.01),
         ]);
         // The worker threads took part (each job lasts far longer than a thread takes to wake).
         if (threads > 1) expect(pool.tasksRunByWorkers).toBeGreaterThan(0);
@@ -163,7 +163,7 @@ print("null")`,
     const pool = new PassPool(2);
     try {
       const design = { x: matrixFromValues(rows, cols, values), labels: null, targets: null };
-      const gram = await pool.share(design, Int32Array.of(0, rows)).computeGram();
+      const gram = pool.share(design, Int32Array.of(0, rows)).computeGram();
       // Outside reference: NumPy X.T @ X / N.
       const reference = runPythonJson<number[]>(
         `import json,sys
@@ -175,7 +175,7 @@ print(json.dumps((X.T@X/${rows}).ravel().tolist()))`,
       gram.forEach((value, k) => expect(value).toBeCloseTo(reference[k], 14));
 
       const example = { x: matrixFromValues(2, 2, [1, 2, 3, 4]), labels: null, targets: null };
-      const small = await pool.share(example, Int32Array.of(0, 2)).computeGram();
+      const small = pool.share(example, Int32Array.of(0, 2)).computeGram();
       expect(Array.from(small)).toEqual([5, 7, 7, 10]);
     } finally {
       await pool.close();

@@ -3,9 +3,9 @@ import { minimizeLbfgs } from "@/lib/math/lbfgs";
 import { runPythonJson } from "../analysis/support/run-python";
 
 describe("minimizeLbfgs", () => {
-  it("minimizes a separable quadratic to (1, −2) (hand-computed optimum)", async () => {
-    const result = await minimizeLbfgs(
-      async (x, gradient) => {
+  it("minimizes a separable quadratic to (1, −2) (hand-computed optimum)", () => {
+    const result = minimizeLbfgs(
+      (x, gradient) => {
         gradient[0] = 2 * (x[0] - 1);
         gradient[1] = 20 * (x[1] + 2);
         return (x[0] - 1) ** 2 + 10 * (x[1] + 2) ** 2;
@@ -18,9 +18,9 @@ describe("minimizeLbfgs", () => {
     expect(result.x[1]).toBeCloseTo(-2, 10);
   });
 
-  it("finds the Rosenbrock minimum like scipy.optimize.minimize(method='L-BFGS-B')", async () => {
+  it("finds the Rosenbrock minimum like scipy.optimize.minimize(method='L-BFGS-B')", () => {
     const size = 6;
-    const rosenbrock = async (x: Float64Array, gradient: Float64Array) => {
+    const rosenbrock = (x: Float64Array, gradient: Float64Array) => {
       let value = 0;
       gradient.fill(0);
       for (let i = 0; i < size - 1; i++) {
@@ -42,7 +42,7 @@ r=minimize(rosen, np.array(json.load(sys.stdin)), jac=rosen_der, method='L-BFGS-
 print(json.dumps(r.x.tolist()))`,
       Array.from(start),
     );
-    const result = await minimizeLbfgs(rosenbrock, start, {
+    const result = minimizeLbfgs(rosenbrock, start, {
       gradientTolerance: 1e-9,
       maxIterations: 5000,
     });
@@ -50,9 +50,9 @@ print(json.dumps(r.x.tolist()))`,
     result.x.forEach((value, index) => expect(value).toBeCloseTo(reference[index], 6));
   });
 
-  it("uses a preconditioner: an exact inverse Hessian converges in one step", async () => {
-    const result = await minimizeLbfgs(
-      async (x, gradient) => {
+  it("uses a preconditioner: an exact inverse Hessian converges in one step", () => {
+    const result = minimizeLbfgs(
+      (x, gradient) => {
         gradient[0] = 4 * x[0] - 4;
         gradient[1] = 100 * x[1];
         return 2 * x[0] ** 2 - 4 * x[0] + 50 * x[1] ** 2;
@@ -70,9 +70,9 @@ print(json.dumps(r.x.tolist()))`,
     expect(result.x[0]).toBeCloseTo(1, 14);
   });
 
-  it("returns at once when the start is already optimal", async () => {
-    const result = await minimizeLbfgs(
-      async (x, gradient) => {
+  it("returns at once when the start is already optimal", () => {
+    const result = minimizeLbfgs(
+      (x, gradient) => {
         gradient[0] = 2 * x[0];
         return x[0] * x[0];
       },
