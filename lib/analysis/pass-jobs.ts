@@ -112,10 +112,12 @@ export interface TaskScratch {
   pass: PassWorkspace | null;
   totals: PassTotals | null;
   rowWeights: Float64Array | null;
+  /** A Gram or Hessian block being summed, width × width. */
+  block: Float64Array | null;
 }
 
 export function createScratch(): TaskScratch {
-  return { pass: null, totals: null, rowWeights: null };
+  return { pass: null, totals: null, rowWeights: null, block: null };
 }
 
 /**
@@ -158,6 +160,11 @@ export function completeUnfinishedTasks(
   }
 }
 
+/**
+ * Runs one task. Sums build up in this thread's scratch space and only finished values are copied
+ * into the task's slot, so two threads running the same task (see `completeUnfinishedTasks`) write
+ * the same values and never add into each other's partial sums.
+ */
 function runTask(job: Job, design: SharedDesignData, task: number, scratch: TaskScratch): void {
   const width = design.x.cols;
   if (job.kind === "pass") {
@@ -179,23 +186,20 @@ function runTask(job: Job, design: SharedDesignData, task: number, scratch: Task
     writeTotals(totals, job.results, task * passSlotSize(size));
     return;
   }
+  if (scratch.block?.length !== width * width) scratch.block = new Float64Array(width * width);
+  const block = scratch.block;
   if (job.kind === "gram") {
-    const block = job.results.subarray(task * width * width, (task + 1) * width * width);
     block.fill(0);
     const start = task * GRAM_CHUNK_ROWS;
     accumulateGramUpper(design.x, start, Math.min(design.x.rows, start + GRAM_CHUNK_ROWS), block);
-    return;
+  } else {
+    if (scratch.rowWeights?.length !== design.x.rows) {
+      scratch.rowWeights = new Float64Array(design.x.rows);
+    }
+    const pair = classPairAt(task, job.classCount);
+    computeHessianBlock(design.x, job.probabilities, pair, scratch.rowWeights, block);
   }
-  if (scratch.rowWeights?.length !== design.x.rows) {
-    scratch.rowWeights = new Float64Array(design.x.rows);
-  }
-  computeHessianBlock(
-    design.x,
-    job.probabilities,
-    classPairAt(task, job.classCount),
-    scratch.rowWeights,
-    job.results.subarray(task * width * width, (task + 1) * width * width),
-  );
+  job.results.set(block, task * width * width);
 }
 
 function resetTotals(totals: PassTotals): PassTotals {

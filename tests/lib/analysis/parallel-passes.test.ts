@@ -135,6 +135,30 @@ print("null")`,
     }
   }, 120_000);
 
+  it("give the same Gram matrix job after job, however the threads interleave", async () => {
+    // The calling thread reruns any task a worker has claimed but not finished, so both can run one
+    // task at once; each must still write exactly its own sums. Many short jobs make that common.
+    const rows = 120_000;
+    const cols = 12;
+    const design = {
+      x: matrixFromValues(rows, cols, seededValues(rows * cols, 8)),
+      labels: null,
+      targets: null,
+    };
+    const expected = Array.from(
+      new PassPool(1).share(design, Int32Array.of(0, rows)).computeGram(),
+    );
+    const pool = new PassPool(2);
+    try {
+      await pool.whenReady();
+      const shared = pool.share(design, Int32Array.of(0, rows));
+      for (let job = 0; job < 40; job++) expect(Array.from(shared.computeGram())).toEqual(expected);
+      expect(pool.tasksRunByWorkers).toBeGreaterThan(0);
+    } finally {
+      await pool.close();
+    }
+  });
+
   it("work when the engine itself runs in a worker thread (as the web app's background worker does)", async () => {
     const inThread = await new Promise<string>((resolve, reject) => {
       const thread = new Worker(new URL("./support/engine-thread-entry.mjs", import.meta.url), {
