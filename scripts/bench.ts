@@ -1,17 +1,23 @@
 /**
  * `npm run bench`: generates seeded synthetic data (bench-out/, git-ignored), runs the analyze CLI
  * end to end and, side by side, the NumPy/pandas/SciPy script scripts/bench/reference_summary.py
- * computing the same summary; prints per-stage times, rows/s, peak memory (VmHWM), the time ratio
- * and how closely the two summaries agree. `--small` runs only the 100k case, `--large` only the 1M case.
+ * computing the same summary; prints per-stage times, rows/s, CPU time, peak memory (VmHWM), the
+ * time ratio and how closely the two summaries agree, and fails when they disagree by more than
+ * 1e-4 relative. `--small` runs only the 100k case, `--large` only the 1M case.
  */
 import { spawn } from "node:child_process";
 import { existsSync, mkdirSync, readFileSync, statSync } from "node:fs";
+import { availableParallelism, loadavg } from "node:os";
 import path from "node:path";
 import { writeBenchData, type BenchDataSpec } from "./bench/generate-data";
 
 const root = path.resolve(import.meta.dirname, "..");
 const outputFolder = path.join(root, "bench-out");
 const PYTHON = "/usr/bin/python3";
+/** Largest relative difference between the two summaries the bench accepts. */
+const AGREEMENT_TOLERANCE = 1e-4;
+/** Clock ticks per second of /proc/<pid>/stat times (USER_HZ, 100 on Linux). */
+const CLOCK_TICKS = 100;
 
 const CASES: BenchDataSpec[] = [
   { rows: 100_000, features: 32, classes: 10, shards: 100, alpha: 0.5, seed: 1 },
@@ -20,6 +26,8 @@ const CASES: BenchDataSpec[] = [
 
 interface RunResult {
   seconds: number;
+  /** User + system CPU time of all the process's threads (sampled, so to within 0.05 s). */
+  cpuSeconds: number;
   peakMegabytes: number;
   stages: Record<string, number>;
   stdout: string;
@@ -27,7 +35,10 @@ interface RunResult {
   code: number | null;
 }
 
-/** Runs a command, timing stage markers seen on stderr and sampling its peak resident memory. */
+/**
+ * Runs a command, timing stage markers seen on stderr and sampling its peak resident memory and
+ * CPU time. Other work on the machine slows both programs; CPU time shows the work each did.
+ */
 function runMeasured(
   command: string,
   args: string[],
@@ -40,11 +51,16 @@ function runMeasured(
     let stdout = "";
     let stderr = "";
     let peakKilobytes = 0;
+    let cpuTicks = 0;
     const sample = () => {
       try {
         const status = readFileSync(`/proc/${child.pid}/status`, "utf8");
         const match = /VmHWM:\s+(\d+) kB/.exec(status);
         if (match) peakKilobytes = Math.max(peakKilobytes, Number(match[1]));
+        // Fields 14 and 15 of /proc/<pid>/stat (utime, stime), counted after the command name.
+        const stat = readFileSync(`/proc/${child.pid}/stat`, "utf8");
+        const fields = stat.slice(stat.lastIndexOf(")") + 2).split(" ");
+        cpuTicks = Math.max(cpuTicks, Number(fields[11]) + Number(fields[12]));
       } catch {
         // The process has just exited; the last sample stands.
       }
@@ -70,6 +86,7 @@ function runMeasured(
       });
       resolve({
         seconds: (ended - started) / 1000,
+        cpuSeconds: cpuTicks / CLOCK_TICKS,
         peakMegabytes: peakKilobytes / 1024,
         stages,
         stdout,
@@ -131,9 +148,9 @@ async function benchCase(spec: BenchDataSpec): Promise<void> {
   const ours = JSON.parse(engine.stdout);
   const theirs = JSON.parse(python.stdout);
   process.stdout.write(
-    `engine (TypeScript): ${engine.seconds.toFixed(1)}s end to end, ${(spec.rows / engine.seconds).toFixed(0)} rows/s, peak ${engine.peakMegabytes.toFixed(0)} MB\n` +
+    `engine (TypeScript): ${engine.seconds.toFixed(1)}s end to end, ${(spec.rows / engine.seconds).toFixed(0)} rows/s, CPU ${engine.cpuSeconds.toFixed(1)}s, peak ${engine.peakMegabytes.toFixed(0)} MB\n` +
       `  stages: ${stageLine(engine.stages)}; fit ${ours.model.optimizer.iterations} L-BFGS iterations, ${ours.model.optimizer.evaluations} full passes\n` +
-      `reference (NumPy/pandas/SciPy): ${python.seconds.toFixed(1)}s end to end, ${(spec.rows / python.seconds).toFixed(0)} rows/s, peak ${python.peakMegabytes.toFixed(0)} MB\n` +
+      `reference (NumPy/pandas/SciPy): ${python.seconds.toFixed(1)}s end to end, ${(spec.rows / python.seconds).toFixed(0)} rows/s, CPU ${python.cpuSeconds.toFixed(1)}s, peak ${python.peakMegabytes.toFixed(0)} MB\n` +
       `  stages: ${stageLine(pythonStages)}; fit ${theirs.model.iterations} L-BFGS-B iterations\n` +
       `time ratio engine / reference: ${(engine.seconds / python.seconds).toFixed(2)}\n`,
   );
@@ -160,10 +177,18 @@ async function benchCase(spec: BenchDataSpec): Promise<void> {
   process.stdout.write(
     `agreement: largest relative difference ${worst[1].toExponential(1)} (${worst[0]}); verdicts ${ours.advice.verdict} / ${theirs.advice.verdict}\n`,
   );
+  if (!(worst[1] <= AGREEMENT_TOLERANCE) || ours.advice.verdict !== theirs.advice.verdict) {
+    throw new Error(
+      `the engine and the reference disagree (${worst[0]}: ${worst[1].toExponential(1)} relative, more than ${AGREEMENT_TOLERANCE})`,
+    );
+  }
 }
 
 async function main(): Promise<void> {
   mkdirSync(outputFolder, { recursive: true });
+  process.stdout.write(
+    `machine: ${availableParallelism()} cores, load average ${loadavg()[0].toFixed(1)} at the start (other work on the machine slows both programs)\n`,
+  );
   const cases = process.argv.includes("--small")
     ? CASES.slice(0, 1)
     : process.argv.includes("--large")
