@@ -68,7 +68,8 @@ export async function readDataset(
   // Assigned in the header callback; the cast keeps TypeScript from narrowing it to null.
   let label = null as ColumnAccumulator | null;
   let features: ColumnAccumulator[] = [];
-  let featureValues = new RowStore(1);
+  // Created in the header callback, once the number of features is known (same cast as above).
+  let featureValues = null as RowStore | null;
   const labelValues = new ChunkedFloat64();
   const shardCodes = new ChunkedInt32();
   const shardIds: string[] = partition ? partition.shardIds : [];
@@ -153,8 +154,9 @@ export async function readDataset(
         return;
       }
       labelValues.push((label as ColumnAccumulator).add(fields[labelIndex], rowIndex));
-      const offset = featureValues.appendRow();
-      const values = featureValues.values;
+      const store = featureValues as RowStore;
+      const offset = store.appendRow();
+      const values = store.values;
       for (let k = 0; k < featureIndices.length; k++) {
         values[offset + k] = features[k].add(fields[featureIndices[k]], rowIndex);
       }
@@ -200,7 +202,7 @@ export async function readDataset(
     label: label as ColumnAccumulator,
     labelValues: labelValues.toArray(),
     features,
-    featureValues: featureValues.finish(),
+    featureValues: (featureValues as RowStore).finish(),
     featuresNamed: columns.features !== undefined,
     shardCodes: shardCodes.toArray(),
     shardIds,
