@@ -53,7 +53,9 @@ export interface FittedModel {
  * moves the class intercepts' sum (the preconditioner's only flat direction, shifting every
  * intercept alike, is given curvature λ), so starting from zero keeps the intercepts summing to
  * zero: the minimum-norm optimum (methods.md §2); a final re-centring removes rounding drift.
- * `gram` is G (width × width), used by the least-squares solve.
+ * Every pass over the rows goes through `passes`, which shares it among the pool's threads; the
+ * subsample is shared with the same pool. `gram` is G (width × width), used by the least-squares
+ * solve.
  */
 export function fitReferenceModel(
   design: Design,
