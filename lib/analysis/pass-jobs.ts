@@ -26,7 +26,7 @@ export interface SharedDesignData {
 }
 
 /** Most rows per pass task: small enough to balance threads, large enough to amortize merging. */
-export const PASS_CHUNK_ROWS = 4096;
+const PASS_CHUNK_ROWS = 4096;
 /** Rows per Gram task. */
 export const GRAM_CHUNK_ROWS = 16_384;
 
@@ -44,12 +44,11 @@ export function planChunks(shardOffsets: Int32Array): Int32Array {
 
 /**
  * Layout of a job's control array (Int32, shared by all threads): the next task to claim, how many
- * worker threads are inside the job, a failure flag, then one done flag per task.
+ * worker threads are inside the job, then one done flag per task.
  */
-export const CONTROL_NEXT_TASK = 0;
+const CONTROL_NEXT_TASK = 0;
 export const CONTROL_ACTIVE = 1;
-export const CONTROL_FAILED = 2;
-const CONTROL_DONE = 3;
+const CONTROL_DONE = 2;
 
 export function createControl(taskCount: number): Int32Array {
   return new Int32Array(

@@ -4,7 +4,6 @@
 import { parentPort, workerData } from "node:worker_threads";
 import {
   CONTROL_ACTIVE,
-  CONTROL_FAILED,
   createScratch,
   runTasks,
   type PassThreadData,
@@ -30,7 +29,6 @@ port.on("message", (message: PassThreadMessage) => {
     const ran = runTasks(job, designs.get(job.designId) as SharedDesignData, control, scratch);
     Atomics.add(workerTasks, 0, ran);
   } catch (error) {
-    Atomics.store(control, CONTROL_FAILED, 1);
     const detail = error instanceof Error ? (error.stack ?? error.message) : String(error);
     port.postMessage({ type: "failed", detail } satisfies PassThreadReport);
   } finally {
