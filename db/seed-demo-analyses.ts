@@ -2,22 +2,16 @@ import "server-only";
 import { randomUUID } from "node:crypto";
 import { count, eq } from "drizzle-orm";
 import { db } from "@/db/client";
-import { insertAnalysis, setAnalysisJobId } from "@/db/queries/analyses";
-import { insertDataFile } from "@/db/queries/data-files";
-import { dataFiles, type DataFilePreview } from "@/db/schema";
+import { dataFiles } from "@/db/schema";
 import { DEMO_PLAN, generateOrchardDemo } from "@/lib/demo/orchards";
-import { enqueueAnalysis } from "@/lib/jobs";
+import { queueAnalysis } from "@/lib/reports/queue-analysis";
 import { putObject } from "@/lib/storage";
 import { buildUploadKey } from "@/lib/uploads/file-rules";
-import { inspectDataset, inspectLayout } from "@/lib/uploads/inspect-upload";
-import { PREVIEW_BYTES } from "@/lib/uploads/csv-preview";
-import { startAnalysisSchema } from "@/lib/validation/start-analysis";
-
-const encoder = new TextEncoder();
+import { registerUpload } from "@/lib/uploads/register-upload";
 
 /**
- * Puts one demo file into object storage under the workspace's prefix and registers it, exactly as
- * a browser upload would end up: same key scheme, same preview.
+ * Puts one demo file into object storage under the workspace's prefix and registers it through the
+ * same path a browser upload takes (HEAD, ranged preview, checks), so the demo proves that path.
  */
 async function uploadDemoFile(input: {
   workspaceId: string;
@@ -26,24 +20,12 @@ async function uploadDemoFile(input: {
   name: string;
   text: string;
 }): Promise<string> {
-  const bytes = encoder.encode(input.text);
-  const objectKey = buildUploadKey(input.workspaceId, input.name, randomUUID());
-  await putObject({ key: objectKey, body: bytes, contentType: "text/csv" });
-  const source = {
-    bytes: bytes.subarray(0, PREVIEW_BYTES),
-    totalBytes: bytes.length,
-    fileName: input.name,
-  };
-  const preview: DataFilePreview =
-    input.kind === "dataset" ? inspectDataset(source) : inspectLayout(source);
-  const file = await insertDataFile(input.workspaceId, {
-    kind: input.kind,
+  const key = buildUploadKey(input.workspaceId, input.name, randomUUID());
+  await putObject({ key, body: input.text, contentType: "text/csv" });
+  const file = await registerUpload(input.workspaceId, input.uploadedBy, {
+    key,
     name: input.name,
-    objectKey,
-    sizeBytes: bytes.length,
-    contentType: "text/csv",
-    preview,
-    uploadedBy: input.uploadedBy,
+    kind: input.kind,
   });
   return file.id;
 }
@@ -79,17 +61,12 @@ export async function seedDemoAnalyses(workspaceId: string, analystId: string): 
   ];
   for (const layout of layouts) {
     const layoutFileId = await upload("layout", layout.name, layout.text);
-    const request = startAnalysisSchema.parse({
+    await queueAnalysis(workspaceId, analystId, {
+      title: layout.title,
       datasetFileId,
       layoutFileId,
       options: { labelColumn: "condition", idColumn: "row_id", ...DEMO_PLAN },
     });
-    const analysisId = await insertAnalysis(workspaceId, analystId, {
-      ...request,
-      title: layout.title,
-    });
-    const jobId = await enqueueAnalysis({ analysisId, workspaceId });
-    await setAnalysisJobId(workspaceId, analysisId, jobId);
   }
   return true;
 }
