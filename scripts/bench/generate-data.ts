@@ -3,11 +3,12 @@
  * Dirichlet label-skewed partition. Shard m draws its class mix qₘ ~ Dir(α·1) and then rows with
  * labels from qₘ and features x ~ N(μ_label, I), μ_c ~ N(0, s²I). Writes one CSV with feature
  * columns f0…f{d−1}, a `label` column and a `shard` column.
- * The generator is a xorshift128+ (Vigna, 2014), seeded through splitmix64, so files are identical
- * on every machine.
+ * The generator is Partita's seedable xoshiro128** (lib/math/random.ts), so files are identical on
+ * every machine.
  */
 import { createWriteStream } from "node:fs";
 import { once } from "node:events";
+import { SeededRandom } from "../../lib/math/random";
 
 export interface BenchDataSpec {
   rows: number;
@@ -16,69 +17,6 @@ export interface BenchDataSpec {
   shards: number;
   alpha: number;
   seed: number;
-}
-
-class SeededRandom {
-  private s0: bigint;
-  private s1: bigint;
-  private spare: number | null = null;
-
-  constructor(seed: number) {
-    let state = BigInt(seed);
-    const next = () => {
-      state = (state + 0x9e3779b97f4a7c15n) & 0xffffffffffffffffn;
-      let z = state;
-      z = ((z ^ (z >> 30n)) * 0xbf58476d1ce4e5b9n) & 0xffffffffffffffffn;
-      z = ((z ^ (z >> 27n)) * 0x94d049bb133111ebn) & 0xffffffffffffffffn;
-      return z ^ (z >> 31n);
-    };
-    this.s0 = next();
-    this.s1 = next();
-  }
-
-  /** Uniform in [0, 1) with 53 random bits. */
-  uniform(): number {
-    let x = this.s0;
-    const y = this.s1;
-    this.s0 = y;
-    x = (x ^ (x << 23n)) & 0xffffffffffffffffn;
-    this.s1 = x ^ y ^ (x >> 17n) ^ (y >> 26n);
-    return Number(((this.s1 + y) & 0xffffffffffffffffn) >> 11n) / 2 ** 53;
-  }
-
-  /** Standard normal by the polar Box–Muller method. */
-  normal(): number {
-    if (this.spare !== null) {
-      const value = this.spare;
-      this.spare = null;
-      return value;
-    }
-    for (;;) {
-      const u = 2 * this.uniform() - 1;
-      const v = 2 * this.uniform() - 1;
-      const s = u * u + v * v;
-      if (s > 0 && s < 1) {
-        const factor = Math.sqrt((-2 * Math.log(s)) / s);
-        this.spare = v * factor;
-        return u * factor;
-      }
-    }
-  }
-
-  /** Gamma(shape, 1) by Marsaglia & Tsang (ACM TOMS 26(3), 2000), boosted for shape < 1. */
-  gamma(shape: number): number {
-    if (shape < 1)
-      return this.gamma(shape + 1) * Math.pow(this.uniform() || Number.MIN_VALUE, 1 / shape);
-    const d = shape - 1 / 3;
-    const c = 1 / Math.sqrt(9 * d);
-    for (;;) {
-      const x = this.normal();
-      const v = (1 + c * x) ** 3;
-      if (v <= 0) continue;
-      const u = this.uniform();
-      if (Math.log(u) < 0.5 * x * x + d - d * v + d * Math.log(v)) return d * v;
-    }
-  }
 }
 
 /** Writes the CSV described by `spec` to `file`. */
