@@ -63,24 +63,7 @@ export async function storeReport(run: FinishedRun): Promise<StoreOutcome> {
     if (!report) return { stored: false, status: "succeeded" };
 
     if (run.summary.shards.length > 0) {
-      await tx.insert(reportShards).values(
-        run.summary.shards.map((shard, ordinal) => ({
-          reportId,
-          ordinal,
-          shardId: shard.id,
-          rows: shard.rows,
-          tv: shard.tv,
-          hellinger: shard.hellinger,
-          js: shard.js,
-          kl: shard.kl,
-          gradNorm2: shard.gradNorm2,
-          sigma2: shard.sigma2,
-          loss: shard.loss,
-          classesPresent: shard.classesPresent,
-          effectiveClasses: shard.effectiveClasses,
-          featureShift: shard.featureShift,
-        })),
-      );
+      await tx.insert(reportShards).values(shardRowsOf(reportId, run.summary.shards));
     }
     await tx
       .update(analyses)
@@ -123,4 +106,27 @@ async function nextVersionOf(
     .from(reports)
     .where(eq(reports.lineageId, previous.lineageId));
   return { lineageId: previous.lineageId, version: (highest ?? 0) + 1 };
+}
+
+/** The per-shard table rows of a report, in the summary's shard order. */
+export function shardRowsOf(
+  reportId: string,
+  shards: PartitionSummary["shards"],
+): (typeof reportShards.$inferInsert)[] {
+  return shards.map((shard, ordinal) => ({
+    reportId,
+    ordinal,
+    shardId: shard.id,
+    rows: shard.rows,
+    tv: shard.tv,
+    hellinger: shard.hellinger,
+    js: shard.js,
+    kl: shard.kl,
+    gradNorm2: shard.gradNorm2,
+    sigma2: shard.sigma2,
+    loss: shard.loss,
+    classesPresent: shard.classesPresent,
+    effectiveClasses: shard.effectiveClasses,
+    featureShift: shard.featureShift,
+  }));
 }

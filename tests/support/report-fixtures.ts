@@ -5,6 +5,7 @@ import path from "node:path";
 import { promisify } from "node:util";
 import { eq } from "drizzle-orm";
 import { db } from "@/db/client";
+import { shardRowsOf } from "@/db/queries/report-store";
 import { analyses, dataFiles, reports, reportShards } from "@/db/schema";
 import type { PartitionSummary } from "@/lib/analysis";
 import { loadPenguinsCsv } from "@/tests/lib/analysis/support/open-data";
@@ -133,26 +134,7 @@ export async function insertReport(input: {
       createdAt: input.createdAt,
     });
   if (summary.shards.length > 0) {
-    await db()
-      .insert(reportShards)
-      .values(
-        summary.shards.map((shard, ordinal) => ({
-          reportId,
-          ordinal,
-          shardId: shard.id,
-          rows: shard.rows,
-          tv: shard.tv,
-          hellinger: shard.hellinger,
-          js: shard.js,
-          kl: shard.kl,
-          gradNorm2: shard.gradNorm2,
-          sigma2: shard.sigma2,
-          loss: shard.loss,
-          classesPresent: shard.classesPresent,
-          effectiveClasses: shard.effectiveClasses,
-          featureShift: shard.featureShift,
-        })),
-      );
+    await db().insert(reportShards).values(shardRowsOf(reportId, summary.shards));
   }
   return { reportId, analysisId: analysis.id };
 }
