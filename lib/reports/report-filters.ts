@@ -1,4 +1,10 @@
 import { z } from "zod";
+import {
+  calendarDay,
+  readUrlFilters,
+  type SearchParams,
+  type UrlFilters,
+} from "@/lib/validation/url-filters";
 import type { Verdict } from "@/lib/analysis/advise-plan";
 
 export const VERDICTS = [
@@ -7,38 +13,19 @@ export const VERDICTS = [
   "no-clear-winner",
 ] as const satisfies readonly Verdict[];
 
-// A calendar day that exists: 2026-02-30 parses (it rolls over into March), so round-trip it.
-const day = z
-  .string()
-  .regex(/^\d{4}-\d{2}-\d{2}$/)
-  .refine((value) => {
-    const parsed = new Date(`${value}T00:00:00Z`);
-    return !Number.isNaN(parsed.getTime()) && parsed.toISOString().slice(0, 10) === value;
-  });
-
-// Each filter is read on its own and a bad one is dropped, so a hand-edited or stale bookmark
-// still shows the list rather than an error.
 const fields = {
   verdict: z.enum(VERDICTS),
   q: z.string().trim().min(1).max(100),
   author: z.string().trim().min(1).max(100),
-  from: day,
-  to: day,
+  from: calendarDay,
+  to: calendarDay,
 };
 
-export type ReportFilters = { [Key in keyof typeof fields]?: z.output<(typeof fields)[Key]> };
-
-type SearchParams = Record<string, string | string[] | undefined>;
+export type ReportFilters = UrlFilters<typeof fields>;
 
 /** The reports list's filters from its URL query (bookmarkable); unknown or invalid values are ignored. */
 export function readReportFilters(searchParams: SearchParams): ReportFilters {
-  const filters: Record<string, string> = {};
-  for (const [key, schema] of Object.entries(fields)) {
-    const raw = searchParams[key];
-    const parsed = schema.safeParse(Array.isArray(raw) ? raw[0] : raw);
-    if (parsed.success) filters[key] = parsed.data;
-  }
-  return filters as ReportFilters;
+  return readUrlFilters(fields, searchParams);
 }
 
 export function hasReportFilters(filters: ReportFilters): boolean {
