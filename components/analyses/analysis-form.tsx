@@ -8,11 +8,11 @@ import { startAnalysis } from "@/app/(workspace)/w/[workspaceId]/analyses/action
 import { FileChoice } from "@/components/analyses/file-choice";
 import {
   ChoiceOption,
-  FieldMessage,
   FormStep,
   InputField,
   SelectField,
 } from "@/components/analyses/form-controls";
+import { FieldMessage } from "@/components/ui/field-parts";
 import {
   analysisFormSchema,
   reservedColumns,

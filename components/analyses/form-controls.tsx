@@ -1,37 +1,8 @@
 import type { InputHTMLAttributes, ReactNode, Ref, SelectHTMLAttributes } from "react";
+import { controlClasses, describedBy, FieldMessage } from "@/components/ui/field-parts";
 
 // Labelled controls for react-hook-form: each takes register()'s props (including its ref, a plain
 // prop in React 19) and wires its hint and error to screen readers.
-
-const controlClasses = (error?: string) =>
-  `block w-full rounded-md border bg-white px-3 py-2 text-sm text-ink shadow-sm focus:border-indigo focus:outline-none focus:ring-2 focus:ring-indigo/30 disabled:bg-paper-deep disabled:text-ink-faint ${error ? "border-cadmium" : "border-ink/20"}`;
-
-function describedBy(id: string, error?: string, hint?: ReactNode) {
-  return [error ? `${id}-error` : null, hint ? `${id}-hint` : null].filter(Boolean).join(" ");
-}
-
-export function FieldMessage({
-  id,
-  error,
-  hint,
-}: {
-  id: string;
-  error?: string;
-  hint?: ReactNode;
-}) {
-  if (error) {
-    return (
-      <p id={`${id}-error`} role="alert" className="text-xs font-medium text-cadmium">
-        {error}
-      </p>
-    );
-  }
-  return hint ? (
-    <p id={`${id}-hint`} className="text-xs text-ink-soft">
-      {hint}
-    </p>
-  ) : null;
-}
 
 export function SelectField({
   id,
@@ -57,7 +28,7 @@ export function SelectField({
         id={id}
         ref={ref}
         aria-invalid={error ? true : undefined}
-        aria-describedby={describedBy(id, error, hint) || undefined}
+        aria-describedby={describedBy(id, error, hint)}
         className={controlClasses(error)}
         {...selectProps}
       >
@@ -91,7 +62,7 @@ export function InputField({
         id={id}
         ref={ref}
         aria-invalid={error ? true : undefined}
-        aria-describedby={describedBy(id, error, hint) || undefined}
+        aria-describedby={describedBy(id, error, hint)}
         className={controlClasses(error)}
         {...inputProps}
       />

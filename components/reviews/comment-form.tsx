@@ -5,7 +5,7 @@ import { postComment } from "@/app/(workspace)/w/[workspaceId]/reports/[reportId
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import { REPORT_SECTIONS } from "@/lib/reviews/anchors";
-import { TextArea } from "./text-area";
+import { TextArea } from "@/components/ui/text-area";
 import { useReviewAction } from "./use-review-action";
 
 /**

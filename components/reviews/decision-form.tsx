@@ -5,7 +5,7 @@ import { decideReview } from "@/app/(workspace)/w/[workspaceId]/reports/[reportI
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import type { ReviewDecisionKind } from "@/lib/reviews/review-state";
-import { TextArea } from "./text-area";
+import { TextArea } from "@/components/ui/text-area";
 import { useReviewAction } from "./use-review-action";
 
 const CHOICES: { value: ReviewDecisionKind; label: string; hint: string }[] = [

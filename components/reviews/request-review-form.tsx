@@ -4,7 +4,7 @@ import { useState, type FormEvent } from "react";
 import { requestReview } from "@/app/(workspace)/w/[workspaceId]/reports/[reportId]/review-actions";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
-import { TextArea } from "./text-area";
+import { TextArea } from "@/components/ui/text-area";
 import { useReviewAction } from "./use-review-action";
 
 export type ReviewerOption = { userId: string; label: string; detail: string };

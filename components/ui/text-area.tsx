@@ -1,4 +1,5 @@
 import type { TextareaHTMLAttributes } from "react";
+import { controlClasses, describedBy, FieldMessage } from "./field-parts";
 
 /** A labelled multi-line input with its error wired up for screen readers. */
 export function TextArea({
@@ -17,15 +18,11 @@ export function TextArea({
         name={name}
         rows={3}
         aria-invalid={error ? true : undefined}
-        aria-describedby={error ? `${name}-error` : undefined}
-        className={`block w-full rounded-md border bg-white px-3 py-2 text-sm text-ink shadow-sm placeholder:text-ink-faint focus:border-indigo focus:ring-2 focus:ring-indigo/30 focus:outline-none ${error ? "border-cadmium" : "border-ink/20"}`}
+        aria-describedby={describedBy(name, error)}
+        className={controlClasses(error)}
         {...props}
       />
-      {error ? (
-        <p id={`${name}-error`} role="alert" className="text-xs font-medium text-cadmium">
-          {error}
-        </p>
-      ) : null}
+      <FieldMessage id={name} error={error} />
     </div>
   );
 }
