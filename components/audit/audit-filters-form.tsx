@@ -1,13 +1,13 @@
-import Link from "next/link";
-import { buttonClasses } from "@/components/ui/button";
+import { FilterBar, FilterInput, FilterSelect } from "@/components/ui/filter-bar";
 import { AUDIT_ACTIONS } from "@/db/schema/reviews";
 import { AUDIT_ACTION_LABELS, type AuditFilters } from "@/lib/reviews/audit-filters";
 
-const CONTROL =
-  "mt-1 block rounded-md border border-ink/20 bg-white px-3 py-1.5 text-sm text-ink focus:border-indigo focus:ring-2 focus:ring-indigo/30 focus:outline-none";
-const LABEL = "block text-xs font-medium text-ink-soft";
+const ACTION_OPTIONS = AUDIT_ACTIONS.map((kind) => ({
+  value: kind,
+  label: AUDIT_ACTION_LABELS[kind],
+}));
 
-/** The audit log's filters as a plain GET form, so a filtered view is a bookmarkable URL. */
+/** The audit log's filters: event kind, who acted, and a UTC day range. */
 export function AuditFiltersForm({
   action,
   filters,
@@ -18,79 +18,31 @@ export function AuditFiltersForm({
   actors: { id: string; email: string }[];
 }) {
   return (
-    <form
-      method="get"
-      action={action}
-      role="search"
-      aria-label="Filter the audit log"
-      className="flex flex-wrap items-end gap-3 rounded-lg border border-ink/10 bg-white p-4"
-    >
-      <div>
-        <label htmlFor="audit-action" className={LABEL}>
-          Event
-        </label>
-        <select
-          id="audit-action"
-          name="action"
-          defaultValue={filters.action ?? ""}
-          className={CONTROL}
-        >
-          <option value="">Any event</option>
-          {AUDIT_ACTIONS.map((kind) => (
-            <option key={kind} value={kind}>
-              {AUDIT_ACTION_LABELS[kind]}
-            </option>
-          ))}
-        </select>
-      </div>
-      <div>
-        <label htmlFor="audit-actor" className={LABEL}>
-          By
-        </label>
-        <select
-          id="audit-actor"
-          name="actor"
-          defaultValue={filters.actor ?? ""}
-          className={CONTROL}
-        >
-          <option value="">Anyone</option>
-          {actors.map((actor) => (
-            <option key={actor.id} value={actor.id}>
-              {actor.email}
-            </option>
-          ))}
-        </select>
-      </div>
-      <div>
-        <label htmlFor="audit-from" className={LABEL}>
-          From (UTC)
-        </label>
-        <input
-          id="audit-from"
-          name="from"
-          type="date"
-          defaultValue={filters.from ?? ""}
-          className={CONTROL}
-        />
-      </div>
-      <div>
-        <label htmlFor="audit-to" className={LABEL}>
-          To (UTC)
-        </label>
-        <input
-          id="audit-to"
-          name="to"
-          type="date"
-          defaultValue={filters.to ?? ""}
-          className={CONTROL}
-        />
-      </div>
-      <button type="submit" className={buttonClasses("primary")}>
-        Apply
-      </button>
-      <Link href={action} className={buttonClasses("quiet")}>
-        Clear
-      </Link>
-    </form>
+    <FilterBar action={action} label="Filter the audit log">
+      <FilterSelect
+        id="audit-action"
+        name="action"
+        label="Event"
+        anyLabel="Any event"
+        value={filters.action}
+        options={ACTION_OPTIONS}
+      />
+      <FilterSelect
+        id="audit-actor"
+        name="actor"
+        label="By"
+        anyLabel="Anyone"
+        value={filters.actor}
+        options={actors.map((actor) => ({ value: actor.id, label: actor.email }))}
+      />
+      <FilterInput
+        id="audit-from"
+        name="from"
+        type="date"
+        label="From (UTC)"
+        value={filters.from}
+      />
+      <FilterInput id="audit-to" name="to" type="date" label="To (UTC)" value={filters.to} />
+    </FilterBar>
   );
 }

@@ -1,16 +1,13 @@
-import Link from "next/link";
-import { buttonClasses } from "@/components/ui/button";
+import { FilterBar, FilterInput, FilterSelect } from "@/components/ui/filter-bar";
 import { VERDICTS, type ReportFilters } from "@/lib/reports/report-filters";
 import { VERDICT_LABELS } from "@/lib/reports/report-view";
 
-const CONTROL =
-  "mt-1 block rounded-md border border-ink/20 bg-white px-3 py-1.5 text-sm text-ink focus:border-indigo focus:ring-2 focus:ring-indigo/30 focus:outline-none";
-const LABEL = "block text-xs font-medium text-ink-soft";
+const VERDICT_OPTIONS = VERDICTS.map((verdict) => ({
+  value: verdict,
+  label: VERDICT_LABELS[verdict],
+}));
 
-/**
- * The list's filters as a plain GET form: the choice lives in the URL, so a filtered list can be
- * bookmarked and shared, and the form works from the keyboard without any script.
- */
+/** The reports list's filters: title text, verdict, author and a UTC day range. */
 export function ReportFiltersForm({
   action,
   filters,
@@ -21,94 +18,39 @@ export function ReportFiltersForm({
   authors: { id: string; name: string }[];
 }) {
   return (
-    <form
-      method="get"
-      action={action}
-      role="search"
-      aria-label="Filter reports"
-      className="flex flex-wrap items-end gap-3 rounded-lg border border-ink/10 bg-white p-4"
-    >
-      <div>
-        <label htmlFor="filter-q" className={LABEL}>
-          Title contains
-        </label>
-        <input
-          id="filter-q"
-          name="q"
-          type="search"
-          defaultValue={filters.q ?? ""}
-          maxLength={100}
-          className={`${CONTROL} w-56`}
-        />
-      </div>
-      <div>
-        <label htmlFor="filter-verdict" className={LABEL}>
-          Verdict
-        </label>
-        <select
-          id="filter-verdict"
-          name="verdict"
-          defaultValue={filters.verdict ?? ""}
-          className={CONTROL}
-        >
-          <option value="">Any verdict</option>
-          {VERDICTS.map((verdict) => (
-            <option key={verdict} value={verdict}>
-              {VERDICT_LABELS[verdict]}
-            </option>
-          ))}
-        </select>
-      </div>
-      <div>
-        <label htmlFor="filter-author" className={LABEL}>
-          Author
-        </label>
-        <select
-          id="filter-author"
-          name="author"
-          defaultValue={filters.author ?? ""}
-          className={CONTROL}
-        >
-          <option value="">Anyone</option>
-          {authors.map((author) => (
-            <option key={author.id} value={author.id}>
-              {author.name}
-            </option>
-          ))}
-        </select>
-      </div>
-      <div>
-        <label htmlFor="filter-from" className={LABEL}>
-          From (UTC)
-        </label>
-        <input
-          id="filter-from"
-          name="from"
-          type="date"
-          defaultValue={filters.from ?? ""}
-          className={CONTROL}
-        />
-      </div>
-      <div>
-        <label htmlFor="filter-to" className={LABEL}>
-          To (UTC)
-        </label>
-        <input
-          id="filter-to"
-          name="to"
-          type="date"
-          defaultValue={filters.to ?? ""}
-          className={CONTROL}
-        />
-      </div>
-      <div className="flex gap-2">
-        <button type="submit" className={buttonClasses("primary")}>
-          Apply
-        </button>
-        <Link href={action} className={buttonClasses("quiet")}>
-          Clear
-        </Link>
-      </div>
-    </form>
+    <FilterBar action={action} label="Filter reports">
+      <FilterInput
+        id="filter-q"
+        name="q"
+        type="search"
+        label="Title contains"
+        value={filters.q}
+        className="w-56"
+      />
+      <FilterSelect
+        id="filter-verdict"
+        name="verdict"
+        label="Verdict"
+        anyLabel="Any verdict"
+        value={filters.verdict}
+        options={VERDICT_OPTIONS}
+      />
+      <FilterSelect
+        id="filter-author"
+        name="author"
+        label="Author"
+        anyLabel="Anyone"
+        value={filters.author}
+        options={authors.map((author) => ({ value: author.id, label: author.name }))}
+      />
+      <FilterInput
+        id="filter-from"
+        name="from"
+        type="date"
+        label="From (UTC)"
+        value={filters.from}
+      />
+      <FilterInput id="filter-to" name="to" type="date" label="To (UTC)" value={filters.to} />
+    </FilterBar>
   );
 }
