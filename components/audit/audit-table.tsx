@@ -2,6 +2,13 @@ import type { AuditEntry } from "@/db/queries/audit";
 import { formatReportDate } from "@/lib/reports/report-view";
 import { AUDIT_ACTION_LABELS } from "@/lib/reviews/audit-filters";
 
+function describeVersions(versions: unknown): string {
+  const list = Array.isArray(versions) ? versions : [];
+  return list.length === 1
+    ? `its only version (v${list[0]})`
+    : `versions ${list.map((v) => `v${v}`).join(", ")}`;
+}
+
 /** What happened, in words, from an entry's stored details (which vary by kind of event). */
 function describeEntry(entry: AuditEntry): string {
   const details = entry.details as Record<string, string | number | string[] | undefined>;
@@ -20,6 +27,12 @@ function describeEntry(entry: AuditEntry): string {
       return `"${details.title}" v${details.version}: ${
         details.decision === "approve" ? "approved" : "changes requested"
       } — ${details.reason}`;
+    case "report.deleted":
+      return `"${details.title}" deleted with ${describeVersions(details.versions)}`;
+    case "api-token.created":
+      return `"${details.name}" for ${details.owner}, expires ${details.expiresOn}`;
+    case "api-token.revoked":
+      return `"${details.name}" of ${details.owner} revoked`;
   }
 }
 

@@ -49,14 +49,14 @@ export async function listApiTokens(
     .orderBy(desc(apiTokens.createdAt));
 }
 
-/** Revokes one of the user's own tokens; false when there is no such live token of theirs. */
+/** Revokes one of the user's own tokens; undefined when there is no such live token of theirs. */
 export async function revokeApiToken(
   workspaceId: string,
   userId: string,
   tokenId: string,
   now = new Date(),
-): Promise<boolean> {
-  const revoked = await db()
+): Promise<{ name: string } | undefined> {
+  const [revoked] = await db()
     .update(apiTokens)
     .set({ revokedAt: now })
     .where(
@@ -67,8 +67,8 @@ export async function revokeApiToken(
         isNull(apiTokens.revokedAt),
       ),
     )
-    .returning({ id: apiTokens.id });
-  return revoked.length > 0;
+    .returning({ name: apiTokens.name });
+  return revoked;
 }
 
 /**

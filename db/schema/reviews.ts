@@ -114,6 +114,9 @@ export const AUDIT_ACTIONS = [
   "member.removed",
   "review.requested",
   "review.decided",
+  "report.deleted",
+  "api-token.created",
+  "api-token.revoked",
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 

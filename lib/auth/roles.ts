@@ -19,6 +19,8 @@ export const CAPABILITIES = {
   commentOnReport: ["owner", "analyst", "reviewer"],
   /** Sign-off is a reviewer's job; an owner may stand in for one. */
   decideReview: ["owner", "reviewer"],
+  /** Deleting a report takes its reviews with it, so it is for those who answer for the workspace. */
+  deleteReport: ["owner"],
   /** The record of who decided what is for the people who answer for the workspace. */
   readAuditLog: ["owner"],
 } as const satisfies Record<string, readonly Role[]>;

@@ -13,6 +13,9 @@ export const AUDIT_ACTION_LABELS: Record<AuditAction, string> = {
   "member.removed": "Member removed",
   "review.requested": "Review requested",
   "review.decided": "Review decided",
+  "report.deleted": "Report deleted",
+  "api-token.created": "API token created",
+  "api-token.revoked": "API token revoked",
 };
 
 const fields = {

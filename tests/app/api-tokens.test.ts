@@ -15,6 +15,7 @@ import {
 import { GET as getCaller } from "@/app/api/v1/workspace/route";
 import { closeDb, db } from "@/db/client";
 import { listApiTokens } from "@/db/queries/api-tokens";
+import { listAuditEntries } from "@/db/queries/audit";
 import { apiTokens, memberships } from "@/db/schema";
 import { createTeam } from "@/tests/support/accounts";
 import { apiRequest } from "@/tests/support/api-tokens";
@@ -101,6 +102,14 @@ describe("personal API tokens", () => {
     actAs(team.analyst);
     expect((await revokeApiTokenAction(team.workspaceId, before.id)).ok).toBe(true);
     expect((await revokeApiTokenAction(team.workspaceId, before.id)).ok).toBe(false);
+
+    // Issue 5: owners read in the audit log who created and revoked a token (never the token).
+    const entries = await listAuditEntries(team.workspaceId);
+    expect(entries.map((entry) => [entry.action, entry.actorId, entry.targetId]).sort()).toEqual([
+      ["api-token.created", team.analyst.id, before.id],
+      ["api-token.revoked", team.analyst.id, before.id],
+    ]);
+    expect(JSON.stringify(entries)).not.toContain(token);
 
     const revoked = await getCaller(apiRequest("/api/v1/workspace", token));
     expect(revoked.status).toBe(401);

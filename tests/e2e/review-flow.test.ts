@@ -137,5 +137,17 @@ describe("review flow in the browser", () => {
     expect(await entries.first().textContent()).toContain(
       "The verdict follows from the island skew.",
     );
+
+    // The owner deletes the report, typing its title to confirm; the log records the deletion.
+    await page.goto(reportPath);
+    await page.getByText("Delete this report…").click();
+    const deletion = page.getByRole("form", { name: "Delete report" });
+    await deletion.getByLabel(/Type the title to confirm/).fill("Penguins by island");
+    await deletion.getByRole("button", { name: "Delete report" }).click();
+    await page.waitForURL((url) => url.pathname === `/w/${workspaceId}/reports`);
+    await page.getByText("Deleted “Penguins by island” with all its versions.").waitFor();
+    await page.goto(`/w/${workspaceId}/audit?action=report.deleted`);
+    expect(await entries.count()).toBe(1);
+    expect(await entries.first().textContent()).toContain("its only version (v1)");
   });
 });

@@ -36,6 +36,8 @@ const EXPECTED: Record<Capability, Record<(typeof ROLES)[number], number>> = {
   commentOnReport: { owner: 200, analyst: 200, reviewer: 200 },
   decideReview: { owner: 200, analyst: 403, reviewer: 200 },
   readAuditLog: { owner: 200, analyst: 403, reviewer: 403 },
+  // Issue 5 puts deletions in the owners' audit log; deleting takes others' reviews with it.
+  deleteReport: { owner: 200, analyst: 403, reviewer: 403 },
 };
 
 describe("guards", () => {

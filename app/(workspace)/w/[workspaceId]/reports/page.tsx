@@ -3,6 +3,7 @@ import Link from "next/link";
 import { ReportFiltersForm } from "@/components/reports/report-filters-form";
 import { ReportList } from "@/components/reports/report-list";
 import { buttonClasses } from "@/components/ui/button";
+import { Notice } from "@/components/ui/notice";
 import { Cautions } from "@/components/workspace/cautions";
 import { listReportAuthors, listReports } from "@/db/queries/reports";
 import { findReviewStates } from "@/db/queries/reviews";
@@ -23,7 +24,10 @@ export default async function ReportsPage({
 }) {
   const { workspaceId } = await params;
   const { workspace } = await guardPage(workspaceId, "readWorkspace", `/w/${workspaceId}/reports`);
-  const filters = readReportFilters(await searchParams);
+  const query = await searchParams;
+  const filters = readReportFilters(query);
+  // Set by the delete control after it deleted a report, to say what went.
+  const deletedTitle = typeof query.deleted === "string" ? query.deleted : undefined;
   const filtered = hasReportFilters(filters);
   const [reports, authors] = await Promise.all([
     listReports(workspace.id, filters, LIST_LIMIT),
@@ -52,6 +56,12 @@ export default async function ReportsPage({
           </Link>
         ) : null}
       </div>
+
+      {deletedTitle ? (
+        <Notice tone="success">
+          Deleted “{deletedTitle}” with all its versions. The audit log keeps a record of it.
+        </Notice>
+      ) : null}
 
       {hasAny ? (
         <ReportFiltersForm action={`${base}/reports`} filters={filters} authors={authors} />

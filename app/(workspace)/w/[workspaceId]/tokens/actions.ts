@@ -2,6 +2,7 @@
 
 import { revalidatePath } from "next/cache";
 import { insertApiToken, revokeApiToken } from "@/db/queries/api-tokens";
+import { recordAudit } from "@/db/queries/audit";
 import { failWith, succeed, type ActionResult } from "@/lib/actions/result";
 import { createApiTokenSchema, type CreateApiTokenInput } from "@/lib/auth/api-token-schema";
 import { createApiTokenSecret } from "@/lib/auth/api-token-secret";
@@ -29,6 +30,19 @@ export async function createApiToken(
       tokenHash,
       expiresAt: new Date(Date.now() + lifetimeDays * DAY_MS),
     });
+    // Owners see in the log who can reach the workspace without a browser, and until when.
+    await recordAudit({
+      workspaceId,
+      actor: user,
+      action: "api-token.created",
+      targetType: "api-token",
+      targetId: created.id,
+      details: {
+        name: created.name,
+        owner: user.email,
+        expiresOn: created.expiresAt.toISOString().slice(0, 10),
+      },
+    });
     revalidatePath(`/w/${workspaceId}/tokens`);
     return succeed({ token, name: created.name, expiresAt: created.expiresAt });
   } catch (error) {
@@ -43,9 +57,16 @@ export async function revokeApiTokenAction(
 ): Promise<ActionResult> {
   try {
     const { user } = await requireRole(workspaceId, "manageApiTokens");
-    if (!(await revokeApiToken(workspaceId, user.id, tokenId))) {
-      throw new RuleError(404, "That token does not exist or is already revoked.");
-    }
+    const revoked = await revokeApiToken(workspaceId, user.id, tokenId);
+    if (!revoked) throw new RuleError(404, "That token does not exist or is already revoked.");
+    await recordAudit({
+      workspaceId,
+      actor: user,
+      action: "api-token.revoked",
+      targetType: "api-token",
+      targetId: tokenId,
+      details: { name: revoked.name, owner: user.email },
+    });
     revalidatePath(`/w/${workspaceId}/tokens`);
     return succeed();
   } catch (error) {

@@ -1,6 +1,7 @@
 import type { Metadata } from "next";
 import { notFound } from "next/navigation";
 import { cache } from "react";
+import { DeleteReportControl } from "@/components/reports/delete-report-control";
 import { KeyFigures } from "@/components/reports/key-figures";
 import { MethodsSection } from "@/components/reports/methods-section";
 import { PreprocessingNotes } from "@/components/reports/preprocessing-notes";
@@ -96,6 +97,14 @@ export default async function ReportPage({ params }: PageProps) {
           decide: roleAllows(workspace.role, "decideReview"),
         }}
       />
+      {roleAllows(workspace.role, "deleteReport") ? (
+        <DeleteReportControl
+          workspaceId={workspace.id}
+          reportId={report.id}
+          title={report.title}
+          versionCount={report.versions.length}
+        />
+      ) : null}
     </article>
   );
 }
