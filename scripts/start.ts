@@ -13,6 +13,7 @@ import { buildNextApp, isBuildStale, startNextApp } from "./services/next-app";
 import { assertPortFree, readPort } from "./services/ports";
 import { startPostgres } from "./services/postgres";
 import { Supervisor } from "./services/processes";
+import { startWorker } from "./services/worker";
 
 const projectRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const dataDir = path.resolve(process.env.PARTITA_DATA_DIR ?? path.join(projectRoot, ".data"));
@@ -97,13 +98,7 @@ async function main() {
   const accounts = await seedDemo(postgres.url);
 
   step("Starting the analysis worker");
-  supervisor.startService({
-    name: "Analysis worker",
-    command: process.execPath,
-    args: ["--conditions=react-server", "--import", "tsx", "scripts/worker.ts"],
-    cwd: projectRoot,
-    env: appEnvironment,
-  });
+  startWorker(supervisor, projectRoot, appEnvironment);
 
   if (isBuildStale(projectRoot)) {
     step("Building the app (next build)");

@@ -1,18 +1,12 @@
 // `npm test` (and CI): every check against throwaway services — a PostgreSQL in a temporary folder,
 // the S3 and SMTP fakes — all on free ports, so it runs beside `npm start` and leaves nothing behind.
-import { randomBytes } from "node:crypto";
-import { chmodSync, existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync } from "node:fs";
-import os from "node:os";
+import { existsSync, readFileSync } from "node:fs";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
-import { fakeS3Credentials, startFakeS3 } from "../fakes/s3";
-import { startFakeSmtp } from "../fakes/smtp";
-import { buildAppEnvironment } from "./services/app-environment";
-import { applyMigrations } from "./services/migrate";
 import { buildNextApp, startNextApp } from "./services/next-app";
-import { findFreePort } from "./services/ports";
-import { startPostgres } from "./services/postgres";
 import { Supervisor } from "./services/processes";
+import { startThrowawayServices } from "./services/throwaway-services";
+import { startWorker } from "./services/worker";
 
 const projectRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const bin = (...parts: string[]) => path.join(projectRoot, "node_modules", ...parts);
@@ -78,56 +72,8 @@ function vitestArgs(config: string, reportFile: string): string[] {
 }
 
 async function main(): Promise<number> {
-  // Open to other users so the postgres account can reach the cluster folder inside it.
-  const workDir = mkdtempSync(path.join(os.tmpdir(), "partita-test-"));
-  chmodSync(workDir, 0o755);
-  supervisor.register("temporary folder", async () =>
-    rmSync(workDir, { recursive: true, force: true }),
-  );
-
   header("Services: PostgreSQL, S3 fake, SMTP fake (throwaway, free ports)");
-  const [postgresPort, s3Port, smtpPort, appPort] = await Promise.all([
-    findFreePort(),
-    findFreePort(),
-    findFreePort(),
-    findFreePort(),
-  ]);
-  const appUrl = `http://127.0.0.1:${appPort}`;
-  const postgres = await startPostgres(supervisor, {
-    dataDir: path.join(workDir, "pg"),
-    port: postgresPort,
-    portVariable: "(a free port)",
-    database: "partita_test",
-    password: randomBytes(24).toString("hex"),
-    logFile: path.join(workDir, "postgres.log"),
-  });
-  supervisor.register("PostgreSQL", postgres.stop);
-  console.log(`PostgreSQL on 127.0.0.1:${postgresPort}`);
-  if (!(await applyMigrations(postgres.url))) console.log("drizzle/ holds no migrations yet");
-  else console.log("Migrations applied");
-
-  const bucket = "partita-test";
-  const s3 = await startFakeS3({
-    port: s3Port,
-    directory: path.join(workDir, "s3"),
-    bucket,
-    allowedOrigins: [appUrl],
-  });
-  supervisor.register("S3 fake", s3.stop);
-  console.log(`S3 fake on ${s3.endpoint}`);
-  const mailDirectory = path.join(workDir, "mail");
-  mkdirSync(mailDirectory);
-  const smtp = await startFakeSmtp({ port: smtpPort, directory: mailDirectory });
-  supervisor.register("SMTP fake", smtp.stop);
-  console.log(`SMTP fake on 127.0.0.1:${smtpPort}`);
-
-  const env = buildAppEnvironment({
-    databaseUrl: postgres.url,
-    nextAuthSecret: randomBytes(48).toString("base64url"),
-    appUrl,
-    fakeS3: { endpoint: s3.endpoint, bucket, ...fakeS3Credentials },
-    fakeSmtp: { port: smtpPort, mailDirectory },
-  });
+  const { env, appPort, appUrl, workDir } = await startThrowawayServices(supervisor);
 
   await runStage("Type check (tsc --noEmit)", [bin("typescript", "bin", "tsc"), "--noEmit"], env);
   await runStage("Lint (eslint .)", [bin("eslint", "bin", "eslint.js"), "."], env);
@@ -137,13 +83,7 @@ async function main(): Promise<number> {
     env,
   );
   // The analysis worker, as `npm start` runs it, for tests that need jobs to be taken.
-  supervisor.startService({
-    name: "Analysis worker",
-    command: process.execPath,
-    args: ["--conditions=react-server", "--import", "tsx", "scripts/worker.ts"],
-    cwd: projectRoot,
-    env,
-  });
+  startWorker(supervisor, projectRoot, env);
   const unitReport = path.join(workDir, "vitest-unit.json");
   await runStage(
     "Unit and integration tests (vitest)",
