@@ -13,20 +13,30 @@ export const referenceWeightsSchema = z.object({
 
 export type ReferenceWeights = z.infer<typeof referenceWeightsSchema>;
 
+/** S, the seeds the chosen step size is re-run on (methods.md §7: default 3). */
+export const DEFAULT_SIMULATION_SEEDS = 3;
+export const MAX_SIMULATION_SEEDS = 20;
 /**
- * The simulation of methods.md §7: S seeds for the chosen step size (default 3), the grid's seed
- * (re-runs use seed + 1 … seed + S) and the largest estimated cost in multiply-adds it may take
- * (default 1e11, a few minutes on one core).
+ * The largest estimated simulation cost, in multiply-adds, run without asking for more: the CLI's
+ * default and the most the server runs for the web form and the API. At the roughly 10⁸
+ * multiply-adds a second measured on one core (lib/reports/simulation-estimate.ts), about a
+ * quarter of an hour.
+ */
+export const DEFAULT_SIMULATION_BUDGET = 1e11;
+
+/**
+ * The simulation of methods.md §7: S seeds for the chosen step size, the grid's seed (re-runs use
+ * seed + 1 … seed + S) and the largest estimated cost in multiply-adds it may take.
  */
 export const simulateOptionsSchema = z.object({
-  seeds: z.number().int().min(1).max(20).default(3),
+  seeds: z.number().int().min(1).max(MAX_SIMULATION_SEEDS).default(DEFAULT_SIMULATION_SEEDS),
   seed: z
     .number()
     .int()
     .min(0)
     .max(2 ** 32 - 1)
     .default(1),
-  budget: z.number().finite().positive().default(1e11),
+  budget: z.number().finite().positive().default(DEFAULT_SIMULATION_BUDGET),
 });
 
 const columnName = z.string().trim().min(1, "a column name cannot be empty");

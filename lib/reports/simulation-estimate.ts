@@ -1,0 +1,151 @@
+import type { DataFilePreview } from "@/db/schema/analyses";
+import { MAX_ONE_HOT_LEVELS } from "@/lib/analysis/column-accumulator";
+import { MAX_CLASSES_FOR_NUMERIC_LABEL } from "@/lib/analysis/encode-design";
+import type { TrainingPlan } from "@/lib/analysis/simulation/run-algorithm";
+import { estimateSimulationCost } from "@/lib/analysis/simulation/simulate-plan";
+import { formatFigure } from "@/lib/reports/report-view";
+import type { AnalysisOptions } from "@/lib/validation/analysis-options";
+
+// The simulation's cost (methods.md §7) before the dataset is read: the engine's formula applied to
+// what the uploads' previews show. The form shows it as the user types; the server checks it before
+// queueing. The engine checks the exact cost again once it has encoded the whole dataset.
+
+type PreviewColumn = DataFilePreview["columns"][number];
+
+/**
+ * Multiply-adds the simulation does per second, roughly, on one core. Measured on this project's
+ * 2-core machine with `npm run analyze -- --simulate`: penguins (d + 1 = 8, C = 3, R = 2000),
+ * 1.5 × 10⁹ in 15 s of CPU time; the benchmark's 100 000 × 32 × 10 data (M = 100, R = 10),
+ * 3.5 × 10⁹ in 37 s of CPU time for the whole run. A guide for the time hint, not a promise: a busy
+ * machine takes longer.
+ */
+export const SIMULATION_MULTIPLY_ADDS_PER_SECOND = 1e8;
+
+export interface SimulationEstimateInput {
+  /** The dataset's preview; null when the server has none (then nothing can be estimated). */
+  dataset: DataFilePreview | null;
+  /** The partition map's preview, when the shards come from one. */
+  layout?: DataFilePreview | null;
+  options: Pick<
+    AnalysisOptions,
+    | "labelColumn"
+    | "idColumn"
+    | "shardColumn"
+    | "features"
+    | "task"
+    | "participants"
+    | "localSteps"
+    | "rounds"
+    | "batchSize"
+  >;
+  /** S, the seeds the chosen step size is re-run on. */
+  seeds: number;
+}
+
+export interface SimulationEstimate {
+  /** Estimated multiply-adds: 3 × (8 + S) × R·M·K·b·(d+1)·C. */
+  cost: number;
+  /** d + 1: encoded feature columns and the bias. */
+  width: number;
+  /** C: classes for classification, 1 for regression. */
+  weightRows: number;
+  /** The plan it was estimated for, M filled in with the shards seen when the plan uses them all. */
+  plan: TrainingPlan;
+  /** False when a preview stopped before the end of its file, so its counts may be too low. */
+  wholeFiles: boolean;
+}
+
+const isPositiveWhole = (value: number | undefined): value is number =>
+  value !== undefined && Number.isInteger(value) && value >= 1;
+
+/** How the engine will treat the label (methods.md §1), from its preview column. */
+export function detectTask(label: PreviewColumn): "classification" | "regression" {
+  return label.type === "numeric" && label.distinct > MAX_CLASSES_FOR_NUMERIC_LABEL
+    ? "regression"
+    : "classification";
+}
+
+/**
+ * Encoded columns one feature adds (methods.md §1): one for a numeric column, one per level for a
+ * text column with at most 32 levels, none for a wider text column or an empty one. A column with a
+ * single value is constant after imputation and dropped.
+ */
+function countEncodedColumns(column: PreviewColumn): number {
+  if (column.type === "empty" || column.distinct < 2) return 0;
+  if (column.type === "numeric") return 1;
+  return column.distinct <= MAX_ONE_HOT_LEVELS ? column.distinct : 0;
+}
+
+/**
+ * The simulation's cost from the previews, or null when they do not tell enough (no preview, an
+ * unknown label column, no shards seen, or a plan value that is not a whole number ≥ 1).
+ *
+ * Example: penguins by island with the label Species (3 classes), four measurements and Sex (three
+ * levels: FEMALE, MALE, "."), M = 3, K = 10, R = 100, b = 32, S = 3: d + 1 = 8, C = 3, cost
+ * 3 × 11 × 100 · 3 · 10 · 32 · 8 · 3 = 7.6032e7.
+ */
+export function estimateSimulationFromPreviews(
+  input: SimulationEstimateInput,
+): SimulationEstimate | null {
+  const { dataset, options } = input;
+  if (!dataset) return null;
+  const columns = new Map(dataset.columns.map((column) => [column.name, column]));
+  const label = columns.get(options.labelColumn);
+  if (!label) return null;
+
+  const reserved = new Set([options.labelColumn, options.idColumn, options.shardColumn]);
+  const features =
+    options.features ??
+    dataset.columns.map((column) => column.name).filter((name) => !reserved.has(name));
+  const width =
+    1 +
+    features.reduce((sum, name) => {
+      const column = columns.get(name);
+      return sum + (column ? countEncodedColumns(column) : 0);
+    }, 0);
+  const task = options.task ?? detectTask(label);
+  const weightRows = task === "regression" ? 1 : label.distinct;
+
+  const shardSource = options.shardColumn
+    ? columns.get(options.shardColumn)
+    : input.layout?.columns.find((column) => column.name === "shard");
+  const participants = options.participants ?? shardSource?.distinct ?? 0;
+  const { localSteps, rounds, batchSize } = options;
+  if (![participants, localSteps, rounds, batchSize, input.seeds].every(isPositiveWhole)) {
+    return null;
+  }
+  if (weightRows < 1) return null;
+
+  const plan = { participants, localSteps, rounds, batchSize };
+  return {
+    cost: estimateSimulationCost(plan, width, weightRows, input.seeds),
+    width,
+    weightRows,
+    plan,
+    wholeFiles:
+      !dataset.truncated && (options.shardColumn !== undefined || !input.layout?.truncated),
+  };
+}
+
+/**
+ * The cost and time in words for the form: "3.5×10¹⁰" multiply-adds and "about 6 minutes" at
+ * SIMULATION_MULTIPLY_ADDS_PER_SECOND, and whether it is above the budget.
+ */
+export function describeSimulationCost(
+  cost: number,
+  budget: number,
+): { amount: string; time: string; overBudget: boolean } {
+  return {
+    amount: formatFigure(cost, 2),
+    time: describeDuration(cost / SIMULATION_MULTIPLY_ADDS_PER_SECOND),
+    overBudget: cost > budget,
+  };
+}
+
+/** A rough duration in plain words: "under a minute", "about 6 minutes", "about 3 hours". */
+export function describeDuration(seconds: number): string {
+  if (seconds < 60) return "under a minute";
+  const minutes = Math.round(seconds / 60);
+  if (minutes < 90) return minutes === 1 ? "about a minute" : `about ${minutes} minutes`;
+  return `about ${Math.round(minutes / 60)} hours`;
+}
