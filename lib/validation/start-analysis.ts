@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { analysisOptionsSchema } from "./analysis-options";
+import { analysisOptionsSchema, DEFAULT_SIMULATION_BUDGET } from "./analysis-options";
 
 /**
  * What the browser (and later the API) sends to start an analysis: which registered files to read
@@ -29,6 +29,14 @@ export const startAnalysisSchema = z
         code: "custom",
         path: ["options", "shardColumn"],
         message: "Use either a shard column or a partition map, not both.",
+      });
+    }
+    // The server's worker is shared by the workspace; larger simulations run with the CLI.
+    if (input.options.simulate && input.options.simulate.budget > DEFAULT_SIMULATION_BUDGET) {
+      context.addIssue({
+        code: "custom",
+        path: ["options", "simulate", "budget"],
+        message: `The server simulates at most ${DEFAULT_SIMULATION_BUDGET.toExponential().replace("e+", "e")} multiply-adds; ask for less, or run a larger simulation with the CLI on your own machine.`,
       });
     }
     if (typeof input.options.reference === "object") {

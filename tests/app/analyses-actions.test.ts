@@ -1,5 +1,6 @@
 // startAnalysis / cancelAnalysis against the real PostgreSQL and S3 fake: who may call them, and
 // what they accept. Jobs are captured instead of sent (the job path has its own tests).
+import { Readable } from "node:stream";
 import { eq } from "drizzle-orm";
 import { afterAll, beforeEach, describe, expect, it, vi } from "vitest";
 import type { AnalysisJob } from "@/lib/jobs";
@@ -22,14 +23,18 @@ vi.mock("@/lib/jobs", async (importOriginal) => ({
 import { cancelAnalysis, startAnalysis } from "@/app/(workspace)/w/[workspaceId]/analyses/actions";
 import { closeDb, db } from "@/db/client";
 import { findAnalysisStatus } from "@/db/queries/analyses";
-import { analyses } from "@/db/schema";
+import { analyses, dataFiles } from "@/db/schema";
+import { analyzePartition } from "@/lib/analysis";
 import { runAnalysis } from "@/lib/reports/run-analysis";
+import { readCsvHead, summarizeCsvHead } from "@/lib/uploads/csv-preview";
 import { createAccount, createTeam } from "@/tests/support/accounts";
 import { actAs } from "@/tests/support/fake-session";
 import {
   PENGUIN_OPTIONS,
+  PENGUINS,
   storeInput,
   storePenguins,
+  type StoredInput,
 } from "@/tests/lib/reports/support/stored-inputs";
 
 afterAll(closeDb);
@@ -232,6 +237,65 @@ describe("startAnalysis: what it accepts", () => {
       quiet.mockRestore();
     }
     expect(await analysesIn(team.workspaceId)).toEqual([]);
+  });
+});
+
+/** Gives a stored file the preview registration would have made of its bytes. */
+async function addPreview(file: StoredInput) {
+  const preview = summarizeCsvHead(
+    readCsvHead({ bytes: file.bytes, totalBytes: file.bytes.length, fileName: file.name }),
+  );
+  await db().update(dataFiles).set({ preview }).where(eq(dataFiles.id, file.id));
+}
+
+describe("startAnalysis: the simulation's cost (methods.md §7)", () => {
+  it("refuses a plan above the budget on the simulation's field, with the engine's message", async () => {
+    const { team, files, request } = await teamWithPenguins();
+    await Promise.all([addPreview(files.dataset), addPreview(files.layout)]);
+    actAs(team.analyst);
+    // 3 × 11 × 10⁶ rounds × 3 islands × 10 × 32 × 8 × 3 ≈ 7.6e11 multiply-adds, above 1e11.
+    const options = { ...PENGUIN_OPTIONS, rounds: 1_000_000, simulate: { seeds: 3 } };
+    const refused = await startAnalysis(team.workspaceId, { ...request, options });
+
+    // The engine's own refusal for the same input, from calling it directly on the whole file.
+    const engineMessage = await analyzePartition({
+      data: Readable.from([PENGUINS.csv]),
+      partition: Readable.from([PENGUINS.islandMap]),
+      options,
+    }).then(
+      () => "no refusal",
+      (error: Error) => error.message,
+    );
+    expect(engineMessage).toMatch(/^the simulation would take about 7\.60e11 multiply-adds/);
+    expect(refused).toMatchObject({
+      ok: false,
+      status: 422,
+      fieldErrors: { "options.simulate": engineMessage },
+    });
+    expect(await analysesIn(team.workspaceId)).toEqual([]);
+    expect(queue.jobs).toEqual([]);
+  });
+
+  it("queues a simulation within the budget and refuses a budget above the server's", async () => {
+    const { team, files, request } = await teamWithPenguins();
+    await Promise.all([addPreview(files.dataset), addPreview(files.layout)]);
+    actAs(team.analyst);
+    const tooGenerous = await startAnalysis(team.workspaceId, {
+      ...request,
+      options: { ...PENGUIN_OPTIONS, simulate: { seeds: 3, budget: 1e12 } },
+    });
+    expect(!tooGenerous.ok && tooGenerous.fieldErrors["options.simulate.budget"]).toMatch(
+      /^The server simulates at most 1e11 multiply-adds/,
+    );
+
+    const started = await startAnalysis(team.workspaceId, {
+      ...request,
+      options: { ...PENGUIN_OPTIONS, simulate: { seeds: 2 } },
+    });
+    if (!started.ok) throw new Error(started.message);
+    const [stored] = await analysesIn(team.workspaceId);
+    // Stored with the defaults of analysisOptionsSchema filled in: grid seed 1, budget 1e11.
+    expect(stored.parameters.simulate).toEqual({ seeds: 2, seed: 1, budget: 1e11 });
   });
 });
 
