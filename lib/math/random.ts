@@ -8,10 +8,11 @@
  * [0, 1) on every run; `new SeededRandom(8)` starts a different stream.
  */
 export class SeededRandom {
-  private a: number;
-  private b: number;
-  private c: number;
-  private d: number;
+  /**
+   * The four 32-bit state words. Typed-array slots hold any 32-bit value in place, where object
+   * fields holding values beyond the engine's small-integer range would box each new value.
+   */
+  private readonly state = new Int32Array(4);
   private spareNormal = Number.NaN;
 
   constructor(seed: number) {
@@ -25,25 +26,25 @@ export class SeededRandom {
       z = Math.imul(z ^ (z >>> 13), 0xc2b2ae35) >>> 0;
       return (z ^ (z >>> 16)) >>> 0;
     };
-    this.a = next();
-    this.b = next();
-    this.c = next();
-    this.d = next();
+    const words = this.state;
+    for (let k = 0; k < 4; k++) words[k] = next();
     // The all-zero state is the generator's one fixed point; splitmix32 never yields it for all four
     // words, but guard anyway so the invariant is local.
-    if ((this.a | this.b | this.c | this.d) === 0) this.a = 1;
+    if ((words[0] | words[1] | words[2] | words[3]) === 0) words[0] = 1;
   }
 
   /** Next 32 random bits as an unsigned integer (xoshiro128**). */
   nextUint32(): number {
-    const result = Math.imul(rotateLeft(Math.imul(this.b, 5), 7), 9) >>> 0;
-    const t = this.b << 9;
-    this.c ^= this.a;
-    this.d ^= this.b;
-    this.b ^= this.c;
-    this.a ^= this.d;
-    this.c ^= t;
-    this.d = rotateLeft(this.d, 11);
+    // Words a, b, c, d of the reference implementation are state[0 … 3].
+    const s = this.state;
+    const result = Math.imul(rotateLeft(Math.imul(s[1], 5), 7), 9) >>> 0;
+    const t = s[1] << 9;
+    s[2] ^= s[0];
+    s[3] ^= s[1];
+    s[1] ^= s[2];
+    s[0] ^= s[3];
+    s[2] ^= t;
+    s[3] = rotateLeft(s[3], 11);
     return result;
   }
 
