@@ -1,5 +1,11 @@
 import { z } from "zod";
-import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
+import type { DataFilePreview } from "@/db/schema/analyses";
+import type { SimulationEstimateInput } from "@/lib/reports/simulation-estimate";
+import {
+  DEFAULT_SIMULATION_SEEDS,
+  MAX_SIMULATION_SEEDS,
+  type AnalysisOptionsInput,
+} from "@/lib/validation/analysis-options";
 import { startAnalysisSchema, type StartAnalysisInput } from "@/lib/validation/start-analysis";
 
 // The new-analysis form's values and their validation. Field names follow the request's own paths
@@ -15,6 +21,12 @@ const wholeNumber = (what: string) =>
     .number({ message: `Enter the ${what} as a whole number.` })
     .int(`Enter the ${what} as a whole number.`)
     .min(1, `The ${what} must be at least 1.`);
+
+/** S of methods.md §7, checked only when the simulation is asked for. */
+const simulationSeeds = wholeNumber("number of seeds").max(
+  MAX_SIMULATION_SEEDS,
+  `Use at most ${MAX_SIMULATION_SEEDS} seeds.`,
+);
 
 export const analysisFormSchema = z
   .object({
@@ -42,6 +54,8 @@ export const analysisFormSchema = z
       rounds: wholeNumber("number of rounds"),
       batchSize: wholeNumber("batch size"),
       dropUnassignedRows: z.boolean(),
+      // "Also simulate" (methods.md §7); NaN is an emptied seeds field.
+      simulate: z.object({ enabled: z.boolean(), seeds: z.number().or(z.nan()) }),
     }),
   })
   .superRefine((values, context) => {
@@ -71,6 +85,10 @@ export const analysisFormSchema = z
       if (!Number.isInteger(participants) || participants < 1) {
         issue(["options", "participants"], "Enter how many shards take part in each round.");
       }
+    }
+    if (options.simulate.enabled) {
+      const seeds = simulationSeeds.safeParse(options.simulate.seeds);
+      if (!seeds.success) issue(["options", "simulate", "seeds"], seeds.error.issues[0].message);
     }
     // Whatever the server will check, checked here too, on the same paths.
     const request = startAnalysisSchema.safeParse(toStartAnalysisInput(values));
@@ -110,7 +128,27 @@ export function toStartAnalysisInput(values: AnalysisFormValues): StartAnalysisI
       rounds: options.rounds,
       batchSize: options.batchSize,
       dropUnassignedRows: byColumn ? false : options.dropUnassignedRows,
+      // The server's default budget and grid seed apply.
+      simulate: options.simulate.enabled ? { seeds: options.simulate.seeds } : undefined,
     },
+  };
+}
+
+/**
+ * What the simulation's cost estimate needs from the form: its request's options and the previews
+ * of the chosen dataset and partition map.
+ */
+export function toSimulationEstimateInput(
+  values: AnalysisFormValues,
+  previews: { dataset: DataFilePreview | null; layout: DataFilePreview | null },
+): SimulationEstimateInput {
+  const { options } = toStartAnalysisInput(values);
+  const { localSteps, rounds, batchSize, simulate } = values.options;
+  return {
+    dataset: previews.dataset,
+    layout: values.layoutSource === "file" ? previews.layout : undefined,
+    options: { ...options, localSteps, rounds, batchSize },
+    seeds: simulate.seeds,
   };
 }
 
@@ -136,6 +174,7 @@ export const EMPTY_FORM: AnalysisFormValues = {
     rounds: PLAN_DEFAULTS.rounds,
     batchSize: PLAN_DEFAULTS.batchSize,
     dropUnassignedRows: false,
+    simulate: { enabled: false, seeds: DEFAULT_SIMULATION_SEEDS },
   },
 };
 
@@ -183,6 +222,10 @@ export function formValuesFrom(
       rounds: options.rounds ?? PLAN_DEFAULTS.rounds,
       batchSize: options.batchSize ?? PLAN_DEFAULTS.batchSize,
       dropUnassignedRows: options.dropUnassignedRows ?? false,
+      simulate: {
+        enabled: options.simulate !== undefined,
+        seeds: options.simulate?.seeds ?? DEFAULT_SIMULATION_SEEDS,
+      },
     },
   };
 }

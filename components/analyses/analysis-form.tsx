@@ -6,6 +6,7 @@ import { useState } from "react";
 import { useForm, useWatch, type FieldPath } from "react-hook-form";
 import { startAnalysis } from "@/app/(workspace)/w/[workspaceId]/analyses/actions";
 import { FileChoice } from "@/components/analyses/file-choice";
+import { SimulationCost } from "@/components/analyses/simulation-cost";
 import {
   ChoiceOption,
   FormStep,
@@ -16,6 +17,7 @@ import { FieldMessage } from "@/components/ui/field-parts";
 import {
   analysisFormSchema,
   reservedColumns,
+  toSimulationEstimateInput,
   toStartAnalysisInput,
   usableFeatures,
   withDefaultFeatures,
@@ -25,6 +27,8 @@ import { PreviewTable } from "@/components/uploads/preview-table";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import type { DataFileSummary } from "@/db/queries/data-files";
+import { detectTask, estimateSimulationFromPreviews } from "@/lib/reports/simulation-estimate";
+import { DEFAULT_SIMULATION_BUDGET } from "@/lib/validation/analysis-options";
 
 export interface WorkspaceFiles {
   datasets: DataFileSummary[];
@@ -48,10 +52,9 @@ const FIELD_PATHS = new Set<string>([
   "options.localSteps",
   "options.rounds",
   "options.batchSize",
+  "options.simulate",
+  "options.simulate.seeds",
 ]);
-
-/** methods.md §1: a label with at most 20 distinct values (or any non-numeric one) is a class. */
-const MAX_CLASSES_FOR_AUTO = 20;
 
 /**
  * The new-analysis form: the dataset, where the shards come from, the column mapping, the
@@ -158,14 +161,19 @@ export function AnalysisForm({
   });
 
   const labelColumn = columns.find((column) => column.name === options.labelColumn);
-  const detectedTask = labelColumn
-    ? labelColumn.type === "numeric" && labelColumn.distinct > MAX_CLASSES_FOR_AUTO
-      ? "regression"
-      : "classification"
-    : undefined;
+  const detectedTask = labelColumn ? detectTask(labelColumn) : undefined;
   const shardColumn = columns.find((column) => column.name === options.shardColumn);
   const usable = usableFeatures(columnNames, reservedColumns(values));
   const features = register("options.features", { onChange: () => setFeaturesChosen(true) });
+  const simulationEstimate = options.simulate.enabled
+    ? estimateSimulationFromPreviews(
+        toSimulationEstimateInput(values, {
+          dataset: dataset?.preview ?? null,
+          layout: files.layouts.find((file) => file.id === values.layoutFileId)?.preview ?? null,
+        }),
+      )
+    : null;
+  const simulationError = errorOf("options.simulate");
 
   return (
     <form onSubmit={submit} noValidate className="space-y-6" aria-label="New analysis">
@@ -520,6 +528,50 @@ export function AnalysisForm({
                 error={errorOf("options.batchSize")}
               />
             </div>
+            <fieldset
+              className="space-y-3 rounded-md border border-ink/10 bg-white p-4"
+              aria-describedby={simulationError ? "simulate-error" : undefined}
+            >
+              <legend className="sr-only">Simulation</legend>
+              <label className="flex cursor-pointer items-start gap-3">
+                <input
+                  type="checkbox"
+                  className="mt-1 accent-indigo"
+                  aria-describedby="simulate-detail"
+                  {...register("options.simulate.enabled")}
+                />
+                <span>
+                  <span className="block text-sm font-medium">Also simulate</span>
+                  <span id="simulate-detail" className="block text-xs text-ink-soft">
+                    Runs minibatch SGD, local SGD and drift-corrected local updates on your shards
+                    under this plan, on the reference model&apos;s objective, and reports the
+                    outcome beside the bounds.
+                  </span>
+                </span>
+              </label>
+              {options.simulate.enabled ? (
+                <>
+                  <div className="max-w-xs">
+                    <InputField
+                      id="simulation-seeds"
+                      label="Seeds (S)"
+                      type="number"
+                      min={1}
+                      step={1}
+                      {...register("options.simulate.seeds", { valueAsNumber: true })}
+                      error={errorOf("options.simulate.seeds")}
+                      hint="Re-runs of each algorithm's chosen step size; the report shows their spread."
+                    />
+                  </div>
+                  <SimulationCost
+                    id="simulation-cost"
+                    estimate={simulationEstimate}
+                    budget={DEFAULT_SIMULATION_BUDGET}
+                  />
+                </>
+              ) : null}
+              <FieldMessage id="simulate" error={simulationError} />
+            </fieldset>
           </FormStep>
 
           <section className="space-y-4 rounded-lg border border-ink/10 bg-white p-5">

@@ -3,6 +3,7 @@ import {
   analysisFormSchema,
   EMPTY_FORM,
   formValuesFrom,
+  toSimulationEstimateInput,
   toStartAnalysisInput,
   type AnalysisFormValues,
 } from "@/components/analyses/analysis-form-schema";
@@ -130,5 +131,53 @@ describe("the new-analysis form's values", () => {
     expect(
       toStartAnalysisInput({ ...values, options: { ...values.options, features: ["x"] } }),
     ).toMatchObject({ layoutFileId: "l1", previousReportId: "r1", options: { reference: "zero" } });
+  });
+
+  it("ask for a simulation only when it is ticked, with 1 to 20 seeds (default 3)", () => {
+    // methods.md §7: S defaults to 3; analysisOptionsSchema allows 1 to 20.
+    expect(EMPTY_FORM.options.simulate).toEqual({ enabled: false, seeds: 3 });
+    expect(toStartAnalysisInput(filled).options.simulate).toBeUndefined();
+    // An emptied seeds field does not matter while the simulation is off.
+    const off = { ...filled.options, simulate: { enabled: false, seeds: Number.NaN } };
+    expect(errorsOf({ ...filled, options: off })).toEqual({});
+
+    const withSeeds = (seeds: number): AnalysisFormValues => ({
+      ...filled,
+      options: { ...filled.options, simulate: { enabled: true, seeds } },
+    });
+    const input = toStartAnalysisInput(withSeeds(3));
+    expect(input.options.simulate).toEqual({ seeds: 3 });
+    // The server fills in its budget and grid seed.
+    expect(startAnalysisSchema.parse(input).options.simulate).toEqual({
+      seeds: 3,
+      seed: 1,
+      budget: 1e11,
+    });
+    expect(errorsOf(withSeeds(1))).toEqual({});
+    expect(errorsOf(withSeeds(20))).toEqual({});
+    const seedsError = (seeds: number) => errorsOf(withSeeds(seeds))["options.simulate.seeds"];
+    expect(seedsError(0)).toBe("The number of seeds must be at least 1.");
+    expect(seedsError(21)).toBe("Use at most 20 seeds.");
+    expect(seedsError(2.5)).toBe("Enter the number of seeds as a whole number.");
+    expect(seedsError(Number.NaN)).toBe("Enter the number of seeds as a whole number.");
+  });
+
+  it("refill a simulation, and estimate its cost from the previews the layout uses", () => {
+    const values = formValuesFrom({
+      title: "By island",
+      datasetFileId: "d1",
+      layoutFileId: "l1",
+      weightsFileId: null,
+      parameters: { labelColumn: "Species", simulate: { seeds: 5, seed: 1, budget: 1e11 } },
+    });
+    expect(values.options.simulate).toEqual({ enabled: true, seeds: 5 });
+
+    const dataset = { columns: [], rows: [], truncated: false };
+    const layout = { columns: [], rows: [], truncated: true };
+    const byMap = toSimulationEstimateInput(values, { dataset, layout });
+    expect(byMap).toMatchObject({ dataset, layout, seeds: 5 });
+    expect(byMap.options).toMatchObject({ labelColumn: "Species", localSteps: 10, rounds: 100 });
+    // With a shard column the partition map's preview plays no part.
+    expect(toSimulationEstimateInput(filled, { dataset, layout }).layout).toBeUndefined();
   });
 });
