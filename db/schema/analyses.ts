@@ -14,6 +14,7 @@ import {
 } from "drizzle-orm/pg-core";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
 import type { PartitionSummary } from "@/lib/analysis/summary";
+import type { SimulationProgress } from "@/lib/analysis/simulation/simulate-plan";
 import { users } from "./auth";
 import { workspaces } from "./workspaces";
 
@@ -92,6 +93,11 @@ export const analyses = pgTable(
     status: analysisStatus("status").notNull().default("queued"),
     stage: text("stage"),
     fraction: doublePrecision("fraction").notNull().default(0),
+    /**
+     * The simulation's latest progress by algorithm, run and round (methods.md §7), written by the
+     * worker once the engine's stages are done; null until then and without a simulation.
+     */
+    simulationProgress: jsonb("simulation_progress").$type<SimulationProgress>(),
     /** Why it failed, written for the user (the engine's input message), or null. */
     failureMessage: text("failure_message"),
     attempts: integer("attempts").notNull().default(0),
