@@ -36,21 +36,13 @@ export function createTotals(parameterCount: number): PassTotals {
 /** Adds `source` into `target` (both from the same W). */
 export function mergeTotals(target: PassTotals, source: PassTotals): void {
   target.rows += source.rows;
-  [target.lossSum, target.lossCompensation] = addScalarCompensated(
-    target.lossSum,
-    target.lossCompensation,
-    source.lossSum + source.lossCompensation,
-  );
+  addLoss(target, source.lossSum + source.lossCompensation);
   const combined = new Float64Array(source.gradientSum.length);
   for (let k = 0; k < combined.length; k++) {
     combined[k] = source.gradientSum[k] + source.gradientCompensation[k];
   }
   addCompensated(target.gradientSum, target.gradientCompensation, combined);
-  [target.squaredGradientNormSum, target.squaredGradientNormCompensation] = addScalarCompensated(
-    target.squaredGradientNormSum,
-    target.squaredGradientNormCompensation,
-    source.squaredGradientNormSum + source.squaredGradientNormCompensation,
-  );
+  addSquaredNorms(target, source.squaredGradientNormSum + source.squaredGradientNormCompensation);
 }
 
 /** The compensated value of each sum. */
@@ -76,6 +68,8 @@ const BLOCK_ROWS = 256;
 export interface PassWorkspace {
   scores: Float64Array;
   blockGradient: Float64Array;
+  /** The block just summed: [Σ ℓᵢ, Σ ‖∇ℓᵢ‖²] (written here rather than returned as a pair). */
+  blockSums: Float64Array;
 }
 
 /**
@@ -88,6 +82,7 @@ export function createWorkspace(classCount: number, width: number): PassWorkspac
   return {
     scores: new Float64Array(ROW_GROUP * classCount),
     blockGradient: new Float64Array(classCount * width),
+    blockSums: new Float64Array(2),
   };
 }
 
@@ -110,37 +105,30 @@ export function accumulatePass(
   for (let blockStart = rowStart; blockStart < rowEnd; blockStart += BLOCK_ROWS) {
     const blockEnd = Math.min(rowEnd, blockStart + BLOCK_ROWS);
     workspace.blockGradient.fill(0);
-    const [loss, squaredNorms] =
-      design.labels !== null
-        ? accumulateSoftmaxBlock(
-            design,
-            design.labels,
-            weights,
-            blockStart,
-            blockEnd,
-            workspace,
-            withSquaredNorms,
-          )
-        : accumulateLeastSquaresBlock(
-            design,
-            design.targets as Float64Array,
-            weights,
-            blockStart,
-            blockEnd,
-            workspace,
-            withSquaredNorms,
-          );
+    if (design.labels !== null) {
+      accumulateSoftmaxBlock(
+        design,
+        design.labels,
+        weights,
+        blockStart,
+        blockEnd,
+        workspace,
+        withSquaredNorms,
+      );
+    } else {
+      accumulateLeastSquaresBlock(
+        design,
+        design.targets as Float64Array,
+        weights,
+        blockStart,
+        blockEnd,
+        workspace,
+        withSquaredNorms,
+      );
+    }
     totals.rows += blockEnd - blockStart;
-    [totals.lossSum, totals.lossCompensation] = addScalarCompensated(
-      totals.lossSum,
-      totals.lossCompensation,
-      loss,
-    );
-    [totals.squaredGradientNormSum, totals.squaredGradientNormCompensation] = addScalarCompensated(
-      totals.squaredGradientNormSum,
-      totals.squaredGradientNormCompensation,
-      squaredNorms,
-    );
+    addLoss(totals, workspace.blockSums[0]);
+    addSquaredNorms(totals, workspace.blockSums[1]);
     addCompensated(totals.gradientSum, totals.gradientCompensation, workspace.blockGradient);
   }
 }
@@ -153,7 +141,7 @@ function accumulateSoftmaxBlock(
   rowEnd: number,
   workspace: PassWorkspace,
   withSquaredNorms: boolean,
-): [number, number] {
+): void {
   const width = design.x.cols;
   const x = design.x.data;
   const classCount = weights.length / width;
@@ -298,7 +286,8 @@ function accumulateSoftmaxBlock(
       for (let j = 0; j < width; j++) gradient[gradientBase + j] += residual * x[base + j];
     }
   }
-  return [loss, squaredNorms];
+  workspace.blockSums[0] = loss;
+  workspace.blockSums[1] = squaredNorms;
 }
 
 /** ‖pᵢ − e_yᵢ‖² · ‖x̃ᵢ‖², the squared norm of the per-sample gradient (methods.md §3). */
@@ -326,7 +315,7 @@ function accumulateLeastSquaresBlock(
   rowEnd: number,
   workspace: PassWorkspace,
   withSquaredNorms: boolean,
-): [number, number] {
+): void {
   const width = design.x.cols;
   const x = design.x.data;
   const gradient = workspace.blockGradient;
@@ -344,15 +333,29 @@ function accumulateLeastSquaresBlock(
     }
     for (let j = 0; j < width; j++) gradient[j] += residual * x[base + j];
   }
-  return [loss, squaredNorms];
+  workspace.blockSums[0] = loss;
+  workspace.blockSums[1] = squaredNorms;
 }
 
-function addScalarCompensated(
-  total: number,
-  compensation: number,
-  value: number,
-): [number, number] {
-  const next = total + value;
-  const error = Math.abs(total) >= Math.abs(value) ? total - next + value : value - next + total;
-  return [next, compensation + error];
+/** Adds `value` to the compensated loss sum (Neumaier). */
+function addLoss(totals: PassTotals, value: number): void {
+  const next = totals.lossSum + value;
+  totals.lossCompensation += roundingError(totals.lossSum, value, next);
+  totals.lossSum = next;
+}
+
+/** Adds `value` to the compensated sum of squared per-row gradient norms (Neumaier). */
+function addSquaredNorms(totals: PassTotals, value: number): void {
+  const next = totals.squaredGradientNormSum + value;
+  totals.squaredGradientNormCompensation += roundingError(
+    totals.squaredGradientNormSum,
+    value,
+    next,
+  );
+  totals.squaredGradientNormSum = next;
+}
+
+/** What rounding lost in `sum` = fl(total + value), exactly (Neumaier's term). */
+function roundingError(total: number, value: number, sum: number): number {
+  return Math.abs(total) >= Math.abs(value) ? total - sum + value : value - sum + total;
 }
