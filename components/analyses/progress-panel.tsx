@@ -9,12 +9,14 @@ import { Button, buttonClasses } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import {
   isFinished,
-  overallFraction,
+  overallProgress,
+  SIMULATION_STAGE_LABEL,
   STAGE_LABELS,
   type AnalysisStatusJson,
 } from "@/lib/reports/analysis-status";
 import { ProgressBar } from "./progress-bar";
 import { ProgressStages } from "./progress-stages";
+import { SimulationProgressLine } from "./simulation-progress-line";
 
 const POLL_MS = 1000;
 
@@ -85,10 +87,14 @@ export function ProgressPanel({
   };
 
   const finished = isFinished(data.status);
-  const progress = data.status === "succeeded" ? 1 : overallFraction(data.stage, data.fraction);
+  const progress = overallProgress(data);
   const headline = {
     queued: data.attempts > 0 ? "Waiting to try again" : "Waiting for a worker",
-    running: data.stage ? STAGE_LABELS[data.stage] : "Starting",
+    running: data.simulation
+      ? SIMULATION_STAGE_LABEL
+      : data.stage
+        ? STAGE_LABELS[data.stage]
+        : "Starting",
     succeeded: "Finished",
     failed: "Stopped: the analysis could not finish",
     cancelled: "Cancelled",
@@ -114,9 +120,13 @@ export function ProgressPanel({
         <ProgressStages
           stage={data.stage}
           fraction={data.fraction}
+          simulationFraction={data.simulates ? (data.simulation?.fraction ?? null) : undefined}
           allDone={data.status === "succeeded"}
           halted={data.status === "failed" || data.status === "cancelled"}
         />
+        {data.status === "running" && data.simulation ? (
+          <SimulationProgressLine progress={data.simulation} />
+        ) : null}
         {!finished && canRun ? (
           <div className="flex items-center gap-3 pt-2">
             <Button type="button" tone="danger" onClick={cancel} disabled={cancelling}>

@@ -2,7 +2,7 @@ import "server-only";
 import { and, eq, inArray, sql } from "drizzle-orm";
 import { db } from "@/db/client";
 import { analyses, dataFiles, reports } from "@/db/schema";
-import type { AnalysisProgress } from "@/lib/analysis";
+import type { AnalysisProgress, SimulationProgress } from "@/lib/analysis";
 import { RuleError } from "@/lib/errors";
 import type { StartAnalysisRequest } from "@/lib/validation/start-analysis";
 
@@ -28,7 +28,15 @@ export type AnalysisStatusView = Pick<
   | "createdAt"
   | "startedAt"
   | "finishedAt"
-> & { reportId: string | null };
+  | "simulationProgress"
+> & {
+  reportId: string | null;
+  /** Whether the analysis was asked to simulate the plan (methods.md §7). */
+  simulates: boolean;
+};
+
+/** What the worker stores while it runs: the engine's stage, and the simulation once it runs. */
+export type LiveProgress = AnalysisProgress & { simulation: SimulationProgress | null };
 
 const inputFileColumns = {
   id: dataFiles.id,
@@ -154,6 +162,8 @@ export async function findAnalysisStatus(
       createdAt: analyses.createdAt,
       startedAt: analyses.startedAt,
       finishedAt: analyses.finishedAt,
+      simulationProgress: analyses.simulationProgress,
+      simulates: sql<boolean>`(${analyses.parameters} -> 'simulate') is not null`,
       reportId: reports.id,
     })
     .from(analyses)
@@ -188,6 +198,7 @@ export async function claimAnalysis(
       startedAt: sql`now()`,
       stage: null,
       fraction: 0,
+      simulationProgress: null,
       failureMessage: null,
     })
     .where(
@@ -217,17 +228,21 @@ export async function claimAnalysis(
 }
 
 /**
- * Stores the stage and fraction of a running analysis. Returns false when the analysis is no
+ * Stores the stage and fraction of a running analysis, and the simulation's run and round. Returns false when the analysis is no
  * longer running (cancelled, or finished by another worker), which tells the worker to stop.
  */
 export async function recordProgress(
   workspaceId: string,
   analysisId: string,
-  progress: AnalysisProgress,
+  progress: LiveProgress,
 ): Promise<boolean> {
   const updated = await db()
     .update(analyses)
-    .set({ stage: progress.stage, fraction: progress.fraction })
+    .set({
+      stage: progress.stage,
+      fraction: progress.fraction,
+      simulationProgress: progress.simulation,
+    })
     .where(
       and(
         eq(analyses.workspaceId, workspaceId),

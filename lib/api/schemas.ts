@@ -124,9 +124,24 @@ export const analysisStatusSchema = z
     status: z.enum(["queued", "running", "succeeded", "failed", "cancelled"]),
     stage: z.enum(ANALYSIS_STAGES).nullable(),
     fraction: z.number().meta({ description: "Progress within the stage, 0 to 1." }),
-    progress: z.number().meta({ description: "Overall progress, 0 to 1." }),
+    progress: z.number().meta({ description: "Overall progress, 0 to 1, simulation included." }),
     failureMessage: z.string().nullable(),
     attempts: z.number().int(),
+    simulates: z.boolean().meta({ description: "Whether the analysis also simulates the plan." }),
+    simulation: z
+      .object({
+        algorithm: z.enum(["minibatch", "local", "scaffold"]),
+        phase: z.enum(["step-size", "seeds"]).meta({
+          description: "Searching the step size on one seed, or re-running it on S seeds.",
+        }),
+        run: z.number().int().meta({ description: "1-based run among `runs` = 3 × (8 + S)." }),
+        runs: z.number().int(),
+        round: z.number().int().meta({ description: "Rounds finished in this run." }),
+        rounds: z.number().int(),
+        fraction: z.number().meta({ description: "The whole simulation's progress, 0 to 1." }),
+      })
+      .nullable()
+      .meta({ description: "The simulation's latest run and round; null until it starts." }),
     reportId: z.string().nullable().meta({ description: "Set once the analysis succeeded." }),
     title: z.string(),
     createdAt: z.iso.datetime(),

@@ -4,7 +4,12 @@
 import { buffer } from "node:stream/consumers";
 import { parentPort, workerData } from "node:worker_threads";
 import type { ReportInput } from "@/db/schema/analyses";
-import { AnalysisInputError, analyzePartition, type AnalysisProgress } from "@/lib/analysis";
+import {
+  AnalysisInputError,
+  analyzePartition,
+  type AnalysisProgress,
+  type SimulationProgress,
+} from "@/lib/analysis";
 import { referenceWeightsSchema, type ReferenceWeights } from "@/lib/validation/analysis-options";
 import { openHashedObject, type StoredFile } from "./hashed-object";
 import type { EngineThreadInput, EngineThreadMessage } from "./engine-thread-protocol";
@@ -65,6 +70,29 @@ function createStageClock() {
   };
 }
 
+/** Least time between two simulation progress messages; the parent stores two a second at most. */
+const SIMULATION_PROGRESS_MS = 100;
+
+/**
+ * Posts the simulation's progress without a message per round (a long plan has millions of rounds):
+ * the first report of every run, its last round, and otherwise one every SIMULATION_PROGRESS_MS.
+ */
+function createSimulationProgressPoster(): (progress: SimulationProgress) => void {
+  let lastRun = 0;
+  let lastPostAt = -Infinity;
+  return (progress) => {
+    const now = performance.now();
+    const due =
+      progress.run !== lastRun ||
+      progress.round === progress.rounds ||
+      now - lastPostAt >= SIMULATION_PROGRESS_MS;
+    if (!due) return;
+    lastRun = progress.run;
+    lastPostAt = now;
+    post({ type: "simulation-progress", progress });
+  };
+}
+
 async function run(input: EngineThreadInput) {
   const clock = createStageClock();
   const reference = input.weights ? await readReferenceWeights(input.weights) : undefined;
@@ -79,6 +107,7 @@ async function run(input: EngineThreadInput) {
       partitionName: input.layout?.name,
       referenceName: input.weights?.name,
       options: reference ? { ...input.options, reference: reference.weights } : input.options,
+      onSimulationProgress: createSimulationProgressPoster(),
     },
     (progress) => {
       clock.observe(progress);

@@ -1,5 +1,5 @@
 import type { ReportInput } from "@/db/schema/analyses";
-import type { AnalysisProgress, PartitionSummary } from "@/lib/analysis";
+import type { AnalysisProgress, PartitionSummary, SimulationProgress } from "@/lib/analysis";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
 import type { StoredFile } from "./hashed-object";
 
@@ -14,6 +14,8 @@ export interface EngineThreadInput {
 /** Everything the engine thread tells its parent. */
 export type EngineThreadMessage =
   | { type: "progress"; progress: AnalysisProgress }
+  /** The simulation's run and round (methods.md §7), at most a few times a second. */
+  | { type: "simulation-progress"; progress: SimulationProgress }
   | {
       type: "finished";
       summary: PartitionSummary;

@@ -1,5 +1,5 @@
 import { Worker } from "node:worker_threads";
-import type { AnalysisProgress } from "@/lib/analysis";
+import type { AnalysisProgress, SimulationProgress } from "@/lib/analysis";
 import type { EngineThreadInput, EngineThreadMessage } from "./engine-thread-protocol";
 
 /** The run was stopped because its analysis was cancelled. */
@@ -24,7 +24,11 @@ export type EngineOutcome =
  */
 export function runEngineInThread(
   input: EngineThreadInput,
-  hooks: { onProgress(progress: AnalysisProgress): void; signal: AbortSignal },
+  hooks: {
+    onProgress(progress: AnalysisProgress): void;
+    onSimulationProgress(progress: SimulationProgress): void;
+    signal: AbortSignal;
+  },
 ): Promise<EngineOutcome> {
   return new Promise((resolve, reject) => {
     if (hooks.signal.aborted) {
@@ -54,6 +58,9 @@ export function runEngineInThread(
       switch (message.type) {
         case "progress":
           hooks.onProgress(message.progress);
+          return;
+        case "simulation-progress":
+          hooks.onSimulationProgress(message.progress);
           return;
         case "finished":
         case "input-error":

@@ -1,10 +1,12 @@
-import { isAnalysisRunning, recordProgress } from "@/db/queries/analyses";
-import type { AnalysisProgress } from "@/lib/analysis";
+import { isAnalysisRunning, recordProgress, type LiveProgress } from "@/db/queries/analyses";
+import type { AnalysisProgress, SimulationProgress } from "@/lib/analysis";
 import type { AnalysisJob } from "@/lib/jobs";
 
 export interface ProgressWriter {
   /** Takes the engine's latest progress; it is stored soon, coalesced with what follows. */
   report(progress: AnalysisProgress): void;
+  /** Takes the simulation's latest run and round, stored beside the engine's last stage. */
+  reportSimulation(progress: SimulationProgress): void;
   /** Stops writing and waits for a write in flight. */
   stop(): Promise<void>;
 }
@@ -21,8 +23,8 @@ export function createProgressWriter(
   job: AnalysisJob,
   settings: { intervalMs: number; pollMs: number; onStopped(): void },
 ): ProgressWriter {
-  let latest: AnalysisProgress | undefined;
-  let written: AnalysisProgress | undefined;
+  let latest: LiveProgress | undefined;
+  let written: LiveProgress | undefined;
   let lastWriteAt = -Infinity;
   let pending: ReturnType<typeof setTimeout> | undefined;
   let inFlight: Promise<void> | undefined;
@@ -69,7 +71,12 @@ export function createProgressWriter(
 
   return {
     report(progress) {
-      latest = progress;
+      latest = { ...progress, simulation: latest?.simulation ?? null };
+      schedule();
+    },
+    reportSimulation(simulation) {
+      // The engine reports its last stage before the simulation starts.
+      latest = { stage: latest?.stage ?? "advising", fraction: latest?.fraction ?? 1, simulation };
       schedule();
     },
     async stop() {

@@ -80,7 +80,11 @@ export async function runAnalysis(job: AnalysisJob, options: RunOptions): Promis
         weights: analysis.weights && storedFile(analysis.weights),
         options: analysis.parameters,
       },
-      { onProgress: (value) => progress.report(value), signal },
+      {
+        onProgress: (value) => progress.report(value),
+        onSimulationProgress: (value) => progress.reportSimulation(value),
+        signal,
+      },
     );
     await progress.stop();
     if (result.type === "input-error") {

@@ -53,6 +53,8 @@ describe("the analysis status route", () => {
         fraction: 0,
         failureMessage: null,
         attempts: 0,
+        simulates: false,
+        simulation: null,
         reportId: null,
         title: "penguins.csv · islands.csv",
         createdAt: expect.stringMatching(/^\d{4}-\d\d-\d\dT/),

@@ -5,7 +5,7 @@
 import { Readable } from "node:stream";
 import { and, asc, eq } from "drizzle-orm";
 import { afterAll, beforeEach, describe, expect, it, vi } from "vitest";
-import type { AnalysisProgress } from "@/lib/analysis";
+import type { LiveProgress } from "@/db/queries/analyses";
 import type { AnalysisJob } from "@/lib/jobs";
 
 vi.mock("@/lib/auth/session", () => import("@/tests/support/fake-session"));
@@ -20,21 +20,35 @@ vi.mock("@/lib/jobs", async (importOriginal) => ({
   },
 }));
 
-type ProgressWrite = AnalysisProgress & { analysisId: string; stillRunning: boolean };
+type ProgressWrite = LiveProgress & { analysisId: string; stillRunning: boolean };
 const progressLog = vi.hoisted(() => ({
   writes: [] as ProgressWrite[],
-  beforeWrite: undefined as ((analysisId: string) => Promise<void>) | undefined,
+  beforeWrite: undefined as
+    ((analysisId: string, progress: LiveProgress) => Promise<void>) | undefined,
 }));
 // Records every progress value the worker stores, and what the database answered.
 vi.mock("@/db/queries/analyses", async (importOriginal) => {
   const actual = await importOriginal<typeof import("@/db/queries/analyses")>();
   return {
     ...actual,
-    recordProgress: async (workspaceId: string, analysisId: string, progress: AnalysisProgress) => {
-      await progressLog.beforeWrite?.(analysisId);
+    recordProgress: async (workspaceId: string, analysisId: string, progress: LiveProgress) => {
+      await progressLog.beforeWrite?.(analysisId, progress);
       const stillRunning = await actual.recordProgress(workspaceId, analysisId, progress);
       progressLog.writes.push({ analysisId, ...progress, stillRunning });
       return stillRunning;
+    },
+  };
+});
+
+const stored = vi.hoisted(() => ({ analysisIds: [] as string[] }));
+// Records which analyses reached the report store, so a test can tell a run stopped before the end.
+vi.mock("@/db/queries/report-store", async (importOriginal) => {
+  const actual = await importOriginal<typeof import("@/db/queries/report-store")>();
+  return {
+    ...actual,
+    storeReport: async (run: Parameters<typeof actual.storeReport>[0]) => {
+      stored.analysisIds.push(run.analysisId);
+      return actual.storeReport(run);
     },
   };
 });
@@ -330,6 +344,60 @@ describe("running an analysis job", () => {
       reportId: null,
     });
     expect(await reportsOf(analysisId)).toEqual([]);
+  });
+
+  it("stores the simulation's progress by run and round, then its summary", async () => {
+    const simulate = { seeds: 1 };
+    const { team, job, analysisId } = await startPenguinAnalysis({
+      options: { ...PENGUIN_OPTIONS, rounds: 5, simulate },
+    });
+    const result = await runAnalysis(job, { willRetry: true, progressIntervalMs: 0 });
+    expect(result.outcome).toBe("succeeded");
+
+    const writes = progressLog.writes.filter((write) => write.analysisId === analysisId);
+    const simulation = writes.flatMap((write) => (write.simulation ? [write.simulation] : []));
+    // methods.md §7: 3 algorithms × (8 step sizes + S = 1 seed) runs of R = 5 rounds each, in
+    // order minibatch, local, drift-corrected; the engine's five stages came first.
+    expect(simulation.length).toBeGreaterThan(0);
+    const firstSimulated = writes.findIndex((write) => write.simulation !== null);
+    expect(writes.slice(firstSimulated).every((write) => write.stage === "advising")).toBe(true);
+    expect(simulation.every((step) => step.runs === 27 && step.rounds === 5)).toBe(true);
+    const order = ["minibatch", "local", "scaffold"];
+    simulation.forEach((step, index) => {
+      expect(order[Math.floor((step.run - 1) / 9)]).toBe(step.algorithm);
+      if (index > 0) expect(step.fraction).toBeGreaterThanOrEqual(simulation[index - 1].fraction);
+    });
+
+    const status = await findAnalysisStatus(team.workspaceId, analysisId);
+    expect(status).toMatchObject({ status: "succeeded", simulates: true });
+    const [report] = await reportsOf(analysisId);
+    // Deterministic (methods.md §7): the engine called directly gives the same simulation.
+    const direct = await analyzeDirectly({ rounds: 5, simulate });
+    expect(report.summary.simulation).toEqual(direct.simulation);
+  });
+
+  it("stops a simulation in the middle when the analysis is cancelled", async () => {
+    // About 1.5e9 multiply-adds (3 × 11 × 2000 rounds × 3 islands × 10 × 32 × 8 × 3): many
+    // seconds of simulation, so a run that ignored the cancellation would reach the report store.
+    const { team, job, analysisId } = await startPenguinAnalysis({
+      options: { ...PENGUIN_OPTIONS, rounds: 2000, simulate: { seeds: 3 } },
+    });
+    let cancelledAt: LiveProgress["simulation"] | undefined;
+    progressLog.beforeWrite = async (_analysisId, progress) => {
+      if (cancelledAt !== undefined || progress.simulation === null) return;
+      cancelledAt = progress.simulation;
+      actAs(team.analyst);
+      expect((await cancelAnalysis(team.workspaceId, analysisId)).ok).toBe(true);
+    };
+    const result = await runAnalysis(job, { willRetry: true, progressIntervalMs: 0 });
+    expect(result).toEqual({ outcome: "cancelled" });
+    expect(cancelledAt).toMatchObject({ algorithm: "minibatch", runs: 33, rounds: 2000 });
+    // The engine thread was stopped: the run never finished, so nothing reached the store.
+    expect(stored.analysisIds).not.toContain(analysisId);
+    expect(await findAnalysisStatus(team.workspaceId, analysisId)).toMatchObject({
+      status: "cancelled",
+      reportId: null,
+    });
   });
 
   it("does nothing for a job whose analysis was cancelled before it started", async () => {

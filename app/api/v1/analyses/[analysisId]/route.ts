@@ -3,7 +3,7 @@ import { answerApiRequest, respondWithJson } from "@/lib/api/respond";
 import { analysisPathSchema } from "@/lib/api/schemas";
 import { requireToken } from "@/lib/auth/api-token-guard";
 import { RuleError } from "@/lib/errors";
-import { overallFraction, toStatusJson } from "@/lib/reports/analysis-status";
+import { overallProgress, toStatusJson } from "@/lib/reports/analysis-status";
 
 type Context = { params: Promise<{ analysisId: string }> };
 
@@ -17,8 +17,4 @@ export async function GET(request: Request, { params }: Context): Promise<Respon
     const status = toStatusJson(view);
     return respondWithJson({ ...status, progress: overallProgress(status) });
   });
-}
-
-function overallProgress(status: ReturnType<typeof toStatusJson>): number {
-  return status.status === "succeeded" ? 1 : overallFraction(status.stage, status.fraction);
 }

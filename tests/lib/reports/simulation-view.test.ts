@@ -1,0 +1,85 @@
+// How the simulation (methods.md §7) reads on the progress page and in the report. The thresholds
+// of the verdicts are methods.md §5's (ρ ≤ ½ local updates, ρ ≥ 2 large minibatches); the rest
+// are the product's own words, checked for the cases that change them.
+import { describe, expect, it } from "vitest";
+import { decideVerdict } from "@/lib/analysis/advise-plan";
+import type { SimulationProgress } from "@/lib/analysis/simulation/simulate-plan";
+import { overallProgress } from "@/lib/reports/analysis-status";
+import {
+  clampSuboptimality,
+  describeComparison,
+  describeSimulationProgress,
+  SUBOPTIMALITY_FLOOR,
+  toCurvePoints,
+} from "@/lib/reports/simulation-view";
+
+const progress: SimulationProgress = {
+  algorithm: "local",
+  phase: "step-size",
+  run: 14,
+  runs: 33,
+  round: 40,
+  rounds: 100,
+  fraction: (13 + 40 / 100) / 33,
+};
+
+describe("the simulation on the progress page", () => {
+  it("names the algorithm, the run and the round", () => {
+    expect(describeSimulationProgress(progress)).toBe(
+      "Simulating: Local SGD, run 14 of 33, round 40 of 100",
+    );
+  });
+
+  it("gives the simulation most of the bar after the engine's stages", () => {
+    const running = { status: "running" as const, stage: "advising" as const, fraction: 1 };
+    // Without a simulation the engine's five stages fill the bar.
+    expect(overallProgress({ ...running, simulates: false, simulation: null })).toBeCloseTo(1, 12);
+    // With one, the engine's stages are the first fifth, then the simulation's own fraction.
+    expect(overallProgress({ ...running, simulates: true, simulation: null })).toBeCloseTo(0.2, 12);
+    expect(
+      overallProgress({ ...running, simulates: true, simulation: { ...progress, fraction: 0.5 } }),
+    ).toBeCloseTo(0.6, 12);
+    expect(
+      overallProgress({ ...running, status: "succeeded", simulates: true, simulation: null }),
+    ).toBe(1);
+  });
+});
+
+describe("the simulation in the report", () => {
+  it("draws values at or below zero at the floor of the log scale, and says so", () => {
+    const { points, clamped } = toCurvePoints({
+      curve: [
+        [0, 0.7],
+        [10, -1e-16],
+      ],
+      band: [
+        [0, 0.6, 0.8],
+        [10, -2e-16, 3e-9],
+      ],
+    });
+    expect(points).toEqual([
+      { round: 0, mean: 0.7, min: 0.6, max: 0.8 },
+      { round: 10, mean: SUBOPTIMALITY_FLOOR, min: SUBOPTIMALITY_FLOOR, max: 3e-9 },
+    ]);
+    expect(clamped).toBe(true);
+    expect(toCurvePoints({ curve: [[0, 0.7]], band: [[0, 0.6, 0.8]] }).clamped).toBe(false);
+    expect(clampSuboptimality(0)).toBe(SUBOPTIMALITY_FLOOR);
+  });
+
+  it("says plainly whether the simulation agrees with the bounds", () => {
+    const sentence = (ratio: number | null, bound: Parameters<typeof decideVerdict>[0]) =>
+      describeComparison(decideVerdict(ratio), decideVerdict(bound), ratio);
+    // ρ_sim = 0.2 → local updates; bounds ρ = 3 → large minibatches: opposite verdicts.
+    expect(sentence(0.2, 3)).toBe(
+      "The simulation on your shards points the other way from the bounds: they favour large minibatches, but local SGD ended at 0.2 times minibatch SGD's suboptimality, which favours local updates.",
+    );
+    expect(sentence(1.3, 2.575)).toBe(
+      "The simulation on your shards does not back the bounds' verdict: the bounds favour large minibatches, but local SGD ended at 1.3 times minibatch SGD's suboptimality, within a factor of two, so no clear winner.",
+    );
+    expect(sentence(0.4, 1)).toMatch(/^The simulation on your shards does not back .*no clear/);
+    expect(sentence(4, 2)).toBe(
+      "The simulation on your shards agrees with the bounds (large minibatches): local SGD ended at 4 times minibatch SGD's suboptimality.",
+    );
+    expect(sentence(null, 0.1)).toMatch(/gives no usable ratio .* \(local updates\)\.$/);
+  });
+});
