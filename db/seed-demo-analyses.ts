@@ -9,6 +9,12 @@ import { putObject } from "@/lib/storage";
 import { buildUploadKey } from "@/lib/uploads/file-rules";
 import { registerUpload } from "@/lib/uploads/register-upload";
 
+/** The demo reports' titles, which the review seed looks the finished reports up by. */
+export const DEMO_REPORT_TITLES = {
+  byOrchard: "Orchard sensors, one shard per orchard",
+  shuffled: "Orchard sensors, rows shuffled across 24 shards",
+} as const;
+
 /**
  * Puts one demo file into object storage under the workspace's prefix and registers it through the
  * same path a browser upload takes (HEAD, ranged preview, checks), so the demo proves that path.
@@ -49,12 +55,12 @@ export async function seedDemoAnalyses(workspaceId: string, analystId: string): 
   const datasetFileId = await upload("dataset", "orchard-leaf-sensors.csv", demo.dataset);
   const layouts = [
     {
-      title: "Orchard sensors, one shard per orchard",
+      title: DEMO_REPORT_TITLES.byOrchard,
       name: "layout-by-orchard.csv",
       text: demo.byOrchard,
     },
     {
-      title: "Orchard sensors, rows shuffled across 24 shards",
+      title: DEMO_REPORT_TITLES.shuffled,
       name: "layout-shuffled.csv",
       text: demo.shuffled,
     },

@@ -4,7 +4,9 @@ import { randomBytes } from "node:crypto";
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from "node:fs";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
+import { closeDb } from "../db/client";
 import { seedDemo } from "../db/seed";
+import { seedDemoReviews } from "../db/seed-demo-reviews";
 import { fakeS3Credentials, startFakeS3 } from "../fakes/s3";
 import { startFakeSmtp } from "../fakes/smtp";
 import { buildAppEnvironment, type AppServices } from "./services/app-environment";
@@ -41,6 +43,9 @@ function readOrCreateSecret(file: string): string {
 function step(message: string) {
   console.log(`\n▸ ${message}`);
 }
+
+/** How long the demo review seed waits for the worker to store the demo reports. */
+const DEMO_REVIEW_WAIT_MS = 10 * 60 * 1000;
 
 const supervisor = new Supervisor();
 supervisor.installExitHandlers();
@@ -99,6 +104,7 @@ async function main() {
 
   step("Starting the analysis worker");
   startWorker(supervisor, projectRoot, appEnvironment);
+  seedDemoReviewsInBackground();
 
   if (isBuildStale(projectRoot)) {
     step("Building the app (next build)");
@@ -135,6 +141,23 @@ async function main() {
     }
   }
   console.log("\nPress Ctrl-C to stop.");
+}
+
+/**
+ * The demo's reviews need the demo reports, which the worker stores a little after start; waiting
+ * for them must not hold up the app, so this runs beside the build and start and reports by line.
+ */
+function seedDemoReviewsInBackground() {
+  seedDemoReviews(DEMO_REVIEW_WAIT_MS)
+    .then((seeded) => {
+      if (seeded) console.log("Demo: review requests, a comment and an approval added.");
+    })
+    .catch((error: unknown) => {
+      console.error(
+        `Demo reviews were not added: ${error instanceof Error ? error.message : error}`,
+      );
+    })
+    .finally(() => void closeDb());
 }
 
 main().catch((error: unknown) => {
