@@ -1,11 +1,11 @@
 import "server-only";
-import { and, desc, eq, isNull } from "drizzle-orm";
+import { and, desc, eq, isNull, ne } from "drizzle-orm";
 import { db } from "@/db/client";
 import { apiTokens, memberships, users, workspaces } from "@/db/schema";
 import type { Role } from "@/lib/auth/roles";
 
-// Token rows are personal: every function that lists or changes them takes the workspace and the
-// acting user and filters by both, so nobody reaches another person's tokens.
+// Token rows are personal: every function that lists or changes them takes the workspace, and the
+// acting user unless the caller has checked that an owner is overseeing the workspace's tokens.
 
 /** What the tokens page shows of a token: never its hash. */
 export type ApiTokenListItem = {
@@ -49,25 +49,42 @@ export async function listApiTokens(
     .orderBy(desc(apiTokens.createdAt));
 }
 
-/** Revokes one of the user's own tokens; undefined when there is no such live token of theirs. */
+/** Other members' tokens in this workspace, for an owner's oversight: with whose they are. */
+export async function listOthersApiTokens(
+  workspaceId: string,
+  exceptUserId: string,
+): Promise<(ApiTokenListItem & { holderEmail: string })[]> {
+  return db()
+    .select({ ...listColumns, holderEmail: users.email })
+    .from(apiTokens)
+    .innerJoin(users, eq(users.id, apiTokens.userId))
+    .where(and(eq(apiTokens.workspaceId, workspaceId), ne(apiTokens.userId, exceptUserId)))
+    .orderBy(desc(apiTokens.createdAt));
+}
+
+/**
+ * Revokes a live token of this workspace: only the user's own (`holderId`), or anyone's when the
+ * caller has checked the actor may oversee every token (`holderId: "anyone"`). Undefined when
+ * there is no such live token.
+ */
 export async function revokeApiToken(
   workspaceId: string,
-  userId: string,
+  holderId: string | "anyone",
   tokenId: string,
   now = new Date(),
-): Promise<{ name: string } | undefined> {
+): Promise<{ name: string; holderEmail: string } | undefined> {
+  const conditions = [
+    eq(apiTokens.id, tokenId),
+    eq(apiTokens.workspaceId, workspaceId),
+    isNull(apiTokens.revokedAt),
+  ];
+  if (holderId !== "anyone") conditions.push(eq(apiTokens.userId, holderId));
   const [revoked] = await db()
     .update(apiTokens)
     .set({ revokedAt: now })
-    .where(
-      and(
-        eq(apiTokens.id, tokenId),
-        eq(apiTokens.workspaceId, workspaceId),
-        eq(apiTokens.userId, userId),
-        isNull(apiTokens.revokedAt),
-      ),
-    )
-    .returning({ name: apiTokens.name });
+    .from(users)
+    .where(and(eq(users.id, apiTokens.userId), ...conditions))
+    .returning({ name: apiTokens.name, holderEmail: users.email });
   return revoked;
 }
 

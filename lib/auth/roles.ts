@@ -13,6 +13,8 @@ export const CAPABILITIES = {
   runAnalysis: ["owner", "analyst"],
   /** Personal API tokens let a pipeline upload and analyse, so only roles that may do so hold them. */
   manageApiTokens: ["owner", "analyst"],
+  /** A leaked token must be stoppable even when its holder is away. */
+  revokeAnyApiToken: ["owner"],
   /** Those who publish reports ask for their review. */
   requestReview: ["owner", "analyst"],
   /** Everyone in the workspace may discuss a report: reviewers ask, analysts answer. */

@@ -14,10 +14,10 @@ import {
 } from "@/app/(workspace)/w/[workspaceId]/tokens/actions";
 import { GET as getCaller } from "@/app/api/v1/workspace/route";
 import { closeDb, db } from "@/db/client";
-import { listApiTokens } from "@/db/queries/api-tokens";
+import { listApiTokens, listOthersApiTokens } from "@/db/queries/api-tokens";
 import { listAuditEntries } from "@/db/queries/audit";
 import { apiTokens, memberships } from "@/db/schema";
-import { createTeam } from "@/tests/support/accounts";
+import { createAccount, createTeam } from "@/tests/support/accounts";
 import { apiRequest } from "@/tests/support/api-tokens";
 import { actAs } from "@/tests/support/fake-session";
 
@@ -93,8 +93,12 @@ describe("personal API tokens", () => {
     const [after] = await listApiTokens(team.workspaceId, team.analyst.id);
     expect(after.lastUsedAt).not.toBeNull();
 
-    // Someone else cannot revoke it; its owner can, once.
-    actAs(team.owner);
+    // Another analyst cannot revoke it (nor learn that it exists); its holder can, once.
+    const otherAnalyst = await createAccount("other-analyst");
+    await db()
+      .insert(memberships)
+      .values({ workspaceId: team.workspaceId, userId: otherAnalyst.id, role: "analyst" });
+    actAs(otherAnalyst);
     expect(await revokeApiTokenAction(team.workspaceId, before.id)).toMatchObject({
       ok: false,
       status: 404,
@@ -115,6 +119,39 @@ describe("personal API tokens", () => {
     expect(revoked.status).toBe(401);
     expect(revoked.headers.get("www-authenticate")).toMatch(/^Bearer/);
     expect(await errorCodeOf(revoked)).toBe("token_revoked");
+  });
+
+  it("can be listed and revoked by an owner, never shown, with the revocation in the log", async () => {
+    const team = await createTeam();
+    const { token } = await createTokenAs(team.analyst, team.workspaceId);
+    const [listed] = await listOthersApiTokens(team.workspaceId, team.owner.id);
+    expect(listed).toMatchObject({ name: "nightly shard check", holderEmail: team.analyst.email });
+    expect(JSON.stringify(listed)).not.toContain(token.slice(5));
+    // The analyst sees no one else's tokens through this query's page: it is an owner's view.
+    expect(await listOthersApiTokens(team.workspaceId, team.analyst.id)).toEqual([]);
+
+    actAs(team.owner);
+    expect((await revokeApiTokenAction(team.workspaceId, listed.id)).ok).toBe(true);
+    expect((await getCaller(apiRequest("/api/v1/workspace", token))).status).toBe(401);
+    const [revocation] = await listAuditEntries(team.workspaceId, {
+      action: "api-token.revoked",
+    });
+    expect(revocation).toMatchObject({
+      actorId: team.owner.id,
+      targetId: listed.id,
+      details: { name: "nightly shard check", owner: team.analyst.email },
+    });
+
+    // An owner's power stops at the workspace's edge.
+    const other = await createTeam();
+    const { token: otherToken } = await createTokenAs(other.analyst, other.workspaceId);
+    const [otherListed] = await listOthersApiTokens(other.workspaceId, other.owner.id);
+    actAs(team.owner);
+    expect(await revokeApiTokenAction(team.workspaceId, otherListed.id)).toMatchObject({
+      ok: false,
+      status: 404,
+    });
+    expect((await getCaller(apiRequest("/api/v1/workspace", otherToken))).status).toBe(200);
   });
 
   it("stop working when they expire", async () => {

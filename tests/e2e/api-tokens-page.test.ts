@@ -40,7 +40,9 @@ describe("API tokens page", () => {
     expect(await callerStatus(token)).toBe(200);
 
     await page.reload();
-    const row = page.getByTestId("token-table").getByRole("row", { name: /nightly shard check/ });
+    const row = page
+      .getByRole("table", { name: "Your tokens" })
+      .getByRole("row", { name: /nightly shard check/ });
     await expect.poll(() => row.textContent()).not.toContain("Never");
     expect(await page.content()).not.toContain(token);
 

@@ -31,6 +31,8 @@ const EXPECTED: Record<Capability, Record<(typeof ROLES)[number], number>> = {
   runAnalysis: { owner: 200, analyst: 200, reviewer: 403 },
   // Issue 5: "Personal API tokens (owners and analysts)".
   manageApiTokens: { owner: 200, analyst: 200, reviewer: 403 },
+  // Common practice: an administrator can stop anyone's credential in their organisation.
+  revokeAnyApiToken: { owner: 200, analyst: 403, reviewer: 403 },
   // Issue 5: "An analyst requests a review … Reviewers comment … and decide"; owners read the log.
   requestReview: { owner: 200, analyst: 200, reviewer: 403 },
   commentOnReport: { owner: 200, analyst: 200, reviewer: 200 },

@@ -7,6 +7,7 @@ import { failWith, succeed, type ActionResult } from "@/lib/actions/result";
 import { createApiTokenSchema, type CreateApiTokenInput } from "@/lib/auth/api-token-schema";
 import { createApiTokenSecret } from "@/lib/auth/api-token-secret";
 import { requireRole } from "@/lib/auth/guards";
+import { roleAllows } from "@/lib/auth/roles";
 import { RuleError } from "@/lib/errors";
 
 const DAY_MS = 24 * 60 * 60 * 1000;
@@ -50,24 +51,28 @@ export async function createApiToken(
   }
 }
 
-/** Revokes one of the caller's own tokens in this workspace; it stops working at once. */
+/**
+ * Revokes a token in this workspace; it stops working at once. Owners may revoke anyone's (a leaked
+ * token must be stoppable when its holder is away); everyone else only their own.
+ */
 export async function revokeApiTokenAction(
   workspaceId: string,
   tokenId: string,
 ): Promise<ActionResult> {
   try {
-    const { user } = await requireRole(workspaceId, "manageApiTokens");
-    const revoked = await revokeApiToken(workspaceId, user.id, tokenId);
+    const { user, workspace } = await requireRole(workspaceId, "manageApiTokens");
+    const holder = roleAllows(workspace.role, "revokeAnyApiToken") ? "anyone" : user.id;
+    const revoked = await revokeApiToken(workspace.id, holder, tokenId);
     if (!revoked) throw new RuleError(404, "That token does not exist or is already revoked.");
     await recordAudit({
-      workspaceId,
+      workspaceId: workspace.id,
       actor: user,
       action: "api-token.revoked",
       targetType: "api-token",
       targetId: tokenId,
-      details: { name: revoked.name, owner: user.email },
+      details: { name: revoked.name, owner: revoked.holderEmail },
     });
-    revalidatePath(`/w/${workspaceId}/tokens`);
+    revalidatePath(`/w/${workspace.id}/tokens`);
     return succeed();
   } catch (error) {
     return failWith(error, "revoke-api-token");

@@ -1,0 +1,82 @@
+import type { ApiTokenListItem } from "@/db/queries/api-tokens";
+import { RevokeTokenButton } from "./revoke-token-button";
+
+const dateFormat = new Intl.DateTimeFormat("en", { dateStyle: "medium", timeZone: "UTC" });
+const dateTimeFormat = new Intl.DateTimeFormat("en", {
+  dateStyle: "medium",
+  timeStyle: "short",
+  timeZone: "UTC",
+});
+
+function describeState(token: ApiTokenListItem, now: Date): { label: string; live: boolean } {
+  if (token.revokedAt)
+    return { label: `Revoked ${dateFormat.format(token.revokedAt)}`, live: false };
+  if (token.expiresAt <= now)
+    return { label: `Expired ${dateFormat.format(token.expiresAt)}`, live: false };
+  return { label: `Expires ${dateFormat.format(token.expiresAt)}`, live: true };
+}
+
+/**
+ * Tokens with their last use and state, and Revoke on the live ones. With `holderEmail` on the
+ * rows (an owner's view of other members' tokens) a column says whose each one is.
+ */
+export function TokenTable({
+  workspaceId,
+  tokens,
+  label,
+}: {
+  workspaceId: string;
+  tokens: (ApiTokenListItem & { holderEmail?: string })[];
+  label: string;
+}) {
+  const now = new Date();
+  const showHolder = tokens.some((token) => token.holderEmail !== undefined);
+  const headers = ["Name", ...(showHolder ? ["Holder"] : []), "Last used", "State"];
+  return (
+    <div className="overflow-hidden rounded-lg border border-ink/10 bg-white">
+      <table className="w-full text-sm" aria-label={label}>
+        <thead className="bg-paper-deep text-left text-xs tracking-wide text-ink-soft uppercase">
+          <tr>
+            {headers.map((header) => (
+              <th key={header} scope="col" className="px-4 py-2 font-medium">
+                {header}
+              </th>
+            ))}
+            <th scope="col" className="px-4 py-2 text-right font-medium">
+              <span className="sr-only">Actions</span>
+            </th>
+          </tr>
+        </thead>
+        <tbody className="divide-y divide-ink/5">
+          {tokens.map((token) => {
+            const state = describeState(token, now);
+            return (
+              <tr key={token.id} className={state.live ? "" : "text-ink-faint"}>
+                <td className="px-4 py-3">
+                  <span className="block font-medium">{token.name}</span>
+                  <span className="block text-xs text-ink-soft">
+                    Created {dateFormat.format(token.createdAt)}
+                  </span>
+                </td>
+                {showHolder ? <td className="px-4 py-3">{token.holderEmail}</td> : null}
+                <td className="px-4 py-3">
+                  {token.lastUsedAt ? dateTimeFormat.format(token.lastUsedAt) : "Never"}
+                </td>
+                <td className="px-4 py-3">{state.label}</td>
+                <td className="px-4 py-3 text-right">
+                  {state.live ? (
+                    <RevokeTokenButton
+                      workspaceId={workspaceId}
+                      tokenId={token.id}
+                      name={token.name}
+                    />
+                  ) : null}
+                </td>
+              </tr>
+            );
+          })}
+        </tbody>
+      </table>
+    </div>
+  );
+}
