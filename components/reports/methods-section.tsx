@@ -85,9 +85,19 @@ const METHODS: Method[] = [
   },
 ];
 
+/** Listed only in reports that simulated the plan (methods.md §7). */
+const SIMULATION_METHOD: Method = {
+  quantity: "Simulation",
+  definition:
+    "On F with the report's preprocessing, λ and shards, from W₀ = 0: each round M shards drawn without replacement, minibatches of b rows drawn with replacement, weights wₘ renormalized. Minibatch SGD: one gradient on K·b rows per participant at the server point. Local SGD: K local steps, then the weighted average. Drift-corrected: SCAFFOLD option II with size-weighted control variates. Step size: the lowest final F over η = 2⁻ᵏ/H, k = 0…7, on one seed (diverged runs discarded), re-run on S seeds. ρ_sim = local / minibatch final F − F*, with the verdict's thresholds.",
+  source:
+    'Karimireddy et al., "SCAFFOLD", ICML 2020, Algorithm 1 (which weights clients equally; here by shard size)',
+};
+
 /** How every number was computed, with its source, and the checks a reviewer can read off. */
 export function MethodsSection({ summary }: { summary: PartitionSummary }) {
   const { optimizer } = summary.model;
+  const methods = summary.simulation ? [...METHODS, SIMULATION_METHOD] : METHODS;
   const { sigma2, zeta2, sigma2Pooled } = summary.heterogeneity;
   return (
     <section aria-labelledby="methods-heading" className="space-y-4 print:break-before-page">
@@ -110,7 +120,7 @@ export function MethodsSection({ summary }: { summary: PartitionSummary }) {
             </tr>
           </thead>
           <tbody>
-            {METHODS.map((method) => (
+            {methods.map((method) => (
               <tr
                 key={method.quantity}
                 className="border-t border-ink/5 align-top print:break-inside-avoid"

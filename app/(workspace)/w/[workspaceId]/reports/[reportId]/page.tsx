@@ -9,6 +9,7 @@ import { ReportEvidence } from "@/components/reports/report-evidence";
 import { ReportHeader } from "@/components/reports/report-header";
 import { ReportProvenance } from "@/components/reports/report-provenance";
 import { ShardTable } from "@/components/reports/shard-table";
+import { SimulationSection } from "@/components/reports/simulation-section";
 import { ReviewPanel } from "@/components/reviews/review-panel";
 import { ReviewStateChip } from "@/components/reviews/review-state-chip";
 import { VerdictPanel } from "@/components/reports/verdict-panel";
@@ -69,6 +70,7 @@ export default async function ReportPage({ params }: PageProps) {
       <ReportProvenance report={report} />
       <Cautions sharing />
       <ReportEvidence summary={summary} />
+      <SimulationSection summary={summary} />
       <section aria-labelledby="shards-heading" className="space-y-3 print:break-before-page">
         <h2 id="shards-heading" className="text-xl font-semibold text-ink">
           Per-shard table
