@@ -1,6 +1,4 @@
 import { z } from "zod";
-import type { DataFilePreview } from "@/db/schema/analyses";
-import type { SimulationEstimateInput } from "@/lib/reports/simulation-estimate";
 import {
   DEFAULT_SIMULATION_SEEDS,
   MAX_SIMULATION_SEEDS,
@@ -131,24 +129,6 @@ export function toStartAnalysisInput(values: AnalysisFormValues): StartAnalysisI
       // The server's default budget and grid seed apply.
       simulate: options.simulate.enabled ? { seeds: options.simulate.seeds } : undefined,
     },
-  };
-}
-
-/**
- * What the simulation's cost estimate needs from the form: its request's options and the previews
- * of the chosen dataset and partition map.
- */
-export function toSimulationEstimateInput(
-  values: AnalysisFormValues,
-  previews: { dataset: DataFilePreview | null; layout: DataFilePreview | null },
-): SimulationEstimateInput {
-  const { options } = toStartAnalysisInput(values);
-  const { localSteps, rounds, batchSize, simulate } = values.options;
-  return {
-    dataset: previews.dataset,
-    layout: values.layoutSource === "file" ? previews.layout : undefined,
-    options: { ...options, localSteps, rounds, batchSize },
-    seeds: simulate.seeds,
   };
 }
 

@@ -1,10 +1,14 @@
 "use client";
 
 import { zodResolver } from "@hookform/resolvers/zod";
+import { keepPreviousData, useQuery } from "@tanstack/react-query";
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { useForm, useWatch, type FieldPath } from "react-hook-form";
-import { startAnalysis } from "@/app/(workspace)/w/[workspaceId]/analyses/actions";
+import {
+  estimateSimulation,
+  startAnalysis,
+} from "@/app/(workspace)/w/[workspaceId]/analyses/actions";
 import { FileChoice } from "@/components/analyses/file-choice";
 import { SimulationCost } from "@/components/analyses/simulation-cost";
 import {
@@ -17,7 +21,6 @@ import { FieldMessage } from "@/components/ui/field-parts";
 import {
   analysisFormSchema,
   reservedColumns,
-  toSimulationEstimateInput,
   toStartAnalysisInput,
   usableFeatures,
   withDefaultFeatures,
@@ -27,8 +30,7 @@ import { PreviewTable } from "@/components/uploads/preview-table";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import type { DataFileSummary } from "@/db/queries/data-files";
-import { detectTask, estimateSimulationFromPreviews } from "@/lib/reports/simulation-estimate";
-import { DEFAULT_SIMULATION_BUDGET } from "@/lib/validation/analysis-options";
+import { detectTask } from "@/lib/uploads/preview-task";
 
 export interface WorkspaceFiles {
   datasets: DataFileSummary[];
@@ -165,14 +167,21 @@ export function AnalysisForm({
   const shardColumn = columns.find((column) => column.name === options.shardColumn);
   const usable = usableFeatures(columnNames, reservedColumns(values));
   const features = register("options.features", { onChange: () => setFeaturesChosen(true) });
-  const simulationEstimate = options.simulate.enabled
-    ? estimateSimulationFromPreviews(
-        toSimulationEstimateInput(values, {
-          dataset: dataset?.preview ?? null,
-          layout: files.layouts.find((file) => file.id === values.layoutFileId)?.preview ?? null,
-        }),
-      )
-    : null;
+  // The server words the estimate from the files' previews (the engine's simulation module runs
+  // threads and stays out of the browser); the last estimate stays up while the next one loads.
+  const estimateRequest = options.simulate.enabled ? toStartAnalysisInput(values) : null;
+  const simulationEstimate = useQuery({
+    queryKey: ["simulation-estimate", workspaceId, estimateRequest],
+    queryFn: async () => {
+      const result = await estimateSimulation(workspaceId, estimateRequest!);
+      if (!result.ok) throw new Error(result.message);
+      return result.data;
+    },
+    enabled: estimateRequest !== null,
+    placeholderData: keepPreviousData,
+    staleTime: Infinity,
+    retry: false,
+  });
   const simulationError = errorOf("options.simulate");
 
   return (
@@ -565,8 +574,8 @@ export function AnalysisForm({
                   </div>
                   <SimulationCost
                     id="simulation-cost"
-                    estimate={simulationEstimate}
-                    budget={DEFAULT_SIMULATION_BUDGET}
+                    view={simulationEstimate.data}
+                    status={simulationEstimate.status}
                   />
                 </>
               ) : null}

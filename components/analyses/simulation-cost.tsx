@@ -1,22 +1,4 @@
-import { AnalysisInputError } from "@/lib/analysis/errors";
-import { checkSimulationBudget } from "@/lib/analysis/simulation/simulate-plan";
-import {
-  describeSimulationCost,
-  SIMULATION_MULTIPLY_ADDS_PER_SECOND,
-  type SimulationEstimate,
-} from "@/lib/reports/simulation-estimate";
-import { formatFigure } from "@/lib/reports/report-view";
-
-/** The engine's own refusal for this estimate, so the form warns in the words the server uses. */
-function describeRefusal(estimate: SimulationEstimate, budget: number): string | null {
-  try {
-    checkSimulationBudget(estimate.cost, budget, estimate.plan);
-    return null;
-  } catch (error) {
-    if (error instanceof AnalysisInputError) return error.message;
-    throw error;
-  }
-}
+import type { SimulationCostView } from "@/lib/reports/simulation-estimate";
 
 /**
  * The simulation's estimated cost before the run (methods.md §7), how long that is roughly, and a
@@ -24,43 +6,51 @@ function describeRefusal(estimate: SimulationEstimate, budget: number): string |
  */
 export function SimulationCost({
   id,
-  estimate,
-  budget,
+  view,
+  status,
 }: {
   id: string;
-  estimate: SimulationEstimate | null;
-  budget: number;
+  /** The server's estimate; null when the choices do not tell enough yet. */
+  view: SimulationCostView | null | undefined;
+  status: "pending" | "error" | "success";
 }) {
-  if (!estimate) {
+  if (status === "error") {
     return (
       <p id={id} className="text-xs text-ink-soft">
-        The cost estimate appears once the label, the shards and the plan are chosen.
+        The cost estimate could not be fetched; the server still checks the cost when you start.
       </p>
     );
   }
-  const { amount, time, overBudget } = describeSimulationCost(estimate.cost, budget);
-  const refusal = overBudget ? describeRefusal(estimate, budget) : null;
+  if (!view) {
+    return (
+      <p id={id} className="text-xs text-ink-soft">
+        {status === "pending"
+          ? "Estimating the cost…"
+          : "The cost estimate appears once the label, the features, the shards and the plan are chosen."}
+      </p>
+    );
+  }
   return (
     <div id={id} className="space-y-2 text-sm">
       <p>
-        <span className="font-medium">Estimated cost: about {amount} multiply-adds</span>{" "}
+        <span className="font-medium">Estimated cost: about {view.amount} multiply-adds</span>{" "}
         <span className="text-ink-soft">
-          (3 algorithms × (8 + S) runs × R·M·K·b·(d+1)·C, with M = {estimate.plan.participants}, d +
-          1 ≈ {estimate.width} and C ≈ {estimate.weightRows}), so {time} at the roughly{" "}
-          {formatFigure(SIMULATION_MULTIPLY_ADDS_PER_SECOND, 1)} a second one core manages.
+          (3 algorithms × (8 + S) runs × R·M·K·b·(d+1)·C, with M = {view.participants}, d + 1 ≈{" "}
+          {view.width} and C ≈ {view.weightRows}), so {view.time} at the roughly {view.rate}{" "}
+          multiply-adds a second one core manages.
         </span>
       </p>
       <p className="text-xs text-ink-soft">
-        Counted from the {estimate.wholeFiles ? "files' previews" : "first rows of the files"}; the
+        Counted from the {view.wholeFiles ? "files' previews" : "first rows of the files"}; the
         server checks the exact cost once it has read the whole dataset.
       </p>
-      {refusal ? (
+      {view.refusal ? (
         <p
           role="alert"
           className="rounded-md border border-cadmium/40 bg-cadmium-soft px-3 py-2 text-ink"
         >
-          Above the server&apos;s budget of {formatFigure(budget, 2)} multiply-adds, so it would be
-          refused: {refusal}.
+          Above the server&apos;s budget of {view.budget} multiply-adds, so it would be refused:{" "}
+          {view.refusal}.
         </p>
       ) : null}
     </div>

@@ -7,12 +7,9 @@ import {
   setAnalysisJobId,
   type AnalysisInputFile,
 } from "@/db/queries/analyses";
-import { findDataFile } from "@/db/queries/data-files";
-import { AnalysisInputError } from "@/lib/analysis/errors";
-import { checkSimulationBudget } from "@/lib/analysis/simulation/simulate-plan";
 import { RuleError } from "@/lib/errors";
 import { enqueueAnalysis } from "@/lib/jobs";
-import { estimateSimulationFromPreviews } from "@/lib/reports/simulation-estimate";
+import { estimateRequestedSimulation } from "@/lib/reports/estimate-requested-simulation";
 import {
   startAnalysisSchema,
   type StartAnalysisInput,
@@ -69,39 +66,6 @@ async function resolveInputFiles(workspaceId: string, request: StartAnalysisRequ
 }
 
 /**
- * Refuses, on the simulation's field, a simulation whose cost as the previews show it is above the
- * budget, with the engine's own message. Without previews nothing is refused here; the engine
- * checks the exact cost anyway once it has read the dataset, and the analysis then fails with the
- * same message.
- */
-async function checkSimulationCost(
-  workspaceId: string,
-  request: StartAnalysisRequest,
-): Promise<void> {
-  const { simulate, ...options } = request.options;
-  if (!simulate) return;
-  const [dataset, layout] = await Promise.all([
-    findDataFile(workspaceId, request.datasetFileId),
-    request.layoutFileId ? findDataFile(workspaceId, request.layoutFileId) : undefined,
-  ]);
-  const estimate = estimateSimulationFromPreviews({
-    dataset: dataset?.preview ?? null,
-    layout: layout?.preview,
-    options,
-    seeds: simulate.seeds,
-  });
-  if (!estimate) return;
-  try {
-    checkSimulationBudget(estimate.cost, simulate.budget, estimate.plan);
-  } catch (error) {
-    if (error instanceof AnalysisInputError) {
-      throw new RuleError(422, error.message, "options.simulate");
-    }
-    throw error;
-  }
-}
-
-/**
  * Queues an analysis of registered files, for the analysis form and the API alike, and returns
  * its id. The caller has checked that `userId` may run analyses in this workspace.
  */
@@ -115,7 +79,10 @@ export async function queueAnalysis(
   if (request.previousReportId && !(await reportExists(workspaceId, request.previousReportId))) {
     throw new RuleError(422, "The report to revise is not in this workspace.", "previousReportId");
   }
-  await checkSimulationCost(workspaceId, request);
+  // A simulation above the budget as the previews show it is refused here, on its own field, with
+  // the engine's message; the engine checks the exact cost again once it has read the dataset.
+  const simulation = await estimateRequestedSimulation(workspaceId, request);
+  if (simulation?.refusal) throw new RuleError(422, simulation.refusal, "options.simulate");
   const partitionName = files.layout?.name ?? request.options.shardColumn;
   const title = request.title || `${files.dataset.name} · ${partitionName}`;
   const analysisId = await insertAnalysis(workspaceId, userId, { ...request, title });

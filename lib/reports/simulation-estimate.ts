@@ -1,14 +1,20 @@
+import "server-only";
 import type { DataFilePreview } from "@/db/schema/analyses";
 import { MAX_ONE_HOT_LEVELS } from "@/lib/analysis/column-accumulator";
-import { MAX_CLASSES_FOR_NUMERIC_LABEL } from "@/lib/analysis/encode-design";
+import { AnalysisInputError } from "@/lib/analysis/errors";
 import type { TrainingPlan } from "@/lib/analysis/simulation/run-algorithm";
-import { estimateSimulationCost } from "@/lib/analysis/simulation/simulate-plan";
+import {
+  checkSimulationBudget,
+  estimateSimulationCost,
+} from "@/lib/analysis/simulation/simulate-plan";
 import { formatFigure } from "@/lib/reports/report-view";
+import { detectTask } from "@/lib/uploads/preview-task";
 import type { AnalysisOptions } from "@/lib/validation/analysis-options";
 
 // The simulation's cost (methods.md §7) before the dataset is read: the engine's formula applied to
-// what the uploads' previews show. The form shows it as the user types; the server checks it before
-// queueing. The engine checks the exact cost again once it has encoded the whole dataset.
+// what the uploads' previews show. The server checks it before queueing and words it for the form
+// as the user types (server-only: the engine's simulation module runs threads, which a browser
+// bundle cannot hold). The engine checks the exact cost again once it has encoded the whole dataset.
 
 type PreviewColumn = DataFilePreview["columns"][number];
 
@@ -57,13 +63,6 @@ export interface SimulationEstimate {
 
 const isPositiveWhole = (value: number | undefined): value is number =>
   value !== undefined && Number.isInteger(value) && value >= 1;
-
-/** How the engine will treat the label (methods.md §1), from its preview column. */
-export function detectTask(label: PreviewColumn): "classification" | "regression" {
-  return label.type === "numeric" && label.distinct > MAX_CLASSES_FOR_NUMERIC_LABEL
-    ? "regression"
-    : "classification";
-}
 
 /**
  * Encoded columns one feature adds (methods.md §1): one for a numeric column, one per level for a
@@ -148,4 +147,53 @@ export function describeDuration(seconds: number): string {
   const minutes = Math.round(seconds / 60);
   if (minutes < 90) return minutes === 1 ? "about a minute" : `about ${minutes} minutes`;
   return `about ${Math.round(minutes / 60)} hours`;
+}
+
+/** What the form shows of an estimate: plain data, worded on the server. */
+export interface SimulationCostView {
+  cost: number;
+  /** "3.5×10¹⁰" multiply-adds. */
+  amount: string;
+  /** "about 6 minutes". */
+  time: string;
+  /** The rate the time assumes, worded: "1×10⁸". */
+  rate: string;
+  width: number;
+  weightRows: number;
+  participants: number;
+  wholeFiles: boolean;
+  budget: string;
+  /** The engine's refusal when the cost is above the budget, else null. */
+  refusal: string | null;
+}
+
+/** The engine's own refusal for this estimate (checkSimulationBudget), or null within the budget. */
+export function findSimulationRefusal(estimate: SimulationEstimate, budget: number): string | null {
+  try {
+    checkSimulationBudget(estimate.cost, budget, estimate.plan);
+    return null;
+  } catch (error) {
+    if (error instanceof AnalysisInputError) return error.message;
+    throw error;
+  }
+}
+
+/** The estimate as the form shows it, with the engine's refusal when it is above the budget. */
+export function toSimulationCostView(
+  estimate: SimulationEstimate,
+  budget: number,
+): SimulationCostView {
+  const { amount, time } = describeSimulationCost(estimate.cost, budget);
+  return {
+    cost: estimate.cost,
+    amount,
+    time,
+    rate: formatFigure(SIMULATION_MULTIPLY_ADDS_PER_SECOND, 1),
+    width: estimate.width,
+    weightRows: estimate.weightRows,
+    participants: estimate.plan.participants,
+    wholeFiles: estimate.wholeFiles,
+    budget: formatFigure(budget, 2),
+    refusal: findSimulationRefusal(estimate, budget),
+  };
 }

@@ -50,3 +50,13 @@ export const startAnalysisSchema = z
 
 export type StartAnalysisInput = z.input<typeof startAnalysisSchema>;
 export type StartAnalysisRequest = z.output<typeof startAnalysisSchema>;
+
+/**
+ * What the analysis form sends for the simulation's cost estimate while the user is still choosing:
+ * the files and the options so far, without the checks that only matter for starting.
+ */
+export const simulationEstimateSchema = z.object({
+  datasetFileId: z.string().min(1),
+  layoutFileId: z.string().min(1).optional(),
+  options: analysisOptionsSchema,
+});

@@ -20,7 +20,11 @@ vi.mock("@/lib/jobs", async (importOriginal) => ({
   },
 }));
 
-import { cancelAnalysis, startAnalysis } from "@/app/(workspace)/w/[workspaceId]/analyses/actions";
+import {
+  cancelAnalysis,
+  estimateSimulation,
+  startAnalysis,
+} from "@/app/(workspace)/w/[workspaceId]/analyses/actions";
 import { closeDb, db } from "@/db/client";
 import { findAnalysisStatus } from "@/db/queries/analyses";
 import { analyses, dataFiles } from "@/db/schema";
@@ -273,6 +277,39 @@ describe("startAnalysis: the simulation's cost (methods.md §7)", () => {
       fieldErrors: { "options.simulate": engineMessage },
     });
     expect(await analysesIn(team.workspaceId)).toEqual([]);
+    expect(queue.jobs).toEqual([]);
+  });
+
+  it("words the estimate for the form, with the same refusal, to those who may run analyses", async () => {
+    const { team, files, request } = await teamWithPenguins();
+    await Promise.all([addPreview(files.dataset), addPreview(files.layout)]);
+    actAs(team.analyst);
+    const simulate = { seeds: 3 };
+    const within = await estimateSimulation(team.workspaceId, {
+      ...request,
+      options: { ...PENGUIN_OPTIONS, simulate },
+    });
+    // methods.md §7: 3 × (8 + 3) × R = 100 · M = 3 · K = 10 · b = 32 · (d + 1) = 8 · C = 3.
+    expect(within).toMatchObject({
+      ok: true,
+      data: { cost: 3 * 11 * 100 * 3 * 10 * 32 * 8 * 3, amount: "7.6×10⁷", refusal: null },
+    });
+    const options = { ...PENGUIN_OPTIONS, rounds: 1_000_000, simulate };
+    const above = await estimateSimulation(team.workspaceId, { ...request, options });
+    const refused = await startAnalysis(team.workspaceId, { ...request, options });
+    expect(above.ok && above.data?.refusal).toBe(
+      !refused.ok && refused.fieldErrors["options.simulate"],
+    );
+    // Choices that do not tell enough yet give no estimate, and no error.
+    expect(
+      await estimateSimulation(team.workspaceId, {
+        datasetFileId: files.dataset.id,
+        options: { labelColumn: "", simulate },
+      }),
+    ).toEqual({ ok: true, data: null });
+
+    actAs(team.reviewer);
+    expect(statusOf(await estimateSimulation(team.workspaceId, request))).toBe(403);
     expect(queue.jobs).toEqual([]);
   });
 

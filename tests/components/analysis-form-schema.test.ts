@@ -3,7 +3,6 @@ import {
   analysisFormSchema,
   EMPTY_FORM,
   formValuesFrom,
-  toSimulationEstimateInput,
   toStartAnalysisInput,
   type AnalysisFormValues,
 } from "@/components/analyses/analysis-form-schema";
@@ -162,7 +161,7 @@ describe("the new-analysis form's values", () => {
     expect(seedsError(Number.NaN)).toBe("Enter the number of seeds as a whole number.");
   });
 
-  it("refill a simulation, and estimate its cost from the previews the layout uses", () => {
+  it("refill a simulation from an earlier analysis", () => {
     const values = formValuesFrom({
       title: "By island",
       datasetFileId: "d1",
@@ -171,13 +170,5 @@ describe("the new-analysis form's values", () => {
       parameters: { labelColumn: "Species", simulate: { seeds: 5, seed: 1, budget: 1e11 } },
     });
     expect(values.options.simulate).toEqual({ enabled: true, seeds: 5 });
-
-    const dataset = { columns: [], rows: [], truncated: false };
-    const layout = { columns: [], rows: [], truncated: true };
-    const byMap = toSimulationEstimateInput(values, { dataset, layout });
-    expect(byMap).toMatchObject({ dataset, layout, seeds: 5 });
-    expect(byMap.options).toMatchObject({ labelColumn: "Species", localSteps: 10, rounds: 100 });
-    // With a shard column the partition map's preview plays no part.
-    expect(toSimulationEstimateInput(filled, { dataset, layout }).layout).toBeUndefined();
   });
 });

@@ -3,8 +3,10 @@
 import { cancelQueuedOrRunning } from "@/db/queries/analyses";
 import { failWith, succeed, type ActionResult } from "@/lib/actions/result";
 import { requireRole } from "@/lib/auth/guards";
+import { estimateRequestedSimulation } from "@/lib/reports/estimate-requested-simulation";
 import { queueAnalysis } from "@/lib/reports/queue-analysis";
-import type { StartAnalysisInput } from "@/lib/validation/start-analysis";
+import type { SimulationCostView } from "@/lib/reports/simulation-estimate";
+import { simulationEstimateSchema, type StartAnalysisInput } from "@/lib/validation/start-analysis";
 
 /**
  * Queues an analysis of registered files. Returns its id; the browser then follows its progress
@@ -19,6 +21,25 @@ export async function startAnalysis(
     return succeed(await queueAnalysis(workspaceId, user.id, input));
   } catch (error) {
     return failWith(error, "start-analysis");
+  }
+}
+
+/**
+ * The simulation's estimated cost for the form's choices so far, worded, with the refusal the
+ * server would give (methods.md §7); null while the choices do not tell enough. Changes nothing.
+ */
+export async function estimateSimulation(
+  workspaceId: string,
+  input: StartAnalysisInput,
+): Promise<ActionResult<SimulationCostView | null>> {
+  try {
+    await requireRole(workspaceId, "runAnalysis");
+    const request = simulationEstimateSchema.safeParse(input);
+    return succeed(
+      request.success ? await estimateRequestedSimulation(workspaceId, request.data) : null,
+    );
+  } catch (error) {
+    return failWith(error, "estimate-simulation");
   }
 }
 
