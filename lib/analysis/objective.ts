@@ -8,7 +8,7 @@ import {
 } from "./objective-pass";
 
 /** Number of weight rows: C for softmax, 1 for least squares. */
-export function countWeightRows(design: Design): number {
+export function countWeightRows(design: Pick<Design, "classes">): number {
   return design.classes === null ? 1 : design.classes.length;
 }
 

@@ -258,7 +258,7 @@ function sharedFloat64(length: number): Float64Array {
 }
 
 /** The array itself when it already lives in shared memory, else a shared copy. */
-function toShared<T extends Float64Array | Int32Array>(values: T): T {
+export function toShared<T extends Float64Array | Int32Array>(values: T): T {
   if (values.buffer instanceof SharedArrayBuffer) return values;
   const copy = (
     values instanceof Float64Array

@@ -1,6 +1,5 @@
 import type { SeededRandom } from "../../math/random";
-import type { Design } from "../design";
-import { addRegularizer } from "../objective";
+import { addRegularizer, countWeightRows } from "../objective";
 import {
   accumulatePass,
   createTotals,
@@ -9,6 +8,7 @@ import {
   type PassTotals,
   type PassWorkspace,
 } from "../objective-pass";
+import type { SimulationDesign } from "./run-algorithm";
 
 /**
  * Buffers for minibatch gradients on one design, made once per run so the simulation's inner loops
@@ -22,9 +22,9 @@ export interface BatchWorkspace {
   pass: PassWorkspace;
 }
 
-export function createBatchWorkspace(design: Design, batchSize: number): BatchWorkspace {
+export function createBatchWorkspace(design: SimulationDesign, batchSize: number): BatchWorkspace {
   const width = design.x.cols;
-  const weightRows = design.classes === null ? 1 : design.classes.length;
+  const weightRows = countWeightRows(design);
   return {
     batch: {
       x: { data: new Float64Array(batchSize * width), rows: batchSize, cols: width },
@@ -54,7 +54,7 @@ export function clearBatchSums(workspace: BatchWorkspace): void {
  * every row of the shard once, which draws nothing (§7's "b = all rows, no noise").
  */
 export function addShardBatch(
-  design: Design,
+  design: PassData,
   shardStart: number,
   shardEnd: number,
   batchSize: number,

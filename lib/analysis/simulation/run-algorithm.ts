@@ -12,9 +12,18 @@ import {
 
 export type AlgorithmName = "minibatch" | "local" | "scaffold";
 
+/**
+ * What a run reads of the engine's design: the rows with their classes or targets, and the shards.
+ * Small enough to hand to a worker thread (its arrays in shared memory, see run-threads.ts).
+ */
+export type SimulationDesign = Pick<
+  Design,
+  "x" | "labels" | "targets" | "classes" | "shardOffsets"
+>;
+
 /** The objective the algorithms minimize: the engine's F on its design (methods.md §2). */
 export interface SimulationProblem {
-  design: Design;
+  design: SimulationDesign;
   lambda: number;
   /** F(W*), from the engine's fit. */
   optimumValue: number;
@@ -82,7 +91,7 @@ export async function runAlgorithm(
   const { design, lambda } = problem;
   const width = design.x.cols;
   const parameterCount = countWeightRows(design) * width;
-  const shardCount = design.shardIds.length;
+  const shardCount = design.shardOffsets.length - 1;
   const offsets = design.shardOffsets;
   const totalRows = design.x.rows;
   const { participants, localSteps, rounds, batchSize } = plan;
@@ -213,7 +222,7 @@ function chooseParticipants(random: SeededRandom, order: Int32Array, chosen: Int
 
 /** F(W) over every row (methods.md §2), with the run's buffers; `scratch` receives ∇F. */
 function evaluateAllRows(
-  design: Design,
+  design: SimulationDesign,
   weights: Float64Array,
   lambda: number,
   workspace: BatchWorkspace,

@@ -1,6 +1,7 @@
 import { decideVerdict, type Verdict } from "../advise-plan";
 import { AnalysisInputError } from "../errors";
 import { countWeightRows } from "../objective";
+import { countAvailableThreads } from "../pass-pool";
 import {
   runAlgorithm,
   type AlgorithmName,
@@ -8,6 +9,8 @@ import {
   type SimulationProblem,
   type TrainingPlan,
 } from "./run-algorithm";
+import { RunThreads } from "./run-threads";
+import { RunSchedule, type PlannedRun } from "./schedule-runs";
 
 /** The algorithms of methods.md §7, in report order. */
 export const ALGORITHMS: readonly AlgorithmName[] = ["minibatch", "local", "scaffold"];
@@ -23,6 +26,12 @@ export const MAX_CURVE_POINTS = 100;
 export const GRID_CHECK_POINTS = 11;
 /** The generator every run draws from, named in the summary (methods.md §7, determinism). */
 export const GENERATOR_NAME = "xoshiro128**";
+/**
+ * From this estimated cost on, runs are shared with worker threads by default. A thread takes about
+ * a second to load; on the benchmark one estimated multiply-add took about 5 ns on one thread, so
+ * this is some 2.5 s of work.
+ */
+const PARALLEL_MIN_COST = 5e8;
 
 export interface SimulationOptions {
   /** S, the seeds the chosen step size is re-run on. */
@@ -31,6 +40,12 @@ export interface SimulationOptions {
   seed: number;
   /** Refuse above this many multiply-adds (the estimate of `estimateSimulationCost`). */
   budget: number;
+  /**
+   * Threads doing runs at once, the calling thread included. Default: every core (at most 8) when
+   * the estimated cost is at least 5e8 multiply-adds, else 1. The result is the same bit for bit
+   * whatever the number.
+   */
+  threads?: number;
 }
 
 export interface SimulationInput extends SimulationProblem {
@@ -140,8 +155,9 @@ export function checkSimulationBudget(cost: number, budget: number, plan: Traini
  * Runs methods.md §7 on the engine's objective: for each algorithm the step-size grid on one seed
  * (diverged runs discarded, lowest final F wins), then the chosen η on S fresh seeds; the curves,
  * the final suboptimality, ρ_sim, its verdict with §5's thresholds and whether it agrees with the
- * bounds. Refuses (AnalysisInputError) above the budget. Deterministic: same input, plan and seed,
- * same result, on any machine.
+ * bounds. Refuses (AnalysisInputError) above the budget. The runs are independent but for each
+ * algorithm's seed runs waiting for its grid, so they are shared among threads (`options.threads`).
+ * Deterministic: same input, plan and seed, same result, on any machine and any number of threads.
  */
 export async function simulatePlan(
   input: SimulationInput,
@@ -154,60 +170,27 @@ export async function simulatePlan(
   checkSimulationBudget(cost, options.budget, plan);
   const curveRounds = chooseCurveRounds(plan.rounds);
   const checkRounds = chooseCurveRounds(plan.rounds, GRID_CHECK_POINTS);
-  const runs = ALGORITHMS.length * (STEP_SIZE_COUNT + options.seeds);
-  let runIndex = 0;
-  const runOnce = async (
-    algorithm: AlgorithmName,
-    phase: SimulationProgress["phase"],
-    stepSize: number,
-    seed: number,
-    evaluated: Int32Array,
-  ): Promise<RunOutcome> => {
-    const run = ++runIndex;
-    const report = (round: number) =>
-      hooks.onProgress?.({
-        algorithm,
-        phase,
-        run,
-        runs,
-        round,
-        rounds: plan.rounds,
-        fraction: (run - 1 + round / plan.rounds) / runs,
-      });
-    report(0);
-    const outcome = await runAlgorithm(algorithm, input, plan, stepSize, seed, evaluated, {
-      onRound: report,
-      signal: hooks.signal,
-    });
-    if (outcome.diverged) report(plan.rounds);
-    return outcome;
-  };
+  const runs = planRuns(input.smoothness, options, checkRounds, curveRounds);
+  const threads = Math.min(options.threads ?? chooseThreadCount(cost), runs.length);
+  const outcomes = await performRuns(input, plan, runs, threads, hooks);
 
-  const algorithms: AlgorithmResult[] = [];
-  for (const algorithm of ALGORITHMS) {
-    const grid: AlgorithmResult["grid"] = [];
-    let chosen: number | null = null;
-    let best = Infinity;
-    for (let k = 0; k < STEP_SIZE_COUNT; k++) {
-      const stepSize = 2 ** -k / input.smoothness;
-      const outcome = await runOnce(algorithm, "step-size", stepSize, options.seed, checkRounds);
-      const final = outcome.diverged ? null : outcome.suboptimality[checkRounds.length - 1];
-      grid.push({ stepSize, final });
-      if (final !== null && final < best) {
-        best = final;
-        chosen = stepSize;
-      }
-    }
-    const outcomes: RunOutcome[] = [];
-    for (let s = 1; s <= options.seeds; s++) {
-      if (chosen === null) {
-        runIndex++;
-        continue;
-      }
-      outcomes.push(await runOnce(algorithm, "seeds", chosen, options.seed + s, curveRounds));
-    }
-    algorithms.push(summarizeAlgorithm(algorithm, chosen, grid, outcomes, curveRounds));
-  }
+  const runsPerAlgorithm = STEP_SIZE_COUNT + options.seeds;
+  const algorithms = ALGORITHMS.map((algorithm, a) => {
+    const first = a * runsPerAlgorithm;
+    const gridOutcomes = outcomes.slice(first, first + STEP_SIZE_COUNT);
+    const grid = gridOutcomes.map((outcome, k) => ({
+      stepSize: stepSizeAt(k, input.smoothness),
+      final: finalOfGridRun(outcome),
+    }));
+    const seedOutcomes = outcomes.slice(first + STEP_SIZE_COUNT, first + runsPerAlgorithm);
+    return summarizeAlgorithm(
+      algorithm,
+      chooseFromGrid(gridOutcomes, input.smoothness),
+      grid,
+      seedOutcomes.filter((outcome) => outcome !== null),
+      curveRounds,
+    );
+  });
 
   const [minibatch, local] = algorithms;
   const ratio =
@@ -228,6 +211,121 @@ export async function simulatePlan(
     agreesWithBounds,
     note: describeAgreement(verdict, input.boundVerdict, ratio),
   };
+}
+
+/**
+ * The runs in report order — per algorithm the step-size grid on the grid's seed, then the chosen
+ * η on seeds seed + 1 … seed + S — numbered 1 … 3(8 + S) in progress reports. A grid run evaluates
+ * F at `checkRounds`, a seed run at `curveRounds`.
+ */
+function planRuns(
+  smoothness: number,
+  options: SimulationOptions,
+  checkRounds: Int32Array,
+  curveRounds: Int32Array,
+): PlannedRun[] {
+  const runs: PlannedRun[] = [];
+  for (const algorithm of ALGORITHMS) {
+    const grid = Array.from({ length: STEP_SIZE_COUNT }, (_, k) => runs.length + k);
+    for (let k = 0; k < STEP_SIZE_COUNT; k++) {
+      runs.push({
+        algorithm,
+        phase: "step-size",
+        seed: options.seed,
+        curveRounds: checkRounds,
+        after: [],
+        chooseStepSize: () => stepSizeAt(k, smoothness),
+      });
+    }
+    for (let s = 1; s <= options.seeds; s++) {
+      runs.push({
+        algorithm,
+        phase: "seeds",
+        seed: options.seed + s,
+        curveRounds,
+        after: grid,
+        chooseStepSize: (outcomes) =>
+          chooseFromGrid(
+            grid.map((index) => outcomes[index]),
+            smoothness,
+          ),
+      });
+    }
+  }
+  return runs;
+}
+
+/**
+ * Does the runs on `threads` threads (the calling thread and threads − 1 worker threads) and
+ * returns their outcomes in plan order, null for the seed runs of an algorithm whose whole grid
+ * diverged.
+ */
+async function performRuns(
+  input: SimulationInput,
+  plan: TrainingPlan,
+  runs: PlannedRun[],
+  threads: number,
+  hooks: SimulationHooks,
+): Promise<(RunOutcome | null)[]> {
+  const schedule = new RunSchedule(
+    runs,
+    plan.rounds,
+    (request, onRound, signal) =>
+      runAlgorithm(
+        request.algorithm,
+        input,
+        plan,
+        request.stepSize,
+        request.seed,
+        request.curveRounds,
+        { onRound, signal },
+      ),
+    hooks,
+  );
+  const workers =
+    threads > 1
+      ? new RunThreads(threads - 1, input, plan, {
+          onReady: (executor) => schedule.addExecutor(executor),
+          onFailure: (error) => schedule.fail(error),
+        })
+      : null;
+  try {
+    return await schedule.perform();
+  } finally {
+    await workers?.close();
+  }
+}
+
+function chooseThreadCount(cost: number): number {
+  return cost >= PARALLEL_MIN_COST ? countAvailableThreads() : 1;
+}
+
+/** η = 2⁻ᵏ/H, the grid's k-th step size (methods.md §7). */
+function stepSizeAt(k: number, smoothness: number): number {
+  return 2 ** -k / smoothness;
+}
+
+/** A grid run's suboptimality at its last check, or null when it diverged (discarded). */
+function finalOfGridRun(outcome: RunOutcome | null): number | null {
+  if (outcome === null || outcome.diverged) return null;
+  return outcome.suboptimality[outcome.suboptimality.length - 1];
+}
+
+/** The grid's η with the lowest final F (the first, on a tie), or null when every run diverged. */
+function chooseFromGrid(
+  outcomes: readonly (RunOutcome | null)[],
+  smoothness: number,
+): number | null {
+  let chosen: number | null = null;
+  let best = Infinity;
+  outcomes.forEach((outcome, k) => {
+    const final = finalOfGridRun(outcome);
+    if (final !== null && final < best) {
+      best = final;
+      chosen = stepSizeAt(k, smoothness);
+    }
+  });
+  return chosen;
 }
 
 /**
