@@ -29,28 +29,34 @@ afterEach(async () => {
 });
 afterAll(() => rmSync(folder, { recursive: true, force: true }));
 
+/** Signs up, uploads penguins and the island map, and maps the columns on the new-analysis form. */
+async function fillPenguinAnalysis(session: BrowserSession, label: string) {
+  const { page } = session;
+  await page.goto("/sign-up");
+  await page.getByLabel("Your name").fill("Flow Tester");
+  await page.getByLabel("E-mail").fill(uniqueEmail(label));
+  await page.getByLabel("Password").fill("a flow password");
+  await page.getByLabel("Workspace name").fill("Penguin islands");
+  await page.getByRole("button", { name: "Create account" }).click();
+  await page.waitForURL(/\/w\/[\w-]+$/);
+
+  await page.getByRole("link", { name: "New analysis" }).click();
+  await page.getByLabel("Dataset file").setInputFiles(datasetFile);
+  await page.getByRole("radio", { name: /penguins\.csv/ }).waitFor();
+  await page.getByRole("radio", { name: /A separate partition map/ }).check();
+  await page.getByLabel("Partition map file").setInputFiles(layoutFile);
+  await page.getByRole("radio", { name: /islands\.csv/ }).waitFor();
+  await page.getByLabel("Label column", { exact: true }).selectOption("Species");
+  await page.getByLabel("Id column (optional)").selectOption("row");
+  // The island decides the shard, so it is not also a feature.
+  await page.getByRole("checkbox", { name: /^Island/ }).uncheck();
+}
+
 describe("from upload to report in the browser", () => {
   it("runs an analysis of uploaded files and shows the verdict, a chart and the JSON export", async () => {
     browser = await openBrowser();
     const { page } = browser;
-    await page.goto("/sign-up");
-    await page.getByLabel("Your name").fill("Flow Tester");
-    await page.getByLabel("E-mail").fill(uniqueEmail("flow"));
-    await page.getByLabel("Password").fill("a flow password");
-    await page.getByLabel("Workspace name").fill("Penguin islands");
-    await page.getByRole("button", { name: "Create account" }).click();
-    await page.waitForURL(/\/w\/[\w-]+$/);
-
-    await page.getByRole("link", { name: "New analysis" }).click();
-    await page.getByLabel("Dataset file").setInputFiles(datasetFile);
-    await page.getByRole("radio", { name: /penguins\.csv/ }).waitFor();
-    await page.getByRole("radio", { name: /A separate partition map/ }).check();
-    await page.getByLabel("Partition map file").setInputFiles(layoutFile);
-    await page.getByRole("radio", { name: /islands\.csv/ }).waitFor();
-    await page.getByLabel("Label column", { exact: true }).selectOption("Species");
-    await page.getByLabel("Id column (optional)").selectOption("row");
-    // The island decides the shard, so it is not also a feature.
-    await page.getByRole("checkbox", { name: /^Island/ }).uncheck();
+    await fillPenguinAnalysis(browser, "flow");
     await page.getByRole("button", { name: "Run analysis" }).click();
 
     // The progress page follows the worker and moves on to the report when it is stored.
@@ -77,6 +83,66 @@ describe("from upload to report in the browser", () => {
       "Biscoe",
       "Dream",
       "Torgersen",
+    ]);
+  });
+
+  it("also simulates the plan: cost before the run, refusal on the field, curves in the report", async () => {
+    browser = await openBrowser();
+    const { page } = browser;
+    await fillPenguinAnalysis(browser, "simulate");
+    // Keyboard first: the option is a plain checkbox.
+    await page.getByRole("checkbox", { name: /Also simulate/ }).focus();
+    await page.keyboard.press("Space");
+    expect(await page.getByLabel("Seeds (S)").inputValue()).toBe("3");
+    // methods.md §7 at the default plan: 3 × 11 × R 100 · M 3 · K 10 · b 32 · (d+1) 8 · C 3.
+    await page.getByText("Estimated cost: about 7.6×10⁷ multiply-adds").waitFor();
+
+    // Far above the budget: the form warns, and the server refuses on the simulation's field.
+    await page.getByLabel("Rounds (R)").fill("1000000");
+    await page.getByText(/Above the server's budget of 1\.0×10¹¹ multiply-adds/).waitFor();
+    await page.getByRole("button", { name: "Run analysis" }).click();
+    const refusal = page.locator("#simulate-error");
+    await refusal.waitFor();
+    expect(await refusal.textContent()).toMatch(/^the simulation would take about 7\.60e11/);
+    expect(await page.getByLabel("Label column", { exact: true }).inputValue()).toBe("Species");
+
+    // A small plan keeps the run short: 3 × (8 + 2) runs of 20 rounds.
+    await page.getByLabel("Rounds (R)").fill("20");
+    await page.getByLabel("Seeds (S)").fill("2");
+    await page.getByRole("button", { name: "Run analysis" }).click();
+    await page.waitForURL(/\/analyses\/(?!new)[\w-]+$/);
+    await page.waitForURL(/\/reports\/[\w-]+$/, { timeout: 90_000 });
+
+    const section = page.getByRole("region", { name: "Simulation on your shards" });
+    await section.waitFor();
+    const table = section.getByRole("table");
+    for (const name of ["Minibatch SGD", "Local SGD", "Drift-corrected local updates (SCAFFOLD)"]) {
+      expect(await table.getByRole("rowheader", { name, exact: true }).count()).toBe(1);
+    }
+    // The verdicts side by side, and the sentence that compares them.
+    const verdicts = Object.values(VERDICT_HEADLINES);
+    for (const term of ["From the bounds", "From the simulation"]) {
+      const chip = section
+        .locator("dt", { hasText: term })
+        .locator("xpath=following-sibling::dd[1]/span[1]");
+      expect(verdicts).toContain((await chip.textContent())?.trim());
+    }
+    expect(await section.getByRole("note").textContent()).toMatch(
+      /^The simulation on your shards (agrees with|points the other way from|does not back)/,
+    );
+    await section.getByRole("img", { name: /suboptimality against rounds/ }).waitFor();
+    await section.getByText("A convex proxy, not your network.").waitFor();
+
+    const [download] = await Promise.all([
+      page.waitForEvent("download"),
+      page.getByRole("link", { name: "Download JSON" }).click(),
+    ]);
+    const summary = JSON.parse(readFileSync((await download.path())!, "utf8"));
+    expect(summary.simulation.seeds).toBe(2);
+    expect(summary.simulation.algorithms.map((result: { name: string }) => result.name)).toEqual([
+      "minibatch",
+      "local",
+      "scaffold",
     ]);
   });
 });
