@@ -576,6 +576,7 @@ export function AnalysisForm({
                     id="simulation-cost"
                     view={simulationEstimate.data}
                     status={simulationEstimate.status}
+                    showRefusal={!simulationError}
                   />
                 </>
               ) : null}

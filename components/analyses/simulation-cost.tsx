@@ -8,11 +8,14 @@ export function SimulationCost({
   id,
   view,
   status,
+  showRefusal,
 }: {
   id: string;
   /** The server's estimate; null when the choices do not tell enough yet. */
   view: SimulationCostView | null | undefined;
   status: "pending" | "error" | "success";
+  /** False once the server has refused the run on the field: its message says the same. */
+  showRefusal: boolean;
 }) {
   if (status === "error") {
     return (
@@ -44,7 +47,7 @@ export function SimulationCost({
         Counted from the {view.wholeFiles ? "files' previews" : "first rows of the files"}; the
         server checks the exact cost once it has read the whole dataset.
       </p>
-      {view.refusal ? (
+      {view.refusal && showRefusal ? (
         <p
           role="alert"
           className="rounded-md border border-cadmium/40 bg-cadmium-soft px-3 py-2 text-ink"

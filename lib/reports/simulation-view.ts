@@ -1,7 +1,7 @@
 import type { Verdict } from "@/lib/analysis/advise-plan";
 import type { AlgorithmName } from "@/lib/analysis/simulation/run-algorithm";
 import type { AlgorithmResult, SimulationProgress } from "@/lib/analysis/simulation/simulate-plan";
-import { VERDICT_LABELS } from "./report-view";
+import { formatFigure, VERDICT_LABELS } from "./report-view";
 
 // How the simulation of methods.md §7 reads in the product: names, progress lines, the report's
 // curves and its comparison with the bounds.
@@ -89,7 +89,7 @@ export function describeComparison(
   if (ratio === null) {
     return `The simulation on your shards gives no usable ratio of local to minibatch SGD's final suboptimality (one of them diverged at every step size, or minibatch SGD ended exactly at the optimum), so it neither backs nor contradicts the bounds (${bounds}).`;
   }
-  const measured = `local SGD ended at ${Number(ratio.toPrecision(2))} times minibatch SGD's suboptimality`;
+  const measured = `local SGD ended at ${formatFigure(ratio)} times minibatch SGD's suboptimality`;
   if (simulated === bound) {
     return `The simulation on your shards agrees with the bounds (${bounds}): ${measured}.`;
   }

@@ -76,6 +76,8 @@ describe("the simulation in the report", () => {
     expect(sentence(1.3, 2.575)).toBe(
       "The simulation on your shards does not back the bounds' verdict: the bounds favour large minibatches, but local SGD ended at 1.3 times minibatch SGD's suboptimality, within a factor of two, so no clear winner.",
     );
+    // The ratio reads as the report prints ρ_sim beside it (three significant digits).
+    expect(sentence(0.0195, 0.945)).toContain("local SGD ended at 0.0195 times");
     expect(sentence(0.4, 1)).toMatch(/^The simulation on your shards does not back .*no clear/);
     expect(sentence(4, 2)).toBe(
       "The simulation on your shards agrees with the bounds (large minibatches): local SGD ended at 4 times minibatch SGD's suboptimality.",
