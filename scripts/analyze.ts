@@ -75,6 +75,7 @@ async function main(): Promise<number> {
         weightsPath: readWeightsPath(flags.reference),
         options,
         onProgress: createProgressPrinter(),
+        onSimulationProgress: createSimulationProgressPrinter(),
       })
     : await analyzeLocally(flags, options, dataSize);
   if (flags.out) writeFileSync(flags.out, json);

@@ -1,5 +1,6 @@
 import { open, stat } from "node:fs/promises";
 import path from "node:path";
+import type { SimulationProgress } from "../analysis/simulation/simulate-plan";
 import type { AnalysisProgress } from "../analysis/summary";
 import type { AnalysisOptionsInput } from "../validation/analysis-options";
 import type { UploadTicket } from "../validation/upload";
@@ -16,6 +17,8 @@ export type ServerRunRequest = {
   weightsPath?: string;
   options: AnalysisOptionsInput;
   onProgress: (progress: AnalysisProgress) => void;
+  /** The simulation's run and round (options.simulate), as the server last stored them. */
+  onSimulationProgress?: (progress: SimulationProgress) => void;
   pollIntervalMs?: number;
 };
 
@@ -23,6 +26,7 @@ type AnalysisStatus = {
   status: "queued" | "running" | "succeeded" | "failed" | "cancelled";
   stage: AnalysisProgress["stage"] | null;
   fraction: number;
+  simulation?: SimulationProgress | null;
   failureMessage: string | null;
   reportId: string | null;
 };
@@ -128,6 +132,7 @@ export async function runOnServer(request: ServerRunRequest): Promise<string> {
   for (;;) {
     const status = await api.getJson<AnalysisStatus>(`/api/v1/analyses/${analysisId}`);
     if (status.stage) request.onProgress({ stage: status.stage, fraction: status.fraction });
+    if (status.simulation) request.onSimulationProgress?.(status.simulation);
     if (status.status === "succeeded" && status.reportId) {
       return api.getText(`/api/v1/reports/${status.reportId}`);
     }
