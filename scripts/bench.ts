@@ -3,12 +3,16 @@
  * end to end and, side by side, the NumPy/pandas/SciPy script scripts/bench/reference_summary.py
  * computing the same summary; prints per-stage times, rows/s, CPU time, peak memory (VmHWM), the
  * time ratio and how closely the two summaries agree, and fails when they disagree by more than
- * 1e-4 relative. `--small` runs only the 100k case, `--large` only the 1M case.
+ * 1e-4 relative. Then the simulation case: the analyze CLI with `--simulate` (methods.md §7) on the
+ * 100k data, timing the simulation stage. `--small` runs only the 100k case, `--large` only the 1M
+ * case, `--simulation` only the simulation case.
  */
 import { spawn } from "node:child_process";
 import { existsSync, mkdirSync, readFileSync, statSync } from "node:fs";
 import { availableParallelism, loadavg } from "node:os";
 import path from "node:path";
+import type { PartitionSummary } from "../lib/analysis";
+import { countAvailableThreads } from "../lib/analysis/pass-pool";
 import { writeBenchData, type BenchDataSpec } from "./bench/generate-data";
 
 const root = path.resolve(import.meta.dirname, "..");
@@ -23,13 +27,20 @@ const CASES: BenchDataSpec[] = [
   { rows: 100_000, features: 32, classes: 10, shards: 100, alpha: 0.5, seed: 1 },
   { rows: 1_000_000, features: 64, classes: 10, shards: 100, alpha: 0.5, seed: 2 },
 ];
+/** The simulation case of issue 6: every one of the 100 shards each round, K = 10, R = 100, b = 32. */
+const SIMULATION_PLAN = { participants: 100, localSteps: 10, rounds: 100, batchSize: 32 };
+
+interface StageTime {
+  seconds: number;
+  cpuSeconds: number;
+}
 
 interface RunResult {
   seconds: number;
   /** User + system CPU time of all the process's threads (sampled, so to within 0.05 s). */
   cpuSeconds: number;
   peakMegabytes: number;
-  stages: Record<string, number>;
+  stages: Record<string, StageTime>;
   stdout: string;
   stderr: string;
   code: number | null;
@@ -47,7 +58,7 @@ function runMeasured(
   return new Promise((resolve) => {
     const started = performance.now();
     const child = spawn(command, args, { cwd: root, stdio: ["ignore", "pipe", "pipe"] });
-    const stageStarts: Array<[string, number]> = [];
+    const stageStarts: Array<{ stage: string; at: number; cpuTicks: number }> = [];
     let stdout = "";
     let stderr = "";
     let peakKilobytes = 0;
@@ -72,17 +83,21 @@ function runMeasured(
       stderr += text;
       for (const line of text.split("\n")) {
         const stage = stageOf(line);
-        if (stage && stageStarts.at(-1)?.[0] !== stage)
-          stageStarts.push([stage, performance.now()]);
+        if (stage && stageStarts.at(-1)?.stage !== stage) {
+          sample();
+          stageStarts.push({ stage, at: performance.now(), cpuTicks });
+        }
       }
     });
     child.on("close", (code) => {
       clearInterval(sampler);
       const ended = performance.now();
-      const stages: Record<string, number> = {};
-      stageStarts.forEach(([stage, at], index) => {
-        const next = stageStarts[index + 1]?.[1] ?? ended;
-        stages[stage] = (stages[stage] ?? 0) + (next - at) / 1000;
+      const stages: Record<string, StageTime> = {};
+      stageStarts.forEach(({ stage, at, cpuTicks: startTicks }, index) => {
+        const next = stageStarts[index + 1] ?? { at: ended, cpuTicks };
+        const time = (stages[stage] ??= { seconds: 0, cpuSeconds: 0 });
+        time.seconds += (next.at - at) / 1000;
+        time.cpuSeconds += (next.cpuTicks - startTicks) / CLOCK_TICKS;
       });
       resolve({
         seconds: (ended - started) / 1000,
@@ -101,7 +116,8 @@ function relativeDifference(a: number, b: number): number {
   return Math.abs(a - b) / Math.max(Math.abs(a), Math.abs(b), 1e-300);
 }
 
-async function benchCase(spec: BenchDataSpec): Promise<void> {
+/** The case's data file, generated on first use; prints the case's heading. */
+async function prepareData(spec: BenchDataSpec, heading = ""): Promise<string> {
   const name = `${spec.rows}x${spec.features}x${spec.classes}`;
   const file = path.join(outputFolder, `bench-${name}-seed${spec.seed}.csv`);
   if (!existsSync(file)) {
@@ -110,9 +126,13 @@ async function benchCase(spec: BenchDataSpec): Promise<void> {
   }
   const megabytes = statSync(file).size / 2 ** 20;
   process.stdout.write(
-    `\n== ${spec.rows} rows × ${spec.features} features × ${spec.classes} classes, ${spec.shards} shards (${megabytes.toFixed(0)} MB)\n`,
+    `\n== ${heading}${spec.rows} rows × ${spec.features} features × ${spec.classes} classes, ${spec.shards} shards (${megabytes.toFixed(0)} MB)\n`,
   );
+  return file;
+}
 
+/** The analyze CLI on a bench file, timed by the stages it reports on stderr. */
+async function runEngine(file: string, extraArgs: string[] = []): Promise<RunResult> {
   const engine = await runMeasured(
     process.execPath,
     [
@@ -126,10 +146,17 @@ async function benchCase(spec: BenchDataSpec): Promise<void> {
       "label",
       "--shard-column",
       "shard",
+      ...extraArgs,
     ],
     (line) => /^partita: (\w+) /.exec(line)?.[1] ?? null,
   );
   if (engine.code !== 0) throw new Error(`analyze failed: ${engine.stderr}`);
+  return engine;
+}
+
+async function benchCase(spec: BenchDataSpec): Promise<void> {
+  const file = await prepareData(spec);
+  const engine = await runEngine(file);
   const python = await runMeasured(
     PYTHON,
     [path.join(root, "scripts/bench/reference_summary.py"), file, "label", "shard"],
@@ -145,11 +172,14 @@ async function benchCase(spec: BenchDataSpec): Promise<void> {
     Object.entries(stages)
       .map(([stage, seconds]) => `${stage} ${seconds.toFixed(1)}s`)
       .join(", ");
+  const engineStages = Object.fromEntries(
+    Object.entries(engine.stages).map(([stage, time]) => [stage, time.seconds]),
+  );
   const ours = JSON.parse(engine.stdout);
   const theirs = JSON.parse(python.stdout);
   process.stdout.write(
     `engine (TypeScript): ${engine.seconds.toFixed(1)}s end to end, ${(spec.rows / engine.seconds).toFixed(0)} rows/s, CPU ${engine.cpuSeconds.toFixed(1)}s, peak ${engine.peakMegabytes.toFixed(0)} MB\n` +
-      `  stages: ${stageLine(engine.stages)}; fit ${ours.model.optimizer.iterations} L-BFGS iterations, ${ours.model.optimizer.evaluations} full passes\n` +
+      `  stages: ${stageLine(engineStages)}; fit ${ours.model.optimizer.iterations} L-BFGS iterations, ${ours.model.optimizer.evaluations} full passes\n` +
       `reference (NumPy/pandas/SciPy): ${python.seconds.toFixed(1)}s end to end, ${(spec.rows / python.seconds).toFixed(0)} rows/s, CPU ${python.cpuSeconds.toFixed(1)}s, peak ${python.peakMegabytes.toFixed(0)} MB\n` +
       `  stages: ${stageLine(pythonStages)}; fit ${theirs.model.iterations} L-BFGS-B iterations\n` +
       `time ratio engine / reference: ${(engine.seconds / python.seconds).toFixed(2)}\n`,
@@ -184,17 +214,48 @@ async function benchCase(spec: BenchDataSpec): Promise<void> {
   }
 }
 
+/**
+ * The simulation of methods.md §7 under SIMULATION_PLAN with the default S = 3 seeds (33 runs),
+ * through the CLI as a user runs it; its stage's wall and CPU time are the simulation's own.
+ */
+async function benchSimulation(spec: BenchDataSpec): Promise<void> {
+  const file = await prepareData(spec, "simulation: ");
+  const { participants, localSteps, rounds, batchSize } = SIMULATION_PLAN;
+  const engine = await runEngine(file, [
+    "--participants",
+    String(participants),
+    "--local-steps",
+    String(localSteps),
+    "--rounds",
+    String(rounds),
+    "--batch-size",
+    String(batchSize),
+    "--simulate",
+  ]);
+  const summary = JSON.parse(engine.stdout) as PartitionSummary;
+  const simulation = summary.simulation;
+  const stage = engine.stages.simulating;
+  if (!simulation || !stage) throw new Error("the analyze CLI ran no simulation");
+  const finals = simulation.algorithms
+    .map((algorithm) => `${algorithm.name} ${algorithm.final?.toExponential(2) ?? "n/a"}`)
+    .join(", ");
+  process.stdout.write(
+    `plan M=${participants} K=${localSteps} R=${rounds} b=${batchSize}, ${simulation.seeds} seeds (${3 * (8 + simulation.seeds)} runs), estimated ${simulation.cost.toExponential(2)} multiply-adds, ${countAvailableThreads()} threads\n` +
+      `simulation: ${stage.seconds.toFixed(1)}s wall, CPU ${stage.cpuSeconds.toFixed(1)}s (CPU / wall ${(stage.cpuSeconds / stage.seconds).toFixed(2)})\n` +
+      `engine end to end: ${engine.seconds.toFixed(1)}s wall, CPU ${engine.cpuSeconds.toFixed(1)}s, peak ${engine.peakMegabytes.toFixed(0)} MB\n` +
+      `final F − F*: ${finals}; verdict ${simulation.verdict} (bounds: ${summary.advice.verdict})\n`,
+  );
+}
+
 async function main(): Promise<void> {
   mkdirSync(outputFolder, { recursive: true });
   process.stdout.write(
     `machine: ${availableParallelism()} cores, load average ${loadavg()[0].toFixed(1)} at the start (other work on the machine slows both programs)\n`,
   );
-  const cases = process.argv.includes("--small")
-    ? CASES.slice(0, 1)
-    : process.argv.includes("--large")
-      ? CASES.slice(1)
-      : CASES;
-  for (const spec of cases) await benchCase(spec);
+  const only = ["--small", "--large", "--simulation"].find((flag) => process.argv.includes(flag));
+  if (only === undefined || only === "--small") await benchCase(CASES[0]);
+  if (only === undefined || only === "--large") await benchCase(CASES[1]);
+  if (only === undefined || only === "--simulation") await benchSimulation(CASES[0]);
 }
 
 main().catch((error: unknown) => {

@@ -1,4 +1,5 @@
 import type { AlgorithmName, RunOutcome } from "./run-algorithm";
+import type { RunRequest } from "./run-thread-protocol";
 import type { RunExecutor } from "./run-threads";
 import type { SimulationProgress } from "./simulate-plan";
 
@@ -50,7 +51,7 @@ export class RunSchedule {
     private readonly runs: readonly PlannedRun[],
     rounds: number,
     private readonly runLocally: (
-      request: Parameters<RunExecutor["execute"]>[0],
+      request: RunRequest,
       onRound: (round: number) => void,
       signal: AbortSignal,
     ) => Promise<RunOutcome>,
@@ -135,7 +136,7 @@ export class RunSchedule {
     const run = this.runs[index];
     this.state[index] = "running";
     this.progress.start(index);
-    const request = {
+    const request: RunRequest = {
       algorithm: run.algorithm,
       stepSize,
       seed: run.seed,
