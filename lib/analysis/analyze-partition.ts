@@ -51,7 +51,8 @@ export interface PartitionInput {
   /**
    * Threads sharing the passes over the rows, the calling thread included (1: no worker threads).
    * Default: every core (at most 8) when the data is large enough to gain — at least 16 MB by
-   * `dataBytes`, or, when the size is unknown, at least 2²⁶ multiply-adds per pass. The summary is
+   * `dataBytes`, or, when the size is unknown, at least 2²⁶ multiply-adds per pass. Also the
+   * simulation's thread count when given (by default it chooses by its own cost). The summary is
    * the same bit for bit whatever the number.
    */
   threads?: number;
@@ -227,7 +228,8 @@ async function analyzeWithPool(
           boundVerdict: advice.verdict,
         },
         plan,
-        options.simulate,
+        // A caller's thread count (e.g. 1 to stay on one core) holds for the simulation too.
+        { ...options.simulate, threads: input.threads },
         { onProgress: input.onSimulationProgress, signal: input.signal },
       )
     : undefined;
