@@ -6,7 +6,7 @@ import type { TrainingPlan } from "@/lib/analysis/simulation/run-algorithm";
 import {
   checkSimulationBudget,
   estimateSimulationCost,
-} from "@/lib/analysis/simulation/simulate-plan";
+} from "@/lib/analysis/simulation/simulation-cost";
 import { formatFigure } from "@/lib/reports/report-view";
 import { detectTask } from "@/lib/uploads/preview-task";
 import type { AnalysisOptions } from "@/lib/validation/analysis-options";

@@ -1,5 +1,4 @@
 import { decideVerdict, type Verdict } from "../advise-plan";
-import { AnalysisInputError } from "../errors";
 import { countWeightRows } from "../objective";
 import { countAvailableThreads } from "../pass-pool";
 import {
@@ -11,11 +10,17 @@ import {
 } from "./run-algorithm";
 import { RunThreads } from "./run-threads";
 import { RunSchedule, type PlannedRun } from "./schedule-runs";
+import {
+  ALGORITHMS,
+  checkSimulationBudget,
+  estimateSimulationCost,
+  STEP_SIZE_COUNT,
+} from "./simulation-cost";
 
-/** The algorithms of methods.md §7, in report order. */
-export const ALGORITHMS: readonly AlgorithmName[] = ["minibatch", "local", "scaffold"];
-/** Step sizes tried: η = 2⁻ᵏ/H for k = 0 … 7 (methods.md §7). */
-export const STEP_SIZE_COUNT = 8;
+// The cost and its check live in simulation-cost.ts, which imports no threads, so the web app can
+// estimate a simulation without bundling its run threads.
+export { ALGORITHMS, checkSimulationBudget, estimateSimulationCost, STEP_SIZE_COUNT };
+
 /** A curve has at most this many points (methods.md §7). */
 export const MAX_CURVE_POINTS = 100;
 /**
@@ -107,48 +112,6 @@ export interface SimulationSummary {
   agreesWithBounds: boolean;
   /** One plain sentence on how the simulation compares with the bounds. */
   note: string;
-}
-
-/**
- * The simulation's cost in multiply-adds, as methods.md §7 estimates it before starting:
- * 3 algorithms × (8 + S) runs × R·M·K·b·(d+1)·C (C = 1 for least squares).
- *
- * Example: M = 100, K = 10, R = 100, b = 32, d + 1 = 33, C = 10, S = 3 gives 3.4848e10.
- */
-export function estimateSimulationCost(
-  plan: TrainingPlan,
-  width: number,
-  weightRows: number,
-  seeds: number,
-): number {
-  const perRun =
-    plan.rounds * plan.participants * plan.localSteps * plan.batchSize * width * weightRows;
-  return ALGORITHMS.length * (STEP_SIZE_COUNT + seeds) * perRun;
-}
-
-/**
- * Throws AnalysisInputError when the estimated cost is above the budget, with the largest rounds R
- * and participants M that would fit so the user knows what to ask for instead.
- */
-export function checkSimulationBudget(cost: number, budget: number, plan: TrainingPlan): void {
-  if (cost <= budget) return;
-  const scale = budget / cost;
-  const rounds = Math.floor(plan.rounds * scale);
-  const participants = Math.floor(plan.participants * scale);
-  const suggestions = [
-    rounds >= 1 ? `at most ${rounds} rounds` : null,
-    participants >= 1 ? `at most ${participants} participants per round` : null,
-  ].filter((text) => text !== null);
-  throw new AnalysisInputError(
-    `the simulation would take about ${formatCount(cost)} multiply-adds, above the budget of ${formatCount(budget)}`,
-    {
-      expected:
-        (suggestions.length > 0
-          ? `fewer rounds or participants (${suggestions.join(", or ")})`
-          : "fewer rounds, participants, local steps or a smaller batch") +
-        ", fewer seeds, or a larger budget",
-    },
-  );
 }
 
 /**
@@ -406,8 +369,4 @@ function describeAgreement(simulated: Verdict, bound: Verdict, ratio: number | n
     `The simulation disagrees with the bounds: they point to ${VERDICT_WORDS[bound]}, ` +
     `but ${measured} (${VERDICT_WORDS[simulated]}).`
   );
-}
-
-function formatCount(value: number): string {
-  return value.toExponential(2).replace("e+", "e");
 }

@@ -1,0 +1,56 @@
+import { AnalysisInputError } from "../errors";
+import type { AlgorithmName, TrainingPlan } from "./run-algorithm";
+
+// The simulation's cost before it starts (methods.md §7), apart from the simulation itself: it
+// imports no threads, so the web app can estimate and refuse a simulation without bundling them.
+
+/** The algorithms of methods.md §7, in report order. */
+export const ALGORITHMS: readonly AlgorithmName[] = ["minibatch", "local", "scaffold"];
+/** Step sizes tried: η = 2⁻ᵏ/H for k = 0 … 7 (methods.md §7). */
+export const STEP_SIZE_COUNT = 8;
+
+/**
+ * The simulation's cost in multiply-adds, as methods.md §7 estimates it before starting:
+ * 3 algorithms × (8 + S) runs × R·M·K·b·(d+1)·C (C = 1 for least squares).
+ *
+ * Example: M = 100, K = 10, R = 100, b = 32, d + 1 = 33, C = 10, S = 3 gives 3.4848e10.
+ */
+export function estimateSimulationCost(
+  plan: TrainingPlan,
+  width: number,
+  weightRows: number,
+  seeds: number,
+): number {
+  const perRun =
+    plan.rounds * plan.participants * plan.localSteps * plan.batchSize * width * weightRows;
+  return ALGORITHMS.length * (STEP_SIZE_COUNT + seeds) * perRun;
+}
+
+/**
+ * Throws AnalysisInputError when the estimated cost is above the budget, with the largest rounds R
+ * and participants M that would fit so the user knows what to ask for instead.
+ */
+export function checkSimulationBudget(cost: number, budget: number, plan: TrainingPlan): void {
+  if (cost <= budget) return;
+  const scale = budget / cost;
+  const rounds = Math.floor(plan.rounds * scale);
+  const participants = Math.floor(plan.participants * scale);
+  const suggestions = [
+    rounds >= 1 ? `at most ${rounds} rounds` : null,
+    participants >= 1 ? `at most ${participants} participants per round` : null,
+  ].filter((text) => text !== null);
+  throw new AnalysisInputError(
+    `the simulation would take about ${formatCount(cost)} multiply-adds, above the budget of ${formatCount(budget)}`,
+    {
+      expected:
+        (suggestions.length > 0
+          ? `fewer rounds or participants (${suggestions.join(", or ")})`
+          : "fewer rounds, participants, local steps or a smaller batch") +
+        ", fewer seeds, or a larger budget",
+    },
+  );
+}
+
+function formatCount(value: number): string {
+  return value.toExponential(2).replace("e+", "e");
+}
