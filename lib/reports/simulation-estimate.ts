@@ -19,11 +19,11 @@ import type { AnalysisOptions } from "@/lib/validation/analysis-options";
 type PreviewColumn = DataFilePreview["columns"][number];
 
 /**
- * Multiply-adds the simulation does per second, roughly, on one core. Measured on this project's
- * 2-core machine with `npm run analyze -- --simulate`: penguins (d + 1 = 8, C = 3, R = 2000),
- * 1.5 × 10⁹ in 15 s of CPU time; the benchmark's 100 000 × 32 × 10 data (M = 100, R = 10),
- * 3.5 × 10⁹ in 37 s of CPU time for the whole run. A guide for the time hint, not a promise: a busy
- * machine takes longer.
+ * Multiply-adds the simulation does per second on one core, roughly, for the time hint. Measured on
+ * this project's 2-core machine: penguins (d + 1 = 8, C = 3, R = 2000), 1.5 × 10⁹ in 15 s of CPU
+ * time, about 10⁸ a second; the benchmark's 100 000 × 32 × 10 case (M = 100, K = 10, R = 100,
+ * S = 3), 3.5 × 10¹⁰ in 165 s of CPU time (README), about 2 × 10⁸. The slower figure is taken, so
+ * the hint errs long; a second free core roughly halves it, a busy machine lengthens it.
  */
 export const SIMULATION_MULTIPLY_ADDS_PER_SECOND = 1e8;
 
