@@ -102,9 +102,41 @@ export function accumulatePass(
   workspace: PassWorkspace,
   withSquaredNorms: boolean,
 ): void {
+  accumulateBlocks(design, weights, rowStart, rowEnd, totals, workspace, true, withSquaredNorms);
+}
+
+/**
+ * Adds Σ ℓᵢ(W) of rows [rowStart, rowEnd) into `totals` and nothing else: the gradient sums are
+ * left as they are, and about half the work of `accumulatePass` (the gradient's multiply-adds) is
+ * skipped. The loss goes through the same arithmetic in the same order, so it is the same bit for
+ * bit as the loss `accumulatePass` adds — for evaluations that need F but not ∇F, such as the
+ * simulation's suboptimality curve (methods.md §7).
+ */
+export function accumulateLoss(
+  design: PassData,
+  weights: Float64Array,
+  rowStart: number,
+  rowEnd: number,
+  totals: PassTotals,
+  workspace: PassWorkspace,
+): void {
+  accumulateBlocks(design, weights, rowStart, rowEnd, totals, workspace, false, false);
+}
+
+/** The pass itself, block by block; without `withGradient` no gradient entry is touched. */
+function accumulateBlocks(
+  design: PassData,
+  weights: Float64Array,
+  rowStart: number,
+  rowEnd: number,
+  totals: PassTotals,
+  workspace: PassWorkspace,
+  withGradient: boolean,
+  withSquaredNorms: boolean,
+): void {
   for (let blockStart = rowStart; blockStart < rowEnd; blockStart += BLOCK_ROWS) {
     const blockEnd = Math.min(rowEnd, blockStart + BLOCK_ROWS);
-    workspace.blockGradient.fill(0);
+    if (withGradient) workspace.blockGradient.fill(0);
     if (design.labels !== null) {
       accumulateSoftmaxBlock(
         design,
@@ -113,6 +145,7 @@ export function accumulatePass(
         blockStart,
         blockEnd,
         workspace,
+        withGradient,
         withSquaredNorms,
       );
     } else {
@@ -123,11 +156,13 @@ export function accumulatePass(
         blockStart,
         blockEnd,
         workspace,
+        withGradient,
         withSquaredNorms,
       );
     }
     totals.rows += blockEnd - blockStart;
     addLoss(totals, workspace.blockSums[0]);
+    if (!withGradient) continue;
     addSquaredNorms(totals, workspace.blockSums[1]);
     addCompensated(totals.gradientSum, totals.gradientCompensation, workspace.blockGradient);
   }
@@ -140,6 +175,7 @@ function accumulateSoftmaxBlock(
   rowStart: number,
   rowEnd: number,
   workspace: PassWorkspace,
+  withGradient: boolean,
   withSquaredNorms: boolean,
 ): void {
   const width = design.x.cols;
@@ -216,6 +252,7 @@ function accumulateSoftmaxBlock(
       const label = offset + labels[row + k];
       const labelScore = scores[label];
       loss += softmaxInPlace(scores, offset, classCount) - labelScore;
+      if (!withGradient) continue;
       scores[label] -= 1;
       if (withSquaredNorms) {
         squaredNorms += squaredResidualTimesRowNorm(
@@ -228,6 +265,7 @@ function accumulateSoftmaxBlock(
         );
       }
     }
+    if (!withGradient) continue;
     for (c = 0; c + 1 < classCount; c += 2) {
       const residualA0 = scores[c];
       const residualA1 = scores[classCount + c];
@@ -276,6 +314,7 @@ function accumulateSoftmaxBlock(
     const label = labels[row];
     const labelScore = scores[label];
     loss += softmaxInPlace(scores, 0, classCount) - labelScore;
+    if (!withGradient) continue;
     scores[label] -= 1;
     if (withSquaredNorms) {
       squaredNorms += squaredResidualTimesRowNorm(scores, 0, classCount, x, base, width);
@@ -314,6 +353,7 @@ function accumulateLeastSquaresBlock(
   rowStart: number,
   rowEnd: number,
   workspace: PassWorkspace,
+  withGradient: boolean,
   withSquaredNorms: boolean,
 ): void {
   const width = design.x.cols;
@@ -326,6 +366,7 @@ function accumulateLeastSquaresBlock(
     let residual = -targets[row];
     for (let j = 0; j < width; j++) residual += weights[j] * x[base + j];
     loss += 0.5 * residual * residual;
+    if (!withGradient) continue;
     if (withSquaredNorms) {
       let rowNorm = 0;
       for (let j = 0; j < width; j++) rowNorm += x[base + j] * x[base + j];

@@ -12,21 +12,27 @@ export function countWeightRows(design: Pick<Design, "classes">): number {
   return design.classes === null ? 1 : design.classes.length;
 }
 
-/**
- * Adds the regularizer's gradient λ·W (bias column excluded) to `gradient` and returns its value
- * (λ/2)‖W without its bias column‖² (methods.md §2).
- */
-export function addRegularizer(
+/** Adds the regularizer's gradient λ·W (bias column excluded) to `gradient` (methods.md §2). */
+export function addRegularizerGradient(
   weights: Float64Array,
   width: number,
   lambda: number,
   gradient: Float64Array,
-): number {
+): void {
+  for (let k = 0; k < weights.length; k++) {
+    if (k % width !== width - 1) gradient[k] += lambda * weights[k];
+  }
+}
+
+/**
+ * The regularizer (λ/2)‖W without its bias column‖² (methods.md §2).
+ *
+ * Example: W = [[1, 2, 5]] (the last column the bias) with λ = 0.1 gives 0.05 · (1 + 4) = 0.25.
+ */
+export function computePenalty(weights: Float64Array, width: number, lambda: number): number {
   let squared = 0;
   for (let k = 0; k < weights.length; k++) {
-    if (k % width === width - 1) continue;
-    squared += weights[k] * weights[k];
-    gradient[k] += lambda * weights[k];
+    if (k % width !== width - 1) squared += weights[k] * weights[k];
   }
   return 0.5 * lambda * squared;
 }
@@ -90,9 +96,9 @@ export function finishObjective(
 ): ObjectiveValue {
   const dataGradient = sums.gradient.map((value) => value / rows);
   const gradient = Float64Array.from(dataGradient);
-  const penalty = addRegularizer(weights, width, lambda, gradient);
+  addRegularizerGradient(weights, width, lambda, gradient);
   return {
-    value: sums.loss / rows + penalty,
+    value: sums.loss / rows + computePenalty(weights, width, lambda),
     gradient,
     meanSquaredSampleNorm: withSquaredNorms ? sums.squaredNorms / rows : Number.NaN,
     dataGradient,

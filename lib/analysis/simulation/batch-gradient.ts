@@ -1,5 +1,5 @@
 import type { SeededRandom } from "../../math/random";
-import { addRegularizer, countWeightRows } from "../objective";
+import { addRegularizerGradient, computePenalty, countWeightRows } from "../objective";
 import {
   accumulatePass,
   createTotals,
@@ -84,7 +84,7 @@ export function addShardBatch(
 
 /**
  * Writes ∇F_S(W) of the rows summed since the last `clearBatchSums` into `gradient`: their mean
- * per-row gradient plus the regularizer λ·W off the bias column (methods.md §2). Returns F_S(W).
+ * per-row gradient plus the regularizer λ·W off the bias column (methods.md §2).
  */
 export function readBatchGradient(
   workspace: BatchWorkspace,
@@ -92,12 +92,28 @@ export function readBatchGradient(
   width: number,
   lambda: number,
   gradient: Float64Array,
-): number {
+): void {
   const totals = workspace.totals;
   const inverse = 1 / totals.rows;
   for (let k = 0; k < gradient.length; k++) {
     gradient[k] = (totals.gradientSum[k] + totals.gradientCompensation[k]) * inverse;
   }
-  const penalty = addRegularizer(weights, width, lambda, gradient);
-  return (totals.lossSum + totals.lossCompensation) * inverse + penalty;
+  addRegularizerGradient(weights, width, lambda, gradient);
+}
+
+/**
+ * F_S(W) of the rows summed since the last `clearBatchSums`: their mean loss plus the regularizer
+ * (λ/2)‖W without its bias column‖² (methods.md §2).
+ */
+export function readBatchLoss(
+  workspace: BatchWorkspace,
+  weights: Float64Array,
+  width: number,
+  lambda: number,
+): number {
+  const totals = workspace.totals;
+  return (
+    (totals.lossSum + totals.lossCompensation) * (1 / totals.rows) +
+    computePenalty(weights, width, lambda)
+  );
 }

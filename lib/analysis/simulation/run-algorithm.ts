@@ -1,12 +1,13 @@
 import { SeededRandom } from "../../math/random";
 import type { Design } from "../design";
 import { countWeightRows } from "../objective";
-import { accumulatePass } from "../objective-pass";
+import { accumulateLoss } from "../objective-pass";
 import {
   addShardBatch,
   clearBatchSums,
   createBatchWorkspace,
   readBatchGradient,
+  readBatchLoss,
   type BatchWorkspace,
 } from "./batch-gradient";
 
@@ -114,7 +115,7 @@ export async function runAlgorithm(
   let curveIndex = 0;
   const recordIfOnCurve = (round: number): boolean => {
     if (curveIndex >= curveRounds.length || curveRounds[curveIndex] !== round) return true;
-    const value = evaluateAllRows(design, server, lambda, workspace, gradient);
+    const value = evaluateAllRows(design, server, lambda, workspace);
     if (!Number.isFinite(value) || value > limit) return false;
     suboptimality[curveIndex++] = value - problem.optimumValue;
     return true;
@@ -220,17 +221,19 @@ function chooseParticipants(random: SeededRandom, order: Int32Array, chosen: Int
   }
 }
 
-/** F(W) over every row (methods.md §2), with the run's buffers; `scratch` receives ∇F. */
+/**
+ * F(W) over every row (methods.md §2), with the run's buffers. A loss-only pass: the curve needs F,
+ * not ∇F, and skipping the gradient halves the pass's multiply-adds without changing F's bits.
+ */
 function evaluateAllRows(
   design: SimulationDesign,
   weights: Float64Array,
   lambda: number,
   workspace: BatchWorkspace,
-  scratch: Float64Array,
 ): number {
   clearBatchSums(workspace);
-  accumulatePass(design, weights, 0, design.x.rows, workspace.totals, workspace.pass, false);
-  return readBatchGradient(workspace, weights, design.x.cols, lambda, scratch);
+  accumulateLoss(design, weights, 0, design.x.rows, workspace.totals, workspace.pass);
+  return readBatchLoss(workspace, weights, design.x.cols, lambda);
 }
 
 function isFiniteVector(values: Float64Array): boolean {
