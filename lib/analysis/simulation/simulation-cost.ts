@@ -14,6 +14,14 @@ export const STEP_SIZE_COUNT = 8;
  * 3 algorithms × (8 + S) runs × R·M·K·b·(d+1)·C (C = 1 for least squares).
  *
  * Example: M = 100, K = 10, R = 100, b = 32, d + 1 = 33, C = 10, S = 3 gives 3.4848e10.
+ *
+ * It counts the training steps only (one multiply-add per score, as the formula does; a step's
+ * gradient doubles the real count). Left out: F on all N rows at each curve point, a loss-only pass
+ * of N·(d+1)·C multiply-adds, done 3 × (8·min(R + 1, 11) + S·min(R + 1, 100)) times (grid runs check
+ * at 11 rounds, seed runs at up to 100). That is small beside the steps when N is small next to
+ * R·M·K·b, but not always: on the benchmark (N = 100 000, the example's plan) it is 3.84e10, more
+ * than this estimate and about half the steps' real count; with N = 10⁶, M = 10, K = 1, b = 32 it
+ * is nearly all of the work. The shown cost and the budget keep methods.md §7's formula.
  */
 export function estimateSimulationCost(
   plan: TrainingPlan,
