@@ -3,7 +3,12 @@ import { and, count, desc, eq, inArray } from "drizzle-orm";
 import { db } from "@/db/client";
 import { memberships, reports, reportShards, reviewRequests, users } from "@/db/schema";
 import { recordAudit } from "./queries/audit";
-import { addComment, createReviewRequests, recordDecision } from "./queries/reviews";
+import {
+  addComment,
+  createReviewRequests,
+  recordDecision,
+  reportForReviewColumns,
+} from "./queries/reviews";
 import { DEMO_ACCOUNTS } from "./seed";
 import { DEMO_REPORT_TITLES } from "./seed-demo-analyses";
 
@@ -23,13 +28,7 @@ async function findDemoPerson(email: string): Promise<DemoPerson | undefined> {
 /** The demo reports once the worker has stored both, or undefined if they are not there yet. */
 async function findDemoReports(workspaceId: string) {
   const rows = await db()
-    .select({
-      id: reports.id,
-      workspaceId: reports.workspaceId,
-      title: reports.title,
-      version: reports.version,
-      authorId: reports.authorId,
-    })
+    .select(reportForReviewColumns)
     .from(reports)
     .where(
       and(

@@ -41,6 +41,15 @@ export async function listReviewerCandidates(workspaceId: string): Promise<Works
   return people.filter((person) => REVIEWING_ROLES.includes(person.role));
 }
 
+/** What the review queries need of a report version; select these to get a ReportForReview. */
+export const reportForReviewColumns = {
+  id: reports.id,
+  workspaceId: reports.workspaceId,
+  title: reports.title,
+  version: reports.version,
+  authorId: reports.authorId,
+};
+
 export type ReportForReview = {
   id: string;
   workspaceId: string;
@@ -55,13 +64,7 @@ export async function requireReportInWorkspace(
   reportId: string,
 ): Promise<ReportForReview> {
   const [report] = await db()
-    .select({
-      id: reports.id,
-      workspaceId: reports.workspaceId,
-      title: reports.title,
-      version: reports.version,
-      authorId: reports.authorId,
-    })
+    .select(reportForReviewColumns)
     .from(reports)
     .where(and(eq(reports.workspaceId, workspaceId), eq(reports.id, reportId)));
   if (!report) throw new RuleError(404, "That report does not exist in this workspace.");

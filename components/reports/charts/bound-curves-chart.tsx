@@ -2,8 +2,11 @@
 
 import { ResponsiveLine } from "@nivo/line";
 import type { BoundCurvePoint } from "@/lib/reports/bound-curves";
-import { formatDecade, formatFigure, spanDecades } from "@/lib/reports/report-view";
+import { formatDecade, spanDecades } from "@/lib/reports/report-view";
 import { CHART_THEME, PALETTE } from "./chart-style";
+import { LineLegend, makeSliceTooltip } from "./line-chart-parts";
+
+const LocalStepsTooltip = makeSliceTooltip((x) => `K = ${x}`);
 
 const SERIES = [
   { id: "Local SGD", key: "local", colour: PALETTE.verdigris },
@@ -80,34 +83,14 @@ export function BoundCurvesChart({
           ]}
           useMesh
           enableSlices="x"
-          sliceTooltip={({ slice }) => (
-            <div className="rounded bg-white px-2 py-1 text-xs shadow">
-              <div className="font-semibold">K = {String(slice.points[0]?.data.x)}</div>
-              {slice.points.map((point) => (
-                <div key={point.id} style={{ color: point.seriesColor }}>
-                  {point.seriesId}: {formatFigure(Number(point.data.y), 3)}
-                </div>
-              ))}
-            </div>
-          )}
+          sliceTooltip={LocalStepsTooltip}
           theme={CHART_THEME}
           animate={false}
           role="img"
           ariaLabel={label}
         />
       </div>
-      <ul className="mt-2 flex flex-wrap gap-x-4 gap-y-1 text-xs text-ink-soft" aria-label="Curves">
-        {SERIES.map((series) => (
-          <li key={series.id} className="flex items-center gap-1.5">
-            <span
-              aria-hidden
-              className="inline-block h-0.5 w-5"
-              style={{ background: series.colour }}
-            />
-            {series.id}
-          </li>
-        ))}
-      </ul>
+      <LineLegend entries={SERIES.map((series) => ({ label: series.id, colour: series.colour }))} />
     </div>
   );
 }

@@ -2,9 +2,12 @@
 
 import { ResponsiveLine, type LineCustomSvgLayerProps } from "@nivo/line";
 import type { AlgorithmName } from "@/lib/analysis/simulation/run-algorithm";
-import { formatDecade, formatFigure, spanDecades } from "@/lib/reports/report-view";
+import { formatDecade, spanDecades } from "@/lib/reports/report-view";
 import type { CurvePoint } from "@/lib/reports/simulation-view";
 import { CHART_THEME, PALETTE } from "./chart-style";
+import { LineLegend, makeSliceTooltip } from "./line-chart-parts";
+
+const RoundTooltip = makeSliceTooltip((x) => `Round ${x}`);
 
 /** Local SGD and minibatch SGD keep the colours of their verdicts and bound curves. */
 const ALGORITHM_COLOURS: Record<AlgorithmName, string> = {
@@ -90,38 +93,24 @@ export function SimulationCurvesChart({
           }}
           layers={["grid", "axes", SeedBands, "lines", "slices"]}
           enableSlices="x"
-          sliceTooltip={({ slice }) => (
-            <div className="rounded bg-white px-2 py-1 text-xs shadow">
-              <div className="font-semibold">Round {String(slice.points[0]?.data.x)}</div>
-              {slice.points.map((point) => (
-                <div key={point.id} style={{ color: point.seriesColor }}>
-                  {point.seriesId}: {formatFigure(Number(point.data.y), 3)}
-                </div>
-              ))}
-            </div>
-          )}
+          sliceTooltip={RoundTooltip}
           theme={CHART_THEME}
           animate={false}
           role="img"
           ariaLabel={label}
         />
       </div>
-      <ul className="mt-2 flex flex-wrap gap-x-4 gap-y-1 text-xs text-ink-soft" aria-label="Curves">
-        {drawn.map((entry) => (
-          <li key={entry.name} className="flex items-center gap-1.5">
-            <span
-              aria-hidden
-              className="inline-block h-0.5 w-5"
-              style={{ background: ALGORITHM_COLOURS[entry.name] }}
-            />
-            {entry.label}
-          </li>
-        ))}
+      <LineLegend
+        entries={drawn.map((entry) => ({
+          label: entry.label,
+          colour: ALGORITHM_COLOURS[entry.name],
+        }))}
+      >
         <li className="flex items-center gap-1.5">
           <span aria-hidden className="inline-block h-2.5 w-5 rounded-sm bg-ink/15" />
           shaded: lowest to highest over the seeds
         </li>
-      </ul>
+      </LineLegend>
     </div>
   );
 }
