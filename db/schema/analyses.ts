@@ -9,9 +9,9 @@ import {
   pgTable,
   primaryKey,
   text,
-  timestamp,
   uniqueIndex,
 } from "drizzle-orm/pg-core";
+import { cascadingReference, createdAt, instant, uuidPrimaryKey } from "./columns";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
 import type { PartitionSummary } from "@/lib/analysis/summary";
 import type { SimulationProgress } from "@/lib/analysis/simulation/simulate-plan";
@@ -36,12 +36,8 @@ export type DataFilePreview = {
 export const dataFiles = pgTable(
   "data_files",
   {
-    id: text("id")
-      .primaryKey()
-      .$defaultFn(() => crypto.randomUUID()),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
+    id: uuidPrimaryKey(),
+    workspaceId: cascadingReference("workspace_id", () => workspaces.id),
     kind: dataFileKind("kind").notNull(),
     /** The name the user's file had; shown in the product and in messages. */
     name: text("name").notNull(),
@@ -52,7 +48,7 @@ export const dataFiles = pgTable(
     uploadedBy: text("uploaded_by")
       .notNull()
       .references(() => users.id),
-    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    createdAt: createdAt(),
   },
   (table) => [
     uniqueIndex("data_files_object_key_idx").on(table.objectKey),
@@ -75,12 +71,8 @@ export const analysisStatus = pgEnum("analysis_status", [
 export const analyses = pgTable(
   "analyses",
   {
-    id: text("id")
-      .primaryKey()
-      .$defaultFn(() => crypto.randomUUID()),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
+    id: uuidPrimaryKey(),
+    workspaceId: cascadingReference("workspace_id", () => workspaces.id),
     title: text("title").notNull(),
     datasetFileId: text("dataset_file_id")
       .notNull()
@@ -105,9 +97,9 @@ export const analyses = pgTable(
     createdBy: text("created_by")
       .notNull()
       .references(() => users.id),
-    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
-    startedAt: timestamp("started_at", { withTimezone: true }),
-    finishedAt: timestamp("finished_at", { withTimezone: true }),
+    createdAt: createdAt(),
+    startedAt: instant("started_at"),
+    finishedAt: instant("finished_at"),
   },
   (table) => [index("analyses_workspace_idx").on(table.workspaceId, table.createdAt)],
 );
@@ -128,12 +120,8 @@ export type ReportInput = {
 export const reports = pgTable(
   "reports",
   {
-    id: text("id")
-      .primaryKey()
-      .$defaultFn(() => crypto.randomUUID()),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
+    id: uuidPrimaryKey(),
+    workspaceId: cascadingReference("workspace_id", () => workspaces.id),
     analysisId: text("analysis_id")
       .notNull()
       .references(() => analyses.id),
@@ -154,7 +142,7 @@ export const reports = pgTable(
     authorId: text("author_id")
       .notNull()
       .references(() => users.id),
-    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    createdAt: createdAt(),
   },
   (table) => [
     uniqueIndex("reports_analysis_idx").on(table.analysisId),
@@ -167,9 +155,7 @@ export const reports = pgTable(
 export const reportShards = pgTable(
   "report_shards",
   {
-    reportId: text("report_id")
-      .notNull()
-      .references(() => reports.id, { onDelete: "cascade" }),
+    reportId: cascadingReference("report_id", () => reports.id),
     ordinal: integer("ordinal").notNull(),
     shardId: text("shard_id").notNull(),
     rows: integer("rows").notNull(),

@@ -1,4 +1,5 @@
-import { index, pgTable, text, timestamp, uniqueIndex } from "drizzle-orm/pg-core";
+import { index, pgTable, text, uniqueIndex } from "drizzle-orm/pg-core";
+import { cascadingReference, createdAt, instant, uuidPrimaryKey } from "./columns";
 import { users } from "./auth";
 import { workspaces } from "./workspaces";
 
@@ -10,21 +11,15 @@ import { workspaces } from "./workspaces";
 export const apiTokens = pgTable(
   "api_tokens",
   {
-    id: text("id")
-      .primaryKey()
-      .$defaultFn(() => crypto.randomUUID()),
-    userId: text("user_id")
-      .notNull()
-      .references(() => users.id, { onDelete: "cascade" }),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
+    id: uuidPrimaryKey(),
+    userId: cascadingReference("user_id", () => users.id),
+    workspaceId: cascadingReference("workspace_id", () => workspaces.id),
     name: text("name").notNull(),
     tokenHash: text("token_hash").notNull(),
-    expiresAt: timestamp("expires_at", { withTimezone: true }).notNull(),
-    revokedAt: timestamp("revoked_at", { withTimezone: true }),
-    lastUsedAt: timestamp("last_used_at", { withTimezone: true }),
-    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    expiresAt: instant("expires_at").notNull(),
+    revokedAt: instant("revoked_at"),
+    lastUsedAt: instant("last_used_at"),
+    createdAt: createdAt(),
   },
   (table) => [
     uniqueIndex("api_tokens_token_hash_idx").on(table.tokenHash),

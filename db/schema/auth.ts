@@ -1,4 +1,5 @@
 import { integer, pgTable, primaryKey, text, timestamp } from "drizzle-orm/pg-core";
+import { cascadingReference, createdAt, uuidPrimaryKey } from "./columns";
 
 /**
  * People who can sign in. The column set is what next-auth's Drizzle adapter expects, plus a
@@ -6,24 +7,20 @@ import { integer, pgTable, primaryKey, text, timestamp } from "drizzle-orm/pg-co
  * E-mail addresses are stored lower-cased so lookups never depend on how someone typed them.
  */
 export const users = pgTable("users", {
-  id: text("id")
-    .primaryKey()
-    .$defaultFn(() => crypto.randomUUID()),
+  id: uuidPrimaryKey(),
   name: text("name"),
   email: text("email").notNull().unique(),
   emailVerified: timestamp("email_verified", { mode: "date", withTimezone: true }),
   image: text("image"),
   passwordHash: text("password_hash"),
-  createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  createdAt: createdAt(),
 });
 
 /** OAuth accounts; required by the adapter's contract although Partita signs in without OAuth. */
 export const accounts = pgTable(
   "accounts",
   {
-    userId: text("user_id")
-      .notNull()
-      .references(() => users.id, { onDelete: "cascade" }),
+    userId: cascadingReference("user_id", () => users.id),
     type: text("type").notNull(),
     provider: text("provider").notNull(),
     providerAccountId: text("provider_account_id").notNull(),
@@ -41,9 +38,7 @@ export const accounts = pgTable(
 /** Database sessions; unused with the JWT strategy but part of the adapter's contract. */
 export const sessions = pgTable("sessions", {
   sessionToken: text("session_token").primaryKey(),
-  userId: text("user_id")
-    .notNull()
-    .references(() => users.id, { onDelete: "cascade" }),
+  userId: cascadingReference("user_id", () => users.id),
   expires: timestamp("expires", { mode: "date", withTimezone: true }).notNull(),
 });
 

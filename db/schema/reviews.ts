@@ -6,10 +6,10 @@ import {
   pgTable,
   primaryKey,
   text,
-  timestamp,
   uniqueIndex,
   type AnyPgColumn,
 } from "drizzle-orm/pg-core";
+import { cascadingReference, createdAt, instant, uuidPrimaryKey } from "./columns";
 import { reports } from "./analyses";
 import { users } from "./auth";
 import { workspaces } from "./workspaces";
@@ -21,23 +21,13 @@ import { workspaces } from "./workspaces";
 export const reviewRequests = pgTable(
   "review_requests",
   {
-    id: text("id")
-      .primaryKey()
-      .$defaultFn(() => crypto.randomUUID()),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
-    reportId: text("report_id")
-      .notNull()
-      .references(() => reports.id, { onDelete: "cascade" }),
-    reviewerId: text("reviewer_id")
-      .notNull()
-      .references(() => users.id, { onDelete: "cascade" }),
-    requestedBy: text("requested_by")
-      .notNull()
-      .references(() => users.id, { onDelete: "cascade" }),
+    id: uuidPrimaryKey(),
+    workspaceId: cascadingReference("workspace_id", () => workspaces.id),
+    reportId: cascadingReference("report_id", () => reports.id),
+    reviewerId: cascadingReference("reviewer_id", () => users.id),
+    requestedBy: cascadingReference("requested_by", () => users.id),
     note: text("note"),
-    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    createdAt: createdAt(),
   },
   (table) => [
     uniqueIndex("review_requests_report_reviewer_idx").on(table.reportId, table.reviewerId),
@@ -54,27 +44,19 @@ export const commentAnchorKind = pgEnum("comment_anchor_kind", ["section", "shar
 export const reviewComments = pgTable(
   "review_comments",
   {
-    id: text("id")
-      .primaryKey()
-      .$defaultFn(() => crypto.randomUUID()),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
-    reportId: text("report_id")
-      .notNull()
-      .references(() => reports.id, { onDelete: "cascade" }),
+    id: uuidPrimaryKey(),
+    workspaceId: cascadingReference("workspace_id", () => workspaces.id),
+    reportId: cascadingReference("report_id", () => reports.id),
     parentId: text("parent_id").references((): AnyPgColumn => reviewComments.id, {
       onDelete: "cascade",
     }),
     anchorKind: commentAnchorKind("anchor_kind"),
     anchor: text("anchor"),
     body: text("body").notNull(),
-    authorId: text("author_id")
-      .notNull()
-      .references(() => users.id, { onDelete: "cascade" }),
+    authorId: cascadingReference("author_id", () => users.id),
     /** User ids of the members the body mentions (resolved when the comment was written). */
     mentions: text("mentions").array().notNull().default([]),
-    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    createdAt: createdAt(),
   },
   (table) => [index("review_comments_report_idx").on(table.reportId, table.createdAt)],
 );
@@ -88,21 +70,13 @@ export const reviewDecisionKind = pgEnum("review_decision_kind", ["approve", "ch
 export const reviewDecisions = pgTable(
   "review_decisions",
   {
-    id: text("id")
-      .primaryKey()
-      .$defaultFn(() => crypto.randomUUID()),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
-    reportId: text("report_id")
-      .notNull()
-      .references(() => reports.id, { onDelete: "cascade" }),
-    reviewerId: text("reviewer_id")
-      .notNull()
-      .references(() => users.id, { onDelete: "cascade" }),
+    id: uuidPrimaryKey(),
+    workspaceId: cascadingReference("workspace_id", () => workspaces.id),
+    reportId: cascadingReference("report_id", () => reports.id),
+    reviewerId: cascadingReference("reviewer_id", () => users.id),
     decision: reviewDecisionKind("decision").notNull(),
     reason: text("reason").notNull(),
-    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    createdAt: createdAt(),
   },
   (table) => [index("review_decisions_report_idx").on(table.reportId, table.createdAt)],
 );
@@ -129,9 +103,7 @@ export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 export const auditLog = pgTable(
   "audit_log",
   {
-    id: text("id")
-      .primaryKey()
-      .$defaultFn(() => crypto.randomUUID()),
+    id: uuidPrimaryKey(),
     workspaceId: text("workspace_id").notNull(),
     actorId: text("actor_id").notNull(),
     actorEmail: text("actor_email").notNull(),
@@ -139,7 +111,7 @@ export const auditLog = pgTable(
     targetType: text("target_type").notNull(),
     targetId: text("target_id").notNull(),
     details: jsonb("details").$type<Record<string, unknown>>().notNull().default({}),
-    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    createdAt: createdAt(),
   },
   (table) => [
     index("audit_log_workspace_idx").on(table.workspaceId, table.createdAt),
@@ -160,12 +132,10 @@ export const notificationKind = pgEnum("notification_kind", NOTIFICATION_KINDS);
 export const notificationPreferences = pgTable(
   "notification_preferences",
   {
-    userId: text("user_id")
-      .notNull()
-      .references(() => users.id, { onDelete: "cascade" }),
+    userId: cascadingReference("user_id", () => users.id),
     kind: notificationKind("kind").notNull(),
     enabled: boolean("enabled").notNull(),
-    updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+    updatedAt: instant("updated_at").notNull().defaultNow(),
   },
   (table) => [primaryKey({ columns: [table.userId, table.kind] })],
 );

@@ -1,36 +1,23 @@
-import {
-  index,
-  pgEnum,
-  pgTable,
-  primaryKey,
-  text,
-  timestamp,
-  uniqueIndex,
-} from "drizzle-orm/pg-core";
+import { index, pgEnum, pgTable, primaryKey, text, uniqueIndex } from "drizzle-orm/pg-core";
+import { cascadingReference, createdAt, instant, uuidPrimaryKey } from "./columns";
 import { users } from "./auth";
 
 /** Owners manage members and settings; analysts upload and analyse; reviewers read and decide. */
 export const workspaceRole = pgEnum("workspace_role", ["owner", "analyst", "reviewer"]);
 
 export const workspaces = pgTable("workspaces", {
-  id: text("id")
-    .primaryKey()
-    .$defaultFn(() => crypto.randomUUID()),
+  id: uuidPrimaryKey(),
   name: text("name").notNull(),
-  createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  createdAt: createdAt(),
 });
 
 export const memberships = pgTable(
   "memberships",
   {
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
-    userId: text("user_id")
-      .notNull()
-      .references(() => users.id, { onDelete: "cascade" }),
+    workspaceId: cascadingReference("workspace_id", () => workspaces.id),
+    userId: cascadingReference("user_id", () => users.id),
     role: workspaceRole("role").notNull(),
-    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    createdAt: createdAt(),
   },
   (table) => [
     primaryKey({ columns: [table.workspaceId, table.userId] }),
@@ -45,23 +32,17 @@ export const memberships = pgTable(
 export const invitations = pgTable(
   "invitations",
   {
-    id: text("id")
-      .primaryKey()
-      .$defaultFn(() => crypto.randomUUID()),
-    workspaceId: text("workspace_id")
-      .notNull()
-      .references(() => workspaces.id, { onDelete: "cascade" }),
+    id: uuidPrimaryKey(),
+    workspaceId: cascadingReference("workspace_id", () => workspaces.id),
     email: text("email").notNull(),
     role: workspaceRole("role").notNull(),
     tokenHash: text("token_hash").notNull(),
-    invitedBy: text("invited_by")
-      .notNull()
-      .references(() => users.id, { onDelete: "cascade" }),
-    expiresAt: timestamp("expires_at", { withTimezone: true }).notNull(),
-    acceptedAt: timestamp("accepted_at", { withTimezone: true }),
+    invitedBy: cascadingReference("invited_by", () => users.id),
+    expiresAt: instant("expires_at").notNull(),
+    acceptedAt: instant("accepted_at"),
     acceptedBy: text("accepted_by").references(() => users.id, { onDelete: "set null" }),
-    revokedAt: timestamp("revoked_at", { withTimezone: true }),
-    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    revokedAt: instant("revoked_at"),
+    createdAt: createdAt(),
   },
   (table) => [
     uniqueIndex("invitations_token_hash_idx").on(table.tokenHash),

@@ -1,0 +1,19 @@
+import { text, timestamp, type AnyPgColumn } from "drizzle-orm/pg-core";
+
+// Column shapes every table repeats, so a table definition shows what is particular to it.
+
+/** A text primary key the application fills with a random UUID (ids are never guessable). */
+export const uuidPrimaryKey = () =>
+  text("id")
+    .primaryKey()
+    .$defaultFn(() => crypto.randomUUID());
+
+/** A point in time, always with its time zone. */
+export const instant = (name: string) => timestamp(name, { withTimezone: true });
+
+/** When the row was written, set by PostgreSQL. */
+export const createdAt = () => instant("created_at").notNull().defaultNow();
+
+/** A required reference to a row whose deletion takes this one with it. */
+export const cascadingReference = (name: string, target: () => AnyPgColumn) =>
+  text(name).notNull().references(target, { onDelete: "cascade" });
