@@ -1,17 +1,7 @@
 import { describe, expect, it } from "vitest";
-import { advisePlan, type BoundInputs } from "@/lib/analysis/advise-plan";
+import { advisePlan } from "@/lib/analysis/advise-plan";
 import { classifyRegimeCell, computeRegimeMap } from "@/lib/reports/regime-map";
-
-const PLAN: BoundInputs = {
-  smoothness: 1.9,
-  distance: 5.7,
-  sigma2: 0.009,
-  zeta2Max: 0.77,
-  participants: 3,
-  localSteps: 10,
-  rounds: 100,
-  batchSize: 32,
-};
+import { PENGUIN_PLAN } from "./support/penguin-plan";
 
 function cell(map: ReturnType<typeof computeRegimeMap>, localSteps: number, rounds: number) {
   return map.log10Ratio[map.localSteps.indexOf(localSteps)][map.rounds.indexOf(rounds)];
@@ -35,7 +25,7 @@ describe("computeRegimeMap", () => {
   });
 
   it("agrees with the engine's stored grid and gives the plan a cell equal to its ρ", () => {
-    const inputs = { ...PLAN, localSteps: 12, rounds: 150 };
+    const inputs = { ...PENGUIN_PLAN, localSteps: 12, rounds: 150 };
     const advice = advisePlan(inputs, 0.5);
     const map = computeRegimeMap(inputs);
     expect(map.localSteps).toContain(12);
@@ -51,22 +41,27 @@ describe("computeRegimeMap", () => {
 
   // methods.md §5: "for large K and small ζ local SGD wins; for small K and large σ² minibatch wins".
   it("puts large K with small ζ² in local updates and small K with large σ² in large minibatches", () => {
-    const calm = computeRegimeMap({ ...PLAN, zeta2Max: 1e-6 });
+    const calm = computeRegimeMap({ ...PENGUIN_PLAN, zeta2Max: 1e-6 });
     expect(classifyRegimeCell(cell(calm, 4096, 100))).toBe("local-updates");
     // Many participants shrink the shared σ_b B/√(MKR) term, leaving local SGD's own noise term.
-    const noisy = computeRegimeMap({ ...PLAN, participants: 1000, sigma2: 1e4, zeta2Max: 1e-8 });
+    const noisy = computeRegimeMap({
+      ...PENGUIN_PLAN,
+      participants: 1000,
+      sigma2: 1e4,
+      zeta2Max: 1e-8,
+    });
     expect(classifyRegimeCell(cell(noisy, 2, 100))).toBe("large-minibatch");
   });
 
   it("has no cell where local SGD wins once the heterogeneity barrier holds at every R", () => {
     // ζ² = 1e6 ≥ H²B²/R for every R ≥ 1 on the map (H²B² ≈ 117).
-    const map = computeRegimeMap({ ...PLAN, zeta2Max: 1e6 });
+    const map = computeRegimeMap({ ...PENGUIN_PLAN, zeta2Max: 1e6 });
     const verdicts = map.log10Ratio.flat().map(classifyRegimeCell);
     expect(verdicts).not.toContain("local-updates");
   });
 
   it("marks cells where both bounds vanish as null and classifies them as no clear winner", () => {
-    const map = computeRegimeMap({ ...PLAN, distance: 0 });
+    const map = computeRegimeMap({ ...PENGUIN_PLAN, distance: 0 });
     expect(map.log10Ratio.flat().every((value) => value === null)).toBe(true);
     expect(classifyRegimeCell(null)).toBe("no-clear-winner");
   });

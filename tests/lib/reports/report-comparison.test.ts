@@ -2,20 +2,11 @@ import { describe, expect, it } from "vitest";
 import { advisePlan } from "@/lib/analysis/advise-plan";
 import type { PartitionSummary } from "@/lib/analysis/summary";
 import { compareReports, type ComparedReport } from "@/lib/reports/report-comparison";
+import { PENGUIN_PLAN } from "./support/penguin-plan";
 
 /** The fields of a summary that compareReports reads, with the engine's own advice for the plan. */
 function report(overrides: Partial<PartitionSummary["advice"]> = {}, zeta2 = 0.01): ComparedReport {
-  const base = {
-    smoothness: 1.9,
-    distance: 5.7,
-    sigma2: 0.009,
-    zeta2Max: 0.77,
-    participants: 3,
-    localSteps: 10,
-    rounds: 100,
-    batchSize: 32,
-  };
-  const advice = { ...advisePlan({ ...base, ...overrides }, 0.0014), ...overrides };
+  const advice = { ...advisePlan({ ...PENGUIN_PLAN, ...overrides }, 0.0014), ...overrides };
   const summary = {
     advice,
     heterogeneity: { zeta2, zeta2Max: 0.77, zeta2Star: 0.0014, sigma2: 0.009, smoothness: 1.9 },

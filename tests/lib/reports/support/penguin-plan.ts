@@ -1,0 +1,17 @@
+import type { BoundInputs } from "@/lib/analysis/advise-plan";
+
+/**
+ * Bound inputs of the size the engine reports for penguins by island (vega-datasets) under the
+ * default plan, rounded: realistic magnitudes for checks of report figures against the engine's own
+ * advisePlan. The figures themselves are not checked against anything outside the project here.
+ */
+export const PENGUIN_PLAN: BoundInputs = {
+  smoothness: 1.9,
+  distance: 5.7,
+  sigma2: 0.009,
+  zeta2Max: 0.77,
+  participants: 3,
+  localSteps: 10,
+  rounds: 100,
+  batchSize: 32,
+};
