@@ -1,33 +1,23 @@
-import type { InputHTMLAttributes } from "react";
-import { controlClasses, describedBy, FieldMessage } from "./field-parts";
+import type { InputHTMLAttributes, Ref } from "react";
+import { controlAttributes, LabelledControl, type LabelledControlProps } from "./field-parts";
 
-/** A labelled input with its hint and error wired up for screen readers. */
+/**
+ * A labelled input with its hint and error wired up for screen readers. The id defaults to the
+ * name; react-hook-form's register() props (its ref is a plain prop in React 19) spread straight in.
+ */
 export function Field({
   label,
   name,
+  id = name,
   error,
   hint,
+  ref,
   ...inputProps
-}: InputHTMLAttributes<HTMLInputElement> & {
-  label: string;
-  name: string;
-  error?: string;
-  hint?: string;
-}) {
+}: InputHTMLAttributes<HTMLInputElement> &
+  LabelledControlProps & { name: string; ref?: Ref<HTMLInputElement> }) {
   return (
-    <div className="space-y-1">
-      <label htmlFor={name} className="block text-sm font-medium text-ink">
-        {label}
-      </label>
-      <input
-        id={name}
-        name={name}
-        aria-invalid={error ? true : undefined}
-        aria-describedby={describedBy(name, error, hint)}
-        className={controlClasses(error)}
-        {...inputProps}
-      />
-      <FieldMessage id={name} error={error} hint={hint} />
-    </div>
+    <LabelledControl id={id} label={label} error={error} hint={hint}>
+      <input {...controlAttributes(id, error, hint)} ref={ref} name={name} {...inputProps} />
+    </LabelledControl>
   );
 }

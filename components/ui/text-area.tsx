@@ -1,28 +1,18 @@
 import type { TextareaHTMLAttributes } from "react";
-import { controlClasses, describedBy, FieldMessage } from "./field-parts";
+import { controlAttributes, LabelledControl, type LabelledControlProps } from "./field-parts";
 
-/** A labelled multi-line input with its error wired up for screen readers. */
+/** A labelled multi-line input, wired like Field; three rows unless told otherwise. */
 export function TextArea({
   label,
   name,
+  id = name,
   error,
-  ...props
-}: TextareaHTMLAttributes<HTMLTextAreaElement> & { label: string; name: string; error?: string }) {
+  hint,
+  ...textAreaProps
+}: TextareaHTMLAttributes<HTMLTextAreaElement> & LabelledControlProps & { name: string }) {
   return (
-    <div className="space-y-1">
-      <label htmlFor={name} className="block text-sm font-medium text-ink">
-        {label}
-      </label>
-      <textarea
-        id={name}
-        name={name}
-        rows={3}
-        aria-invalid={error ? true : undefined}
-        aria-describedby={describedBy(name, error)}
-        className={controlClasses(error)}
-        {...props}
-      />
-      <FieldMessage id={name} error={error} />
-    </div>
+    <LabelledControl id={id} label={label} error={error} hint={hint}>
+      <textarea {...controlAttributes(id, error, hint)} name={name} rows={3} {...textAreaProps} />
+    </LabelledControl>
   );
 }

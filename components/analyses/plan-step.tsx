@@ -1,0 +1,61 @@
+"use client";
+
+import { ChoiceGroup, FormField, WHOLE_NUMBER } from "@/components/analyses/analysis-fields";
+import type { AnalysisFormValues } from "@/components/analyses/analysis-form-schema";
+import { FormStep } from "@/components/analyses/form-controls";
+import { SimulationFieldset } from "@/components/analyses/simulation-fieldset";
+
+const PARTICIPANT_MODES = [
+  { value: "all", title: "All shards", detail: "Every shard takes part in every round." },
+  { value: "sample", title: "A sample of shards", detail: "A fixed number of shards per round." },
+] as const;
+
+/** The plan's counts (methods.md §2), in the order they show; M only for a sample of shards. */
+const PLAN_COUNTS = [
+  {
+    id: "participants",
+    label: "Shards per round (M)",
+    path: "options.participants",
+    sampleOnly: true,
+  },
+  { id: "local-steps", label: "Local steps per round (K)", path: "options.localSteps" },
+  { id: "rounds", label: "Rounds (R)", path: "options.rounds" },
+  { id: "batch-size", label: "Batch size (b)", path: "options.batchSize" },
+] as const;
+
+/** Step 5: the training plan, and whether to simulate it. */
+export function PlanStep({
+  workspaceId,
+  values,
+}: {
+  workspaceId: string;
+  values: AnalysisFormValues;
+}) {
+  const sampled = values.participantsMode === "sample";
+  return (
+    <FormStep
+      number={5}
+      title="Plan"
+      intro="The training you intend: Partita compares local SGD with minibatch SGD for it."
+    >
+      <ChoiceGroup
+        legend="Participants per round (M)"
+        path="participantsMode"
+        choices={PARTICIPANT_MODES}
+        columns={2}
+      />
+      <div className="grid gap-4 md:grid-cols-4">
+        {PLAN_COUNTS.filter((count) => sampled || !("sampleOnly" in count)).map((count) => (
+          <FormField
+            key={count.id}
+            id={count.id}
+            label={count.label}
+            path={count.path}
+            {...WHOLE_NUMBER}
+          />
+        ))}
+      </div>
+      <SimulationFieldset workspaceId={workspaceId} values={values} />
+    </FormStep>
+  );
+}
