@@ -107,10 +107,11 @@ export function accumulatePass(
 
 /**
  * Adds Σ ℓᵢ(W) of rows [rowStart, rowEnd) into `totals` and nothing else: the gradient sums are
- * left as they are, and about half the work of `accumulatePass` (the gradient's multiply-adds) is
- * skipped. The loss goes through the same arithmetic in the same order, so it is the same bit for
- * bit as the loss `accumulatePass` adds — for evaluations that need F but not ∇F, such as the
- * simulation's suboptimality curve (methods.md §7).
+ * left as they are, and the gradient's multiply-adds (half of them) are skipped; the softmax's
+ * exponentials remain, so a softmax pass takes about two thirds of the time. The loss goes through
+ * the same arithmetic in the same order, so it is the same bit for bit as the loss
+ * `accumulatePass` adds — for evaluations that need F but not ∇F, such as the simulation's
+ * suboptimality curve (methods.md §7).
  */
 export function accumulateLoss(
   design: PassData,

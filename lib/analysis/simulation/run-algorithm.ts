@@ -223,7 +223,7 @@ function chooseParticipants(random: SeededRandom, order: Int32Array, chosen: Int
 
 /**
  * F(W) over every row (methods.md §2), with the run's buffers. A loss-only pass: the curve needs F,
- * not ∇F, and skipping the gradient halves the pass's multiply-adds without changing F's bits.
+ * not ∇F, and skipping the gradient saves about a third of the pass without changing F's bits.
  */
 function evaluateAllRows(
   design: SimulationDesign,
