@@ -39,8 +39,8 @@ export function SimulationCost({
         <span className="font-medium">Estimated cost: about {view.amount} multiply-adds</span>{" "}
         <span className="text-ink-soft">
           (3 algorithms × (8 + S) runs × R·M·K·b·(d+1)·C, with M = {view.participants}, d + 1 ≈{" "}
-          {view.width} and C ≈ {view.weightRows}), so {view.time} at the roughly {view.rate}{" "}
-          multiply-adds a second one core manages.
+          {view.width} and C ≈ {view.weightRows}), so {view.time} on one core: the steps at roughly{" "}
+          {view.rate} multiply-adds a second, plus the passes over all rows that draw the curves.
         </span>
       </p>
       <p className="text-xs text-ink-soft">

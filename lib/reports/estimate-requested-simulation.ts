@@ -34,6 +34,7 @@ export async function estimateRequestedSimulation(
     layout: layout?.kind === "layout" ? layout.preview : null,
     options,
     seeds: simulate.seeds,
+    datasetBytes: dataset?.kind === "dataset" ? dataset.sizeBytes : undefined,
   });
   return estimate && toSimulationCostView(estimate, simulate.budget);
 }

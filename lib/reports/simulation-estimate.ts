@@ -5,6 +5,7 @@ import { AnalysisInputError } from "@/lib/analysis/errors";
 import type { TrainingPlan } from "@/lib/analysis/simulation/run-algorithm";
 import {
   checkSimulationBudget,
+  estimateEvaluationCost,
   estimateSimulationCost,
 } from "@/lib/analysis/simulation/simulation-cost";
 import { formatFigure } from "@/lib/reports/report-view";
@@ -27,6 +28,13 @@ type PreviewColumn = DataFilePreview["columns"][number];
  */
 export const SIMULATION_MULTIPLY_ADDS_PER_SECOND = 1e8;
 
+/**
+ * Multiply-adds a second of the full-data loss passes the simulation adds (estimateEvaluationCost),
+ * roughly, on one core: a loss-only pass over the benchmark's 100 000 × 33 × 10 design (3.3 × 10⁷)
+ * took about 25 ms here, 1.3 × 10⁹ a second; rounded down so the hint errs long.
+ */
+export const EVALUATION_MULTIPLY_ADDS_PER_SECOND = 1e9;
+
 export interface SimulationEstimateInput {
   /** The dataset's preview; null when the server has none (then nothing can be estimated). */
   dataset: DataFilePreview | null;
@@ -46,11 +54,15 @@ export interface SimulationEstimateInput {
   >;
   /** S, the seeds the chosen step size is re-run on. */
   seeds: number;
+  /** The dataset file's size, from which its row count is estimated for the time hint. */
+  datasetBytes?: number;
 }
 
 export interface SimulationEstimate {
   /** Estimated multiply-adds: 3 × (8 + S) × R·M·K·b·(d+1)·C. */
   cost: number;
+  /** The full-data loss passes on top (estimateEvaluationCost); 0 when the rows are unknown. */
+  evaluationCost: number;
   /** d + 1: encoded feature columns and the bias. */
   width: number;
   /** C: classes for classification, 1 for regression. */
@@ -73,6 +85,21 @@ function countEncodedColumns(column: PreviewColumn): number {
   if (column.type === "empty" || column.distinct < 2) return 0;
   if (column.type === "numeric") return 1;
   return column.distinct <= MAX_ONE_HOT_LEVELS ? column.distinct : 0;
+}
+
+/**
+ * The dataset's data rows, roughly: all of them when the preview holds the whole file, else the
+ * file's size over the preview rows' mean length (values cut for the preview only shorten rows, so
+ * this errs high). 0 when the preview has no rows to measure.
+ */
+export function estimateRowCount(preview: DataFilePreview, fileBytes: number): number {
+  if (preview.rows.length === 0) return 0;
+  const rowBytes = (row: string[]) =>
+    row.reduce((sum, value) => sum + new TextEncoder().encode(value).length, 0) + row.length;
+  const headerBytes = rowBytes(preview.columns.map((column) => column.name));
+  const meanRowBytes =
+    preview.rows.reduce((sum, row) => sum + rowBytes(row), 0) / preview.rows.length;
+  return Math.max(preview.rows.length, Math.round((fileBytes - headerBytes) / meanRowBytes));
 }
 
 /**
@@ -116,8 +143,10 @@ export function estimateSimulationFromPreviews(
   if (weightRows < 1) return null;
 
   const plan = { participants, localSteps, rounds, batchSize };
+  const rows = input.datasetBytes === undefined ? 0 : estimateRowCount(dataset, input.datasetBytes);
   return {
     cost: estimateSimulationCost(plan, width, weightRows, input.seeds),
+    evaluationCost: estimateEvaluationCost(rounds, rows, width, weightRows, input.seeds),
     width,
     weightRows,
     plan,
@@ -127,16 +156,21 @@ export function estimateSimulationFromPreviews(
 }
 
 /**
- * The cost and time in words for the form: "3.5×10¹⁰" multiply-adds and "about 6 minutes" at
- * SIMULATION_MULTIPLY_ADDS_PER_SECOND, and whether it is above the budget.
+ * The cost and time in words for the form: "3.5×10¹⁰" multiply-adds and "about 6 minutes" — the
+ * steps at SIMULATION_MULTIPLY_ADDS_PER_SECOND plus the full-data loss passes at
+ * EVALUATION_MULTIPLY_ADDS_PER_SECOND — and whether the cost is above the budget.
  */
 export function describeSimulationCost(
   cost: number,
   budget: number,
+  evaluationCost = 0,
 ): { amount: string; time: string; overBudget: boolean } {
+  const seconds =
+    cost / SIMULATION_MULTIPLY_ADDS_PER_SECOND +
+    evaluationCost / EVALUATION_MULTIPLY_ADDS_PER_SECOND;
   return {
     amount: formatFigure(cost, 2),
-    time: describeDuration(cost / SIMULATION_MULTIPLY_ADDS_PER_SECOND),
+    time: describeDuration(seconds),
     overBudget: cost > budget,
   };
 }
@@ -183,7 +217,7 @@ export function toSimulationCostView(
   estimate: SimulationEstimate,
   budget: number,
 ): SimulationCostView {
-  const { amount, time } = describeSimulationCost(estimate.cost, budget);
+  const { amount, time } = describeSimulationCost(estimate.cost, budget, estimate.evaluationCost);
   return {
     cost: estimate.cost,
     amount,

@@ -14,21 +14,22 @@ import {
   ALGORITHMS,
   checkSimulationBudget,
   estimateSimulationCost,
+  GRID_CHECK_POINTS,
+  MAX_CURVE_POINTS,
   STEP_SIZE_COUNT,
 } from "./simulation-cost";
 
 // The cost and its check live in simulation-cost.ts, which imports no threads, so the web app can
 // estimate a simulation without bundling its run threads.
-export { ALGORITHMS, checkSimulationBudget, estimateSimulationCost, STEP_SIZE_COUNT };
+export {
+  ALGORITHMS,
+  checkSimulationBudget,
+  estimateSimulationCost,
+  GRID_CHECK_POINTS,
+  MAX_CURVE_POINTS,
+  STEP_SIZE_COUNT,
+};
 
-/** A curve has at most this many points (methods.md §7). */
-export const MAX_CURVE_POINTS = 100;
-/**
- * A step-size search run evaluates F on all rows at this many rounds only (its final F decides, and
- * the loss check against 10·F(W₀) runs there; the weights' finiteness is checked every round): on
- * large data a full pass costs more than a round, and the grid has 8 runs per algorithm.
- */
-export const GRID_CHECK_POINTS = 11;
 /** The generator every run draws from, named in the summary (methods.md §7, determinism). */
 export const GENERATOR_NAME = "xoshiro128**";
 /**

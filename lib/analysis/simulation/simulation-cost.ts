@@ -8,6 +8,14 @@ import type { AlgorithmName, TrainingPlan } from "./run-algorithm";
 export const ALGORITHMS: readonly AlgorithmName[] = ["minibatch", "local", "scaffold"];
 /** Step sizes tried: η = 2⁻ᵏ/H for k = 0 … 7 (methods.md §7). */
 export const STEP_SIZE_COUNT = 8;
+/** A curve has at most this many points (methods.md §7). */
+export const MAX_CURVE_POINTS = 100;
+/**
+ * A step-size search run evaluates F on all rows at this many rounds only (its final F decides, and
+ * the loss check against 10·F(W₀) runs there; the weights' finiteness is checked every round): on
+ * large data a full pass costs more than a round, and the grid has 8 runs per algorithm.
+ */
+export const GRID_CHECK_POINTS = 11;
 
 /**
  * The simulation's cost in multiply-adds, as methods.md §7 estimates it before starting:
@@ -21,7 +29,8 @@ export const STEP_SIZE_COUNT = 8;
  * at 11 rounds, seed runs at up to 100). That is small beside the steps when N is small next to
  * R·M·K·b, but not always: on the benchmark (N = 100 000, the example's plan) it is 3.84e10, more
  * than this estimate and about half the steps' real count; with N = 10⁶, M = 10, K = 1, b = 32 it
- * is nearly all of the work. The shown cost and the budget keep methods.md §7's formula.
+ * is nearly all of the work. The shown cost and the budget keep methods.md §7's formula;
+ * `estimateEvaluationCost` counts the rest, for the time a simulation will take.
  */
 export function estimateSimulationCost(
   plan: TrainingPlan,
@@ -32,6 +41,26 @@ export function estimateSimulationCost(
   const perRun =
     plan.rounds * plan.participants * plan.localSteps * plan.batchSize * width * weightRows;
   return ALGORITHMS.length * (STEP_SIZE_COUNT + seeds) * perRun;
+}
+
+/**
+ * The full-data loss passes the simulation adds to `estimateSimulationCost`'s steps, in
+ * multiply-adds: N·(d+1)·C per pass, at each of a grid run's check points and a seed run's curve
+ * points (round 0 included), for the 3 algorithms.
+ *
+ * Example: R = 100, S = 3, N = 100 000, d + 1 = 33, C = 10 gives 3 × (8·11 + 3·100) × 3.3e7 = 3.8412e10.
+ */
+export function estimateEvaluationCost(
+  rounds: number,
+  rows: number,
+  width: number,
+  weightRows: number,
+  seeds: number,
+): number {
+  const passes =
+    STEP_SIZE_COUNT * Math.min(rounds + 1, GRID_CHECK_POINTS) +
+    seeds * Math.min(rounds + 1, MAX_CURVE_POINTS);
+  return ALGORITHMS.length * passes * rows * width * weightRows;
 }
 
 /**

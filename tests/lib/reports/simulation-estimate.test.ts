@@ -1,13 +1,17 @@
 // The simulation's cost as the form shows it before a run: methods.md §7's formula on what the
 // uploads' previews show. Outside checks: methods.md's worked example, and the engine's own exact
-// cost after it has read the whole file (penguins from the `vega-datasets` npm package, BSD-3).
+// cost after it has read the whole file (penguins from the `vega-datasets` npm package, BSD-3), and
+// that file's own row count. The time hint's rates are measurements on this machine (their doc
+// comments say which), so the hint's tests check its arithmetic, not the rates.
 import { Readable } from "node:stream";
 import { describe, expect, it } from "vitest";
 import { analyzePartition } from "@/lib/analysis";
 import { estimateSimulationCost } from "@/lib/analysis/simulation/simulate-plan";
+import { estimateEvaluationCost } from "@/lib/analysis/simulation/simulation-cost";
 import {
   describeDuration,
   describeSimulationCost,
+  estimateRowCount,
   estimateSimulationFromPreviews,
 } from "@/lib/reports/simulation-estimate";
 import { readCsvHead, summarizeCsvHead } from "@/lib/uploads/csv-preview";
@@ -125,5 +129,36 @@ describe("the simulation's cost shown before a run", () => {
         seeds: 3,
       }),
     ).toBeNull();
+  });
+});
+
+describe("the simulation's time hint", () => {
+  it("counts the full-data loss passes: the bench case's 3.84e10 on top of its steps", () => {
+    // estimateEvaluationCost's doc example, by hand: R = 100 → 11 grid check points and 100 curve
+    // points (round 0 included, capped at methods.md §7's 100); 3 × (8·11 + 3·100) = 1164 passes
+    // of N·(d+1)·C = 100 000 · 33 · 10.
+    expect(estimateEvaluationCost(100, 100_000, 33, 10, 3)).toBe(1164 * 3.3e7);
+    // R = 5: 6 points each; 3 × (8·6 + 2·6) = 180 passes.
+    expect(estimateEvaluationCost(5, 344, 8, 3, 2)).toBe(180 * 344 * 8 * 3);
+    // Steps 3.4848e10 at 1e8/s (348 s) plus passes 3.8412e10 at 1e9/s (38 s): 386 s.
+    expect(describeSimulationCost(3.4848e10, DEFAULT_SIMULATION_BUDGET, 3.8412e10).time).toBe(
+      "about 6 minutes",
+    );
+    // A million rows under a small plan: the passes are nearly all of the work.
+    const small = { participants: 10, localSteps: 1, rounds: 100, batchSize: 32 };
+    const steps = estimateSimulationCost(small, 65, 10, 3);
+    const passes = estimateEvaluationCost(100, 1_000_000, 65, 10, 3);
+    expect(describeSimulationCost(steps, DEFAULT_SIMULATION_BUDGET).time).toBe("under a minute");
+    expect(describeSimulationCost(steps, DEFAULT_SIMULATION_BUDGET, passes).time).toBe(
+      "about 13 minutes",
+    );
+  });
+
+  it("estimates penguins' 344 rows from its preview and its file size", () => {
+    // The vega-datasets penguins file has 344 data rows; its preview keeps 20 of them.
+    const bytes = new TextEncoder().encode(penguins.csv).length;
+    const rows = estimateRowCount(previewOf(penguins.csv, "penguins.csv"), bytes);
+    expect(rows).toBeGreaterThan(344 * 0.85);
+    expect(rows).toBeLessThan(344 * 1.15);
   });
 });
