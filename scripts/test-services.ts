@@ -1,7 +1,7 @@
 // `npm run test:services`: the throwaway services of `npm test` (PostgreSQL, S3 fake, SMTP fake,
 // analysis worker) kept running, with their environment written to a file, so one test file can
 // run against them while iterating. Ctrl-C stops everything and removes the data.
-import { writeFileSync } from "node:fs";
+import { mkdirSync, writeFileSync } from "node:fs";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { Supervisor } from "./services/processes";
@@ -26,6 +26,7 @@ async function main() {
   const { env } = await startThrowawayServices(supervisor);
   startWorker(supervisor, projectRoot, env);
   // The file holds the throwaway database's password, so only its owner may read it.
+  mkdirSync(path.dirname(ENV_FILE), { recursive: true });
   writeFileSync(ENV_FILE, `${shellExports(env)}\n`, { mode: 0o600 });
   console.log(`\nServices are up. In another shell:\n`);
   console.log(`  set -a; . ${path.relative(process.cwd(), ENV_FILE)}; set +a`);
