@@ -15,6 +15,8 @@ function describeEntry(entry: AuditEntry): string {
   switch (entry.action) {
     case "member.invited":
       return `${details.email} invited as ${details.role}`;
+    case "member.invitation-withdrawn":
+      return `invitation of ${details.email} (${details.role}) withdrawn`;
     case "member.role-changed":
       return `${details.email ?? entry.targetId}: ${details.from ?? "?"} → ${details.to}`;
     case "member.removed":

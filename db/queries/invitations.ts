@@ -156,6 +156,30 @@ export async function acceptInvitation(input: {
   });
 }
 
+/**
+ * Withdraws a pending invitation of this workspace: its link stops working at once. Undefined when
+ * there is no such pending invitation (accepted, withdrawn or replaced already, or elsewhere).
+ */
+export async function withdrawInvitation(
+  workspaceId: string,
+  invitationId: string,
+  now = new Date(),
+): Promise<{ email: string; role: Role } | undefined> {
+  const [withdrawn] = await db()
+    .update(invitations)
+    .set({ revokedAt: now })
+    .where(
+      and(
+        eq(invitations.workspaceId, workspaceId),
+        eq(invitations.id, invitationId),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+      ),
+    )
+    .returning({ email: invitations.email, role: invitations.role });
+  return withdrawn;
+}
+
 /** Invitations of a workspace still waiting for their invitee, newest first. */
 export async function listPendingInvitations(
   workspaceId: string,

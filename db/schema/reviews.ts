@@ -84,6 +84,7 @@ export const reviewDecisions = pgTable(
 /** Every kind of event the audit log records; the column is text so a new kind needs no migration. */
 export const AUDIT_ACTIONS = [
   "member.invited",
+  "member.invitation-withdrawn",
   "member.role-changed",
   "member.removed",
   "review.requested",

@@ -9,6 +9,7 @@ import { AUDIT_ACTIONS, type AuditAction } from "@/db/schema/reviews";
 
 export const AUDIT_ACTION_LABELS: Record<AuditAction, string> = {
   "member.invited": "Member invited",
+  "member.invitation-withdrawn": "Invitation withdrawn",
   "member.role-changed": "Role changed",
   "member.removed": "Member removed",
   "review.requested": "Review requested",

@@ -9,13 +9,16 @@ import {
   changeMemberRole,
   inviteMember,
   removeMember,
+  withdrawInvitationAction,
 } from "@/app/(workspace)/w/[workspaceId]/members/actions";
 import { closeDb } from "@/db/client";
+import { listAuditEntries } from "@/db/queries/audit";
 import { listMembers } from "@/db/queries/members";
 import {
   acceptInvitation,
   createInvitation,
   findInvitationByToken,
+  listPendingInvitations,
 } from "@/db/queries/invitations";
 import { findMessagesTo } from "@/lib/mail/dev-inbox";
 import { createAccount, createTeam, uniqueEmail } from "@/tests/support/accounts";
@@ -132,6 +135,43 @@ describe("invitations", () => {
     const reused = await acceptInvitationAction(token);
     expect(reused).toMatchObject({ ok: false, status: 410 });
     if (!reused.ok) expect(reused.message).toMatch(/already been used/);
+  });
+
+  it("lets an owner withdraw a pending invitation: the link stops working and the log says so", async () => {
+    const team = await createTeam();
+    const invitee = await createAccount("withdrawn");
+    actAs(team.owner);
+    expect(
+      statusOf(await inviteMember(team.workspaceId, { email: invitee.email, role: "analyst" })),
+    ).toBe(200);
+    const token = new URL(await invitationLinkFor(invitee.email)).pathname.split("/").at(-1)!;
+    const [pending] = await listPendingInvitations(team.workspaceId);
+
+    for (const person of [team.analyst, team.reviewer]) {
+      actAs(person);
+      expect(statusOf(await withdrawInvitationAction(team.workspaceId, pending.id))).toBe(403);
+    }
+    const other = await createTeam();
+    actAs(other.owner);
+    expect(statusOf(await withdrawInvitationAction(other.workspaceId, pending.id))).toBe(404);
+
+    actAs(team.owner);
+    expect(statusOf(await withdrawInvitationAction(team.workspaceId, pending.id))).toBe(200);
+    expect(statusOf(await withdrawInvitationAction(team.workspaceId, pending.id))).toBe(404);
+    expect(await listPendingInvitations(team.workspaceId)).toEqual([]);
+    expect((await findInvitationByToken(token))?.state).toBe("revoked");
+    actAs(invitee);
+    expect(await acceptInvitationAction(token)).toMatchObject({ ok: false });
+
+    const [entry] = await listAuditEntries(team.workspaceId, {
+      action: "member.invitation-withdrawn",
+    });
+    expect(entry).toMatchObject({
+      actorId: team.owner.id,
+      targetType: "invitation",
+      targetId: pending.id,
+      details: { email: invitee.email, role: "analyst" },
+    });
   });
 
   it("refuses an expired link, another address, and a link replaced by a newer one", async () => {

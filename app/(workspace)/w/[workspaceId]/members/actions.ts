@@ -2,12 +2,13 @@
 
 import { revalidatePath } from "next/cache";
 import { recordAudit } from "@/db/queries/audit";
-import { createInvitation } from "@/db/queries/invitations";
+import { createInvitation, withdrawInvitation } from "@/db/queries/invitations";
 import { listMembers, updateMembership } from "@/db/queries/members";
 import { failWith, succeed, type ActionResult } from "@/lib/actions/result";
 import { invitationMessage } from "@/lib/auth/emails";
 import { requireRole } from "@/lib/auth/guards";
 import { env } from "@/lib/env";
+import { RuleError } from "@/lib/errors";
 import { sendMail } from "@/lib/mail";
 import { invitationSchema, roleChangeSchema } from "@/lib/validation/auth";
 
@@ -91,6 +92,32 @@ export async function removeMember(workspaceId: string, userId: string): Promise
     return succeed();
   } catch (error) {
     return failWith(error, "remove-member");
+  }
+}
+
+/** Withdraws a pending invitation (owners only); its e-mailed link stops working at once. */
+export async function withdrawInvitationAction(
+  workspaceId: string,
+  invitationId: string,
+): Promise<ActionResult> {
+  try {
+    const { user, workspace } = await requireRole(workspaceId, "manageMembers");
+    const withdrawn = await withdrawInvitation(workspace.id, invitationId);
+    if (!withdrawn) {
+      throw new RuleError(404, "That invitation was already accepted, withdrawn or replaced.");
+    }
+    await recordAudit({
+      workspaceId: workspace.id,
+      actor: user,
+      action: "member.invitation-withdrawn",
+      targetType: "invitation",
+      targetId: invitationId,
+      details: withdrawn,
+    });
+    revalidatePath(`/w/${workspace.id}/members`);
+    return succeed();
+  } catch (error) {
+    return failWith(error, "withdraw-invitation");
   }
 }
 

@@ -1,6 +1,7 @@
 import type { Metadata } from "next";
 import { InviteForm } from "@/components/workspace/invite-form";
 import { MemberControls } from "@/components/workspace/member-controls";
+import { WithdrawInvitationButton } from "@/components/workspace/withdraw-invitation-button";
 import { listPendingInvitations } from "@/db/queries/invitations";
 import { listMembers } from "@/db/queries/members";
 import { guardPage } from "@/lib/auth/page-guard";
@@ -80,12 +81,20 @@ export default async function MembersPage({
             <h2 className="text-sm font-semibold">Waiting for a reply</h2>
             <ul className="divide-y divide-ink/5 rounded-lg border border-ink/10 bg-white text-sm">
               {pending.map((invitation) => (
-                <li key={invitation.id} className="flex justify-between px-4 py-2">
+                <li
+                  key={invitation.id}
+                  className="flex flex-wrap items-center justify-between gap-2 px-4 py-2"
+                >
                   <span>
                     {invitation.email} · {ROLE_LABELS[invitation.role]}
                   </span>
-                  <span className="text-ink-soft">
+                  <span className="flex items-center gap-3 text-ink-soft">
                     expires {dateFormat.format(invitation.expiresAt)}
+                    <WithdrawInvitationButton
+                      workspaceId={workspaceId}
+                      invitationId={invitation.id}
+                      email={invitation.email}
+                    />
                   </span>
                 </li>
               ))}
