@@ -1,5 +1,6 @@
 import type { ApiTokenListItem } from "@/db/queries/api-tokens";
-import { RevokeTokenButton } from "./revoke-token-button";
+import { revokeApiTokenAction } from "@/app/(workspace)/w/[workspaceId]/tokens/actions";
+import { ConfirmActionButton } from "@/components/ui/confirm-action-button";
 
 const dateFormat = new Intl.DateTimeFormat("en", { dateStyle: "medium", timeZone: "UTC" });
 const dateTimeFormat = new Intl.DateTimeFormat("en", {
@@ -65,10 +66,10 @@ export function TokenTable({
                 <td className="px-4 py-3">{state.label}</td>
                 <td className="px-4 py-3 text-right">
                   {state.live ? (
-                    <RevokeTokenButton
-                      workspaceId={workspaceId}
-                      tokenId={token.id}
-                      name={token.name}
+                    <ConfirmActionButton
+                      label="Revoke"
+                      confirmation={`Revoke “${token.name}”? Pipelines using it stop working at once.`}
+                      action={revokeApiTokenAction.bind(null, workspaceId, token.id)}
                     />
                   ) : null}
                 </td>

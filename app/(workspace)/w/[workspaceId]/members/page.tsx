@@ -1,11 +1,12 @@
 import type { Metadata } from "next";
+import { ConfirmActionButton } from "@/components/ui/confirm-action-button";
 import { InviteForm } from "@/components/workspace/invite-form";
 import { MemberControls } from "@/components/workspace/member-controls";
-import { WithdrawInvitationButton } from "@/components/workspace/withdraw-invitation-button";
 import { listPendingInvitations } from "@/db/queries/invitations";
 import { listMembers } from "@/db/queries/members";
 import { guardPage } from "@/lib/auth/page-guard";
 import { ROLE_LABELS, roleAllows } from "@/lib/auth/roles";
+import { withdrawInvitationAction } from "./actions";
 
 export const metadata: Metadata = { title: "Members" };
 
@@ -90,10 +91,10 @@ export default async function MembersPage({
                   </span>
                   <span className="flex items-center gap-3 text-ink-soft">
                     expires {dateFormat.format(invitation.expiresAt)}
-                    <WithdrawInvitationButton
-                      workspaceId={workspaceId}
-                      invitationId={invitation.id}
-                      email={invitation.email}
+                    <ConfirmActionButton
+                      label="Withdraw"
+                      confirmation={`Withdraw the invitation of ${invitation.email}? Its link stops working.`}
+                      action={withdrawInvitationAction.bind(null, workspaceId, invitation.id)}
                     />
                   </span>
                 </li>

@@ -1,17 +1,20 @@
 "use client";
 
 import { useState, useTransition } from "react";
-import { withdrawInvitationAction } from "@/app/(workspace)/w/[workspaceId]/members/actions";
+import type { ActionResult } from "@/lib/actions/result";
 
-/** Withdraws one pending invitation after a confirmation; its e-mailed link stops working. */
-export function WithdrawInvitationButton({
-  workspaceId,
-  invitationId,
-  email,
+/**
+ * A small destructive button that asks first, then runs a server action (bound to its arguments by
+ * the server component that renders it) and shows the action's refusal beside it.
+ */
+export function ConfirmActionButton({
+  label,
+  confirmation,
+  action,
 }: {
-  workspaceId: string;
-  invitationId: string;
-  email: string;
+  label: string;
+  confirmation: string;
+  action: () => Promise<ActionResult>;
 }) {
   const [error, setError] = useState<string>();
   const [pending, startTransition] = useTransition();
@@ -22,17 +25,15 @@ export function WithdrawInvitationButton({
         type="button"
         disabled={pending}
         onClick={() => {
-          if (!window.confirm(`Withdraw the invitation of ${email}? Its link stops working.`)) {
-            return;
-          }
+          if (!window.confirm(confirmation)) return;
           startTransition(async () => {
-            const result = await withdrawInvitationAction(workspaceId, invitationId);
+            const result = await action();
             setError(result.ok ? undefined : result.message);
           });
         }}
         className="rounded px-2 py-1 text-sm text-cadmium hover:bg-cadmium-soft"
       >
-        Withdraw
+        {label}
       </button>
     </span>
   );
