@@ -94,8 +94,9 @@ function countEncodedColumns(column: PreviewColumn): number {
  */
 export function estimateRowCount(preview: DataFilePreview, fileBytes: number): number {
   if (preview.rows.length === 0) return 0;
+  const encoder = new TextEncoder();
   const rowBytes = (row: string[]) =>
-    row.reduce((sum, value) => sum + new TextEncoder().encode(value).length, 0) + row.length;
+    row.reduce((sum, value) => sum + encoder.encode(value).length, 0) + row.length;
   const headerBytes = rowBytes(preview.columns.map((column) => column.name));
   const meanRowBytes =
     preview.rows.reduce((sum, row) => sum + rowBytes(row), 0) / preview.rows.length;
