@@ -13,6 +13,7 @@ import { sendMail } from "@/lib/mail";
 import { signInSchema } from "@/lib/validation/auth";
 import { signInLinkMessage } from "./emails";
 import { hashPassword, verifyPassword } from "./password";
+import { sameOriginPath } from "./redirects";
 import { clearSignInAttempts, recordSignInAttempt } from "./rate-limit";
 
 // Comparing against a throwaway hash when the address is unknown keeps the response time the
@@ -69,6 +70,10 @@ export function authOptions(): NextAuthOptions {
       }),
     ],
     callbacks: {
+      // next-auth's default throws (a 500) on a callback URL it cannot parse; this falls back instead.
+      redirect({ url, baseUrl }) {
+        return new URL(sameOriginPath(url, baseUrl), baseUrl).toString();
+      },
       session({ session, token }) {
         if (session.user && token.sub) session.user.id = token.sub;
         return session;

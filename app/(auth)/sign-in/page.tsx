@@ -1,7 +1,9 @@
 import type { Metadata } from "next";
 import { redirect } from "next/navigation";
 import { SignInForm } from "@/components/auth/sign-in-form";
+import { sameOriginPath } from "@/lib/auth/redirects";
 import { getSessionUser } from "@/lib/auth/session";
+import { env } from "@/lib/env";
 
 export const metadata: Metadata = { title: "Sign in" };
 
@@ -12,18 +14,14 @@ const ERROR_MESSAGES: Record<string, string> = {
   SessionRequired: "Please sign in to continue.",
 };
 
-/** Only same-site paths are followed after sign-in, so the form can't be used as an open redirect. */
-function safeCallback(value: string | undefined): string {
-  return value?.startsWith("/") && !value.startsWith("//") ? value : "/";
-}
-
 export default async function SignInPage({
   searchParams,
 }: {
   searchParams: Promise<{ callbackUrl?: string; error?: string }>;
 }) {
   const { callbackUrl, error } = await searchParams;
-  const target = safeCallback(callbackUrl);
+  // Only same-origin paths are followed after sign-in, so the form can't be used as an open redirect.
+  const target = sameOriginPath(callbackUrl, env().NEXTAUTH_URL);
   if (await getSessionUser()) redirect(target);
   return (
     <>
