@@ -1,7 +1,10 @@
 import { mkdirSync } from "node:fs";
+import { createServer, type IncomingMessage, type ServerResponse } from "node:http";
+import type { AddressInfo } from "node:net";
 import S3rver from "s3rver";
+import { verifyS3Signature, type Credentials, type Refusal } from "./s3-signature";
 
-/** The only key pair s3rver accepts; signatures are checked against it. */
+/** The only key pair the fake accepts; every request's V4 signature is checked against it. */
 export const fakeS3Credentials = { accessKeyId: "S3RVER", secretAccessKey: "S3RVER" } as const;
 
 export interface FakeS3Options {
@@ -20,25 +23,91 @@ export interface RunningFakeS3 {
 }
 
 /**
- * A local stand-in for S3 on 127.0.0.1. The bucket gets a CORS rule for the app's origin that
- * exposes ETag, which a browser needs to finish a multipart upload and to confirm a PUT.
+ * A local stand-in for S3 on 127.0.0.1. s3rver stores the objects; in front of it, every request
+ * except a CORS preflight must carry a valid Signature Version 4 (an Authorization header or a
+ * presigned URL that has not expired) made with `fakeS3Credentials`, or it is refused with a 403
+ * and S3's error XML, as a private bucket would refuse it. The bucket gets a CORS rule for the
+ * app's origin that exposes ETag, which a browser needs to finish a multipart upload and to
+ * confirm a PUT.
  */
 export async function startFakeS3(options: FakeS3Options): Promise<RunningFakeS3> {
   mkdirSync(options.directory, { recursive: true });
-  const server = new S3rver({
-    address: "127.0.0.1",
-    port: options.port,
+  const store = new S3rver({
     directory: options.directory,
     silent: true,
     configureBuckets: [
       { name: options.bucket, configs: [corsConfiguration(options.allowedOrigins)] },
     ],
   });
-  const address = await server.run();
+  await store.configureBuckets();
+  const serveStore = store.callback();
+  const server = createServer((request, response) => {
+    void admit(request, fakeS3Credentials).then(
+      (refusal) => {
+        if (refusal) refuse(request, response, refusal, options.allowedOrigins);
+        else serveStore(request, response);
+      },
+      (error: unknown) => {
+        const message = error instanceof Error ? error.message : String(error);
+        refuse(request, response, { code: "InternalError", message }, options.allowedOrigins);
+      },
+    );
+  });
+  await new Promise<void>((resolve, reject) => {
+    server.once("error", reject);
+    server.listen(options.port, "127.0.0.1", () => {
+      server.off("error", reject);
+      resolve();
+    });
+  });
+  const { port } = server.address() as AddressInfo;
   return {
-    endpoint: `http://127.0.0.1:${address.port}`,
-    stop: () => server.close(),
+    endpoint: `http://127.0.0.1:${port}`,
+    stop: () =>
+      new Promise<void>((resolve) => {
+        server.close(() => resolve());
+        server.closeAllConnections();
+      }),
   };
+}
+
+/** A browser's CORS preflight carries no credentials; S3 answers it from the bucket's CORS rule. */
+async function admit(request: IncomingMessage, credentials: Credentials) {
+  if (request.method === "OPTIONS") return undefined;
+  return verifyS3Signature(
+    { method: request.method ?? "GET", url: request.url ?? "/", headers: request.headers },
+    credentials,
+  );
+}
+
+function refuse(
+  request: IncomingMessage,
+  response: ServerResponse,
+  refusal: Refusal,
+  allowedOrigins: string[],
+) {
+  // Drain the body a refused upload was sending, so the client reads the answer, not a reset.
+  request.resume();
+  const status = refusal.code === "InternalError" ? 500 : 403;
+  const origin = request.headers.origin;
+  if (origin && allowedOrigins.includes(origin)) {
+    // As S3 does for a matching CORS rule, so a browser can read why it was refused.
+    response.setHeader("Access-Control-Allow-Origin", origin);
+    response.setHeader("Vary", "Origin");
+  }
+  response.writeHead(status, { "Content-Type": "application/xml" });
+  response.end(
+    request.method === "HEAD"
+      ? undefined
+      : [
+          '<?xml version="1.0" encoding="UTF-8"?>',
+          `<Error><Code>${refusal.code}</Code><Message>${escapeXml(refusal.message)}</Message></Error>`,
+        ].join("\n"),
+  );
+}
+
+function escapeXml(text: string): string {
+  return text.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;");
 }
 
 function corsConfiguration(origins: string[]): string {

@@ -1,6 +1,6 @@
 // s3rver ships no type declarations; this covers the part of its API the fake uses.
 declare module "s3rver" {
-  import type { AddressInfo } from "node:net";
+  import type { IncomingMessage, ServerResponse } from "node:http";
 
   interface S3rverBucket {
     name: string;
@@ -21,7 +21,9 @@ declare module "s3rver" {
 
   export default class S3rver {
     constructor(options?: S3rverOptions);
-    run(): Promise<AddressInfo>;
-    close(): Promise<void>;
+    /** Creates the configured buckets and stores their configuration documents. */
+    configureBuckets(): Promise<void>;
+    /** The Koa request handler, for serving the store from a server of one's own. */
+    callback(): (request: IncomingMessage, response: ServerResponse) => void;
   }
 }

@@ -91,7 +91,7 @@ describe("lib/storage against the S3 fake", () => {
   });
 
   it("signs a URL for one key and a few minutes only", async () => {
-    // s3rver does not verify SigV4 signatures, so what the URL grants is checked on the URL itself.
+    // The fake refuses a URL altered to grant more (tests/fakes/s3.test.ts); here, what is granted.
     const key = uniqueKey("granted.csv");
     const url = new URL(await presignPut({ key }));
     expect(decodeURIComponent(url.pathname)).toMatch(new RegExp(`/${key}$`));
