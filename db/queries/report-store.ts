@@ -1,6 +1,6 @@
 import "server-only";
 import { and, eq, max, sql } from "drizzle-orm";
-import { db } from "@/db/client";
+import { db, type Database } from "@/db/client";
 import { analyses, reports, reportShards, type ReportInput } from "@/db/schema";
 import type { PartitionSummary } from "@/lib/analysis";
 
@@ -50,7 +50,7 @@ export async function storeReport(run: FinishedRun): Promise<StoreOutcome> {
         version: lineage.version,
         previousReportId: analysis.previousReportId,
         title: analysis.title,
-        verdict: run.summary.advice.verdict,
+        ...listFiguresOf(run.summary),
         summary: run.summary,
         parameters: analysis.parameters,
         inputs: run.inputs,
@@ -62,9 +62,7 @@ export async function storeReport(run: FinishedRun): Promise<StoreOutcome> {
       .returning({ id: reports.id });
     if (!report) return { stored: false, status: "succeeded" };
 
-    if (run.summary.shards.length > 0) {
-      await tx.insert(reportShards).values(shardRowsOf(reportId, run.summary.shards));
-    }
+    await insertShardRows(tx, reportId, run.summary.shards);
     await tx
       .update(analyses)
       .set({
@@ -77,6 +75,16 @@ export async function storeReport(run: FinishedRun): Promise<StoreOutcome> {
       .where(eq(analyses.id, analysis.id));
     return { stored: true, reportId };
   });
+}
+
+/** The columns the reports list shows from a summary: its verdict and figures. */
+export function listFiguresOf(summary: PartitionSummary) {
+  return {
+    verdict: summary.advice.verdict,
+    ratio: summary.advice.ratio,
+    datasetRows: summary.dataset.rows,
+    shardCount: summary.shards.length,
+  };
 }
 
 type Transaction = Parameters<Parameters<ReturnType<typeof db>["transaction"]>[0]>[0];
@@ -108,25 +116,51 @@ async function nextVersionOf(
   return { lineageId: previous.lineageId, version: (highest ?? 0) + 1 };
 }
 
-/** The per-shard table rows of a report, in the summary's shard order. */
-export function shardRowsOf(
+/**
+ * Shard rows per INSERT. Each statement sends one array per column (unnest), so its parameter count
+ * stays at 14 whatever the batch; the batch only bounds the size of one statement's arrays.
+ */
+const SHARD_ROWS_PER_INSERT = 10_000;
+
+/**
+ * Writes a report's per-shard table. One parameter per value would pass PostgreSQL's limit of
+ * 65,535 parameters a statement at about 4,680 shards (14 columns), and a federated population
+ * has far more clients: each column goes as one array parameter and `unnest` turns the arrays
+ * back into rows. pg sends numbers in their shortest round-trip form, so doubles arrive exactly.
+ */
+export async function insertShardRows(
+  tx: Pick<Database, "execute">,
   reportId: string,
   shards: PartitionSummary["shards"],
-): (typeof reportShards.$inferInsert)[] {
-  return shards.map((shard, ordinal) => ({
-    reportId,
-    ordinal,
-    shardId: shard.id,
-    rows: shard.rows,
-    tv: shard.tv,
-    hellinger: shard.hellinger,
-    js: shard.js,
-    kl: shard.kl,
-    gradNorm2: shard.gradNorm2,
-    sigma2: shard.sigma2,
-    loss: shard.loss,
-    classesPresent: shard.classesPresent,
-    effectiveClasses: shard.effectiveClasses,
-    featureShift: shard.featureShift,
-  }));
+): Promise<void> {
+  for (let start = 0; start < shards.length; start += SHARD_ROWS_PER_INSERT) {
+    const batch = shards.slice(start, start + SHARD_ROWS_PER_INSERT);
+    const column = <T>(read: (shard: PartitionSummary["shards"][number]) => T) =>
+      sql.param(batch.map(read));
+    await tx.execute(sql`
+      insert into ${reportShards} (
+        report_id, ordinal, shard_id, rows, tv, hellinger, js, kl, grad_norm2, sigma2, loss,
+        classes_present, effective_classes, feature_shift
+      )
+      select ${reportId}, ${start}::int + position::int - 1, shard_id, rows, tv, hellinger, js,
+        kl, grad_norm2, sigma2, loss, classes_present, effective_classes, feature_shift
+      from unnest(
+          ${column((shard) => shard.id)}::text[],
+          ${column((shard) => shard.rows)}::int[],
+          ${column((shard) => shard.tv)}::float8[],
+          ${column((shard) => shard.hellinger)}::float8[],
+          ${column((shard) => shard.js)}::float8[],
+          ${column((shard) => shard.kl)}::float8[],
+          ${column((shard) => shard.gradNorm2)}::float8[],
+          ${column((shard) => shard.sigma2)}::float8[],
+          ${column((shard) => shard.loss)}::float8[],
+          ${column((shard) => shard.classesPresent)}::int[],
+          ${column((shard) => shard.effectiveClasses)}::float8[],
+          ${column((shard) => shard.featureShift)}::float8[]
+        ) with ordinality as shard(
+          shard_id, rows, tv, hellinger, js, kl, grad_norm2, sigma2, loss, classes_present,
+          effective_classes, feature_shift, position
+        )
+    `);
+  }
 }

@@ -131,6 +131,13 @@ export const reports = pgTable(
     previousReportId: text("previous_report_id"),
     title: text("title").notNull(),
     verdict: text("verdict").$type<PartitionSummary["advice"]["verdict"]>().notNull(),
+    // The list's figures, copied from the summary when the report is stored: reading them from the
+    // summary would make the list parse every report's whole summary (megabytes at 100,000 shards).
+    /** ρ = local / minibatch bound (advice.ratio); null where it is undefined. */
+    ratio: doublePrecision("ratio"),
+    /** Rows kept (dataset.rows). */
+    datasetRows: integer("dataset_rows").notNull(),
+    shardCount: integer("shard_count").notNull(),
     // json, not jsonb: PostgreSQL keeps json text as written, so the exported summary has the CLI's
     // key order byte for byte (jsonb would reorder keys).
     summary: json("summary").$type<PartitionSummary>().notNull(),

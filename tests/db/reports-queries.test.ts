@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { closeDb } from "@/db/client";
+import { eq, sql } from "drizzle-orm";
+import { closeDb, db } from "@/db/client";
 import {
   findReport,
   findReportShardTable,
@@ -7,6 +8,7 @@ import {
   listReportAuthors,
   listReports,
 } from "@/db/queries/reports";
+import { reports } from "@/db/schema";
 import type { PartitionSummary } from "@/lib/analysis";
 import { createAccount, createTeam } from "@/tests/support/accounts";
 import { analyzePenguinsWithCli, insertReport } from "@/tests/support/report-fixtures";
@@ -86,6 +88,24 @@ describe("listReports", () => {
     expect(first.ratio).toBe(summary.advice.ratio);
     expect(first.datasetRows).toBe(344);
     expect(first.authorName).toBe(team.analyst.name);
+  });
+
+  it("takes its figures from the report's own columns, never from the stored summary", async () => {
+    // Penguins by island (vega-datasets): 344 rows kept, 3 islands; ρ as the CLI printed it.
+    const outsider = await createAccount("list-figures");
+    const { reportId } = await insertReport({
+      workspaceId: outsider.workspaceId,
+      authorId: outsider.id,
+      summary,
+    });
+    // A summary the list would have to parse is replaced by an empty object: the figures stay.
+    await db()
+      .update(reports)
+      .set({ summary: sql`'{}'::json` })
+      .where(eq(reports.id, reportId));
+    const [listed] = await listReports(outsider.workspaceId);
+    expect(listed).toMatchObject({ id: reportId, datasetRows: 344, shardCount: 3 });
+    expect(listed.ratio).toBe(summary.advice.ratio);
   });
 
   it("filters by verdict, author and whole UTC days (both ends included)", async () => {

@@ -5,8 +5,8 @@ import path from "node:path";
 import { promisify } from "node:util";
 import { eq } from "drizzle-orm";
 import { db } from "@/db/client";
-import { shardRowsOf } from "@/db/queries/report-store";
-import { analyses, dataFiles, reports, reportShards } from "@/db/schema";
+import { insertShardRows, listFiguresOf } from "@/db/queries/report-store";
+import { analyses, dataFiles, reports } from "@/db/schema";
 import type { PartitionSummary } from "@/lib/analysis";
 import { loadPenguinsCsv } from "@/tests/lib/analysis/support/open-data";
 
@@ -116,7 +116,7 @@ export async function insertReport(input: {
       version: (previous?.version ?? 0) + 1,
       previousReportId: input.previousReportId,
       title,
-      verdict: summary.advice.verdict,
+      ...listFiguresOf(summary),
       summary,
       parameters,
       inputs: [
@@ -134,7 +134,7 @@ export async function insertReport(input: {
       createdAt: input.createdAt,
     });
   if (summary.shards.length > 0) {
-    await db().insert(reportShards).values(shardRowsOf(reportId, summary.shards));
+    await insertShardRows(db(), reportId, summary.shards);
   }
   return { reportId, analysisId: analysis.id };
 }
