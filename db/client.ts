@@ -11,10 +11,21 @@ const holder = globalThis as typeof globalThis & { partitaPool?: Pool; partitaDb
 
 export function db(): Database {
   if (!holder.partitaDb) {
-    holder.partitaPool = new Pool({ connectionString: env().DATABASE_URL, max: 10 });
+    const pool = new Pool({ connectionString: env().DATABASE_URL, max: 10 });
+    pool.on("error", logLostConnection);
+    holder.partitaPool = pool;
     holder.partitaDb = drizzle(holder.partitaPool, { schema });
   }
   return holder.partitaDb;
+}
+
+/**
+ * An idle pooled connection that the server closed (a restart, a network reset) is reported here;
+ * without a listener Node would crash the process. The pool drops that connection and opens a new
+ * one for the next query, so one line is all it takes.
+ */
+function logLostConnection(error: Error) {
+  console.error(`[database] lost an idle connection (${error.message}); reconnecting on next use`);
 }
 
 /** Closes the pool; tests and scripts call it so the process can exit. */

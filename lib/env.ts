@@ -18,6 +18,11 @@ const environmentSchema = z.object({
     .enum(["true", "false"])
     .default("false")
     .transform((value) => value === "true"),
+  /**
+   * How long a storage call may wait to connect, or wait idle for the next bytes, before it fails
+   * (milliseconds). A frozen S3 then costs a request this long per attempt instead of hanging it.
+   */
+  STORAGE_TIMEOUT_MS: z.coerce.number().int().positive().default(10_000),
   SMTP_HOST: z.string().default("127.0.0.1"),
   SMTP_PORT: z.coerce.number().int().positive().default(2525),
   SMTP_USER: z.string().optional(),
@@ -26,6 +31,8 @@ const environmentSchema = z.object({
     .enum(["true", "false"])
     .default("false")
     .transform((value) => value === "true"),
+  /** How long the mail sender waits to connect, for the greeting or for an answer (milliseconds). */
+  MAIL_TIMEOUT_MS: z.coerce.number().int().positive().default(10_000),
   MAIL_FROM: z.string().default("Partita <no-reply@partita.local>"),
   /** The largest file a user may upload (bytes); checked in the browser and again by the server. */
   UPLOAD_MAX_BYTES: z.coerce

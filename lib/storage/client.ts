@@ -14,6 +14,7 @@ type StorageSettings = Pick<
   | "S3_ACCESS_KEY_ID"
   | "S3_SECRET_ACCESS_KEY"
   | "S3_FORCE_PATH_STYLE"
+  | "STORAGE_TIMEOUT_MS"
 >;
 
 /**
@@ -21,6 +22,11 @@ type StorageSettings = Pick<
  * Checksums are computed only when an operation requires them; with the SDK's default a streamed
  * body is stored by S3-compatible servers with its chunk framing inside the object, and presigned
  * URLs would carry the checksum of an empty body.
+ *
+ * Every call has a deadline: connecting, and each wait for the next bytes, may take at most
+ * STORAGE_TIMEOUT_MS, and a timed-out call is tried once more (the SDK's backoff between), so a
+ * frozen storage server costs a caller about two timeouts instead of hanging it. The wait is on
+ * idleness, not on the whole transfer, so a large object that keeps flowing is never cut off.
  */
 export function createStorageTarget(settings: StorageSettings): StorageTarget {
   const client = new S3Client({
@@ -33,6 +39,11 @@ export function createStorageTarget(settings: StorageSettings): StorageTarget {
     },
     requestChecksumCalculation: "WHEN_REQUIRED",
     responseChecksumValidation: "WHEN_REQUIRED",
+    maxAttempts: 2,
+    requestHandler: {
+      connectionTimeout: settings.STORAGE_TIMEOUT_MS,
+      socketTimeout: settings.STORAGE_TIMEOUT_MS,
+    },
   });
   return { client, bucket: settings.S3_BUCKET };
 }
