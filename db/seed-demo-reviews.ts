@@ -42,8 +42,8 @@ async function findDemoReports(workspaceId: string) {
 }
 
 /**
- * Gives the demo a review in each state a reviewer meets: the by-orchard report awaits the demo
- * reviewer, with a comment pinned to its most skewed orchard; the shuffled one is approved. Waits
+ * Gives the demo a review in each state a reviewer meets: the by-orchard report is with the demo
+ * reviewer, with a comment pinned to its most skewed orchard; the shuffled one is endorsed. Waits
  * (up to `waitMs`) for the worker to store the two demo reports, since the seed only queues them.
  * Runs once: a demo workspace that has any review request is left alone. Writes the audit entries
  * the product would; sends no e-mail (the demo people have no mailboxes). Returns whether it seeded.
@@ -84,7 +84,7 @@ export async function seedDemoReviews(waitMs: number): Promise<boolean> {
     await recordAudit({
       workspaceId,
       actor: analyst,
-      action: "review.requested",
+      action: "report.referred",
       targetType: "report",
       targetId: report.id,
       details: { title: report.title, version: report.version, reviewers: [reviewer.email] },
@@ -107,14 +107,14 @@ export async function seedDemoReviews(waitMs: number): Promise<boolean> {
   });
 
   const reason = "Near-IID shards and a long plan: local updates are the sensible choice here.";
-  await recordDecision({ report: shuffled, reviewerId: reviewer.id, decision: "approve", reason });
+  await recordDecision({ report: shuffled, reviewerId: reviewer.id, decision: "endorse", reason });
   await recordAudit({
     workspaceId,
     actor: reviewer,
-    action: "review.decided",
+    action: "report.endorsed",
     targetType: "report",
     targetId: shuffled.id,
-    details: { title: shuffled.title, version: shuffled.version, decision: "approve", reason },
+    details: { title: shuffled.title, version: shuffled.version, decision: "endorse", reason },
   });
   return true;
 }

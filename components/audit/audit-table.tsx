@@ -21,14 +21,13 @@ function describeEntry(entry: AuditEntry): string {
       return `${details.email ?? entry.targetId}: ${details.from ?? "?"} → ${details.to}`;
     case "member.removed":
       return `${details.email ?? entry.targetId} (${details.role ?? "?"}) removed`;
-    case "review.requested":
-      return `"${details.title}" v${details.version}: asked ${
+    case "report.referred":
+      return `"${details.title}" v${details.version}: referred to ${
         Array.isArray(details.reviewers) ? details.reviewers.join(", ") : ""
       }`;
-    case "review.decided":
-      return `"${details.title}" v${details.version}: ${
-        details.decision === "approve" ? "approved" : "changes requested"
-      } — ${details.reason}`;
+    case "report.endorsed":
+    case "report.returned":
+      return `"${details.title}" v${details.version}: ${details.reason}`;
     case "report.deleted":
       return `"${details.title}" deleted with ${describeVersions(details.versions)}`;
     case "api-token.created":

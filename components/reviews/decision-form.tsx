@@ -9,15 +9,19 @@ import { TextArea } from "@/components/ui/text-area";
 import { useReviewAction } from "./use-review-action";
 
 const CHOICES: { value: ReviewDecisionKind; label: string; hint: string }[] = [
-  { value: "approve", label: "Approve", hint: "The verdict and its evidence hold for this plan." },
   {
-    value: "changes-requested",
-    label: "Request changes",
-    hint: "Something must change before this report is relied on.",
+    value: "endorse",
+    label: "Endorse the layout",
+    hint: "The verdict and its evidence hold for this plan; the layout can be used.",
+  },
+  {
+    value: "return",
+    label: "Return for rework",
+    hint: "The layout, the plan or the analysis must change before this report is relied on.",
   },
 ];
 
-/** Approve or request changes on this version, with the reason the requester will read. */
+/** Endorse this version's layout or return it for rework, with the reason the referrer will read. */
 export function DecisionForm({
   workspaceId,
   reportId,
@@ -39,7 +43,7 @@ export function DecisionForm({
       () => {
         setReason("");
         setDecision(undefined);
-        return "Decision recorded; whoever asked for the review has been e-mailed.";
+        return "Decision recorded; whoever referred the report has been e-mailed.";
       },
     );
   }

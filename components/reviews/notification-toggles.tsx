@@ -7,14 +7,14 @@ import type { NotificationKind } from "@/db/schema/reviews";
 
 const KINDS: { kind: NotificationKind; label: string; hint: string }[] = [
   {
-    kind: "review-requested",
-    label: "Review requests",
-    hint: "Someone asks you to review a report version.",
+    kind: "referred",
+    label: "Referrals",
+    hint: "Someone refers a report version to you for review.",
   },
   {
     kind: "decision-made",
     label: "Decisions",
-    hint: "A reviewer approves or requests changes on a report you asked to have reviewed.",
+    hint: "A reviewer endorses or returns a report version you referred.",
   },
   { kind: "mentioned", label: "Mentions", hint: "Someone mentions you in a comment." },
   {

@@ -9,7 +9,7 @@ import { useReviewAction } from "./use-review-action";
 
 export type ReviewerOption = { userId: string; label: string; detail: string };
 
-/** Pick owners/reviewers to ask; each gets an e-mail with a link to this version. */
+/** Refer this version to owners/reviewers; each gets an e-mail with a link to it. */
 export function RequestReviewForm({
   workspaceId,
   reportId,
@@ -30,7 +30,7 @@ export function RequestReviewForm({
       ({ asked }) => {
         setChosen([]);
         setNote("");
-        return `Review requested from ${asked} ${asked === 1 ? "person" : "people"}; they have been e-mailed.`;
+        return `Referred to ${asked} ${asked === 1 ? "person" : "people"}; they have been e-mailed.`;
       },
     );
   }
@@ -43,8 +43,8 @@ export function RequestReviewForm({
     );
   }
   return (
-    <form onSubmit={submit} noValidate className="space-y-3" aria-label="Request a review">
-      <h3 className="font-semibold">Request a review</h3>
+    <form onSubmit={submit} noValidate className="space-y-3" aria-label="Refer for review">
+      <h3 className="font-semibold">Refer for review</h3>
       {message ? <Notice tone={message.tone}>{message.text}</Notice> : null}
       <fieldset className="space-y-1">
         <legend className="text-sm font-medium">Reviewers</legend>
@@ -81,7 +81,7 @@ export function RequestReviewForm({
         error={fieldErrors.note}
       />
       <Button type="submit" disabled={pending}>
-        {pending ? "Sending…" : "Request review"}
+        {pending ? "Sending…" : "Refer"}
       </Button>
     </form>
   );

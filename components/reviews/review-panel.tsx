@@ -1,14 +1,12 @@
 import type { ReviewOverview, WorkspacePerson } from "@/db/queries/reviews";
 import { ROLE_LABELS } from "@/lib/auth/roles";
 import { formatReportDate } from "@/lib/reports/report-view";
-import { latestDecisions } from "@/lib/reviews/review-state";
+import { DECISION_PAST_TENSE, DECISION_TITLES, latestDecisions } from "@/lib/reviews/review-state";
 import { CommentForm } from "./comment-form";
 import { CommentThreads } from "./comment-threads";
 import { DecisionForm } from "./decision-form";
 import { RequestReviewForm } from "./request-review-form";
 import { ReviewStateChip } from "./review-state-chip";
-
-const DECISION_LABELS = { approve: "Approved", "changes-requested": "Requested changes" } as const;
 
 /**
  * The review of one report version: its state, who was asked and what each decided (with the
@@ -51,22 +49,30 @@ export function ReviewPanel({
         <ReviewStateChip state={overview.state} />
       </div>
       <p className="max-w-prose text-sm text-ink-soft">
-        Decisions apply to this version only; a new version of the report starts unreviewed.
+        Decisions apply to this version only; a new version of the report starts not referred.
       </p>
 
       {overview.requests.length > 0 ? (
         <div className="space-y-2">
           <h3 className="font-semibold">Reviewers</h3>
-          <ul className="space-y-1 text-sm" aria-label="Reviewers asked">
+          <ul className="space-y-1 text-sm" aria-label="Reviewers referred to">
             {overview.requests.map((request) => {
               const decision = latest.get(request.reviewerId);
               return (
                 <li key={request.reviewerId}>
                   <span className="font-medium">{request.reviewerName}</span>{" "}
                   <span className="text-ink-soft">
-                    — {decision ? DECISION_LABELS[decision] : "not decided yet"} (asked by{" "}
+                    — {decision ? DECISION_TITLES[decision] : "still reading"} (referred by{" "}
                     {request.requestedByName})
                   </span>
+                  {request.note ? (
+                    <blockquote
+                      className="mt-1 border-l-2 border-ink/20 pl-3 whitespace-pre-wrap text-ink-soft"
+                      aria-label={`Note from ${request.requestedByName}`}
+                    >
+                      {request.note}
+                    </blockquote>
+                  ) : null}
                 </li>
               );
             })}
@@ -82,7 +88,7 @@ export function ReviewPanel({
               <li key={decision.id} className="rounded-md border border-ink/10 bg-white p-3">
                 <p className="text-sm">
                   <span className="font-medium">{decision.reviewerName}</span>{" "}
-                  {DECISION_LABELS[decision.decision].toLowerCase()} ·{" "}
+                  {DECISION_PAST_TENSE[decision.decision]} ·{" "}
                   <span className="text-ink-soft">{formatReportDate(decision.createdAt)}</span>
                 </p>
                 <p className="mt-1 text-sm whitespace-pre-wrap">{decision.reason}</p>

@@ -212,7 +212,14 @@ export type ReviewComment = {
 
 export type ReviewOverview = {
   state: ReviewState;
-  requests: { reviewerId: string; reviewerName: string; requestedByName: string; at: Date }[];
+  requests: {
+    reviewerId: string;
+    reviewerName: string;
+    requestedByName: string;
+    /** What the referrer wrote to the reviewers, shown on the page as well as in the e-mail. */
+    note: string | null;
+    at: Date;
+  }[];
   decisions: {
     id: string;
     reviewerId: string;
@@ -239,6 +246,7 @@ export async function findReviewOverview(
         reviewerId: reviewRequests.reviewerId,
         reviewerName: personName,
         requestedByName: requester,
+        note: reviewRequests.note,
         at: reviewRequests.createdAt,
       })
       .from(reviewRequests)

@@ -61,7 +61,12 @@ export const reviewComments = pgTable(
   (table) => [index("review_comments_report_idx").on(table.reportId, table.createdAt)],
 );
 
-export const reviewDecisionKind = pgEnum("review_decision_kind", ["approve", "changes-requested"]);
+/**
+ * A reviewer either endorses the layout (the verdict and its evidence hold for the plan) or
+ * returns the report for rework; lib/reviews/review-state.ts holds the words shown for each.
+ */
+export const REVIEW_DECISION_KINDS = ["endorse", "return"] as const;
+export const reviewDecisionKind = pgEnum("review_decision_kind", REVIEW_DECISION_KINDS);
 
 /**
  * A reviewer's decision on exactly one report version. A reviewer may decide again (the newest
@@ -87,8 +92,9 @@ export const AUDIT_ACTIONS = [
   "member.invitation-withdrawn",
   "member.role-changed",
   "member.removed",
-  "review.requested",
-  "review.decided",
+  "report.referred",
+  "report.endorsed",
+  "report.returned",
   "report.deleted",
   "api-token.created",
   "api-token.revoked",
@@ -121,7 +127,7 @@ export const auditLog = pgTable(
 );
 
 export const NOTIFICATION_KINDS = [
-  "review-requested",
+  "referred",
   "decision-made",
   "mentioned",
   "analysis-finished",

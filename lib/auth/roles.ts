@@ -42,5 +42,5 @@ export const ROLE_LABELS: Record<Role, string> = {
 export const ROLE_DESCRIPTIONS: Record<Role, string> = {
   owner: "Manages members and settings; can also upload and analyse.",
   analyst: "Uploads datasets and layouts, runs analyses, publishes reports.",
-  reviewer: "Reads reports, comments, approves or requests changes.",
+  reviewer: "Reads reports, comments, endorses layouts or returns them for rework.",
 };

@@ -1,4 +1,8 @@
-import type { ReviewDecisionKind } from "@/lib/reviews/review-state";
+import {
+  DECISION_PAST_TENSE,
+  DECISION_TITLES,
+  type ReviewDecisionKind,
+} from "@/lib/reviews/review-state";
 
 export type NotificationMessage = { subject: string; text: string };
 
@@ -25,12 +29,12 @@ export function reviewRequestedMessage(input: {
   settingsUrl: string;
 }): NotificationMessage {
   return {
-    subject: `Review requested: ${input.report.title} (v${input.report.version})`,
+    subject: `Referred to you: ${input.report.title} (v${input.report.version})`,
     text: [
-      `${input.requesterName} asked you to review the report ${versioned(input.report)} in the workspace "${input.workspaceName}".`,
+      `${input.requesterName} referred the report ${versioned(input.report)} in the workspace "${input.workspaceName}" to you.`,
       ...(input.note ? ["", quoted(input.note)] : []),
       "",
-      `Read it, comment, and approve or request changes: ${input.report.url}`,
+      `Read it, comment, and endorse the layout or return it for rework: ${input.report.url}`,
       "",
       "Your decision applies to this version only; a later version needs its own review.",
       "",
@@ -46,11 +50,10 @@ export function decisionMadeMessage(input: {
   reason: string;
   settingsUrl: string;
 }): NotificationMessage {
-  const verb = input.decision === "approve" ? "approved" : "requested changes to";
   return {
-    subject: `${input.decision === "approve" ? "Approved" : "Changes requested"}: ${input.report.title} (v${input.report.version})`,
+    subject: `${DECISION_TITLES[input.decision]}: ${input.report.title} (v${input.report.version})`,
     text: [
-      `${input.reviewerName} ${verb} the report ${versioned(input.report)}.`,
+      `${input.reviewerName} read the report ${versioned(input.report)} and ${DECISION_PAST_TENSE[input.decision]}.`,
       "",
       "Reason:",
       quoted(input.reason),

@@ -1,9 +1,10 @@
 import { z } from "zod";
+import { REVIEW_DECISION_KINDS } from "@/db/schema/reviews";
 
 export const reviewRequestSchema = z.object({
   reviewerIds: z
     .array(z.string().min(1))
-    .min(1, "Choose at least one reviewer.")
+    .min(1, "Choose at least one reviewer to refer it to.")
     .max(20, "Ask at most 20 reviewers at once."),
   note: z.string().trim().max(2000, "Keep the note under 2,000 characters.").optional(),
 });
@@ -25,8 +26,8 @@ export const commentSchema = z
   });
 
 export const decisionSchema = z.object({
-  decision: z.enum(["approve", "changes-requested"], {
-    message: "Choose approve or request changes.",
+  decision: z.enum(REVIEW_DECISION_KINDS, {
+    message: "Choose whether to endorse the layout or return it for rework.",
   }),
   reason: z
     .string()

@@ -45,7 +45,7 @@ async function teamWithReport() {
 }
 
 describe("the review cycle", () => {
-  it("requests, comments with a mention, decides, and e-mails each person concerned", async () => {
+  it("refers, comments with a mention, decides, and e-mails each person concerned", async () => {
     const team = await teamWithReport();
     const { workspaceId, reportId } = team;
     const reportUrl = `/w/${workspaceId}/reports/${reportId}`;
@@ -57,15 +57,18 @@ describe("the review cycle", () => {
     });
     expect(asked).toEqual({ ok: true, data: { asked: 2 } });
     for (const person of [team.reviewer, team.owner]) {
-      const message = await waitForMessage(person.email, /^Review requested: Penguins by island/);
+      const message = await waitForMessage(person.email, /^Referred to you: Penguins by island/);
       expect(message.text).toContain(`${process.env.NEXTAUTH_URL}${reportUrl}`);
-      expect(message.text).toContain("Test analyst asked you to review");
+      expect(message.text).toContain("Test analyst referred the report");
       expect(message.text).toContain("> Please check the Torgersen shard.");
     }
-    expect((await findReviewOverview(workspaceId, reportId)).state).toEqual({
-      kind: "awaiting",
-      pending: 2,
-    });
+    const referred = await findReviewOverview(workspaceId, reportId);
+    expect(referred.state).toEqual({ kind: "with-reviewers", pending: 2 });
+    // The note is on the page too, not only in the e-mail.
+    expect(referred.requests.map((request) => request.note)).toEqual([
+      "Please check the Torgersen shard.",
+      "Please check the Torgersen shard.",
+    ]);
     // Asking the same people again asks nobody new and sends nothing new.
     expect(await requestReview(workspaceId, reportId, { reviewerIds: [team.reviewer.id] })).toEqual(
       { ok: true, data: { asked: 0 } },
@@ -92,23 +95,24 @@ describe("the review cycle", () => {
     actAs(team.reviewer);
     expect(
       await decideReview(workspaceId, reportId, {
-        decision: "approve",
+        decision: "endorse",
         reason: "The skew is explained by the islands.",
       }),
     ).toMatchObject({ ok: true });
-    const approval = await waitForMessage(team.analyst.email, /^Approved: Penguins by island/);
-    expect(approval.text).toContain("Test reviewer approved the report");
+    const approval = await waitForMessage(team.analyst.email, /^Endorsed: Penguins by island/);
+    expect(approval.text).toContain("Test reviewer read the report");
+    expect(approval.text).toContain("and endorsed the layout.");
     expect(approval.text).toContain("> The skew is explained by the islands.");
     expect(approval.text).toContain(reportUrl);
     expect((await findReviewOverview(workspaceId, reportId)).state).toEqual({
-      kind: "awaiting",
+      kind: "with-reviewers",
       pending: 1,
     });
 
     actAs(team.owner);
-    await decideReview(workspaceId, reportId, { decision: "approve", reason: "Agreed." });
+    await decideReview(workspaceId, reportId, { decision: "endorse", reason: "Agreed." });
     const overview = await findReviewOverview(workspaceId, reportId);
-    expect(overview.state).toEqual({ kind: "approved" });
+    expect(overview.state).toEqual({ kind: "endorsed" });
     expect(
       overview.comments.map((entry) => [entry.anchorKind, entry.anchor, entry.parentId]),
     ).toEqual([
@@ -117,44 +121,44 @@ describe("the review cycle", () => {
     ]);
     const audit = await listAuditEntries(workspaceId);
     expect(audit.map((entry) => entry.action).sort()).toEqual([
-      "review.decided",
-      "review.decided",
-      "review.requested",
+      "report.endorsed",
+      "report.endorsed",
+      "report.referred",
     ]);
   });
 
-  it("lets a request for changes outweigh approvals and requires a reason", async () => {
+  it("lets a return for rework outweigh endorsements and requires a reason", async () => {
     const team = await teamWithReport();
     const { workspaceId, reportId } = team;
     actAs(team.analyst);
     await requestReview(workspaceId, reportId, { reviewerIds: [team.reviewer.id] });
     actAs(team.reviewer);
     const missingReason = await decideReview(workspaceId, reportId, {
-      decision: "changes-requested",
+      decision: "return",
       reason: "  ",
     });
     expect(
       missingReason.ok ? 200 : [missingReason.status, Object.keys(missingReason.fieldErrors)],
     ).toEqual([422, ["reason"]]);
     await decideReview(workspaceId, reportId, {
-      decision: "changes-requested",
+      decision: "return",
       reason: "Use a shuffled layout as a baseline.",
     });
-    await waitForMessage(team.analyst.email, /^Changes requested: Penguins by island/);
+    await waitForMessage(team.analyst.email, /^Returned for rework: Penguins by island/);
     actAs(team.owner);
-    await decideReview(workspaceId, reportId, { decision: "approve", reason: "Fine by me." });
-    expect((await findReviewOverview(workspaceId, reportId)).state.kind).toBe("changes-requested");
+    await decideReview(workspaceId, reportId, { decision: "endorse", reason: "Fine by me." });
+    expect((await findReviewOverview(workspaceId, reportId)).state.kind).toBe("returned");
   });
 });
 
 describe("decisions belong to one version", () => {
-  it("shows a new version as not yet reviewed while the old one stays approved", async () => {
+  it("shows a new version as not referred while the old one stays endorsed", async () => {
     const team = await teamWithReport();
     const { workspaceId, reportId } = team;
     actAs(team.analyst);
     await requestReview(workspaceId, reportId, { reviewerIds: [team.reviewer.id] });
     actAs(team.reviewer);
-    await decideReview(workspaceId, reportId, { decision: "approve", reason: "Good." });
+    await decideReview(workspaceId, reportId, { decision: "endorse", reason: "Good." });
     const revision = await insertReport({
       workspaceId,
       authorId: team.analyst.id,
@@ -162,8 +166,8 @@ describe("decisions belong to one version", () => {
       previousReportId: reportId,
     });
     const states = await findReviewStates(workspaceId, [reportId, revision.reportId]);
-    expect(states.get(reportId)).toEqual({ kind: "approved" });
-    expect(states.get(revision.reportId)).toEqual({ kind: "not-reviewed" });
+    expect(states.get(reportId)).toEqual({ kind: "endorsed" });
+    expect(states.get(revision.reportId)).toEqual({ kind: "not-referred" });
     const overview = await findReviewOverview(workspaceId, revision.reportId);
     expect([overview.requests, overview.decisions, overview.comments]).toEqual([[], [], []]);
   });
@@ -179,7 +183,7 @@ describe("notification preferences", () => {
     ).toEqual({ ok: true, data: undefined });
     await requestReview(workspaceId, reportId, { reviewerIds: [team.reviewer.id] });
     actAs(team.reviewer);
-    await decideReview(workspaceId, reportId, { decision: "approve", reason: "First look." });
+    await decideReview(workspaceId, reportId, { decision: "endorse", reason: "First look." });
     // A mention (still on) sent after the decision proves the mailbox is up to date when it arrives.
     await postComment(workspaceId, reportId, { body: `Thanks @${team.analyst.email}.` });
     await waitForMessage(team.analyst.email, /mentioned you/);
@@ -188,8 +192,8 @@ describe("notification preferences", () => {
     actAs(team.analyst);
     await updateNotificationSetting(workspaceId, { kind: "decision-made", enabled: true });
     actAs(team.reviewer);
-    await decideReview(workspaceId, reportId, { decision: "approve", reason: "Second look." });
-    const message = await waitForMessage(team.analyst.email, /^Approved/);
+    await decideReview(workspaceId, reportId, { decision: "endorse", reason: "Second look." });
+    const message = await waitForMessage(team.analyst.email, /^Endorsed/);
     expect(message.text).toContain("> Second look.");
   });
 
@@ -209,7 +213,7 @@ describe("review actions: roles", () => {
   it("lets only owners and analysts request, and only owners and reviewers decide", async () => {
     const team = await teamWithReport();
     const { workspaceId, reportId } = team;
-    const decision = { decision: "approve", reason: "ok" } as const;
+    const decision = { decision: "endorse", reason: "ok" } as const;
     actAs(team.reviewer);
     expect(
       statusOf(await requestReview(workspaceId, reportId, { reviewerIds: [team.owner.id] })),
@@ -254,7 +258,7 @@ describe("review actions: roles", () => {
     expect(statusOf(await postComment(workspaceId, foreignReport, { body: "hi" }))).toBe(404);
     expect(
       statusOf(
-        await decideReview(workspaceId, foreignReport, { decision: "approve", reason: "x" }),
+        await decideReview(workspaceId, foreignReport, { decision: "endorse", reason: "x" }),
       ),
     ).toBe(404);
   });
@@ -270,7 +274,7 @@ describe("review actions: roles", () => {
       ).toBe(expected);
       expect(statusOf(await postComment(workspaceId, reportId, { body: "hello" }))).toBe(expected);
       expect(
-        statusOf(await decideReview(workspaceId, reportId, { decision: "approve", reason: "x" })),
+        statusOf(await decideReview(workspaceId, reportId, { decision: "endorse", reason: "x" })),
       ).toBe(expected);
     }
     expect(await findMessagesTo(team.reviewer.email)).toEqual([]);

@@ -18,7 +18,7 @@ const WORKER_WAIT_MS = 4 * 60 * 1000;
 
 describe("the demo seed", () => {
   it(
-    "leaves two reports whose verdicts disagree, one awaiting review and one approved, once",
+    "leaves two reports whose verdicts disagree, one with its reviewer and one endorsed, once",
     async () => {
       const databaseUrl = process.env.DATABASE_URL ?? "";
       expect(await seedDemo(databaseUrl)).toHaveLength(DEMO_ACCOUNTS.length);
@@ -40,7 +40,7 @@ describe("the demo seed", () => {
       expect([byOrchard?.verdict, shuffled?.verdict]).toEqual(["large-minibatch", "local-updates"]);
 
       const orchardReview = await findReviewOverview(workspaceId, byOrchard?.id ?? "");
-      expect(orchardReview.state).toEqual({ kind: "awaiting", pending: 1 });
+      expect(orchardReview.state).toEqual({ kind: "with-reviewers", pending: 1 });
       const shards = await db()
         .select({ shardId: reportShards.shardId, js: reportShards.js })
         .from(reportShards)
@@ -52,10 +52,10 @@ describe("the demo seed", () => {
         anchor: mostSkewed.shardId,
       });
       expect((await findReviewOverview(workspaceId, shuffled?.id ?? "")).state).toEqual({
-        kind: "approved",
+        kind: "endorsed",
       });
       const actions = (await listAuditEntries(workspaceId)).map((entry) => entry.action).sort();
-      expect(actions).toEqual(["review.decided", "review.requested", "review.requested"]);
+      expect(actions).toEqual(["report.endorsed", "report.referred", "report.referred"]);
 
       // A second start changes nothing.
       await seedDemo(databaseUrl);

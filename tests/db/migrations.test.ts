@@ -1,9 +1,14 @@
 // Applies drizzle/ to a database created empty for this test on the test server (DATABASE_URL),
 // then asks PostgreSQL's own catalogue which tables exist.
 import { randomUUID } from "node:crypto";
+import { cpSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
 import pg from "pg";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { applyMigrations } from "@/scripts/services/migrate";
+import { drizzle } from "drizzle-orm/node-postgres";
+import { migrate } from "drizzle-orm/node-postgres/migrator";
+import { applyMigrations, migrationsFolder } from "@/scripts/services/migrate";
 
 const serverUrl = new URL(process.env.DATABASE_URL ?? "postgres://unset");
 const databaseName = `partita_migrations_${randomUUID().replace(/-/g, "").slice(0, 12)}`;
@@ -55,5 +60,70 @@ describe("migrations", () => {
     const before = (await publicTables()).sort();
     expect(await applyMigrations(databaseUrl)).toBe(true);
     expect((await publicTables()).sort()).toEqual(before);
+  });
+
+  it("convert stored review words: decisions, preferences and audit entries", async () => {
+    // A second database, migrated only up to the migration before the vocabulary change, holds
+    // rows in the old words; the full set of migrations must convert them.
+    const oldName = `${databaseName}_words`;
+    const oldUrl = Object.assign(new URL(serverUrl), { pathname: `/${oldName}` }).toString();
+    const partialFolder = mkdtempSync(path.join(tmpdir(), "partita-migrations-"));
+    await onServer((client) => client.query(`CREATE DATABASE ${pg.escapeIdentifier(oldName)}`));
+    const pool = new pg.Pool({ connectionString: oldUrl, max: 1 });
+    try {
+      cpSync(migrationsFolder, partialFolder, { recursive: true });
+      const journalPath = path.join(partialFolder, "meta", "_journal.json");
+      const journal = JSON.parse(readFileSync(journalPath, "utf8")) as {
+        entries: { tag: string }[];
+      };
+      const cut = journal.entries.findIndex((entry) =>
+        entry.tag.endsWith("review_words_of_our_own"),
+      );
+      expect(cut).toBeGreaterThan(0);
+      writeFileSync(
+        journalPath,
+        JSON.stringify({ ...journal, entries: journal.entries.slice(0, cut) }),
+      );
+      await migrate(drizzle(pool), { migrationsFolder: partialFolder });
+      await pool.query(
+        `INSERT INTO audit_log (id, workspace_id, actor_id, actor_email, action, target_type, target_id, details)
+         VALUES ('a1', 'w', 'u', 'u@example.test', 'review.requested', 'report', 'r', '{"version": 1}'),
+                ('a2', 'w', 'u', 'u@example.test', 'review.decided', 'report', 'r', '{"decision": "approve", "reason": "ok"}'),
+                ('a3', 'w', 'u', 'u@example.test', 'review.decided', 'report', 'r', '{"decision": "changes-requested", "reason": "no"}'),
+                ('a4', 'w', 'u', 'u@example.test', 'member.invited', 'user', 'x', '{}')`,
+      );
+
+      await migrate(drizzle(pool), { migrationsFolder });
+
+      const entries = await pool.query<{ id: string; action: string; decision: string | null }>(
+        "SELECT id, action, details->>'decision' AS decision FROM audit_log ORDER BY id",
+      );
+      expect(entries.rows).toEqual([
+        { id: "a1", action: "report.referred", decision: null },
+        { id: "a2", action: "report.endorsed", decision: "endorse" },
+        { id: "a3", action: "report.returned", decision: "return" },
+        { id: "a4", action: "member.invited", decision: null },
+      ]);
+      const labels = await pool.query<{ typname: string; labels: string[] }>(
+        `SELECT t.typname, array_agg(e.enumlabel ORDER BY e.enumsortorder)::text[] AS labels
+         FROM pg_enum e JOIN pg_type t ON t.oid = e.enumtypid
+         WHERE t.typname IN ('review_decision_kind', 'notification_kind') GROUP BY t.typname ORDER BY t.typname`,
+      );
+      expect(labels.rows).toEqual([
+        {
+          typname: "notification_kind",
+          labels: ["referred", "decision-made", "mentioned", "analysis-finished"],
+        },
+        { typname: "review_decision_kind", labels: ["endorse", "return"] },
+      ]);
+      // The append-only guard is back after the conversion.
+      await expect(pool.query("DELETE FROM audit_log WHERE id = 'a4'")).rejects.toThrow();
+    } finally {
+      await pool.end();
+      rmSync(partialFolder, { recursive: true, force: true });
+      await onServer((client) =>
+        client.query(`DROP DATABASE IF EXISTS ${pg.escapeIdentifier(oldName)} WITH (FORCE)`),
+      );
+    }
   });
 });

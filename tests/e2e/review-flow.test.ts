@@ -1,4 +1,4 @@
-// Request review → comment → approve in Chromium, with the reviewer arriving signed out from the
+// Refer → comment → endorse in Chromium, with the reviewer arriving signed out from the
 // link in the e-mail the SMTP fake caught. The report is the CLI's summary of penguins by island
 // (vega-datasets, BSD-3) stored as the worker stores it; the accounts are made in the database.
 import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
@@ -63,7 +63,7 @@ async function fillSignInForm(session: BrowserSession, person: typeof analyst) {
 }
 
 describe("review flow in the browser", () => {
-  it("requests a review, the reviewer follows the e-mail link, comments and approves", async () => {
+  it("refers a report, the reviewer follows the e-mail link, comments and endorses the layout", async () => {
     browser = await openBrowser();
     let { page } = browser;
     await page.goto(reportPath);
@@ -71,17 +71,17 @@ describe("review flow in the browser", () => {
     await fillSignInForm(browser, analyst);
     await page.waitForURL((url) => url.pathname === reportPath);
     const review = page.getByRole("region", { name: "Review of version 1" });
-    expect(await review.getByTestId("review-state").textContent()).toContain("Not yet reviewed");
+    expect(await review.getByTestId("review-state").textContent()).toContain("Not referred");
     // Analysts request reviews but do not decide them.
     expect(await review.getByRole("button", { name: "Record decision" }).count()).toBe(0);
     await review.getByRole("checkbox", { name: /Rowan Reviewer/ }).check();
     await review.getByLabel("Note to the reviewers (optional)").fill("Is the island split fair?");
-    await review.getByRole("button", { name: "Request review" }).click();
-    await review.getByText("Review requested from 1 person").waitFor();
-    await review.getByText("Awaiting 1 reviewer").waitFor();
+    await review.getByRole("button", { name: "Refer", exact: true }).click();
+    await review.getByText("Referred to 1 person").waitFor();
+    await review.getByText("With 1 reviewer").waitFor();
     await browser.close();
 
-    const request = await waitForMessage(reviewer.email, /^Review requested: Penguins by island/);
+    const request = await waitForMessage(reviewer.email, /^Referred to you: Penguins by island/);
     const link = request.text.match(/https?:\/\/\S+\/reports\/[\w-]+/)?.[0];
     expect(link && new URL(link).pathname).toBe(reportPath);
 
@@ -102,21 +102,21 @@ describe("review flow in the browser", () => {
     await thread.getByText("On: Shard Torgersen").waitFor();
     expect(await thread.getByText("Torgersen holds only Adelie.").count()).toBe(1);
 
-    await panel.getByRole("radio", { name: /Approve/ }).check();
+    await panel.getByRole("radio", { name: /Endorse the layout/ }).check();
     await panel.getByLabel("Reason").fill("The verdict follows from the island skew.");
     await panel.getByRole("button", { name: "Record decision" }).click();
-    await panel.getByTestId("review-state").getByText("Approved").waitFor();
+    await panel.getByTestId("review-state").getByText("Endorsed").waitFor();
     expect(await panel.getByRole("list", { name: "Decisions" }).textContent()).toContain(
       "The verdict follows from the island skew.",
     );
 
     await page.goto(`/w/${workspaceId}/reports`);
     const row = page.locator("tbody tr").first();
-    expect(await row.getByTestId("review-state").textContent()).toContain("Approved");
+    expect(await row.getByTestId("review-state").textContent()).toContain("Endorsed");
 
     const mention = await waitForMessage(analyst.email, /mentioned you/);
     expect(mention.text).toContain("Torgersen holds only Adelie.");
-    const approval = await waitForMessage(analyst.email, /^Approved: Penguins by island \(v1\)/);
+    const approval = await waitForMessage(analyst.email, /^Endorsed: Penguins by island \(v1\)/);
     expect(approval.text).toContain(reportPath);
     await browser.close();
 
@@ -126,9 +126,9 @@ describe("review flow in the browser", () => {
     await page.goto(`/w/${workspaceId}/audit`);
     await fillSignInForm(browser, owner);
     await page.waitForURL((url) => url.pathname === `/w/${workspaceId}/audit`);
-    await page.getByLabel("Event").selectOption("review.decided");
+    await page.getByLabel("Event").selectOption("report.endorsed");
     await page.getByRole("button", { name: "Apply" }).click();
-    await page.waitForURL(/action=review.decided/);
+    await page.waitForURL(/action=report.endorsed/);
     const entries = page
       .getByRole("table", { name: "Audit log, newest first" })
       .locator("tbody tr");

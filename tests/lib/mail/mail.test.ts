@@ -11,11 +11,11 @@ describe("lib/mail through the SMTP fake", () => {
   it("delivers a message that the dev inbox finds by recipient", async () => {
     const to = uniqueAddress("reviewer");
     const link = `http://127.0.0.1:3000/invite/${randomUUID()}`;
-    await sendMail({ to, subject: "Review requested", text: `Open the report: ${link}` });
+    await sendMail({ to, subject: "Referred to you", text: `Open the report: ${link}` });
 
     const [message, ...others] = await findMessagesTo(to.toUpperCase());
     expect(others).toHaveLength(0);
-    expect(message.subject).toBe("Review requested");
+    expect(message.subject).toBe("Referred to you");
     expect(message.to).toEqual([to]);
     expect(message.from).toContain("no-reply@partita.local");
     expect(message.text).toContain(link);
@@ -42,11 +42,11 @@ describe("lib/mail through the SMTP fake", () => {
       from: "Partita <no-reply@partita.local>",
       to: visible,
       bcc: hidden,
-      subject: "Approved",
-      text: "The report was approved.",
+      subject: "Endorsed",
+      text: "The layout was endorsed.",
     });
     const [message] = await findMessagesTo(hidden);
-    expect(message?.subject).toBe("Approved");
+    expect(message?.subject).toBe("Endorsed");
   });
 
   it("rejects message ids that could leave the mail folder", async () => {

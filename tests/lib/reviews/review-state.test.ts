@@ -1,55 +1,55 @@
 // Review state rules, written out from issue 5 ("a decision belongs to one report version") and the
-// rule chosen in lib/reviews/review-state.ts (a request for changes outweighs approvals).
+// rule chosen in lib/reviews/review-state.ts (a return for rework outweighs endorsements).
 import { describe, expect, it } from "vitest";
 import { describeReviewState, summarizeReviewState } from "@/lib/reviews/review-state";
 
 const at = (minute: number) => new Date(Date.UTC(2026, 0, 1, 9, minute));
 
 describe("summarizeReviewState", () => {
-  it("is not reviewed with no requests and no decisions", () => {
+  it("is not referred with no referrals and no decisions", () => {
     const state = summarizeReviewState({ requestedReviewerIds: [], decisions: [] });
-    expect(state).toEqual({ kind: "not-reviewed" });
-    expect(describeReviewState(state)).toBe("Not yet reviewed");
+    expect(state).toEqual({ kind: "not-referred" });
+    expect(describeReviewState(state)).toBe("Not referred");
   });
 
   it("counts the requested reviewers who have not decided", () => {
     const state = summarizeReviewState({
       requestedReviewerIds: ["a", "b", "c"],
-      decisions: [{ reviewerId: "b", decision: "approve", createdAt: at(1) }],
+      decisions: [{ reviewerId: "b", decision: "endorse", createdAt: at(1) }],
     });
-    expect(state).toEqual({ kind: "awaiting", pending: 2 });
-    expect(describeReviewState(state)).toBe("Awaiting 2 reviewers");
-    expect(describeReviewState({ kind: "awaiting", pending: 1 })).toBe("Awaiting 1 reviewer");
+    expect(state).toEqual({ kind: "with-reviewers", pending: 2 });
+    expect(describeReviewState(state)).toBe("With 2 reviewers");
+    expect(describeReviewState({ kind: "with-reviewers", pending: 1 })).toBe("With 1 reviewer");
   });
 
-  it("lets one request for changes outweigh approvals and pending reviewers", () => {
+  it("lets one return outweigh endorsements and pending reviewers", () => {
     expect(
       summarizeReviewState({
         requestedReviewerIds: ["a", "b"],
         decisions: [
-          { reviewerId: "a", decision: "approve", createdAt: at(1) },
-          { reviewerId: "owner", decision: "changes-requested", createdAt: at(2) },
+          { reviewerId: "a", decision: "endorse", createdAt: at(1) },
+          { reviewerId: "owner", decision: "return", createdAt: at(2) },
         ],
       }),
-    ).toEqual({ kind: "changes-requested" });
+    ).toEqual({ kind: "returned" });
   });
 
   it("uses each reviewer's newest decision, whatever order the rows come in", () => {
     const decisions = [
-      { reviewerId: "a", decision: "approve", createdAt: at(5) },
-      { reviewerId: "a", decision: "changes-requested", createdAt: at(1) },
+      { reviewerId: "a", decision: "endorse", createdAt: at(5) },
+      { reviewerId: "a", decision: "return", createdAt: at(1) },
     ] as const;
     expect(summarizeReviewState({ requestedReviewerIds: ["a"], decisions })).toEqual({
-      kind: "approved",
+      kind: "endorsed",
     });
   });
 
-  it("is approved by an unrequested decider when nobody was asked", () => {
+  it("is endorsed by an unreferred decider when nobody was asked", () => {
     expect(
       summarizeReviewState({
         requestedReviewerIds: [],
-        decisions: [{ reviewerId: "owner", decision: "approve", createdAt: at(1) }],
+        decisions: [{ reviewerId: "owner", decision: "endorse", createdAt: at(1) }],
       }),
-    ).toEqual({ kind: "approved" });
+    ).toEqual({ kind: "endorsed" });
   });
 });

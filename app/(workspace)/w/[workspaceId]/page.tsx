@@ -90,7 +90,7 @@ export default async function WorkspaceOverviewPage({
           <p className="text-sm text-ink-soft">
             {canUpload
               ? "To start a report you will need the three things below."
-              : "As a reviewer you will find reports here once analysts publish them; you can comment on them and approve or ask for changes."}
+              : "As a reviewer you will find reports here once analysts publish them; you can comment on them and endorse a layout or return it for rework."}
           </p>
         </div>
         <figure className="rounded-lg border border-ink/10 bg-white p-4">

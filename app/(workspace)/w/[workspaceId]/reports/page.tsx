@@ -74,7 +74,7 @@ export default async function ReportsPage({
             reports={reports.map((report) => ({
               ...report,
               createdAt: report.createdAt.toISOString(),
-              reviewState: reviewStates.get(report.id) ?? { kind: "not-reviewed" },
+              reviewState: reviewStates.get(report.id) ?? { kind: "not-referred" },
             }))}
           />
           {reports.length === LIST_LIMIT ? (

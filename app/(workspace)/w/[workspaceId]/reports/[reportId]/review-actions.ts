@@ -22,6 +22,7 @@ import {
 } from "@/lib/notifications/messages";
 import { findMentionedMembers } from "@/lib/reviews/mentions";
 import { commentSchema, decisionSchema, reviewRequestSchema } from "@/lib/reviews/review-input";
+import { DECISION_AUDIT_ACTIONS } from "@/lib/reviews/review-state";
 
 function reportRef(report: ReportForReview) {
   return {
@@ -33,7 +34,7 @@ function reportRef(report: ReportForReview) {
 
 const settingsUrl = (workspaceId: string) => linkTo(notificationSettingsPath(workspaceId));
 
-/** An analyst (or owner) asks chosen owners/reviewers to review this version; each gets an e-mail. */
+/** An analyst (or owner) refers this version to chosen owners/reviewers; each gets an e-mail. */
 export async function requestReview(
   workspaceId: string,
   reportId: string,
@@ -53,7 +54,7 @@ export async function requestReview(
       await recordAudit({
         workspaceId: workspace.id,
         actor: user,
-        action: "review.requested",
+        action: "report.referred",
         targetType: "report",
         targetId: report.id,
         details: {
@@ -68,7 +69,7 @@ export async function requestReview(
         deliverNotification({
           workspaceId: workspace.id,
           recipient: person,
-          kind: "review-requested",
+          kind: "referred",
           message: reviewRequestedMessage({
             report: reportRef(report),
             requesterName: user.name ?? user.email,
@@ -132,8 +133,8 @@ export async function postComment(
 }
 
 /**
- * A reviewer's (or owner's) approve / request changes on this version, with a reason. Audited, and
- * everyone who requested the review gets an e-mail.
+ * A reviewer (or owner) endorses this version's layout or returns it for rework, with a reason.
+ * Audited, and everyone who referred the report gets an e-mail.
  */
 export async function decideReview(
   workspaceId: string,
@@ -153,7 +154,7 @@ export async function decideReview(
     await recordAudit({
       workspaceId: workspace.id,
       actor: user,
-      action: "review.decided",
+      action: DECISION_AUDIT_ACTIONS[values.decision],
       targetType: "report",
       targetId: report.id,
       details: {
