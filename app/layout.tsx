@@ -1,5 +1,6 @@
 import type { Metadata } from "next";
 import localFont from "next/font/local";
+import { connection } from "next/server";
 import "./globals.css";
 
 // Shipped with the app: the build machine has no network for hosted fonts.
@@ -15,7 +16,9 @@ export const metadata: Metadata = {
     "Measure shard heterogeneity and decide between local updates and large minibatches.",
 };
 
-export default function RootLayout({ children }: { children: React.ReactNode }) {
+export default async function RootLayout({ children }: { children: React.ReactNode }) {
+  // Every page carries its request's script nonce (proxy.ts), so none may be prerendered.
+  await connection();
   return (
     <html lang="en" className={inter.variable}>
       <body className="min-h-screen font-sans">{children}</body>

@@ -40,6 +40,18 @@ const environmentSchema = z.object({
     .int()
     .positive("UPLOAD_MAX_BYTES must be a positive number of bytes")
     .default(2 * 1024 ** 3),
+  /**
+   * How many reverse proxies stand in front of the app and append to X-Forwarded-For. 0 (the
+   * default) ignores that header entirely, since any client can write it; the address the server
+   * sees is then the client's. Rate limits and the development inbox key on this address.
+   */
+  TRUSTED_PROXY_HOPS: z.coerce
+    .number()
+    .int()
+    .min(0, "TRUSTED_PROXY_HOPS must be 0 or more (the number of proxies in front of the app)")
+    .default(0),
+  /** Set by scripts/serve-app.mjs: the address the app listens on. */
+  PARTITA_LISTEN_HOST: z.string().optional(),
   /** Set only when the local SMTP fake is in use: the folder it writes messages to. Enables the dev inbox. */
   DEV_MAIL_DIR: z.string().optional(),
 });

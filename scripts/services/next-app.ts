@@ -57,8 +57,9 @@ export function buildNextApp(
 }
 
 /**
- * Serves the production build on 127.0.0.1 and resolves once it answers HTTP. Started through
- * Node directly (not npx) so the supervisor holds the server's own process id.
+ * Serves the production build on 127.0.0.1 through scripts/serve-app.mjs (which tells the app the
+ * caller's real address) and resolves once it answers HTTP. Started through Node directly (not
+ * npx) so the supervisor holds the server's own process id.
  */
 export async function startNextApp(
   supervisor: Supervisor,
@@ -67,7 +68,13 @@ export async function startNextApp(
   const server = supervisor.startService({
     name: "Next.js server",
     command: process.execPath,
-    args: [nextBin(options.projectRoot), "start", "-H", "127.0.0.1", "-p", String(options.port)],
+    args: [
+      path.join(options.projectRoot, "scripts", "serve-app.mjs"),
+      "-H",
+      "127.0.0.1",
+      "-p",
+      String(options.port),
+    ],
     cwd: options.projectRoot,
     env: options.env,
   });
