@@ -4,6 +4,7 @@ import { db } from "@/db/client";
 import { memberships, users } from "@/db/schema";
 import type { Role } from "@/lib/auth/roles";
 import { RuleError } from "@/lib/errors";
+import { endAllSessions } from "./sessions";
 
 export type MemberView = {
   userId: string;
@@ -55,7 +56,11 @@ export async function updateMembership(
       );
     }
     const where = and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId));
-    if (role === null) await tx.delete(memberships).where(where);
-    else await tx.update(memberships).set({ role }).where(where);
+    if (role === null) {
+      await tx.delete(memberships).where(where);
+      // A removed person is signed out everywhere: whatever they had open of this workspace
+      // (pages, forms, downloads in progress) stops at once, not on their next click.
+      await endAllSessions(userId, { tx });
+    } else await tx.update(memberships).set({ role }).where(where);
   });
 }

@@ -35,7 +35,10 @@ export const accounts = pgTable(
   (table) => [primaryKey({ columns: [table.provider, table.providerAccountId] })],
 );
 
-/** Database sessions; unused with the JWT strategy but part of the adapter's contract. */
+/**
+ * Signed-in browsers (db/queries/sessions.ts). The adapter's table, used here beside next-auth's
+ * JWT cookies: each cookie names a row, and deleting the row ends that session at once.
+ */
 export const sessions = pgTable("sessions", {
   sessionToken: text("session_token").primaryKey(),
   userId: cascadingReference("user_id", () => users.id),

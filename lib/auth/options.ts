@@ -6,6 +6,7 @@ import CredentialsProvider from "next-auth/providers/credentials";
 import EmailProvider from "next-auth/providers/email";
 import { db } from "@/db/client";
 import { accounts, sessions, users, verificationTokens } from "@/db/schema";
+import { endSession, isSessionLive, openSession } from "@/db/queries/sessions";
 import { findUserByEmail } from "@/db/queries/users";
 import { createOwnedWorkspace } from "@/db/queries/workspaces";
 import { env } from "@/lib/env";
@@ -27,6 +28,12 @@ function clientAddress(headers: Record<string, string | string[] | undefined> | 
   return first?.trim() || "local";
 }
 
+/**
+ * Twelve hours from sign-in: a working day, after which a left-open browser on a shared machine no
+ * longer opens anyone's reports. Sign-out and the other endings take effect at once regardless.
+ */
+export const SESSION_MAX_AGE_SECONDS = 12 * 60 * 60;
+
 /** Built on demand: configuration is read at request time, never during `next build`. */
 export function authOptions(): NextAuthOptions {
   const config = env();
@@ -39,8 +46,9 @@ export function authOptions(): NextAuthOptions {
       sessionsTable: sessions,
       verificationTokensTable: verificationTokens,
     }) as Adapter,
-    // Credentials sign-in only works with JWT sessions in next-auth 4.
-    session: { strategy: "jwt", maxAge: 30 * 24 * 60 * 60 },
+    // Credentials sign-in only works with JWT sessions in next-auth 4; each token names a
+    // server-side session row, so ending the row ends the session (db/queries/sessions.ts).
+    session: { strategy: "jwt", maxAge: SESSION_MAX_AGE_SECONDS },
     pages: { signIn: "/sign-in", verifyRequest: "/sign-in/check-email", error: "/sign-in" },
     providers: [
       CredentialsProvider({
@@ -74,12 +82,28 @@ export function authOptions(): NextAuthOptions {
       redirect({ url, baseUrl }) {
         return new URL(sameOriginPath(url, baseUrl), baseUrl).toString();
       },
+      // Runs on sign-in (with `user`) and on every request that reads the session: a token whose
+      // server-side session has ended becomes empty, which signs nobody in.
+      async jwt({ token, user }) {
+        if (user) {
+          const expires = new Date(Date.now() + SESSION_MAX_AGE_SECONDS * 1000);
+          return { ...token, sid: await openSession(user.id, expires) };
+        }
+        const live =
+          typeof token.sid === "string" &&
+          typeof token.sub === "string" &&
+          (await isSessionLive(token.sid, token.sub));
+        return live ? token : {};
+      },
       session({ session, token }) {
         if (session.user && token.sub) session.user.id = token.sub;
         return session;
       },
     },
     events: {
+      async signOut({ token }) {
+        if (typeof token?.sid === "string") await endSession(token.sid);
+      },
       // Someone who first arrives through an e-mail link gets a workspace of their own, exactly
       // like someone who signs up with a password.
       async createUser({ user }) {
