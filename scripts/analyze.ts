@@ -8,7 +8,7 @@
  * message names file, row, column and what was expected; also a malformed rule or a request the
  * server refused), 1 on an internal error (stack only with DEBUG set).
  */
-import { createReadStream, readFileSync, statSync, writeFileSync } from "node:fs";
+import { readFileSync, statSync, writeFileSync } from "node:fs";
 import { parseArgs } from "node:util";
 import { analyzePartition, AnalysisInputError, type PartitionSummary } from "../lib/analysis";
 import type { SimulationProgress } from "../lib/analysis/simulation/simulate-plan";
@@ -95,10 +95,10 @@ async function analyzeLocally(
 ): Promise<string> {
   const summary = await analyzePartition(
     {
-      data: createReadStream(flags.data),
+      data: { path: flags.data },
       dataName: flags.data,
       dataBytes: dataSize,
-      partition: flags.partition ? createReadStream(flags.partition) : undefined,
+      partition: flags.partition ? { path: flags.partition } : undefined,
       partitionName: flags.partition,
       referenceName: flags.reference,
       options,
@@ -192,7 +192,7 @@ function requireReadableFile(path: string, flag: string): number {
   } catch {
     throw new AnalysisInputError(`${flag}: cannot read "${path}"`, {
       file: path,
-      expected: "an existing CSV file",
+      expected: "an existing CSV, gzip-compressed CSV (.csv.gz) or Parquet file",
     });
   }
 }

@@ -21,9 +21,15 @@ type UploadState =
   | { phase: "failed"; file: File; message: string; retryable: boolean };
 
 /** Filters the file picker; the checks that decide are findUploadProblem's. */
+const TABLE_PICKER_TYPES: Accept = {
+  "text/csv": [".csv"],
+  // Pickers match the last extension only, so ".csv.gz" is offered as ".gz".
+  "application/gzip": [".gz"],
+  "application/vnd.apache.parquet": [".parquet"],
+};
 const PICKER_TYPES: Record<DataFileKind, Accept> = {
-  dataset: { "text/csv": [".csv"] },
-  layout: { "text/csv": [".csv"] },
+  dataset: TABLE_PICKER_TYPES,
+  layout: TABLE_PICKER_TYPES,
   weights: { "application/json": [".json"] },
 };
 

@@ -1,4 +1,3 @@
-import type { Readable } from "node:stream";
 import { z } from "zod";
 import {
   analysisOptionsSchema,
@@ -26,6 +25,7 @@ import { countWeightRows } from "./objective";
 import { readPartitionMap } from "./partition-map";
 import { countAvailableThreads, PassPool, type PassResult } from "./pass-pool";
 import { readDataset } from "./read-dataset";
+import type { TableSource } from "./table-reader";
 import {
   checkSimulationBudget,
   estimateSimulationCost,
@@ -36,14 +36,14 @@ import type { AnalysisProgress, PartitionSummary } from "./summary";
 import { ENGINE_VERSION } from "./version";
 
 export interface PartitionInput {
-  /** The dataset CSV (a file stream, an S3 object body, …). */
-  data: Readable;
+  /** The dataset: CSV, gzip CSV or Parquet, as a stream (an S3 object body, …) or a local file. */
+  data: TableSource;
   /** Name used for the dataset in messages (a path, an upload's name). */
   dataName?: string;
   /** Size of the dataset in bytes, when known, for reading progress. */
   dataBytes?: number;
-  /** The partition map CSV `row_id,shard`; omit when `options.shardColumn` is set. */
-  partition?: Readable;
+  /** The partition map `row_id,shard` (same formats); omit when `options.shardColumn` is set. */
+  partition?: TableSource;
   partitionName?: string;
   /** Name of the file the given reference weights came from, for messages. */
   referenceName?: string;
@@ -123,9 +123,8 @@ async function analyzeWithPool(
   const raw = await readDataset(input.data, dataName, options, {
     partition,
     dropUnassignedRows: options.dropUnassignedRows,
-    onCharactersRead: input.dataBytes
-      ? (characters) =>
-          onProgress({ stage: "reading", fraction: Math.min(1, characters / input.dataBytes!) })
+    onBytesRead: input.dataBytes
+      ? (bytes) => onProgress({ stage: "reading", fraction: Math.min(1, bytes / input.dataBytes!) })
       : undefined,
   });
   onProgress({ stage: "reading", fraction: 1 });

@@ -1,7 +1,6 @@
-import type { Readable } from "node:stream";
-import { readCsvStream } from "./csv-reader";
 import { AnalysisInputError, listFirst } from "./errors";
 import { isMissingToken, trimToken } from "./tokens";
+import { readTable, type TableSource } from "./table-reader";
 
 /**
  * A partition map (methods.md §1) as read from its CSV: row id → shard. Validation that needs the
@@ -24,12 +23,12 @@ export interface PartitionMap {
 const MAX_LISTED_DUPLICATES = 5;
 
 /**
- * Reads a `row_id,shard` CSV. Row ids and shard ids are trimmed strings; with `byRowIndex` the row id
+ * Reads a `row_id,shard` table (CSV, gzip CSV or Parquet). Row ids and shard ids are trimmed strings; with `byRowIndex` the row id
  * must be a 0-based data-row index and is stored in canonical form, so "007" matches row 7.
  * Duplicate row ids and missing values are AnalysisInputErrors naming the first offenders.
  */
 export async function readPartitionMap(
-  stream: Readable,
+  source: TableSource,
   fileName: string,
   { byRowIndex }: { byRowIndex: boolean },
 ): Promise<PartitionMap> {
@@ -42,7 +41,7 @@ export async function readPartitionMap(
   let rowIdColumn = -1;
   let shardColumn = -1;
 
-  await readCsvStream(stream, fileName, {
+  await readTable(source, fileName, {
     onHeader(columns) {
       rowIdColumn = columns.findIndex((column) => column.toLowerCase() === "row_id");
       shardColumn = columns.findIndex((column) => column.toLowerCase() === "shard");

@@ -1,11 +1,10 @@
-import type { Readable } from "node:stream";
 import { ChunkedFloat64, ChunkedInt32 } from "./chunked-arrays";
 import { ColumnAccumulator, MAX_ONE_HOT_LEVELS } from "./column-accumulator";
-import { readCsvStream } from "./csv-reader";
 import { AnalysisInputError, listFirst } from "./errors";
 import type { PartitionMap } from "./partition-map";
 import { RowStore } from "./row-store";
 import { isMissingToken, trimToken } from "./tokens";
+import { readTable, type TableSource } from "./table-reader";
 
 export interface DatasetColumnChoice {
   labelColumn: string;
@@ -44,22 +43,23 @@ export interface RawDataset {
 export interface ReadDatasetOptions {
   partition: PartitionMap | null;
   dropUnassignedRows: boolean;
-  onCharactersRead?: (characters: number) => void;
+  /** Input bytes consumed so far (compressed bytes for gzip and Parquet). */
+  onBytesRead?: (bytes: number) => void;
 }
 
 const LISTED_OFFENDERS = 5;
 
 /**
- * Streams the dataset CSV once, keeping only the columns in use: rows with a missing label are
+ * Reads the dataset once (CSV, gzip CSV or Parquet: table-reader.ts), keeping only the columns in use: rows with a missing label are
  * dropped and counted, every other row is assigned to a shard through the partition map (by the id
  * column or by 0-based row index) or the shard column, and the assignment is validated as
  * methods.md §1 requires (unknown ids, ids used twice, unassigned rows).
  */
 export async function readDataset(
-  stream: Readable,
+  source: TableSource,
   fileName: string,
   columns: DatasetColumnChoice,
-  { partition, dropUnassignedRows, onCharactersRead }: ReadDatasetOptions,
+  { partition, dropUnassignedRows, onBytesRead }: ReadDatasetOptions,
 ): Promise<RawDataset> {
   let labelIndex = -1;
   let idIndex = -1;
@@ -79,8 +79,8 @@ export async function readDataset(
   let droppedMissingLabel = 0;
   let keptRows = 0;
 
-  const totalRows = await readCsvStream(stream, fileName, {
-    onProgress: onCharactersRead,
+  const totalRows = await readTable(source, fileName, {
+    onProgress: onBytesRead,
     onHeader(header) {
       const findColumn = (name: string, role: string) => {
         const index = header.indexOf(name);

@@ -3,10 +3,9 @@ import path from "node:path";
 import type { SimulationProgress } from "../analysis/simulation/simulate-plan";
 import type { AnalysisProgress } from "../analysis/summary";
 import type { AnalysisOptionsInput } from "../validation/analysis-options";
+import { storedContentTypeOf, type DataFileKind } from "../uploads/file-rules";
 import type { UploadTicket } from "../validation/upload";
 import { createApiClient, ServerError, type ApiClient } from "./api-client";
-
-type FileKind = "dataset" | "layout" | "weights";
 
 export type ServerRunRequest = {
   server: string;
@@ -64,10 +63,10 @@ async function putBytes(
 }
 
 /** Sends one file through the API's presigned URL(s) and registers it; returns its file id. */
-async function uploadFile(api: ApiClient, file: string, kind: FileKind): Promise<string> {
+async function uploadFile(api: ApiClient, file: string, kind: DataFileKind): Promise<string> {
   const name = path.basename(file);
   const { size } = await stat(file);
-  const contentType = kind === "weights" ? "application/json" : "text/csv";
+  const contentType = storedContentTypeOf(name, kind);
   const ticket = await api.postJson<UploadTicket>("/api/v1/uploads", {
     name,
     size,

@@ -11,8 +11,9 @@ export const KIND_LABELS: Record<DataFileKind, string> = {
   weights: "reference weights file",
 };
 
-interface FormatRule {
-  extensions: readonly string[];
+/** One file format a kind accepts, recognised by the end of the file's name. */
+interface FileFormat {
+  extension: string;
   /**
    * Types browsers report for such files. Windows browsers call a .csv "application/vnd.ms-excel",
    * and many report no type at all (""), so the extension decides and the type only rules out
@@ -21,11 +22,15 @@ interface FormatRule {
   contentTypes: readonly string[];
   /** The type the object is stored with, whatever the browser said. */
   storedContentType: string;
+}
+
+interface FormatRule {
+  formats: readonly FileFormat[];
   description: string;
 }
 
-const CSV_RULE: FormatRule = {
-  extensions: [".csv"],
+const CSV_FORMAT: FileFormat = {
+  extension: ".csv",
   contentTypes: [
     "",
     "text/csv",
@@ -37,21 +42,58 @@ const CSV_RULE: FormatRule = {
     "application/vnd.ms-excel",
   ],
   storedContentType: "text/csv",
-  description: "a CSV file (.csv, comma- or semicolon-separated text with a header row)",
+};
+
+const GZIP_CSV_FORMAT: FileFormat = {
+  extension: ".csv.gz",
+  contentTypes: ["", "application/gzip", "application/x-gzip", "application/octet-stream"],
+  storedContentType: "application/gzip",
+};
+
+const PARQUET_FORMAT: FileFormat = {
+  extension: ".parquet",
+  contentTypes: [
+    "",
+    "application/vnd.apache.parquet",
+    "application/x-parquet",
+    "application/octet-stream",
+  ],
+  storedContentType: "application/vnd.apache.parquet",
+};
+
+const TABLE_RULE: FormatRule = {
+  formats: [CSV_FORMAT, GZIP_CSV_FORMAT, PARQUET_FORMAT],
+  description:
+    "a CSV file (.csv, comma- or semicolon-separated text with a header row), the same compressed with gzip (.csv.gz), or a Parquet file (.parquet)",
 };
 
 const JSON_RULE: FormatRule = {
-  extensions: [".json"],
-  contentTypes: ["", "application/json", "text/json", "text/plain"],
-  storedContentType: "application/json",
+  formats: [
+    {
+      extension: ".json",
+      contentTypes: ["", "application/json", "text/json", "text/plain"],
+      storedContentType: "application/json",
+    },
+  ],
   description: "a JSON file (.json)",
 };
 
 export const FORMAT_RULES: Record<DataFileKind, FormatRule> = {
-  dataset: CSV_RULE,
-  layout: CSV_RULE,
+  dataset: TABLE_RULE,
+  layout: TABLE_RULE,
   weights: JSON_RULE,
 };
+
+/** The format of a file of this kind, by its name, or undefined when the kind takes no such file. */
+function findFileFormat(name: string, kind: DataFileKind): FileFormat | undefined {
+  const lowerName = name.toLowerCase();
+  return FORMAT_RULES[kind].formats.find((format) => lowerName.endsWith(format.extension));
+}
+
+/** The type a file of this kind and name is sent and stored with (binary when no format matches). */
+export function storedContentTypeOf(name: string, kind: DataFileKind): string {
+  return findFileFormat(name, kind)?.storedContentType ?? "application/octet-stream";
+}
 
 /** Files up to this size go in one presigned PUT; larger ones as a multipart upload. */
 export const SINGLE_PUT_MAX_BYTES = 64 * 1024 * 1024;
@@ -95,10 +137,11 @@ export function findUploadProblem(
   const rule = FORMAT_RULES[kind];
   const label = KIND_LABELS[kind];
   const contentType = file.contentType.split(";")[0].trim().toLowerCase();
-  if (!rule.extensions.includes(extensionOf(file.name))) {
+  const format = findFileFormat(file.name, kind);
+  if (!format) {
     return `"${file.name}" is not ${rule.description}. The ${label} must be ${rule.description}.`;
   }
-  if (!rule.contentTypes.includes(contentType)) {
+  if (!format.contentTypes.includes(contentType)) {
     return `"${file.name}" is of type ${contentType}, not ${rule.description}. Save it as ${rule.description} and try again.`;
   }
   if (file.size === 0) return `"${file.name}" is empty (0 bytes).`;

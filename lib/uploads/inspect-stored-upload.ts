@@ -3,9 +3,14 @@ import type { DataFilePreview } from "@/db/schema/analyses";
 import { AnalysisInputError } from "@/lib/analysis/errors";
 import { RuleError } from "@/lib/errors";
 import { deleteObject, getObjectRange, headObject } from "@/lib/storage";
-import { PREVIEW_BYTES } from "./csv-preview";
 import { findUploadProblem, formatBytes, type DataFileKind } from "./file-rules";
-import { inspectDataset, inspectLayout, inspectWeights, WEIGHTS_MAX_BYTES } from "./inspect-upload";
+import {
+  checkDatasetHeader,
+  checkLayoutHeader,
+  inspectWeights,
+  WEIGHTS_MAX_BYTES,
+} from "./inspect-upload";
+import { readTableHead, summarizeTableHead } from "./table-preview";
 
 export interface StoredUpload {
   sizeBytes: number;
@@ -72,7 +77,13 @@ async function readPreview(
     const bytes = await getObjectRange(key, 0, totalBytes - 1);
     return inspectWeights(new TextDecoder("utf-8").decode(bytes), name);
   }
-  const bytes = await getObjectRange(key, 0, Math.min(totalBytes, PREVIEW_BYTES) - 1);
-  const source = { bytes, totalBytes, fileName: name };
-  return kind === "dataset" ? inspectDataset(source) : inspectLayout(source);
+  // Ranges here are end-exclusive; storage's are end-inclusive.
+  const head = await readTableHead(
+    (start, end) => getObjectRange(key, start, end - 1),
+    totalBytes,
+    name,
+  );
+  if (kind === "dataset") checkDatasetHeader(head.header, name);
+  else checkLayoutHeader(head.header, name);
+  return summarizeTableHead(head);
 }

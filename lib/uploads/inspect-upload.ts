@@ -18,29 +18,37 @@ export const WEIGHTS_MAX_BYTES = 8 * 1024 * 1024;
  */
 export function inspectDataset(source: CsvPreviewSource): DataFilePreview {
   const head = readCsvHead(source);
-  if (head.header.length < 2) {
-    throw new AnalysisInputError(`the header has one column only ("${head.header[0]}")`, {
-      file: source.fileName,
+  checkDatasetHeader(head.header, source.fileName);
+  return summarizeCsvHead(head);
+}
+
+export function checkDatasetHeader(header: string[], fileName: string): void {
+  if (header.length < 2) {
+    throw new AnalysisInputError(`the header has one column only ("${header[0]}")`, {
+      file: fileName,
       expected:
         "a label column and at least one feature column, separated by commas, semicolons or tabs",
     });
   }
-  return summarizeCsvHead(head);
 }
 
 /** The preview of a partition map, whose header must name `row_id` and `shard` (methods.md §1). */
 export function inspectLayout(source: CsvPreviewSource): DataFilePreview {
   const head = readCsvHead(source);
-  const names = head.header.map((column) => column.toLowerCase());
+  checkLayoutHeader(head.header, source.fileName);
+  return summarizeCsvHead(head);
+}
+
+export function checkLayoutHeader(header: string[], fileName: string): void {
+  const names = header.map((column) => column.toLowerCase());
   // The engine matches these names case-insensitively and ignores other columns; so does this check.
   if (!names.includes("row_id") || !names.includes("shard")) {
-    throw new AnalysisInputError(`the header is "${head.header.join(",")}"`, {
-      file: source.fileName,
+    throw new AnalysisInputError(`the header is "${header.join(",")}"`, {
+      file: fileName,
       expected:
         "a partition map with the header row_id,shard (row_id: the dataset's id or 0-based row number)",
     });
   }
-  return summarizeCsvHead(head);
 }
 
 /**

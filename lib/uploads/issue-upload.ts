@@ -6,9 +6,9 @@ import type { UploadTicket } from "@/lib/validation/upload";
 import {
   buildUploadKey,
   findUploadProblem,
-  FORMAT_RULES,
   isUploadKeyOf,
   planUpload,
+  storedContentTypeOf,
   type DataFileKind,
 } from "./file-rules";
 
@@ -34,7 +34,7 @@ export async function issueUpload(request: {
   const problem = findUploadProblem(file, kind, maxBytes);
   if (problem) throw new RuleError(422, problem, "file");
   const key = buildUploadKey(workspaceId, file.name, randomUUID());
-  const contentType = FORMAT_RULES[kind].storedContentType;
+  const contentType = storedContentTypeOf(file.name, kind);
   const plan = planUpload(file.size);
   if (plan.method === "single") {
     const url = await presignPut({ key, contentType, expiresInSeconds: SINGLE_PUT_URL_SECONDS });

@@ -24,9 +24,25 @@ describe("what may be uploaded", () => {
     expect(findUploadProblem(csv("w.json", 1, "application/json"), "weights", GiB)).toBeNull();
   });
 
+  it("takes gzip-compressed CSV and Parquet for datasets and layouts, not for weights", () => {
+    expect(findUploadProblem(csv("data.CSV.GZ", 1, "application/gzip"), "dataset", GiB)).toBeNull();
+    expect(findUploadProblem(csv("map.csv.gz", 1, ""), "layout", GiB)).toBeNull();
+    expect(
+      findUploadProblem(csv("data.parquet", 1, "application/octet-stream"), "dataset", GiB),
+    ).toBeNull();
+    // A gzip of something other than CSV, and a Parquet file sent as text, are refused.
+    expect(findUploadProblem(csv("data.json.gz", 1, "application/gzip"), "dataset", GiB)).toMatch(
+      /is not a CSV file/,
+    );
+    expect(findUploadProblem(csv("data.parquet", 1, "text/csv"), "dataset", GiB)).toMatch(
+      /is of type text\/csv/,
+    );
+    expect(findUploadProblem(csv("w.parquet", 1, ""), "weights", GiB)).toMatch(/must be a JSON/);
+  });
+
   it("names the file and what is expected when the type is wrong", () => {
     expect(findUploadProblem(csv("sheet.xlsx"), "dataset", GiB)).toBe(
-      '"sheet.xlsx" is not a CSV file (.csv, comma- or semicolon-separated text with a header row). The dataset must be a CSV file (.csv, comma- or semicolon-separated text with a header row).',
+      '"sheet.xlsx" is not a CSV file (.csv, comma- or semicolon-separated text with a header row), the same compressed with gzip (.csv.gz), or a Parquet file (.parquet). The dataset must be a CSV file (.csv, comma- or semicolon-separated text with a header row), the same compressed with gzip (.csv.gz), or a Parquet file (.parquet).',
     );
     expect(findUploadProblem(csv("data.csv", 10, "application/pdf"), "dataset", GiB)).toMatch(
       /^"data\.csv" is of type application\/pdf, not a CSV file/,

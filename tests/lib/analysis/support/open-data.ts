@@ -5,7 +5,7 @@ import { runPythonJson } from "./run-python";
 
 const require = createRequire(import.meta.url);
 
-interface PenguinRecord {
+export interface PenguinRecord {
   Species: string;
   Island: string;
   [column: string]: string | number | null;
@@ -17,10 +17,7 @@ interface PenguinRecord {
  * fields, and its "Sex" column has a "." level, so imputation and one-hot encoding are exercised.
  */
 export function loadPenguinsCsv(): { csv: string; islandMap: string } {
-  // The package's exports map hides data/, so locate it next to the resolved entry point (build/).
-  const entry = require.resolve("vega-datasets");
-  const file = path.join(path.dirname(entry), "..", "data", "penguins.json");
-  const records = JSON.parse(readFileSync(file, "utf8")) as PenguinRecord[];
+  const records = loadPenguinsRecords();
   const columns = Object.keys(records[0]);
   const quote = (value: string) => (/[",]/.test(value) ? `"${value.replace(/"/g, '""')}"` : value);
   const lines = [["row", ...columns].map(quote).join(",")];
@@ -34,6 +31,14 @@ export function loadPenguinsCsv(): { csv: string; islandMap: string } {
     mapLines.push(`${index},${record.Island}`);
   });
   return { csv: `${lines.join("\n")}\n`, islandMap: `${mapLines.join("\n")}\n` };
+}
+
+/** The penguins records of the `vega-datasets` npm package as it ships them (null where missing). */
+export function loadPenguinsRecords(): PenguinRecord[] {
+  // The package's exports map hides data/, so locate it next to the resolved entry point (build/).
+  const entry = require.resolve("vega-datasets");
+  const file = path.join(path.dirname(entry), "..", "data", "penguins.json");
+  return JSON.parse(readFileSync(file, "utf8")) as PenguinRecord[];
 }
 
 /**
