@@ -2,6 +2,7 @@ import { createHash, randomUUID } from "node:crypto";
 import { db } from "@/db/client";
 import { dataFiles } from "@/db/schema";
 import { putObject } from "@/lib/storage";
+import { storedContentTypeOf } from "@/lib/uploads/file-rules";
 import { loadPenguinsCsv } from "@/tests/lib/analysis/support/open-data";
 
 export const sha256 = (text: string) => createHash("sha256").update(text).digest("hex");
@@ -21,11 +22,11 @@ export async function storeInput(
   workspace: { workspaceId: string; uploadedBy: string },
   kind: "dataset" | "layout" | "weights",
   name: string,
-  text: string,
+  content: string | Uint8Array,
 ): Promise<StoredInput> {
   const objectKey = `workspaces/${workspace.workspaceId}/files/${randomUUID()}/${name}`;
-  const bytes = Buffer.from(text, "utf8");
-  const contentType = kind === "weights" ? "application/json" : "text/csv";
+  const bytes = typeof content === "string" ? Buffer.from(content, "utf8") : Buffer.from(content);
+  const contentType = storedContentTypeOf(name, kind);
   await putObject({ key: objectKey, body: bytes, contentType });
   const [row] = await db()
     .insert(dataFiles)
