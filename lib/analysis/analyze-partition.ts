@@ -5,8 +5,6 @@ import {
   type AnalysisOptionsInput,
   type ReferenceWeights,
 } from "../validation/analysis-options";
-import { largestEigenvalueSymmetric } from "../math/eigen";
-import { matrixFromValues } from "../math/matrix";
 import { norm } from "../math/summation";
 import { advisePlan } from "./advise-plan";
 import { BIAS_NAME, type Design } from "./design";
@@ -14,6 +12,7 @@ import { encodeDesign } from "./encode-design";
 import { AnalysisInputError } from "./errors";
 import { fitReferenceModel } from "./fit-reference-model";
 import {
+  computeSmoothness,
   measureAtPoint,
   measureGradientAgreement,
   type PointMeasurement,
@@ -157,11 +156,7 @@ async function analyzeWithPool(
   }
   const passes = openPool(design).share(design, design.shardOffsets);
   const gram = passes.computeGram();
-  const curvature = largestEigenvalueSymmetric(
-    matrixFromValues(design.x.cols, design.x.cols, gram),
-  );
-  const smoothness =
-    (design.task === "classification" ? curvature / 2 : curvature) + options.lambda;
+  const smoothness = computeSmoothness(gram, design.x.cols, design.task, options.lambda);
   onProgress({ stage: "encoding", fraction: 1 });
 
   onProgress({ stage: "fitting", fraction: 0 });

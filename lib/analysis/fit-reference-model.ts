@@ -78,11 +78,13 @@ export function fitReferenceModel(
   };
 
   if (design.classes === null) {
-    const solved = solveLeastSquares(passes, gram, lambda, atZero.gradient, tolerance);
+    const solved = solveLeastSquares(width, gram, lambda, atZero.gradient, tolerance, (weights) =>
+      evaluatePooled(passes, weights, lambda),
+    );
     return { ...solved, atZero: zeroPass };
   }
 
-  const stride = Math.max(1, Math.floor(design.x.rows / SAMPLE_ROWS));
+  const stride = computeSampleStride(design.x.rows);
   const sample =
     stride > 1
       ? passes.pool.share(
@@ -90,20 +92,74 @@ export function fitReferenceModel(
           Int32Array.of(0, Math.ceil(design.x.rows / stride)),
         )
       : passes;
+  const fitted = fitSoftmax(
+    {
+      width,
+      sampleIsAllRows: stride === 1,
+      evaluate: (weights) => evaluatePooled(passes, weights, lambda),
+      evaluateSample: (weights) => evaluatePooled(sample, weights, lambda),
+      computeSampleHessian: (weights) => sample.computeSoftmaxHessian(weights, lambda),
+    },
+    start,
+    tolerance,
+    lambda,
+    reportGradient,
+  );
+  return { ...fitted, atZero: zeroPass };
+}
+
+/** The subsample of the softmax fit's first step: every `stride`-th row of the shard-ordered rows. */
+export function computeSampleStride(rows: number): number {
+  return Math.max(1, Math.floor(rows / SAMPLE_ROWS));
+}
+
+/**
+ * What the softmax fit reads of the rows — F and ∇F over all rows and over the strided subsample,
+ * and ∇²F of the subsample (λ included) — whether the rows are at hand (passes over a design) or
+ * held by clients that answer with sums (methods.md §9).
+ */
+export interface SoftmaxFitOracle {
+  width: number;
+  /** True when the stride is 1: the subsample is all rows. */
+  sampleIsAllRows: boolean;
+  evaluate(weights: Float64Array): ObjectiveValue;
+  evaluateSample(weights: Float64Array): ObjectiveValue;
+  computeSampleHessian(weights: Float64Array): Float64Array;
+}
+
+/**
+ * The softmax steps of `fitReferenceModel` (see there) from `start` to ‖∇F‖ ≤ `tolerance`: the rough
+ * solve on the subsample, its Newton preconditioner, preconditioned L-BFGS on all rows, intercepts
+ * re-centred. `evaluations` counts full-data evaluations, the one at zero included.
+ */
+export function fitSoftmax(
+  oracle: SoftmaxFitOracle,
+  start: Float64Array,
+  tolerance: number,
+  lambda: number,
+  reportGradient?: (gradientNorm: number) => void,
+): Omit<FittedModel, "atZero"> {
+  const width = oracle.width;
+  const weightRows = start.length / width;
   const rough = minimizeLbfgs(
     (weights, gradient) => {
-      const result = evaluatePooled(sample, weights, lambda);
+      const result = oracle.evaluateSample(weights);
       gradient.set(result.gradient);
       return result.value;
     },
     start,
     { gradientTolerance: tolerance * WARM_START_TOLERANCE_FACTOR, maxIterations: 2000 },
   );
-  const precondition = createNewtonPreconditioner(sample, rough.x, lambda);
+  const precondition = createNewtonPreconditioner(
+    oracle.computeSampleHessian(rough.x),
+    width,
+    start.length,
+    lambda,
+  );
   let evaluations = 1;
   const result = minimizeLbfgs(
     (weights, gradient) => {
-      const evaluation = evaluatePooled(passes, weights, lambda);
+      const evaluation = oracle.evaluate(weights);
       evaluations++;
       gradient.set(evaluation.gradient);
       return evaluation.value;
@@ -113,11 +169,11 @@ export function fitReferenceModel(
       gradientTolerance: tolerance,
       maxIterations: 5000,
       precondition,
-      onIteration: (_, g) => reportGradient(g),
+      onIteration: (_, g) => reportGradient?.(g),
     },
   );
   centerIntercepts(result.x, width, weightRows);
-  const sampleIsAllRows = stride === 1;
+  const sampleIsAllRows = oracle.sampleIsAllRows;
   return {
     weights: result.x,
     value: result.value,
@@ -126,7 +182,6 @@ export function fitReferenceModel(
     converged: result.converged,
     iterations: result.iterations + (sampleIsAllRows ? rough.iterations : 0),
     evaluations: evaluations + (sampleIsAllRows ? rough.evaluations : 0),
-    atZero: zeroPass,
   };
 }
 
@@ -141,18 +196,17 @@ function evaluatePooled(
 }
 
 /**
- * v ↦ M⁻¹v with M = ∇²F_S(W) + λ·I on the biases + ρ·I, the Hessian of the sample's objective at W.
+ * v ↦ M⁻¹v with M = ∇²F_S(W) + λ·I on the biases + ρ·I, from `hessian` = ∇²F_S(W) of the sample's
+ * objective at W (size × size; modified in place).
  * The bias term makes the direction that shifts every intercept alike (flat for softmax) curved;
  * ρ = 1e-10 × the largest diagonal entry keeps the factorization clear of rounding.
  */
 function createNewtonPreconditioner(
-  sample: SharedDesign,
-  weights: Float64Array,
+  hessian: Float64Array,
+  width: number,
+  size: number,
   lambda: number,
 ): (vector: Float64Array) => void {
-  const width = sample.x.cols;
-  const size = weights.length;
-  const hessian = sample.computeSoftmaxHessian(weights, lambda);
   let largestDiagonal = 0;
   for (let k = 0; k < size; k++) largestDiagonal = Math.max(largestDiagonal, hessian[k * size + k]);
   const floor = PRECONDITIONER_FLOOR * largestDiagonal;
@@ -164,14 +218,19 @@ function createNewtonPreconditioner(
   return (vector) => choleskySolveInPlace(lower, vector);
 }
 
-function solveLeastSquares(
-  passes: SharedDesign,
+/**
+ * Least squares' W* (methods.md §2): the normal equations (G + Λ) w = −∇F(0) by Cholesky, then
+ * Newton steps on the true gradient (`evaluate`: F and ∇F over all rows) while it exceeds the
+ * tolerance. Shared by the central fit and the fit from merged digests (methods.md §9).
+ */
+export function solveLeastSquares(
+  width: number,
   gram: Float64Array,
   lambda: number,
   gradientAtZero: Float64Array,
   tolerance: number,
+  evaluate: (weights: Float64Array) => ObjectiveValue,
 ): Omit<FittedModel, "atZero"> {
-  const width = passes.x.cols;
   const system = matrixFromValues(width, width, Float64Array.from(gram));
   for (let j = 0; j < width - 1; j++) system.data[j * width + j] += lambda;
   const lower = createMatrix(width, width);
@@ -179,13 +238,13 @@ function solveLeastSquares(
   // ∇F(0) = −X̃ᵀy/N, so W* = −(G + Λ)⁻¹ ∇F(0); refine with Newton steps on the true gradient.
   const weights = gradientAtZero.map((value) => -value);
   choleskySolveInPlace(lower, weights);
-  let evaluation = evaluatePooled(passes, weights, lambda);
+  let evaluation = evaluate(weights);
   let evaluations = 2;
   for (let step = 0; step < 5 && norm(evaluation.gradient) > tolerance; step++) {
     const correction = Float64Array.from(evaluation.gradient);
     choleskySolveInPlace(lower, correction);
     for (let k = 0; k < width; k++) weights[k] -= correction[k];
-    evaluation = evaluatePooled(passes, weights, lambda);
+    evaluation = evaluate(weights);
     evaluations++;
   }
   const gradientNorm = norm(evaluation.gradient);
@@ -201,7 +260,7 @@ function solveLeastSquares(
 }
 
 /** Shifts class intercepts to sum to zero (the minimum-norm representative; F is unchanged). */
-function centerIntercepts(weights: Float64Array, width: number, classCount: number): void {
+export function centerIntercepts(weights: Float64Array, width: number, classCount: number): void {
   let mean = 0;
   for (let c = 0; c < classCount; c++) mean += weights[c * width + width - 1] / classCount;
   for (let c = 0; c < classCount; c++) weights[c * width + width - 1] -= mean;

@@ -5,7 +5,13 @@
 export { analyzePartition, type PartitionInput } from "./analyze-partition";
 export { AnalysisInputError } from "./errors";
 export type { Advice, Verdict } from "./advise-plan";
-export type { AnalysisProgress, AnalysisStage, PartitionSummary, ShardSummary } from "./summary";
+export type {
+  AnalysisProgress,
+  AnalysisStage,
+  DigestProvenance,
+  PartitionSummary,
+  ShardSummary,
+} from "./summary";
 export {
   estimateSimulationCost,
   simulatePlan,
@@ -14,3 +20,4 @@ export {
   type SimulationSummary,
 } from "./simulation/simulate-plan";
 export { ENGINE_VERSION } from "./version";
+export * from "./digests";

@@ -21,10 +21,20 @@ export function measureFeatureShift(design: Design): number[] {
       const base = row * width;
       for (let j = 0; j < features; j++) sums[j] += x[base + j];
     }
-    if (features === 0) return 0;
-    const rows = rowEnd - rowStart;
-    let squares = 0;
-    for (let j = 0; j < features; j++) squares += (sums[j] / rows) ** 2;
-    return Math.sqrt(squares / features);
+    return measureFeatureShiftFromSums(sums, rowEnd - rowStart);
   });
+}
+
+/**
+ * The feature shift of one shard from Σx̃ over its nₘ rows (the d features, bias excluded):
+ * √((1/d) Σⱼ (Σx̃ⱼ/nₘ)²), 0 without features. Lets merged digests (methods.md §9) share the formula.
+ *
+ * Example: sums [3, −3] over 3 rows give 1.
+ */
+export function measureFeatureShiftFromSums(sums: ArrayLike<number>, rows: number): number {
+  const features = sums.length;
+  if (features === 0) return 0;
+  let squares = 0;
+  for (let j = 0; j < features; j++) squares += (sums[j] / rows) ** 2;
+  return Math.sqrt(squares / features);
 }

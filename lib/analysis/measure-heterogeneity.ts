@@ -1,5 +1,7 @@
+import { largestEigenvalueSymmetric } from "../math/eigen";
+import { matrixFromValues } from "../math/matrix";
 import { dot, squaredNorm } from "../math/summation";
-import type { Design } from "./design";
+import type { Design, Task } from "./design";
 import { finishPass } from "./objective";
 import type { PassTotals } from "./objective-pass";
 
@@ -42,7 +44,7 @@ export interface PointMeasurement {
  * `vanishingGradient` is the gradient norm treated as zero (the optimizer's tolerance).
  */
 export function measureAtPoint(
-  design: Design,
+  design: Pick<Design, "x" | "shardIds">,
   weights: Float64Array,
   lambda: number,
   shardTotals: PassTotals[],
@@ -107,6 +109,23 @@ export function measureAtPoint(
       ? Math.max(0, pooledSquaredNorms - squaredNorm(pooledDataGradient))
       : Number.NaN,
   };
+}
+
+/**
+ * The smoothness constant H of methods.md §3 from G = X̃ᵀX̃/N (width × width): softmax
+ * ½ λ_max(G) + λ, least squares λ_max(G) + λ. Source: Böhning, Ann. Inst. Stat. Math. 1992,
+ * diag(p) − ppᵀ ⪯ ½ I (from memory).
+ *
+ * Example: G = [[2, 0], [0, 1]] with λ = 0.1 gives 1.1 for softmax and 2.1 for least squares.
+ */
+export function computeSmoothness(
+  gram: Float64Array,
+  width: number,
+  task: Task,
+  lambda: number,
+): number {
+  const curvature = largestEigenvalueSymmetric(matrixFromValues(width, width, gram));
+  return (task === "classification" ? curvature / 2 : curvature) + lambda;
 }
 
 /**

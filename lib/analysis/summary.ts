@@ -83,6 +83,22 @@ export interface PartitionSummary {
   };
   /** The simulation of methods.md §7, when one was asked for. */
   simulation?: SimulationSummary;
+  /** Present when the report was built from client digests (methods.md §9), not from rows. */
+  digests?: DigestProvenance;
+}
+
+/** What a report built from client digests was built from (methods.md §9). */
+export interface DigestProvenance {
+  /** SHA-256 of the encoding every digest quoted. */
+  encodingHash: string;
+  /** Per client: its shards and kept rows (what it sent: counts and sums, never a row). */
+  clients: { client: string; shards: string[]; rows: number }[];
+  /** Clients the analyst expected but closed the roster without. */
+  missingClients: string[];
+  /** Whether W* was fitted from the clients' evaluations (else the supplied point stands in). */
+  fitted: boolean;
+  /** Regression label skew comes from a 4096-cell histogram of the target (methods.md §9). */
+  labelSkewFromHistogram: boolean;
 }
 
 export interface ShardSummary {

@@ -1,0 +1,132 @@
+import type { ReferenceWeights } from "../../validation/analysis-options";
+import type { Task } from "../design";
+import { AnalysisInputError } from "../errors";
+import type { PartitionSummary } from "../summary";
+import type { DigestEncoding, MeasurementRequest } from "./digest-format";
+import { fitPooledOptimum, mergeEvaluationSums } from "./fit-pooled-optimum";
+import type { DigestClientConnection } from "./local-client";
+import { mergeGradientDigests, type DigestPlan } from "./merge-gradients";
+import { mergeSchemaDigests } from "./merge-schemas";
+
+export interface DigestAnalysisOptions {
+  task?: Task;
+  lambda: number;
+  reference: "optimum" | "zero" | ReferenceWeights;
+  plan: DigestPlan;
+  minimumShardRows?: number;
+  /** Progress: the round the coordinator is in, and the fit's evaluations so far. */
+  onRound?: (round: "schema" | "fit" | "gradients" | "merge", evaluations?: number) => void;
+}
+
+/**
+ * The coordinator of a federated analysis (methods.md §9), with every client reachable through a
+ * connection: round 1 and its merge into the encoding, the fit of W* from the clients' evaluations
+ * (always, as the central analysis fits it for B and the path), round 2 at the reference point and
+ * along t·W*, and the merge into the §6 summary — the central analysis's summary of the same rows.
+ */
+export async function analyzeFromDigests(
+  clients: DigestClientConnection[],
+  options: DigestAnalysisOptions,
+): Promise<PartitionSummary> {
+  options.onRound?.("schema");
+  const schemas = await Promise.all(clients.map((client) => client.schema()));
+  const encoding = mergeSchemaDigests(schemas, {
+    task: options.task,
+    minimumShardRows: options.minimumShardRows,
+  });
+  options.onRound?.("fit", 0);
+  const gram = encoding.task === "regression" ? await mergeGrams(clients, encoding) : undefined;
+  const fit = await fitPooledOptimum(
+    encoding,
+    async (request) =>
+      mergeEvaluationSums(
+        await Promise.all(clients.map((client) => client.evaluate(encoding, request))),
+      ),
+    {
+      lambda: options.lambda,
+      schemas,
+      gram,
+      onEvaluation: (evaluations) => options.onRound?.("fit", evaluations),
+    },
+  );
+  options.onRound?.("gradients");
+  const request = createMeasurementRequest(encoding, options.reference, fit.weights);
+  const digests = await Promise.all(clients.map((client) => client.gradients(encoding, request)));
+  options.onRound?.("merge");
+  return mergeGradientDigests(encoding, digests, {
+    lambda: options.lambda,
+    plan: options.plan,
+    fit,
+  });
+}
+
+/**
+ * Round 2's request: the reference point (W*, zero or the given weights, checked against the
+ * encoding) and the path's end — W* when it was fitted, else the reference itself.
+ */
+export function createMeasurementRequest(
+  encoding: DigestEncoding,
+  reference: "optimum" | "zero" | ReferenceWeights,
+  optimum: Float64Array | null,
+): MeasurementRequest {
+  const width = encoding.columns.length + 1;
+  const weightRows = encoding.classes === null ? 1 : encoding.classes.length;
+  const asRows = (weights: Float64Array) =>
+    Array.from({ length: weightRows }, (_, c) =>
+      Array.from(weights.subarray(c * width, (c + 1) * width)),
+    );
+  let referenceWeights: number[][];
+  if (reference === "optimum") {
+    if (optimum === null) {
+      throw new AnalysisInputError("the pooled optimum needs the clients online for its fit", {
+        expected: "a supplied reference (weights) or zero for digests exchanged as files",
+      });
+    }
+    referenceWeights = asRows(optimum);
+  } else if (reference === "zero") {
+    referenceWeights = asRows(new Float64Array(weightRows * width));
+  } else {
+    checkReferenceWeights(reference, encoding, weightRows, width);
+    referenceWeights = reference.weights;
+  }
+  return {
+    encodingHash: encoding.hash,
+    reference: reference === "optimum" ? "optimum" : reference === "zero" ? "zero" : "given",
+    referenceWeights,
+    pathEnd: optimum === null ? referenceWeights : asRows(optimum),
+  };
+}
+
+function checkReferenceWeights(
+  given: ReferenceWeights,
+  encoding: DigestEncoding,
+  weightRows: number,
+  width: number,
+): void {
+  const same = (a: string[] | null, b: string[] | null) =>
+    a === b || (a !== null && b !== null && a.length === b.length && a.every((v, i) => v === b[i]));
+  if (!same(given.features, encoding.featureNames) || !same(given.classes, encoding.classes)) {
+    throw new AnalysisInputError("the reference weights are for other features or classes", {
+      column: "features",
+      expected: `features ${encoding.featureNames.join(", ")} and classes ${encoding.classes?.join(", ") ?? "null (regression)"}`,
+    });
+  }
+  if (given.weights.length !== weightRows || given.weights.some((row) => row.length !== width)) {
+    throw new AnalysisInputError("the reference weights have the wrong shape", {
+      column: "weights",
+      expected: `${weightRows} rows of ${width} numbers (features, then the bias)`,
+    });
+  }
+}
+
+async function mergeGrams(
+  clients: DigestClientConnection[],
+  encoding: DigestEncoding,
+): Promise<Float64Array> {
+  const width = encoding.columns.length + 1;
+  const gram = new Float64Array(width * width);
+  for (const part of await Promise.all(clients.map((client) => client.gram(encoding)))) {
+    part.forEach((row, j) => row.forEach((value, k) => (gram[j * width + k] += value)));
+  }
+  return gram;
+}

@@ -1,0 +1,85 @@
+import { createMatrix } from "../../math/matrix";
+import { readTotals } from "../objective-pass";
+import { PassPool, type SharedDesign } from "../pass-pool";
+import type { ClientDesign } from "./client-rows";
+import type { EvaluationRequest, EvaluationSums } from "./digest-format";
+
+/**
+ * A client's encoded rows shared with a pool of `threads` threads (1: the calling thread only): the
+ * passes behind its round-2 digest and its answers to the fit's evaluations. `close` ends the threads.
+ */
+export class ClientPasses {
+  readonly passes: SharedDesign;
+  private sample: { key: string; passes: SharedDesign } | null = null;
+
+  constructor(
+    readonly design: ClientDesign,
+    threads = 1,
+  ) {
+    this.passes = new PassPool(threads).share(design, design.shardOffsets);
+  }
+
+  /**
+   * One evaluation of the coordinator's fit: Σℓᵢ and Σ∇ℓᵢ at W over all rows or over the client's
+   * part of the strided subsample, with the subsample's Σ∇²ℓᵢ (softmax, λ excluded) when asked.
+   */
+  evaluate(request: EvaluationRequest): EvaluationSums {
+    const weights = Float64Array.from(request.weights);
+    const target = request.sample === null ? this.passes : this.sharedSample(request.sample);
+    const { pooled } = target.evaluate(weights, false);
+    const sums = readTotals(pooled);
+    let hessianSum: number[] | null = null;
+    if (request.hessian) {
+      // The pass pool's Hessian is a mean over the rows; the coordinator pools sums.
+      const mean = target.computeSoftmaxHessian(weights, 0);
+      hessianSum = Array.from(mean, (value) => value * pooled.rows);
+    }
+    return {
+      rows: pooled.rows,
+      lossSum: sums.loss,
+      gradientSum: Array.from(sums.gradient),
+      hessianSum,
+    };
+  }
+
+  /** Σ x̃ᵢx̃ᵢᵀ over the client's rows, (d+1) × (d+1). */
+  computeGramSum(): number[][] {
+    const width = this.design.x.cols;
+    const rows = this.design.x.rows;
+    const mean = this.passes.computeGram();
+    return Array.from({ length: width }, (_, j) =>
+      Array.from(mean.subarray(j * width, (j + 1) * width), (value) => value * rows),
+    );
+  }
+
+  async close(): Promise<void> {
+    await this.passes.pool.close();
+  }
+
+  /** The client's rows of the fit's subsample (global row g with g mod stride = 0), shared once. */
+  private sharedSample(sample: NonNullable<EvaluationRequest["sample"]>): SharedDesign {
+    const key = JSON.stringify(sample);
+    if (this.sample?.key === key) return this.sample.passes;
+    const { design } = this;
+    const width = design.x.cols;
+    const picked: number[] = [];
+    design.shardIds.forEach((id, m) => {
+      const globalStart = sample.shardStarts[id] ?? 0;
+      for (let row = design.shardOffsets[m]; row < design.shardOffsets[m + 1]; row++) {
+        if ((globalStart + row - design.shardOffsets[m]) % sample.stride === 0) picked.push(row);
+      }
+    });
+    const x = createMatrix(picked.length, width, { shared: true });
+    const labels = design.labels && new Int32Array(picked.length);
+    picked.forEach((row, k) => {
+      x.data.set(design.x.data.subarray(row * width, (row + 1) * width), k * width);
+      if (labels && design.labels) labels[k] = design.labels[row];
+    });
+    const passes = this.passes.pool.share(
+      { x, labels, targets: null },
+      Int32Array.of(0, picked.length),
+    );
+    this.sample = { key, passes };
+    return passes;
+  }
+}

@@ -1,0 +1,182 @@
+import type { Readable } from "node:stream";
+import { createMatrix, type Matrix } from "../../math/matrix";
+import { compareCodePoints } from "../code-point-order";
+import { CHUNK_LENGTH } from "../chunked-arrays";
+import { AnalysisInputError } from "../errors";
+import { readPartitionMap, type PartitionMap } from "../partition-map";
+import { readDataset, type DatasetColumnChoice, type RawDataset } from "../read-dataset";
+import type { DigestEncoding } from "./digest-format";
+
+/** Where a client's rows come from: its data file and how its rows map to shards. */
+export interface ClientRowsInput {
+  data: Readable;
+  dataName: string;
+  /** A `row_id,shard` partition map (methods.md §1). */
+  partition?: Readable;
+  partitionName?: string;
+  /** Every kept row belongs to this one shard (a client that is one shard). */
+  shard?: string;
+  columns: DatasetColumnChoice;
+  dropUnassignedRows?: boolean;
+}
+
+/**
+ * Reads a client's rows with the engine's own reader (methods.md §1: missing labels dropped and
+ * counted, every kept row assigned to a shard by the shard column, the partition map or `shard`).
+ * Any row source that yields a RawDataset — a whole file, a part of one — serves as a client.
+ */
+export async function readClientRows(input: ClientRowsInput): Promise<RawDataset> {
+  const ways = [input.partition, input.columns.shardColumn, input.shard].filter(
+    (way) => way !== undefined,
+  );
+  if (ways.length !== 1) {
+    throw new AnalysisInputError(
+      ways.length === 0 ? "no shard was given" : "more than one way to find shards was given",
+      { expected: "exactly one of a shard column, a partition map or a single shard name" },
+    );
+  }
+  const partition = input.partition
+    ? await readPartitionMap(input.partition, input.partitionName ?? "partition map", {
+        byRowIndex: input.columns.idColumn === undefined,
+      })
+    : input.shard !== undefined
+      ? wholeFileAsShard(input.shard, input.dataName)
+      : null;
+  return readDataset(input.data, input.dataName, input.columns, {
+    partition,
+    dropUnassignedRows: input.dropUnassignedRows ?? false,
+  });
+}
+
+/** A partition that puts every row in one shard. */
+function wholeFileAsShard(shard: string, fileName: string): PartitionMap {
+  return { fileName, shardIds: [shard], lookUp: () => 0, findUnmatched: () => [] };
+}
+
+/**
+ * A client's rows encoded with the pooled encoding: the same design the central analysis builds for
+ * these rows (methods.md §1), shards in code-point order of their ids.
+ */
+export interface ClientDesign {
+  fileName: string;
+  /** Data rows in the client's file, and those dropped (methods.md §1). */
+  totalRows: number;
+  droppedRowsMissingLabel: number;
+  droppedRowsUnassigned: number;
+  x: Matrix;
+  labels: Int32Array | null;
+  targets: Float64Array | null;
+  shardIds: string[];
+  shardOffsets: Int32Array;
+}
+
+/**
+ * Encodes a client's kept rows with the coordinator's encoding: a numeric column's missing values
+ * become the pooled mean, every column is standardized as (x − mean)·(1/std) like the central
+ * encoder, one-hot levels take (1 − mean)/std or −mean/std, the bias 1 is appended, and rows are
+ * regrouped shard by shard.
+ */
+export function encodeClientRows(raw: RawDataset, encoding: DigestEncoding): ClientDesign {
+  const rows = raw.keptRows;
+  const order = raw.shardIds
+    .map((_, code) => code)
+    .sort((a, b) => compareCodePoints(raw.shardIds[a], raw.shardIds[b]));
+  const rank = new Int32Array(order.length);
+  order.forEach((code, index) => (rank[code] = index));
+  const shardOffsets = new Int32Array(order.length + 1);
+  for (let row = 0; row < rows; row++) shardOffsets[rank[raw.shardCodes[row]] + 1]++;
+  for (let m = 0; m < order.length; m++) shardOffsets[m + 1] += shardOffsets[m];
+  const next = shardOffsets.slice(0, order.length);
+  const position = new Int32Array(rows);
+  for (let row = 0; row < rows; row++) position[row] = next[rank[raw.shardCodes[row]]]++;
+
+  const width = encoding.columns.length + 1;
+  const x = createMatrix(rows, width, { shared: true });
+  const stride = raw.features.length + 1;
+  const sourceIndex = new Map(raw.features.map((feature, index) => [feature.name, index]));
+  encoding.columns.forEach((column, j) => {
+    const source = sourceIndex.get(column.column);
+    if (source === undefined) {
+      throw new AnalysisInputError(`the data has no feature column "${column.column}"`, {
+        file: raw.fileName,
+        column: column.column,
+        expected: `the encoding's feature columns: ${encoding.sourceFeatures.join(", ")}`,
+      });
+    }
+    const inverseStd = 1 / column.std;
+    if (column.kind === "numeric") {
+      for (let row = 0; row < rows; row++) {
+        const value = raw.featureValues[row * stride + source];
+        const filled = value === value ? value : column.mean;
+        x.data[position[row] * width + j] = (filled - column.mean) * inverseStd;
+      }
+      return;
+    }
+    const accumulator = raw.features[source];
+    const code = accumulator.hasLevels ? accumulator.levels.indexOf(column.level) : -1;
+    const high = (1 - column.mean) * inverseStd;
+    const low = -column.mean * inverseStd;
+    if (code < 0) {
+      for (let row = 0; row < rows; row++) x.data[position[row] * width + j] = low;
+      return;
+    }
+    accumulator.codeViews().forEach((codes, chunk) => {
+      for (let k = 0; k < codes.length; k++) {
+        const row = chunk * CHUNK_LENGTH + k;
+        x.data[position[row] * width + j] = codes[k] === code ? high : low;
+      }
+    });
+  });
+  for (let row = 0; row < rows; row++) x.data[row * width + width - 1] = 1;
+
+  return {
+    fileName: raw.fileName,
+    totalRows: raw.totalRows,
+    droppedRowsMissingLabel: raw.droppedMissingLabel,
+    droppedRowsUnassigned: raw.droppedUnassigned,
+    x,
+    ...encodeClientTarget(raw, encoding, position),
+    shardIds: order.map((code) => raw.shardIds[code]),
+    shardOffsets,
+  };
+}
+
+function encodeClientTarget(
+  raw: RawDataset,
+  encoding: DigestEncoding,
+  position: Int32Array,
+): Pick<ClientDesign, "labels" | "targets"> {
+  const rows = raw.keptRows;
+  if (encoding.classes !== null) {
+    const classOf = new Map(encoding.classes.map((name, index) => [name, index]));
+    const levelClass = raw.label.levels.map((level) => {
+      const index = classOf.get(level);
+      if (index === undefined) {
+        throw new AnalysisInputError(`the label value "${level}" is not one of the classes`, {
+          file: raw.fileName,
+          column: raw.label.name,
+          expected: `one of ${encoding.classes?.join(", ")} (the encoding's classes)`,
+        });
+      }
+      return index;
+    });
+    const codes = raw.label.takeCodes();
+    const labels = new Int32Array(new SharedArrayBuffer(rows * Int32Array.BYTES_PER_ELEMENT));
+    for (let row = 0; row < rows; row++) labels[position[row]] = levelClass[codes[row]];
+    return { labels, targets: null };
+  }
+  const { mean, std } = encoding.target as { mean: number; std: number };
+  const targets = new Float64Array(new SharedArrayBuffer(rows * Float64Array.BYTES_PER_ELEMENT));
+  for (let row = 0; row < rows; row++) {
+    const value = raw.labelValues[row];
+    if (value !== value) {
+      throw new AnalysisInputError("regression needs a numeric label", {
+        file: raw.fileName,
+        column: raw.label.name,
+        expected: "a number on every kept row",
+      });
+    }
+    targets[position[row]] = (value - mean) / std;
+  }
+  return { labels: null, targets };
+}
