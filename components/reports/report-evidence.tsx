@@ -1,7 +1,11 @@
 import type { PartitionSummary } from "@/lib/analysis/summary";
 import { computeBoundCurves, readBoundInputs } from "@/lib/reports/bound-curves";
 import { computeRegimeMap } from "@/lib/reports/regime-map";
-import { buildLabelMix, computeBarrierThreshold } from "@/lib/reports/report-view";
+import {
+  buildLabelMix,
+  computeBarrierThreshold,
+  selectDivergenceCandidates,
+} from "@/lib/reports/report-view";
 import { AgreementHeatmap } from "./charts/agreement-heatmap";
 import { BoundCurvesChart } from "./charts/bound-curves-chart";
 import { DivergenceChart } from "./charts/divergence-chart";
@@ -69,7 +73,7 @@ export function ReportEvidence({ summary }: { summary: PartitionSummary }) {
             <ChartEmptyState>This report has no shards.</ChartEmptyState>
           ) : (
             <DivergenceChart
-              shards={shards.map((shard) => ({ name: shard.id, tv: shard.tv, js: shard.js }))}
+              shards={selectDivergenceCandidates(shards, DIVERGENCE_CAP)}
               weightedMean={{ tv: labelSkew.tv, js: labelSkew.js }}
               cap={DIVERGENCE_CAP}
               label="Bar chart: label-mix divergence of each shard from the pooled mix, largest first."

@@ -1,70 +1,91 @@
-"use client";
-
-import { useId, useMemo, useState } from "react";
+import Link from "next/link";
 import { formatFigure } from "@/lib/reports/report-view";
-import { SHARD_COLUMNS, type ShardColumnKey, type ShardTableRow } from "@/lib/reports/shard-table";
+import { SHARD_COLUMNS, type ShardTableRow } from "@/lib/reports/shard-table";
+import {
+  lastShardPage,
+  SHARD_PAGE_SIZE,
+  shardTableHref,
+  sortedBy,
+  type ShardSortKey,
+  type ShardTableView,
+} from "@/lib/reports/shard-table-view";
 
-type SortKey = ShardColumnKey | "shardId";
-type Sort = { key: SortKey; descending: boolean };
+const HEADINGS: { key: ShardSortKey; heading: string; description?: string }[] = [
+  { key: "shardId", heading: "Shard" },
+  ...SHARD_COLUMNS,
+];
 
-const PAGE = 100;
-
-function compareRows(a: ShardTableRow, b: ShardTableRow, key: SortKey): number {
-  if (key === "shardId") return a.shardId < b.shardId ? -1 : a.shardId > b.shardId ? 1 : 0;
-  // Missing values (NaN stored for a failed figure) sort last either way.
-  const left = Number.isFinite(a[key]) ? a[key] : Number.NEGATIVE_INFINITY;
-  const right = Number.isFinite(b[key]) ? b[key] : Number.NEGATIVE_INFINITY;
-  return left - right;
-}
-
-/** The per-shard table: click a heading to sort, type to filter shards by id. */
-export function ShardTable({ rows }: { rows: ShardTableRow[] }) {
-  const [sort, setSort] = useState<Sort>({ key: "shardId", descending: false });
-  const [filter, setFilter] = useState("");
-  const [showAll, setShowAll] = useState(false);
-  const filterId = useId();
-  const visible = useMemo(() => {
-    const needle = filter.trim().toLowerCase();
-    const matching = needle
-      ? rows.filter((row) => row.shardId.toLowerCase().includes(needle))
-      : rows;
-    const sorted = [...matching].sort((a, b) => compareRows(a, b, sort.key));
-    return sort.descending ? sorted.reverse() : sorted;
-  }, [rows, filter, sort]);
-  const shown = showAll ? visible : visible.slice(0, PAGE);
-
-  const toggleSort = (key: SortKey) =>
-    setSort((current) =>
-      current.key === key
-        ? { key, descending: !current.descending }
-        : { key, descending: key !== "shardId" },
-    );
-  const ariaSort = (key: SortKey) =>
-    sort.key === key ? (sort.descending ? "descending" : "ascending") : undefined;
-  const arrow = (key: SortKey) => (sort.key === key ? (sort.descending ? " ↓" : " ↑") : "");
+/**
+ * One page of the per-shard table, sorted and filtered on the server: headings and page links are
+ * plain links carrying the view in the URL, so they work without script, can be bookmarked, and
+ * a report of 100,000 shards sends one page at a time.
+ */
+export function ShardTable({
+  rows,
+  view,
+  matching,
+  total,
+  anchor,
+}: {
+  rows: ShardTableRow[];
+  view: ShardTableView;
+  /** Shards that match the filter. */
+  matching: number;
+  /** Shards in the report. */
+  total: number;
+  /** Id of the heading the table's links return to. */
+  anchor: string;
+}) {
+  const href = (next: ShardTableView) => shardTableHref(next, anchor);
+  const last = lastShardPage(matching);
+  const first = (view.page - 1) * SHARD_PAGE_SIZE + 1;
+  const sortName =
+    view.sort === "shardId"
+      ? "shard id"
+      : (SHARD_COLUMNS.find((column) => column.key === view.sort)?.heading ?? view.sort);
+  const direction = view.descending
+    ? view.sort === "shardId"
+      ? " (reverse order)"
+      : " (largest first)"
+    : "";
+  const ariaSort = (key: ShardSortKey) =>
+    view.sort === key ? (view.descending ? "descending" : "ascending") : undefined;
+  const arrow = (key: ShardSortKey) => (view.sort === key ? (view.descending ? " ↓" : " ↑") : "");
 
   return (
     <div className="space-y-3">
-      <div className="no-print flex flex-wrap items-end gap-3">
+      <form method="get" action={`#${anchor}`} className="no-print flex flex-wrap items-end gap-3">
+        {view.sort !== "shardId" || view.descending ? (
+          <>
+            <input type="hidden" name="sort" value={view.sort} />
+            <input type="hidden" name="order" value={view.descending ? "desc" : "asc"} />
+          </>
+        ) : null}
         <div>
-          <label htmlFor={filterId} className="block text-xs font-medium text-ink-soft">
+          <label htmlFor="shard-filter" className="block text-xs font-medium text-ink-soft">
             Filter shards by id
           </label>
           <input
-            id={filterId}
+            id="shard-filter"
             type="search"
-            value={filter}
-            onChange={(event) => setFilter(event.target.value)}
+            name="shard"
+            defaultValue={view.filter}
             placeholder="e.g. north"
             className="mt-1 w-56 rounded-md border border-ink/20 bg-white px-3 py-1.5 text-sm focus:border-indigo focus:ring-2 focus:ring-indigo/30 focus:outline-none"
           />
         </div>
+        <button
+          type="submit"
+          className="rounded-md px-3 py-1.5 text-sm text-ink ring-1 ring-ink/20 hover:bg-paper-deep"
+        >
+          Filter
+        </button>
         <p className="text-xs text-ink-soft" aria-live="polite">
-          {visible.length === rows.length
-            ? `${rows.length} shards`
-            : `${visible.length} of ${rows.length} shards match`}
+          {view.filter
+            ? `${matching.toLocaleString("en-US")} of ${total.toLocaleString("en-US")} shards match`
+            : `${total.toLocaleString("en-US")} shards`}
         </p>
-      </div>
+      </form>
       <div className="overflow-x-auto rounded-md border border-ink/10 bg-white print:overflow-visible">
         <table className="w-full text-right text-xs tabular-nums">
           <caption className="sr-only">
@@ -72,49 +93,42 @@ export function ShardTable({ rows }: { rows: ShardTableRow[] }) {
           </caption>
           <thead className="bg-paper-deep/60 text-ink">
             <tr>
-              <th scope="col" aria-sort={ariaSort("shardId")} className="px-2 py-1.5 text-left">
-                <button
-                  type="button"
-                  onClick={() => toggleSort("shardId")}
-                  className="font-semibold"
-                >
-                  Shard{arrow("shardId")}
-                </button>
-              </th>
-              {SHARD_COLUMNS.map((column) => (
+              {HEADINGS.map((column) => (
                 <th
                   key={column.key}
                   scope="col"
                   aria-sort={ariaSort(column.key)}
-                  className="px-2 py-1.5 whitespace-nowrap"
+                  className={`px-2 py-1.5 whitespace-nowrap ${column.key === "shardId" ? "text-left" : ""}`}
                 >
-                  <button
-                    type="button"
-                    onClick={() => toggleSort(column.key)}
+                  <Link
+                    href={href(sortedBy(view, column.key))}
+                    scroll={false}
                     title={column.description}
                     className="font-semibold"
                   >
                     {column.heading}
                     {arrow(column.key)}
-                  </button>
+                  </Link>
                 </th>
               ))}
             </tr>
           </thead>
           <tbody>
-            {shown.length === 0 ? (
+            {rows.length === 0 ? (
               <tr>
                 <td
                   colSpan={SHARD_COLUMNS.length + 1}
                   className="px-2 py-4 text-center text-ink-soft"
                 >
-                  {rows.length === 0
+                  {total === 0
                     ? "This report has no shards."
-                    : "No shard id matches the filter."}
+                    : matching === 0
+                      ? "No shard id matches the filter."
+                      : "This page is past the last shard."}
                 </td>
               </tr>
             ) : (
-              shown.map((row) => (
+              rows.map((row) => (
                 <tr key={row.shardId} className="border-t border-ink/5">
                   <th
                     scope="row"
@@ -136,19 +150,39 @@ export function ShardTable({ rows }: { rows: ShardTableRow[] }) {
           </tbody>
         </table>
       </div>
-      {visible.length > PAGE ? (
-        <div className="flex items-center gap-3 text-xs text-ink-soft">
+      {matching > SHARD_PAGE_SIZE ? (
+        <nav
+          aria-label="Pages of the per-shard table"
+          className="flex flex-wrap items-center gap-3 text-xs text-ink-soft"
+        >
           <span>
-            Showing {shown.length} of {visible.length}.
+            Shards {first.toLocaleString("en-US")}–
+            {Math.min(first + rows.length - 1, matching).toLocaleString("en-US")} of{" "}
+            {matching.toLocaleString("en-US")}, sorted by {sortName}
+            {direction}; page {view.page.toLocaleString("en-US")} of {last.toLocaleString("en-US")}.
+            The CSV download holds every shard.
           </span>
-          <button
-            type="button"
-            onClick={() => setShowAll((value) => !value)}
-            className="no-print rounded px-2 py-1 text-ink ring-1 ring-ink/20 hover:bg-paper-deep"
-          >
-            {showAll ? `Show the first ${PAGE}` : `Show all ${visible.length}`}
-          </button>
-        </div>
+          <span className="no-print flex gap-2">
+            {view.page > 1 ? (
+              <Link
+                href={href({ ...view, page: Math.min(view.page - 1, last) })}
+                scroll={false}
+                className="rounded px-2 py-1 text-ink ring-1 ring-ink/20 hover:bg-paper-deep"
+              >
+                Previous page
+              </Link>
+            ) : null}
+            {view.page < last ? (
+              <Link
+                href={href({ ...view, page: view.page + 1 })}
+                scroll={false}
+                className="rounded px-2 py-1 text-ink ring-1 ring-ink/20 hover:bg-paper-deep"
+              >
+                Next page
+              </Link>
+            ) : null}
+          </span>
+        </nav>
       ) : null}
     </div>
   );

@@ -8,9 +8,13 @@ import { REPORT_SECTIONS } from "@/lib/reviews/anchors";
 import { TextArea } from "@/components/ui/text-area";
 import { useReviewAction } from "./use-review-action";
 
+/** The pin's value while a shard is named by typing its id (a report with too many to list). */
+const TYPED_SHARD = "typed-shard";
+
 /**
  * A new thread (optionally pinned to a section or a shard) or, with `parentId`, a reply.
- * Members are mentioned with @ and their full name or e-mail address.
+ * Members are mentioned with @ and their full name or e-mail address. `shardIds` null means the
+ * report has too many shards for a list: the reader types the id and the server checks it.
  */
 export function CommentForm({
   workspaceId,
@@ -20,26 +24,29 @@ export function CommentForm({
 }: {
   workspaceId: string;
   reportId: string;
-  shardIds?: string[];
+  shardIds?: string[] | null;
   parentId?: string;
 }) {
   const [body, setBody] = useState("");
   const [pin, setPin] = useState("");
+  const [typedShard, setTypedShard] = useState("");
   const { fieldErrors, message, pending, run } = useReviewAction<{ mentioned: number }>();
   const name = parentId ? `reply-${parentId}` : "new-comment";
 
   function submit(event: FormEvent) {
     event.preventDefault();
     // The pin travels as "section:key" or "shard:id"; a shard id may itself contain ":".
-    const separator = pin.indexOf(":");
-    const anchor = pin
-      ? { anchorKind: pin.slice(0, separator), anchor: pin.slice(separator + 1) }
+    const chosen = pin === TYPED_SHARD ? `shard:${typedShard}` : pin;
+    const separator = chosen.indexOf(":");
+    const anchor = chosen
+      ? { anchorKind: chosen.slice(0, separator), anchor: chosen.slice(separator + 1) }
       : {};
     run(
       () => postComment(workspaceId, reportId, { body, parentId, ...anchor }),
       ({ mentioned }) => {
         setBody("");
         setPin("");
+        setTypedShard("");
         return mentioned > 0
           ? `Posted; ${mentioned} mentioned ${mentioned === 1 ? "person was" : "people were"} e-mailed.`
           : undefined;
@@ -84,7 +91,9 @@ export function CommentForm({
                   </option>
                 ))}
               </optgroup>
-              {shardIds.length > 0 ? (
+              {shardIds === null ? (
+                <option value={TYPED_SHARD}>A shard, by its id…</option>
+              ) : shardIds.length > 0 ? (
                 <optgroup label="Shard">
                   {shardIds.map((shardId) => (
                     <option key={shardId} value={`shard:${shardId}`}>
@@ -94,6 +103,14 @@ export function CommentForm({
                 </optgroup>
               ) : null}
             </select>
+            {pin === TYPED_SHARD ? (
+              <input
+                aria-label="Shard id"
+                value={typedShard}
+                onChange={(event) => setTypedShard(event.target.value)}
+                className="ml-2 w-40 rounded-md border border-ink/20 bg-white px-2 py-1.5 text-sm"
+              />
+            ) : null}
             {fieldErrors.anchor ? (
               <p role="alert" className="text-xs font-medium text-cadmium">
                 {fieldErrors.anchor}

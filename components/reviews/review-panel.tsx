@@ -21,7 +21,8 @@ export function ReviewPanel({
   can,
 }: {
   workspaceId: string;
-  report: { id: string; version: number; shardIds: string[] };
+  /** shardIds: every shard's id, or null when there are too many to pick from a list. */
+  report: { id: string; version: number; shardIds: string[] | null };
   overview: ReviewOverview;
   candidates: WorkspacePerson[];
   viewerId: string;

@@ -1,9 +1,10 @@
 import "server-only";
-import { and, asc, desc, eq, gte, ilike, lt, sql, type SQL } from "drizzle-orm";
+import { and, asc, count, desc, eq, gte, ilike, lt, sql, type SQL } from "drizzle-orm";
 import { db } from "@/db/client";
 import { reports, reportShards, users } from "@/db/schema";
 import type { ReportFilters } from "@/lib/reports/report-filters";
 import type { ShardTableRow } from "@/lib/reports/shard-table";
+import { SHARD_PAGE_SIZE, type ShardTableView } from "@/lib/reports/shard-table-view";
 
 const authorName = sql<string>`coalesce(${users.name}, ${users.email})`;
 
@@ -102,7 +103,6 @@ export type ReportDetail = typeof reports.$inferSelect & {
   versions: ReportVersion[];
   previousVersion: ReportVersion | null;
   nextVersion: ReportVersion | null;
-  shards: ShardTableRow[];
 };
 
 const shardColumns = {
@@ -120,7 +120,7 @@ const shardColumns = {
   featureShift: reportShards.featureShift,
 };
 
-/** One report of the workspace with its lineage and per-shard table, or undefined. */
+/** One report of the workspace with its lineage, or undefined. */
 export async function findReport(
   workspaceId: string,
   reportId: string,
@@ -131,23 +131,16 @@ export async function findReport(
     .innerJoin(users, eq(users.id, reports.authorId))
     .where(and(eq(reports.workspaceId, workspaceId), eq(reports.id, reportId)));
   if (!row) return undefined;
-  const [versions, shards] = await Promise.all([
-    db()
-      .select({
-        id: reports.id,
-        version: reports.version,
-        verdict: reports.verdict,
-        createdAt: reports.createdAt,
-      })
-      .from(reports)
-      .where(and(eq(reports.workspaceId, workspaceId), eq(reports.lineageId, row.report.lineageId)))
-      .orderBy(asc(reports.version)),
-    db()
-      .select(shardColumns)
-      .from(reportShards)
-      .where(eq(reportShards.reportId, reportId))
-      .orderBy(asc(reportShards.ordinal)),
-  ]);
+  const versions = await db()
+    .select({
+      id: reports.id,
+      version: reports.version,
+      verdict: reports.verdict,
+      createdAt: reports.createdAt,
+    })
+    .from(reports)
+    .where(and(eq(reports.workspaceId, workspaceId), eq(reports.lineageId, row.report.lineageId)))
+    .orderBy(asc(reports.version));
   const position = versions.findIndex((version) => version.id === reportId);
   return {
     ...row.report,
@@ -155,8 +148,62 @@ export async function findReport(
     versions,
     previousVersion: versions[position - 1] ?? null,
     nextVersion: versions[position + 1] ?? null,
-    shards,
   };
+}
+
+export interface ShardPage {
+  rows: ShardTableRow[];
+  /** Shards whose id matches the view's filter (all of them without one). */
+  matching: number;
+}
+
+/**
+ * One page of a report's per-shard table, sorted and filtered by the database so a page costs the
+ * same at 100,000 shards as at three. Missing figures (NaN) sort last in either direction; ties
+ * and the shard-id sort follow the summary's order (code-point order of the ids, methods.md §1),
+ * not the database's collation.
+ */
+export async function findShardPage(reportId: string, view: ShardTableView): Promise<ShardPage> {
+  const conditions = [eq(reportShards.reportId, reportId)];
+  if (view.filter) {
+    conditions.push(sql`strpos(lower(${reportShards.shardId}), lower(${view.filter})) > 0`);
+  }
+  const ordering: SQL[] = [];
+  if (view.sort !== "shardId") {
+    const column = reportShards[view.sort];
+    ordering.push(
+      sql`${column}::float8 = 'NaN'::float8`,
+      view.descending ? desc(column) : asc(column),
+    );
+  }
+  ordering.push(
+    view.sort === "shardId" && view.descending
+      ? desc(reportShards.ordinal)
+      : asc(reportShards.ordinal),
+  );
+  const where = and(...conditions);
+  const [rows, [{ matching }]] = await Promise.all([
+    db()
+      .select(shardColumns)
+      .from(reportShards)
+      .where(where)
+      .orderBy(...ordering)
+      .limit(SHARD_PAGE_SIZE)
+      .offset((view.page - 1) * SHARD_PAGE_SIZE),
+    db().select({ matching: count() }).from(reportShards).where(where),
+  ]);
+  return { rows, matching };
+}
+
+/** Every shard id of a report in the summary's order, when it has at most `limit` shards. */
+export async function listShardIds(reportId: string, limit: number): Promise<string[] | null> {
+  const rows = await db()
+    .select({ shardId: reportShards.shardId })
+    .from(reportShards)
+    .where(eq(reportShards.reportId, reportId))
+    .orderBy(asc(reportShards.ordinal))
+    .limit(limit + 1);
+  return rows.length > limit ? null : rows.map((row) => row.shardId);
 }
 
 /** The stored summary for the JSON export, or undefined outside the workspace. */

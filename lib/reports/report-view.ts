@@ -86,6 +86,26 @@ export function rankShardsByDivergence(
 }
 
 /**
+ * The shards the divergence chart can draw: the `cap` largest by each measure, in stored order. The
+ * chart ranks and cuts what it is given, so its bars are the same as from every shard, while the
+ * page sends at most 2·cap shards to the browser however many the report has.
+ */
+export function selectDivergenceCandidates(
+  shards: ShardSummary[],
+  cap: number,
+): { name: string; tv: number; js: number }[] {
+  if (shards.length <= cap) return shards.map(({ id, tv, js }) => ({ name: id, tv, js }));
+  const chosen = new Set(
+    (Object.keys(DIVERGENCE_NAMES) as DivergenceMetric[]).flatMap((metric) =>
+      rankShardsByDivergence(shards, metric).slice(0, cap),
+    ),
+  );
+  return shards
+    .filter((shard) => chosen.has(shard))
+    .map(({ id, tv, js }) => ({ name: id, tv, js }));
+}
+
+/**
  * One bar of the label-mix chart: a unique key (the pooled bar's key cannot clash with a shard id),
  * the name to show, the rows behind it, and the share of each category under keys c0, c1, …
  */

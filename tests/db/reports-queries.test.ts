@@ -3,6 +3,7 @@ import { eq, sql } from "drizzle-orm";
 import { closeDb, db } from "@/db/client";
 import {
   findReport,
+  findShardPage,
   findReportShardTable,
   findReportSummary,
   listReportAuthors,
@@ -11,7 +12,11 @@ import {
 import { reports } from "@/db/schema";
 import type { PartitionSummary } from "@/lib/analysis";
 import { createAccount, createTeam } from "@/tests/support/accounts";
-import { analyzePenguinsWithCli, insertReport } from "@/tests/support/report-fixtures";
+import {
+  analyzePenguinColoniesWithCli,
+  analyzePenguinsWithCli,
+  insertReport,
+} from "@/tests/support/report-fixtures";
 
 afterAll(closeDb);
 
@@ -136,12 +141,12 @@ describe("listReports", () => {
 });
 
 describe("findReport", () => {
-  it("returns the report with its lineage, neighbours and per-shard table", async () => {
+  it("returns the report with its lineage and neighbours", async () => {
     const report = await findReport(team.workspaceId, ids.first);
     expect(report?.versions.map((version) => version.id)).toEqual([ids.first, ids.revision]);
     expect(report?.previousVersion).toBeNull();
     expect(report?.nextVersion?.id).toBe(ids.revision);
-    expect(report?.shards.map((shard) => shard.shardId)).toEqual(["Biscoe", "Dream", "Torgersen"]);
+    expect(report?.shardCount).toBe(3);
     expect(report?.summary).toEqual(withVerdict("no-clear-winner"));
     const revision = await findReport(team.workspaceId, ids.revision);
     expect(revision?.previousVersion?.id).toBe(ids.first);
@@ -152,6 +157,91 @@ describe("findReport", () => {
     expect(await findReport(team.workspaceId, ids.foreign)).toBeUndefined();
     expect(await findReportSummary(team.workspaceId, ids.foreign)).toBeUndefined();
     expect(await findReportShardTable(team.workspaceId, ids.foreign)).toBeUndefined();
+  });
+});
+
+describe("findShardPage", () => {
+  // Penguins (vega-datasets) dealt to 250 colonies by a partition map: more than two pages of 100.
+  let colonies: PartitionSummary;
+  let reportId: string;
+  beforeAll(async () => {
+    colonies = await analyzePenguinColoniesWithCli(250);
+    const owner = await createAccount("colonies");
+    ({ reportId } = await insertReport({
+      workspaceId: owner.workspaceId,
+      authorId: owner.id,
+      summary: colonies,
+    }));
+  });
+
+  /**
+   * The expected order, computed here from the CLI's JSON rather than by the database: a stable
+   * sort of the summary's shards (code-point order of ids) on one figure, missing figures last.
+   */
+  function sortedIds(key: "tv" | "rows", descending: boolean): string[] {
+    const value = (shard: PartitionSummary["shards"][number]) => shard[key];
+    return [...colonies.shards]
+      .sort((a, b) => {
+        const missing = Number(Number.isNaN(value(a))) - Number(Number.isNaN(value(b)));
+        return missing || (descending ? value(b) - value(a) : value(a) - value(b));
+      })
+      .map((shard) => shard.id);
+  }
+
+  it("gives page 2 of the table sorted by a figure, largest first, as the next 100 shards", async () => {
+    const page = await findShardPage(reportId, {
+      sort: "tv",
+      descending: true,
+      filter: "",
+      page: 2,
+    });
+    expect(page.matching).toBe(250);
+    expect(page.rows.map((row) => row.shardId)).toEqual(sortedIds("tv", true).slice(100, 200));
+    const byId = new Map(colonies.shards.map((shard) => [shard.id, shard]));
+    for (const row of page.rows) expect(row.tv).toBe(byId.get(row.shardId)?.tv);
+  });
+
+  it("keeps the sort on the last page, smallest first, and in the summary's id order", async () => {
+    const last = await findShardPage(reportId, {
+      sort: "rows",
+      descending: false,
+      filter: "",
+      page: 3,
+    });
+    expect(last.rows.map((row) => row.shardId)).toEqual(sortedIds("rows", false).slice(200));
+    // Code-point order, not the database's collation: colony-10 comes before colony-2.
+    const byId = await findShardPage(reportId, {
+      sort: "shardId",
+      descending: false,
+      filter: "",
+      page: 1,
+    });
+    const codePointOrder = colonies.shards.map((shard) => shard.id);
+    expect(byId.rows.map((row) => row.shardId)).toEqual(codePointOrder.slice(0, 100));
+  });
+
+  it("filters ids case-insensitively before cutting pages", async () => {
+    const page = await findShardPage(reportId, {
+      sort: "shardId",
+      descending: true,
+      filter: "COLONY-24",
+      page: 1,
+    });
+    // colony-24 and colony-240 … colony-249.
+    expect(page.matching).toBe(11);
+    expect(page.rows.map((row) => row.shardId)).toEqual([
+      "colony-249",
+      "colony-248",
+      "colony-247",
+      "colony-246",
+      "colony-245",
+      "colony-244",
+      "colony-243",
+      "colony-242",
+      "colony-241",
+      "colony-240",
+      "colony-24",
+    ]);
   });
 });
 

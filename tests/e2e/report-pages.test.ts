@@ -117,15 +117,23 @@ describe("report pages", () => {
     const shardIds = () => table.locator("tbody th").allTextContents();
     expect(await shardIds()).toEqual(["Biscoe", "Dream", "Torgersen"]);
     // Penguins by island: TV 0.558 (Torgersen), 0.378 (Biscoe), 0.360 (Dream); rows 52, 168, 124.
-    // A first click on a figure sorts it largest first, a second click smallest first.
-    await table.getByRole("button", { name: "TV" }).click();
+    // A first click on a figure sorts it largest first, a second click smallest first; the
+    // server sorts, so each click is a navigation that carries the view in the URL.
+    await table.getByRole("link", { name: "TV" }).click();
+    await page.waitForURL(/sort=tv/);
     expect(await shardIds()).toEqual(["Torgersen", "Biscoe", "Dream"]);
-    await table.getByRole("button", { name: "Rows" }).click();
-    await table.getByRole("button", { name: /Rows/ }).click();
+    await table.getByRole("link", { name: "Rows" }).click();
+    await page.waitForURL(/sort=rows(?!.*order)/);
+    await table.getByRole("link", { name: /Rows/ }).click();
+    await page.waitForURL(/sort=rows.*order=asc/);
     expect(await shardIds()).toEqual(["Torgersen", "Dream", "Biscoe"]);
     expect(await table.locator('th[aria-sort="ascending"]').textContent()).toContain("Rows");
     await page.getByLabel("Filter shards by id").fill("dre");
+    await page.getByLabel("Filter shards by id").press("Enter");
+    await page.waitForURL(/shard=dre/);
     expect(await shardIds()).toEqual(["Dream"]);
+    // The filter keeps the sort.
+    expect(page.url()).toMatch(/sort=rows/);
 
     await page.emulateMedia({ media: "print" });
     expect(await page.getByRole("link", { name: "Download JSON" }).isVisible()).toBe(false);

@@ -23,9 +23,32 @@ export async function analyzePenguinsWithCli(extraFlags: string[] = []): Promise
 
 /** The CLI's JSON output, as text, for penguins split by island (see analyzePenguinsWithCli). */
 export async function printPenguinsSummaryWithCli(extraFlags: string[] = []): Promise<string> {
+  return runAnalyzeOnPenguins({}, ["--shard-column", "Island", ...extraFlags]);
+}
+
+/**
+ * The CLI's summary of penguins (vega-datasets, BSD-3) split by a partition map that deals row i
+ * to shard `colony-${i mod colonies}`: more shards than a page of the per-shard table holds.
+ */
+export async function analyzePenguinColoniesWithCli(colonies: number): Promise<PartitionSummary> {
+  const lines = ["row_id,shard"];
+  for (let row = 0; row < 344; row++) lines.push(`${row},colony-${row % colonies}`);
+  const map = `${lines.join("\n")}\n`;
+  return JSON.parse(
+    await runAnalyzeOnPenguins({ "colonies.csv": map }, ["--partition", "colonies.csv"]),
+  ) as PartitionSummary;
+}
+
+/** `npm run analyze` on penguins.csv beside `files` in a temporary folder, as a child process. */
+async function runAnalyzeOnPenguins(
+  files: Record<string, string>,
+  flags: string[],
+): Promise<string> {
   const directory = mkdtempSync(path.join(tmpdir(), "partita-report-fixture-"));
-  const data = path.join(directory, "penguins.csv");
-  writeFileSync(data, loadPenguinsCsv().csv);
+  const inFolder = (name: string) => path.join(directory, name);
+  writeFileSync(inFolder("penguins.csv"), loadPenguinsCsv().csv);
+  for (const [name, text] of Object.entries(files)) writeFileSync(inFolder(name), text);
+  const resolved = flags.map((flag) => (flag in files ? inFolder(flag) : flag));
   try {
     const { stdout } = await run(
       process.execPath,
@@ -34,14 +57,12 @@ export async function printPenguinsSummaryWithCli(extraFlags: string[] = []): Pr
         "tsx",
         "scripts/analyze.ts",
         "--data",
-        data,
+        inFolder("penguins.csv"),
         "--label",
         "Species",
-        "--shard-column",
-        "Island",
         "--id-column",
         "row",
-        ...extraFlags,
+        ...resolved,
       ],
       { cwd: root, env: { ...process.env, DEBUG: "" }, maxBuffer: 64 * 1024 * 1024 },
     );

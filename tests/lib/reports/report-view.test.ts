@@ -6,6 +6,7 @@ import {
   formatDecade,
   formatFigure,
   rankShardsByDivergence,
+  selectDivergenceCandidates,
   spanDecades,
 } from "@/lib/reports/report-view";
 
@@ -106,5 +107,22 @@ describe("spanDecades and formatDecade", () => {
 
   it("writes powers of ten as 10ⁿ", () => {
     expect([1e-4, 0.1, 1, 10, 1000].map(formatDecade)).toEqual(["10⁻⁴", "0.1", "1", "10", "10³"]);
+  });
+});
+
+describe("selectDivergenceCandidates", () => {
+  it("sends every shard under the cap and, above it, the cap largest by each measure", () => {
+    // TV rises with the index while JS (set below) falls, so the two top-2 sets are disjoint.
+    const shards = [0.1, 0.2, 0.3, 0.4, 0.5].map((tv, index) => ({
+      ...shard(`s${index}`, [1, 1], tv),
+      js: 0.5 - tv,
+    }));
+    expect(selectDivergenceCandidates(shards, 5).map((bar) => bar.name)).toHaveLength(5);
+    expect(selectDivergenceCandidates(shards, 2)).toEqual([
+      { name: "s0", tv: 0.1, js: 0.4 },
+      { name: "s1", tv: 0.2, js: 0.3 },
+      { name: "s3", tv: 0.4, js: 0.09999999999999998 },
+      { name: "s4", tv: 0.5, js: 0 },
+    ]);
   });
 });

@@ -14,12 +14,20 @@ import { ReviewPanel } from "@/components/reviews/review-panel";
 import { ReviewStateChip } from "@/components/reviews/review-state-chip";
 import { VerdictPanel } from "@/components/reports/verdict-panel";
 import { Cautions } from "@/components/workspace/cautions";
-import { findReport } from "@/db/queries/reports";
+import { findReport, findShardPage, listShardIds } from "@/db/queries/reports";
 import { findReviewOverview, listReviewerCandidates } from "@/db/queries/reviews";
 import { guardPage } from "@/lib/auth/page-guard";
 import { roleAllows } from "@/lib/auth/roles";
+import { readShardTableView, SHARD_PAGE_SIZE } from "@/lib/reports/shard-table-view";
+import type { SearchParams } from "@/lib/validation/url-filters";
 
-type PageProps = { params: Promise<{ workspaceId: string; reportId: string }> };
+type PageProps = {
+  params: Promise<{ workspaceId: string; reportId: string }>;
+  searchParams: Promise<SearchParams>;
+};
+
+/** Above this many shards a comment is pinned to a shard by typing its id instead of picking it. */
+const PICKABLE_SHARDS = 200;
 
 /** Guarded read shared by the page and its metadata, so one request queries once. */
 const loadReport = cache(async (workspaceId: string, reportId: string) => {
@@ -42,13 +50,16 @@ export async function generateMetadata({ params }: PageProps): Promise<Metadata>
 // A4 with margins that leave 182 mm (about 688 CSS px) of width: charts are at most 680 px wide.
 const PRINT_PAGE = "@page { size: A4; margin: 14mm; }";
 
-export default async function ReportPage({ params }: PageProps) {
+export default async function ReportPage({ params, searchParams }: PageProps) {
   const { workspaceId, reportId } = await params;
   const { user, workspace, report } = await loadReport(workspaceId, reportId);
   const { summary } = report;
-  const [review, reviewerCandidates] = await Promise.all([
+  const shardView = readShardTableView(await searchParams);
+  const [review, reviewerCandidates, shardPage, shardIds] = await Promise.all([
     findReviewOverview(workspace.id, report.id),
     listReviewerCandidates(workspace.id),
+    findShardPage(report.id, shardView),
+    listShardIds(report.id, PICKABLE_SHARDS),
   ]);
   return (
     <article
@@ -77,9 +88,16 @@ export default async function ReportPage({ params }: PageProps) {
         </h2>
         <p className="max-w-prose text-sm text-ink-soft">
           Every shard&apos;s size, label-mix divergences, gradient figures at the reference point
-          and feature shift; the CSV download holds the same table.
+          and feature shift, {SHARD_PAGE_SIZE} shards a page (printed: the page on screen); the CSV
+          download holds the whole table.
         </p>
-        <ShardTable rows={report.shards} />
+        <ShardTable
+          rows={shardPage.rows}
+          view={shardView}
+          matching={shardPage.matching}
+          total={report.shardCount}
+          anchor="shards-heading"
+        />
       </section>
       <PreprocessingNotes summary={summary} />
       <MethodsSection summary={summary} />
@@ -88,7 +106,7 @@ export default async function ReportPage({ params }: PageProps) {
         report={{
           id: report.id,
           version: report.version,
-          shardIds: report.shards.map((shard) => shard.shardId),
+          shardIds,
         }}
         overview={review}
         candidates={reviewerCandidates}
