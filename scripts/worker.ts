@@ -1,6 +1,6 @@
 // The analysis worker: takes analysis jobs from the pg-boss queue in PostgreSQL and runs them, one
-// at a time (the engine keeps a core busy; with two cores the web app keeps the other). Start as many
-// as you like, on one machine or several, with the same DATABASE_URL and S3_* configuration:
+// at a time (the engine keeps a core busy; with two cores the web app keeps the other), and sends
+// the e-mail waiting in the outbox. Start as many as you like, on one machine or several, with the same DATABASE_URL and S3_* configuration:
 // pg-boss hands each job to exactly one of them, and any of them retries a crashed worker's job.
 //
 //   node --conditions=react-server --import tsx scripts/worker.ts
@@ -10,6 +10,7 @@
 import type PgBoss from "pg-boss";
 import { closeDb } from "@/db/client";
 import { ANALYSIS_QUEUE, analysisJobSchema, startBoss, type AnalysisJob } from "@/lib/jobs";
+import { runMailSender } from "@/lib/mail";
 import { runAnalysis } from "@/lib/reports/run-analysis";
 
 const shutdown = new AbortController();
@@ -49,13 +50,19 @@ async function main() {
     supervise: true,
     maxConnections: 3,
   });
+  // E-mail queued by the app (the outbox in PostgreSQL) goes out from here, beside the analyses.
+  const mailSender = runMailSender({
+    pollMs: 1000,
+    signal: shutdown.signal,
+    log: (line) => console.log(`[mail] ${line}`),
+  });
   let stopping = false;
   const stop = async (signal: string) => {
     if (stopping) return;
     stopping = true;
     log(`${signal}: stopping`);
     shutdown.abort();
-    await boss.stop({ graceful: true, timeout: 10_000 });
+    await Promise.all([boss.stop({ graceful: true, timeout: 10_000 }), mailSender]);
     await closeDb();
     process.exit(0);
   };

@@ -100,6 +100,12 @@ export const analyses = pgTable(
     createdAt: createdAt(),
     startedAt: instant("started_at"),
     finishedAt: instant("finished_at"),
+    /** Written by the worker every few seconds while it runs this analysis; a stale one means it died. */
+    heartbeatAt: instant("heartbeat_at"),
+    /** When a sweeper found this analysis's worker gone and handed the run back to the queue. */
+    workerLostAt: instant("worker_lost_at"),
+    /** Since when the current run has been waiting for storage to answer again; null when it answers. */
+    storageUnreachableSince: instant("storage_unreachable_since"),
   },
   (table) => [index("analyses_workspace_idx").on(table.workspaceId, table.createdAt)],
 );

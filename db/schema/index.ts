@@ -3,3 +3,4 @@ export * from "./workspaces";
 export * from "./analyses";
 export * from "./api-tokens";
 export * from "./reviews";
+export * from "./mail-outbox";

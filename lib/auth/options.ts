@@ -10,7 +10,7 @@ import { endSession, isSessionLive, openSession } from "@/db/queries/sessions";
 import { findUserByEmail } from "@/db/queries/users";
 import { createOwnedWorkspace } from "@/db/queries/workspaces";
 import { env } from "@/lib/env";
-import { sendMail } from "@/lib/mail";
+import { queueMail } from "@/lib/mail";
 import { signInSchema } from "@/lib/validation/auth";
 import { signInLinkMessage } from "./emails";
 import { hashPassword, verifyPassword } from "./password";
@@ -73,7 +73,7 @@ export function authOptions(): NextAuthOptions {
         from: config.MAIL_FROM,
         maxAge: 24 * 60 * 60,
         async sendVerificationRequest({ identifier, url }) {
-          await sendMail({ to: identifier, ...signInLinkMessage(url) });
+          await queueMail({ to: identifier, ...signInLinkMessage(url) });
         },
       }),
     ],

@@ -1,3 +1,5 @@
-// Outgoing e-mail through nodemailer; the SMTP server comes from configuration only.
+// Outgoing e-mail: actions queue it in the outbox; the worker's sender delivers it through
+// nodemailer to the SMTP server named in configuration.
+export { queueMail, runMailSender, type MailSenderOptions } from "./outbox";
 export { sendMail, type OutgoingMail } from "./send";
 export { createMailTransport, mailTransport } from "./transport";

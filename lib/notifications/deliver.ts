@@ -1,7 +1,7 @@
 import { RateLimiterMemory, RateLimiterRes } from "rate-limiter-flexible";
 import { wantsEmail } from "@/db/queries/notification-preferences";
 import type { NotificationKind } from "@/db/schema";
-import { sendMail } from "@/lib/mail";
+import { queueMail } from "@/lib/mail";
 import type { NotificationMessage } from "./messages";
 
 /**
@@ -20,10 +20,10 @@ const perWorkspace = new RateLimiterMemory({
   duration: 60 * 60,
 });
 
-export type DeliveryOutcome = "sent" | "turned-off" | "rate-limited" | "failed";
+export type DeliveryOutcome = "queued" | "turned-off" | "rate-limited" | "failed";
 
 /**
- * Sends one notification unless the recipient turned this kind off or a limit is spent. Never
+ * Queues one notification in the outbox unless the recipient turned this kind off or a limit is spent. Never
  * throws: the action that caused the e-mail already happened, so a mail problem is logged (without
  * the address) and reported as an outcome rather than undoing or failing the action.
  */
@@ -39,8 +39,8 @@ export async function deliverNotification(input: {
       perRecipient.consume(`${input.workspaceId}:${input.recipient.userId}`),
       perWorkspace.consume(input.workspaceId),
     ]);
-    await sendMail({ to: input.recipient.email, ...input.message });
-    return "sent";
+    await queueMail({ to: input.recipient.email, ...input.message });
+    return "queued";
   } catch (error) {
     if (error instanceof RateLimiterRes) {
       console.warn(`[notifications] ${input.kind} e-mail skipped: rate limit reached`);

@@ -31,7 +31,7 @@ describe("notifyAnalysisEnded", () => {
         seconds: 90,
         run: { outcome: "succeeded", reportId: "r1" },
       }),
-    ).toBe("sent");
+    ).toBe("queued");
     const finished = await waitForMessage(team.analyst.email, /^Analysis finished: Orchard layout/);
     expect(finished.text).toContain("after 1.5 minutes");
     expect(finished.text).toContain(`/w/${team.workspaceId}/reports/r1`);

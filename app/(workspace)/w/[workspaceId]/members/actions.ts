@@ -9,7 +9,7 @@ import { invitationMessage } from "@/lib/auth/emails";
 import { requireRole } from "@/lib/auth/guards";
 import { env } from "@/lib/env";
 import { RuleError } from "@/lib/errors";
-import { sendMail } from "@/lib/mail";
+import { queueMail } from "@/lib/mail";
 import { invitationSchema, roleChangeSchema } from "@/lib/validation/auth";
 
 /** Owners invite people by e-mail with a role; the link in the e-mail is the only copy of the token. */
@@ -34,7 +34,7 @@ export async function inviteMember(
       targetId: values.email,
       details: { email: values.email, role: values.role },
     });
-    await sendMail({
+    await queueMail({
       to: values.email,
       ...invitationMessage({
         url: new URL(`/invite/${token}`, env().NEXTAUTH_URL).toString(),
