@@ -8,7 +8,7 @@
  * message names file, row, column and what was expected; also a malformed rule or a request the
  * server refused), 1 on an internal error (stack only with DEBUG set).
  */
-import { readFileSync, statSync, writeFileSync } from "node:fs";
+import { writeFileSync } from "node:fs";
 import { parseArgs } from "node:util";
 import { analyzePartition, AnalysisInputError, type PartitionSummary } from "../lib/analysis";
 import type { SimulationProgress } from "../lib/analysis/simulation/simulate-plan";
@@ -20,12 +20,18 @@ import {
   FailOnRuleError,
   parseFailOnRule,
 } from "../lib/cli/fail-on";
-import { runOnServer, ServerAnalysisError } from "../lib/cli/server-run";
 import {
-  referenceWeightsSchema,
-  type AnalysisOptionsInput,
-  type ReferenceWeights,
-} from "../lib/validation/analysis-options";
+  DATA_FLAGS,
+  PLAN_FLAGS,
+  readFeatures,
+  readNumber,
+  readPlanFlags,
+  readReference,
+  readTask,
+  requireReadableFile,
+} from "../lib/cli/analysis-flags";
+import { runOnServer, ServerAnalysisError } from "../lib/cli/server-run";
+import type { AnalysisOptionsInput } from "../lib/validation/analysis-options";
 
 const USAGE = `usage: npm run analyze -- --data FILE --label COL (--partition FILE | --shard-column COL)
   [--id-column COL] [--features a,b,…] [--task classification|regression] [--lambda X]
@@ -48,16 +54,12 @@ async function main(): Promise<number> {
     labelColumn: flags.label,
     idColumn: flags["id-column"],
     shardColumn: flags["shard-column"],
-    features: flags.features?.split(",").map((name) => name.trim()),
+    features: readFeatures(flags.features),
     task: readTask(flags.task),
-    lambda: readNumber(flags.lambda, "--lambda"),
     // On a server, given weights travel as an uploaded file (readWeightsPath) instead.
     reference:
       flags.server && isWeightsFile(flags.reference) ? undefined : readReference(flags.reference),
-    participants: readNumber(flags.participants, "--participants"),
-    localSteps: readNumber(flags["local-steps"], "--local-steps"),
-    rounds: readNumber(flags.rounds, "--rounds"),
-    batchSize: readNumber(flags["batch-size"], "--batch-size"),
+    ...readPlanFlags(flags),
     simulate: simulate
       ? {
           seeds: readNumber(flags.seeds, "--seeds"),
@@ -138,19 +140,9 @@ function readFlags(argv: string[]): { flags: Flags; failOn: string[]; simulate: 
     values = parseArgs({
       args: argv,
       options: {
-        data: text,
-        label: text,
-        partition: text,
-        "shard-column": text,
-        "id-column": text,
-        features: text,
-        task: text,
-        lambda: text,
+        ...DATA_FLAGS,
+        ...PLAN_FLAGS,
         reference: text,
-        participants: text,
-        "local-steps": text,
-        rounds: text,
-        "batch-size": text,
         out: text,
         server: text,
         token: text,
@@ -182,58 +174,6 @@ function readFlags(argv: string[]): { flags: Flags; failOn: string[]; simulate: 
   const { "fail-on": failOn = [], ...single } = values;
   delete single.simulate; // a switch, not one of the string flags
   return { flags: single as Flags, failOn: failOn as string[], simulate };
-}
-
-function requireReadableFile(path: string, flag: string): number {
-  try {
-    const stats = statSync(path);
-    if (!stats.isFile()) throw new Error("not a file");
-    return stats.size;
-  } catch {
-    throw new AnalysisInputError(`${flag}: cannot read "${path}"`, {
-      file: path,
-      expected: "an existing CSV, gzip-compressed CSV (.csv.gz) or Parquet file",
-    });
-  }
-}
-
-function readNumber(value: string | undefined, flag: string): number | undefined {
-  if (value === undefined) return undefined;
-  const parsed = Number(value);
-  if (value.trim() === "" || !Number.isFinite(parsed)) {
-    throw new AnalysisInputError(`${flag} is "${value}"`, { expected: "a number" });
-  }
-  return parsed;
-}
-
-function readTask(value: string | undefined): AnalysisOptionsInput["task"] {
-  if (value === undefined || value === "classification" || value === "regression") return value;
-  throw new AnalysisInputError(`--task is "${value}"`, {
-    expected: "classification or regression",
-  });
-}
-
-function readReference(value: string | undefined): AnalysisOptionsInput["reference"] {
-  if (value === undefined || value === "optimum" || value === "zero") return value;
-  let parsed: unknown;
-  try {
-    parsed = JSON.parse(readFileSync(value, "utf8"));
-  } catch (error) {
-    throw new AnalysisInputError(`cannot read the reference weights: ${(error as Error).message}`, {
-      file: value,
-      expected: "optimum, zero, or a JSON file of weights",
-    });
-  }
-  const weights = referenceWeightsSchema.safeParse(parsed);
-  if (!weights.success) {
-    const issue = weights.error.issues[0];
-    throw new AnalysisInputError(`the reference weights are malformed: ${issue.message}`, {
-      file: value,
-      column: issue.path.join(".") || undefined,
-      expected: '{ "classes": [...] | null, "features": [...], "weights": [[...], ...] }',
-    });
-  }
-  return weights.data satisfies ReferenceWeights;
 }
 
 function createProgressPrinter(): (progress: AnalysisProgress) => void {

@@ -1,18 +1,19 @@
-import type { Readable } from "node:stream";
 import { createMatrix, type Matrix } from "../../math/matrix";
 import { compareCodePoints } from "../code-point-order";
 import { CHUNK_LENGTH } from "../chunked-arrays";
 import { AnalysisInputError } from "../errors";
 import { readPartitionMap, type PartitionMap } from "../partition-map";
 import { readDataset, type DatasetColumnChoice, type RawDataset } from "../read-dataset";
+import type { TableSource } from "../table-reader";
 import type { DigestEncoding } from "./digest-format";
 
 /** Where a client's rows come from: its data file and how its rows map to shards. */
 export interface ClientRowsInput {
-  data: Readable;
+  /** The client's data: CSV, gzip CSV or Parquet, as a stream or a local file. */
+  data: TableSource;
   dataName: string;
   /** A `row_id,shard` partition map (methods.md §1). */
-  partition?: Readable;
+  partition?: TableSource;
   partitionName?: string;
   /** Every kept row belongs to this one shard (a client that is one shard). */
   shard?: string;

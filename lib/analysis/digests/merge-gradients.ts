@@ -131,7 +131,7 @@ export function mergeGradientDigests(
   const distance = norm(pathEnd);
   const zeta2Max = Math.max(...path.map((point) => point.zeta2));
   const advice = advisePlan(
-    { smoothness, distance, sigma2: atReference.sigma2, zeta2Max, participants, ...options.plan },
+    { ...options.plan, smoothness, distance, sigma2: atReference.sigma2, zeta2Max, participants },
     atOptimum.zeta2,
   );
 

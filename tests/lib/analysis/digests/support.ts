@@ -40,3 +40,58 @@ export async function createTextClient(
   });
   return new LocalDigestClient(name, raw, options);
 }
+
+/** Keys outside §6's contract that differ by construction: how the fit got there, the notes. */
+const SKIPPED = new Set(["engineVersion", "optimizer", "warnings", "digests"]);
+/** Regression label skew comes from a 4096-cell histogram (methods.md §9's stated exception). */
+const HISTOGRAM_KEYS = new Set([
+  "labelSkew",
+  "tv",
+  "hellinger",
+  "js",
+  "kl",
+  "classesPresent",
+  "effectiveClasses",
+  "labelCounts",
+]);
+
+/**
+ * Every number of `actual` within 1e-9 relative of `expected`, lists the keys that differ. A vector
+ * (an array of numbers: a row of weights) is compared relative to its largest entry, as a vector is.
+ */
+export function compareSummaries(
+  expected: unknown,
+  actual: unknown,
+  skipHistogramKeys: boolean,
+  path = "",
+  vectorScale = 0,
+): string[] {
+  if (typeof expected === "number" && typeof actual === "number") {
+    const scale = Math.max(Math.abs(expected), Math.abs(actual), vectorScale);
+    return Math.abs(expected - actual) <= 1e-9 * scale
+      ? []
+      : [`${path}: central ${expected}, digests ${actual}`];
+  }
+  if (Array.isArray(expected) && Array.isArray(actual)) {
+    if (expected.length !== actual.length) return [`${path}: lengths differ`];
+    const numbers = expected.every((item) => typeof item === "number");
+    const scale = numbers ? Math.max(...expected.map((item: number) => Math.abs(item))) : 0;
+    return expected.flatMap((item, i) =>
+      compareSummaries(item, actual[i], skipHistogramKeys, `${path}[${i}]`, scale),
+    );
+  }
+  if (expected && actual && typeof expected === "object" && typeof actual === "object") {
+    return Object.keys(expected).flatMap((key) => {
+      if (SKIPPED.has(key) || (skipHistogramKeys && HISTOGRAM_KEYS.has(key))) return [];
+      return compareSummaries(
+        (expected as Record<string, unknown>)[key],
+        (actual as Record<string, unknown>)[key],
+        skipHistogramKeys,
+        `${path}.${key}`,
+      );
+    });
+  }
+  return expected === actual
+    ? []
+    : [`${path}: central ${String(expected)}, digests ${String(actual)}`];
+}

@@ -1,0 +1,223 @@
+/**
+ * `npm run digest -- COMMAND …`: a federated analysis's rounds as files (methods.md §9), for
+ * clients without a network path to a Partita server. Rows never leave the client's machine; the
+ * files hold counts and sums.
+ *   schema    --data FILE --label COL (--shard-column COL | --partition FILE | --shard NAME) … --out F
+ *   encoding  SCHEMA.json… [--task T] [--min-rows N] --out encoding.json   (merges round 1)
+ *   gradients --data … --encoding encoding.json --at zero|W.json --out F   (round 2)
+ *   merge     --encoding encoding.json GRADIENTS.json… [plan flags as analyze] --out summary.json
+ * Exit 0 on success, 2 on bad input (the message names the file, client and shard), 1 on an internal
+ * error (stack only with DEBUG set).
+ */
+import path from "node:path";
+import { parseArgs } from "node:util";
+import {
+  AnalysisInputError,
+  ClientPasses,
+  computeEncodingHash,
+  computeGradientDigest,
+  computeSchemaDigest,
+  createMeasurementRequest,
+  encodeClientRows,
+  encodingSchema,
+  gradientDigestSchema,
+  mergeGradientDigests,
+  mergeSchemaDigests,
+  readClientRows,
+  schemaDigestSchema,
+  type DigestEncoding,
+} from "../lib/analysis";
+import {
+  DATA_FLAGS,
+  PLAN_FLAGS,
+  readFeatures,
+  readNumber,
+  readPlanFlags,
+  readReference,
+  readTask,
+  requireReadableFile,
+} from "../lib/cli/analysis-flags";
+import { readDigestFile, writeJson } from "../lib/cli/digest-files";
+import { analysisOptionsSchema } from "../lib/validation/analysis-options";
+
+const USAGE = `usage: npm run digest -- schema DATA_FLAGS [--client NAME] [--min-rows N] --out FILE
+       npm run digest -- encoding SCHEMA.json… [--task classification|regression] [--min-rows N] --out FILE
+       npm run digest -- gradients DATA_FLAGS --encoding FILE --at zero|W.json [--client NAME] --out FILE
+       npm run digest -- merge --encoding FILE GRADIENTS.json… [--lambda X] [--participants M]
+         [--local-steps K] [--rounds R] [--batch-size b] --out FILE
+  DATA_FLAGS: --data FILE --label COL (--shard-column COL | --partition FILE | --shard NAME)
+    [--id-column COL] [--features a,b,…] [--task classification|regression]`;
+
+const EXIT_BAD_INPUT = 2;
+const EXIT_INTERNAL = 1;
+
+const text = { type: "string" } as const;
+type Flags = Partial<Record<string, string>>;
+
+async function main(): Promise<void> {
+  const [command, ...rest] = process.argv.slice(2);
+  const { flags, files } = readFlags(rest);
+  switch (command) {
+    case "schema":
+      return writeSchema(flags);
+    case "encoding":
+      return writeEncoding(flags, files);
+    case "gradients":
+      return writeGradients(flags);
+    case "merge":
+      return writeSummary(flags, files);
+    default:
+      throw new AnalysisInputError(`unknown command "${command ?? ""}"\n${USAGE}`);
+  }
+}
+
+async function writeSchema(flags: Flags): Promise<void> {
+  const raw = await readRows(flags);
+  const digest = computeSchemaDigest(raw, {
+    client: clientName(flags),
+    task: readTask(flags.task),
+    minimumShardRows: readNumber(flags["min-rows"], "--min-rows"),
+  });
+  writeJson(flags.out, digest);
+  process.stderr.write(
+    `partita: schema digest of ${digest.shards.length} shards, ${raw.keptRows} rows\n`,
+  );
+}
+
+function writeEncoding(flags: Flags, files: string[]): void {
+  const digests = files.map((file) => readDigestFile(file, schemaDigestSchema, "schema digest"));
+  const encoding = mergeSchemaDigests(digests, {
+    task: readTask(flags.task),
+    minimumShardRows: readNumber(flags["min-rows"], "--min-rows"),
+  });
+  writeJson(flags.out, encoding);
+  process.stderr.write(
+    `partita: encoding ${encoding.hash.slice(0, 12)}… of ${digests.length} clients, ${encoding.shardCount} shards, ${encoding.rows} rows\n`,
+  );
+}
+
+async function writeGradients(flags: Flags): Promise<void> {
+  const encoding = readEncoding(flags.encoding);
+  const reference = readReference(requireFlag(flags.at, "--at"));
+  if (reference === "optimum") {
+    throw new AnalysisInputError("--at optimum needs the clients online for the fit", {
+      expected: "--at zero or --at W.json (weights) for digests exchanged as files",
+    });
+  }
+  const raw = await readRows(flags);
+  const passes = new ClientPasses(encodeClientRows(raw, encoding));
+  try {
+    const request = createMeasurementRequest(encoding, reference ?? "zero", null);
+    const digest = computeGradientDigest(clientName(flags), passes, encoding, request);
+    writeJson(flags.out, digest);
+    process.stderr.write(`partita: gradient digest of ${digest.shards.length} shards\n`);
+  } finally {
+    await passes.close();
+  }
+}
+
+function writeSummary(flags: Flags, files: string[]): void {
+  const encoding = readEncoding(flags.encoding);
+  const digests = files.map((file) =>
+    readDigestFile(file, gradientDigestSchema, "gradient digest"),
+  );
+  const plan = readPlanFlags(flags);
+  // The analysis options' own defaults and checks (λ, K, R, b) hold here too.
+  const options = analysisOptionsSchema.safeParse({ labelColumn: encoding.labelColumn, ...plan });
+  if (!options.success) {
+    const issue = options.error.issues[0];
+    throw new AnalysisInputError(`option ${issue.path.join(".")}: ${issue.message}`);
+  }
+  const { lambda, participants, localSteps, rounds, batchSize } = options.data;
+  const summary = mergeGradientDigests(encoding, digests, {
+    lambda,
+    plan: { participants, localSteps, rounds, batchSize },
+  });
+  writeJson(flags.out, summary);
+  process.stderr.write(
+    `partita: merged ${digests.length} clients, ${summary.shards.length} shards: ${summary.advice.verdict}\n`,
+  );
+}
+
+function readEncoding(file: string | undefined): DigestEncoding {
+  const path = requireFlag(file, "--encoding");
+  const encoding = readDigestFile(path, encodingSchema, "encoding");
+  if (computeEncodingHash(encoding) !== encoding.hash) {
+    throw new AnalysisInputError("the encoding was changed after it was made (its hash differs)", {
+      file: path,
+      expected: "the encoding file as npm run digest -- encoding wrote it",
+    });
+  }
+  return encoding;
+}
+
+async function readRows(flags: Flags) {
+  const data = requireFlag(flags.data, "--data");
+  const label = requireFlag(flags.label, "--label");
+  requireReadableFile(data, "--data");
+  if (flags.partition !== undefined) requireReadableFile(flags.partition, "--partition");
+  return readClientRows({
+    data: { path: data },
+    dataName: data,
+    partition: flags.partition ? { path: flags.partition } : undefined,
+    partitionName: flags.partition,
+    shard: flags.shard,
+    columns: {
+      labelColumn: label,
+      idColumn: flags["id-column"],
+      shardColumn: flags["shard-column"],
+      features: readFeatures(flags.features),
+    },
+  });
+}
+
+/** The client's name on the roster and in messages: --client, else the data file's name. */
+function clientName(flags: Flags): string {
+  return flags.client ?? path.basename(requireFlag(flags.data, "--data")).replace(/\..*$/, "");
+}
+
+function requireFlag(value: string | undefined, flag: string): string {
+  if (value === undefined) throw new AnalysisInputError(`${flag} is required\n${USAGE}`);
+  return value;
+}
+
+function readFlags(argv: string[]): { flags: Flags; files: string[] } {
+  try {
+    const { values, positionals } = parseArgs({
+      args: argv,
+      options: {
+        ...DATA_FLAGS,
+        ...PLAN_FLAGS,
+        shard: text,
+        client: text,
+        "min-rows": text,
+        encoding: text,
+        at: text,
+        out: text,
+      },
+      strict: true,
+      allowPositionals: true,
+    });
+    return { flags: values as Flags, files: positionals };
+  } catch (error) {
+    throw new AnalysisInputError(`${(error as Error).message}\n${USAGE}`);
+  }
+}
+
+// exitCode instead of process.exit(): exiting at once would cut off JSON still queued for a pipe.
+main().then(
+  () => {
+    process.exitCode = 0;
+  },
+  (error: unknown) => {
+    if (error instanceof AnalysisInputError) {
+      process.stderr.write(`partita: bad input: ${error.message}\n`);
+      process.exitCode = EXIT_BAD_INPUT;
+      return;
+    }
+    const message = error instanceof Error ? error.message : String(error);
+    process.stderr.write(`partita: internal error: ${message}\n`);
+    if (process.env.DEBUG && error instanceof Error) process.stderr.write(`${error.stack}\n`);
+    process.exitCode = EXIT_INTERNAL;
+  },
+);
