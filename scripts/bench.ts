@@ -18,6 +18,8 @@ import { writeBenchData, type BenchDataSpec } from "./bench/generate-data";
 const root = path.resolve(import.meta.dirname, "..");
 const outputFolder = path.join(root, "bench-out");
 const PYTHON = "/usr/bin/python3";
+/** Environment variables that hold OpenBLAS to a chosen kernel; unset for the reference's process. */
+const OPENBLAS_PINS = ["OPENBLAS_CORETYPE", "OPENBLAS_L2_SIZE"];
 /** Largest relative difference between the two summaries the bench accepts. */
 const AGREEMENT_TOLERANCE = 1e-4;
 /** Clock ticks per second of /proc/<pid>/stat times (USER_HZ, 100 on Linux). */
@@ -157,9 +159,18 @@ async function runEngine(file: string, extraArgs: string[] = []): Promise<RunRes
 async function benchCase(spec: BenchDataSpec): Promise<void> {
   const file = await prepareData(spec);
   const engine = await runEngine(file);
+  // This machine's environment pins OpenBLAS to older kernels (OPENBLAS_CORETYPE, OPENBLAS_L2_SIZE);
+  // the reference runs without those pins, as NumPy would by default, and says which kernel it used.
   const python = await runMeasured(
-    PYTHON,
-    [path.join(root, "scripts/bench/reference_summary.py"), file, "label", "shard"],
+    "env",
+    [
+      ...OPENBLAS_PINS.flatMap((name) => ["-u", name]),
+      PYTHON,
+      path.join(root, "scripts/bench/reference_summary.py"),
+      file,
+      "label",
+      "shard",
+    ],
     () => null,
   );
   if (python.code !== 0) throw new Error(`reference script failed: ${python.stderr}`);
@@ -168,6 +179,13 @@ async function benchCase(spec: BenchDataSpec): Promise<void> {
     number
   >;
 
+  const blas = /^blas (.*)$/m.exec(python.stderr)?.[1] ?? "[]";
+  const kernels = (JSON.parse(blas) as Array<Record<string, unknown>>)
+    .map(
+      (pool) =>
+        `${pool.internal_api} ${pool.version}, ${pool.architecture} kernel, ${pool.num_threads} threads`,
+    )
+    .join("; ");
   const stageLine = (stages: Record<string, number>) =>
     Object.entries(stages)
       .map(([stage, seconds]) => `${stage} ${seconds.toFixed(1)}s`)
@@ -182,6 +200,7 @@ async function benchCase(spec: BenchDataSpec): Promise<void> {
       `  stages: ${stageLine(engineStages)}; fit ${ours.model.optimizer.iterations} L-BFGS iterations, ${ours.model.optimizer.evaluations} full passes\n` +
       `reference (NumPy/pandas/SciPy): ${python.seconds.toFixed(1)}s end to end, ${(spec.rows / python.seconds).toFixed(0)} rows/s, CPU ${python.cpuSeconds.toFixed(1)}s, peak ${python.peakMegabytes.toFixed(0)} MB\n` +
       `  stages: ${stageLine(pythonStages)}; fit ${theirs.model.iterations} L-BFGS-B iterations\n` +
+      `  BLAS: ${kernels || "none reported"} (${OPENBLAS_PINS.join(", ")} unset)\n` +
       `time ratio engine / reference: ${(engine.seconds / python.seconds).toFixed(2)}\n`,
   );
   const compared: Array<[string, number, number]> = [

@@ -13,11 +13,16 @@ import numpy as np
 import pandas as pd
 from scipy.optimize import minimize, minimize_scalar
 from scipy.special import gammaln, logsumexp, softmax
+from threadpoolctl import threadpool_info
 
 
 def main():
     path, label, shard = sys.argv[1:4]
     lam = float(sys.argv[4]) if len(sys.argv) > 4 else 1e-3
+    # Which BLAS kernels NumPy runs, so the bench can say what it compared against.
+    blas = [{key: pool.get(key) for key in ("internal_api", "version", "architecture", "num_threads")}
+            for pool in threadpool_info() if pool.get("user_api") == "blas"]
+    print("blas " + json.dumps(blas), file=sys.stderr)
     times = {}
     start = time.perf_counter()
 
