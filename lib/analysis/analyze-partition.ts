@@ -97,7 +97,7 @@ export async function analyzePartition(
     input.threads ?? (input.dataBytes === undefined ? null : countThreadsForBytes(input.dataBytes));
   let pool = threadsNow === null ? null : new PassPool(threadsNow);
   try {
-    return await analyzeWithPool(input, options, onProgress, (design) => {
+    return await analyzeWithPool(input, options, onProgress, threadsNow ?? 1, (design) => {
       pool ??= new PassPool(countThreadsForDesign(design));
       return pool;
     });
@@ -110,6 +110,7 @@ async function analyzeWithPool(
   input: PartitionInput,
   options: AnalysisOptions,
   onProgress: (progress: AnalysisProgress) => void,
+  readThreads: number,
   openPool: (design: Design) => PassPool,
 ): Promise<PartitionSummary> {
   const dataName = input.dataName ?? "dataset";
@@ -122,6 +123,7 @@ async function analyzeWithPool(
   const raw = await readDataset(input.data, dataName, options, {
     partition,
     dropUnassignedRows: options.dropUnassignedRows,
+    threads: readThreads,
     onBytesRead: input.dataBytes
       ? (bytes) => onProgress({ stage: "reading", fraction: Math.min(1, bytes / input.dataBytes!) })
       : undefined,

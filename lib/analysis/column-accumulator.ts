@@ -6,6 +6,20 @@ import { isMissingToken, parseNumberToken, parseSimpleDecimal, trimToken } from 
 export const MAX_ONE_HOT_LEVELS = 32;
 
 /**
+ * What an accumulator knows at the end of one part of a file read on its own thread: plain data,
+ * so it can be posted between threads (structured clone; `codes` can be transferred).
+ */
+export interface ColumnSnapshot {
+  numeric: boolean;
+  missingCount: number;
+  firstNonNumeric: { row: number; token: string } | null;
+  /** Distinct tokens in first-appearance order, null once the dictionary was dropped. */
+  levels: string[] | null;
+  /** Per-row codes into `levels` (-1 missing), null once the dictionary was dropped. */
+  codes: Int32Array | null;
+}
+
+/**
  * Follows one column of the dataset while it streams by, without keeping its strings: `add` turns
  * each field into its numeric value (NaN when missing or not a number) for the caller to store, and
  * while the column has few distinct values the accumulator keeps a code per row into a dictionary
@@ -67,6 +81,54 @@ export class ColumnAccumulator {
     }
     if (this.codes !== null) this.addLevel(token);
     return value;
+  }
+
+  /** The column's state, for merging with the other parts of the file (see `merge`). */
+  snapshot(): ColumnSnapshot {
+    return {
+      numeric: this.numeric,
+      missingCount: this.missingCount,
+      firstNonNumeric: this.firstNonNumeric,
+      levels: this.codes === null ? null : this.levels,
+      codes: this.codes === null ? null : this.codes.toArray(),
+    };
+  }
+
+  /**
+   * The accumulator the whole file would have given, from those of its consecutive parts in file
+   * order: levels keep their first appearance because the parts' levels are taken in order.
+   */
+  static merge(
+    name: string,
+    fileName: string,
+    levelLimit: number,
+    parts: ColumnSnapshot[],
+  ): ColumnAccumulator {
+    const merged = new ColumnAccumulator(name, fileName, levelLimit);
+    merged.numeric = parts.every((part) => part.numeric);
+    merged.missingCount = parts.reduce((sum, part) => sum + part.missingCount, 0);
+    merged.firstNonNumeric = parts.find((part) => part.firstNonNumeric)?.firstNonNumeric ?? null;
+    for (const part of parts) {
+      if (part.levels === null || part.codes === null) {
+        merged.dropLevels();
+        return merged;
+      }
+      const globalCode = part.levels.map((level) => {
+        let code = merged.levelCodes.get(level);
+        if (code === undefined) {
+          code = merged.levelCodes.size;
+          merged.levelCodes.set(level, code);
+        }
+        return code;
+      });
+      if (merged.levelCodes.size > levelLimit) {
+        merged.dropLevels();
+        return merged;
+      }
+      const codes = merged.codes as ChunkedInt32;
+      for (const code of part.codes) codes.push(code < 0 ? code : globalCode[code]);
+    }
+    return merged;
   }
 
   /** True when the column can be one-hot encoded or used as class labels. */

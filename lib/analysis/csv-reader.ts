@@ -17,16 +17,28 @@ export interface CsvRowHandler {
  * never held whole in memory. The delimiter is detected by papaparse (comma, semicolon, tab, …);
  * blank lines are skipped. A row whose field count differs from the header's, an unterminated
  * quote, a missing header or duplicate column names are AnalysisInputErrors naming the file.
- * Resolves with the number of data rows.
+ * Resolves with the number of data rows. With `part`, reads one part of a file cut at line ends.
  */
+/** For reading one part of a CSV cut at line ends: its header comes from the file's first line. */
+export interface CsvPartOptions {
+  /** The file's header; the stream then holds data rows only, and `onHeader` is not called. */
+  header: string[];
+  /** The delimiter found in the file's first lines, so every part splits its rows alike. */
+  delimiter: string;
+  /** Index of the part's first data row in the whole file. */
+  firstRowIndex: number;
+}
+
 export function readCsvStream(
   stream: Readable,
   fileName: string,
   handler: CsvRowHandler,
+  part?: CsvPartOptions,
 ): Promise<number> {
   return new Promise((resolve, reject) => {
-    let header: string[] | null = null;
-    let rowIndex = 0;
+    let header: string[] | null = part ? part.header : null;
+    const firstRowIndex = part ? part.firstRowIndex : 0;
+    let rowIndex = firstRowIndex;
     let charactersRead = 0;
     let failed = false;
 
@@ -50,6 +62,7 @@ export function readCsvStream(
 
     Papa.parse<string[]>(text, {
       header: false,
+      delimiter: part?.delimiter,
       skipEmptyLines: true,
       chunk(results, parser) {
         if (failed) return;
@@ -95,7 +108,7 @@ export function readCsvStream(
           );
           return;
         }
-        resolve(rowIndex);
+        resolve(rowIndex - firstRowIndex);
       },
       error(error: Error) {
         fail(error);

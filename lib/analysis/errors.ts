@@ -16,6 +16,8 @@ export interface InputProblemLocation {
  * by the engine is an internal error.
  */
 export class AnalysisInputError extends Error {
+  /** The problem alone, without its location (which `message` adds). */
+  readonly problem: string;
   readonly file?: string;
   readonly row?: number;
   readonly column?: string;
@@ -24,6 +26,7 @@ export class AnalysisInputError extends Error {
   constructor(problem: string, location: InputProblemLocation = {}) {
     super(describeProblem(problem, location));
     this.name = "AnalysisInputError";
+    this.problem = problem;
     this.file = location.file;
     this.row = location.row;
     this.column = location.column;

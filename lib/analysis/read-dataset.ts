@@ -1,18 +1,16 @@
-import { ChunkedFloat64, ChunkedInt32 } from "./chunked-arrays";
-import { ColumnAccumulator, MAX_ONE_HOT_LEVELS } from "./column-accumulator";
-import { AnalysisInputError, listFirst } from "./errors";
+import type { ColumnAccumulator } from "./column-accumulator";
+import {
+  completeDataset,
+  DatasetRowCollector,
+  locateColumns,
+  type DatasetColumnChoice,
+} from "./dataset-rows";
 import type { PartitionMap } from "./partition-map";
 import { RowStore } from "./row-store";
-import { isMissingToken, trimToken } from "./tokens";
-import { readTable, type TableSource } from "./table-reader";
+import { readCsvInParallel } from "./parallel-read";
+import { detectLocalTableFormat, isLocalFile, readTable, type TableSource } from "./table-reader";
 
-export interface DatasetColumnChoice {
-  labelColumn: string;
-  idColumn?: string;
-  shardColumn?: string;
-  /** Feature columns; default all but the label, id and shard columns. */
-  features?: string[];
-}
+export type { DatasetColumnChoice } from "./dataset-rows";
 
 /** The dataset's kept rows, column by column, before encoding (methods.md §1). */
 export interface RawDataset {
@@ -45,166 +43,73 @@ export interface ReadDatasetOptions {
   dropUnassignedRows: boolean;
   /** Input bytes consumed so far (compressed bytes for gzip and Parquet). */
   onBytesRead?: (bytes: number) => void;
+  /**
+   * Threads that may share the reading: a local CSV with a shard column is then read in parts on
+   * that many threads (parallel-read.ts), with the same result. Default 1.
+   */
+  threads?: number;
 }
 
-const LISTED_OFFENDERS = 5;
-
 /**
- * Reads the dataset once (CSV, gzip CSV or Parquet: table-reader.ts), keeping only the columns in use: rows with a missing label are
- * dropped and counted, every other row is assigned to a shard through the partition map (by the id
- * column or by 0-based row index) or the shard column, and the assignment is validated as
- * methods.md §1 requires (unknown ids, ids used twice, unassigned rows).
+ * Reads the dataset once (CSV, gzip CSV or Parquet: table-reader.ts), keeping only the columns in
+ * use: rows with a missing label are dropped and counted, every other row is assigned to a shard
+ * through the partition map (by the id column or by 0-based row index) or the shard column, and the
+ * assignment is validated as methods.md §1 requires (unknown ids, ids used twice, unassigned rows).
  */
 export async function readDataset(
   source: TableSource,
   fileName: string,
   columns: DatasetColumnChoice,
-  { partition, dropUnassignedRows, onBytesRead }: ReadDatasetOptions,
+  { partition, dropUnassignedRows, onBytesRead, threads = 1 }: ReadDatasetOptions,
 ): Promise<RawDataset> {
-  let labelIndex = -1;
-  let idIndex = -1;
-  let shardIndex = -1;
-  let featureIndices: number[] = [];
-  // Assigned in the header callback; the cast keeps TypeScript from narrowing it to null.
-  let label = null as ColumnAccumulator | null;
-  let features: ColumnAccumulator[] = [];
-  // Created in the header callback, once the number of features is known (same cast as above).
+  if (threads > 1 && partition === null && isLocalFile(source)) {
+    if ((await detectLocalTableFormat(source.path)) === "csv") {
+      const read = await readCsvInParallel(source.path, fileName, columns, threads, {
+        dropUnassignedRows,
+        onBytesRead,
+      });
+      if (read) return read;
+    }
+  }
+  // Created in the header callback, once the columns are known (the cast keeps TypeScript from
+  // narrowing them to null).
+  let collector = null as DatasetRowCollector | null;
   let featureValues = null as RowStore | null;
-  const labelValues = new ChunkedFloat64();
-  const shardCodes = new ChunkedInt32();
-  const shardIds: string[] = partition ? partition.shardIds : [];
-  const shardCodeOfId = new Map<string, number>();
-  const unassignedRows: number[] = [];
-  let unassignedCount = 0;
-  let droppedMissingLabel = 0;
-  let keptRows = 0;
-
   const totalRows = await readTable(source, fileName, {
     onProgress: onBytesRead,
     onHeader(header) {
-      const findColumn = (name: string, role: string) => {
-        const index = header.indexOf(name);
-        if (index < 0) {
-          throw new AnalysisInputError(`there is no ${role} column "${name}"`, {
-            file: fileName,
-            column: name,
-            expected: `one of the header's columns: ${listFirst(header, header.length, 12)}`,
-          });
-        }
-        return index;
-      };
-      labelIndex = findColumn(columns.labelColumn, "label");
-      idIndex = columns.idColumn ? findColumn(columns.idColumn, "id") : -1;
-      shardIndex = columns.shardColumn ? findColumn(columns.shardColumn, "shard") : -1;
-      const reserved = new Set([labelIndex, idIndex, shardIndex]);
-      if (columns.features) {
-        featureIndices = columns.features.map((name) => {
-          const index = findColumn(name, "feature");
-          if (reserved.has(index)) {
-            throw new AnalysisInputError("a feature cannot also be the label, id or shard column", {
-              file: fileName,
-              column: name,
-              expected: "features other than the label, id and shard columns",
-            });
-          }
-          return index;
-        });
-      } else {
-        featureIndices = header.map((_, index) => index).filter((index) => !reserved.has(index));
-      }
-      label = new ColumnAccumulator(header[labelIndex], fileName, Infinity);
-      features = featureIndices.map(
-        (index) => new ColumnAccumulator(header[index], fileName, MAX_ONE_HOT_LEVELS),
+      const positions = locateColumns(header, fileName, columns);
+      featureValues = new RowStore(positions.features.length + 1);
+      collector = new DatasetRowCollector(
+        header,
+        fileName,
+        positions,
+        columns.idColumn,
+        partition,
+        featureValues,
       );
-      featureValues = new RowStore(features.length + 1);
     },
     onRow(fields, rowIndex) {
-      let shardCode: number;
-      if (partition) {
-        const rowId = idIndex >= 0 ? trimToken(fields[idIndex]) : String(rowIndex);
-        shardCode = partition.lookUp(rowId);
-        if (shardCode === -2) {
-          throw new AnalysisInputError(`the id "${rowId}" appears on more than one data row`, {
-            file: fileName,
-            row: rowIndex,
-            column: columns.idColumn,
-            expected: "unique ids, so each row is assigned exactly once",
-          });
-        }
-      } else {
-        const shard = trimToken(fields[shardIndex]);
-        if (isMissingToken(shard)) {
-          shardCode = -1;
-        } else {
-          const known = shardCodeOfId.get(shard);
-          shardCode = known ?? shardIds.length;
-          if (known === undefined) {
-            shardIds.push(shard);
-            shardCodeOfId.set(shard, shardCode);
-          }
-        }
-      }
-      if (isMissingToken(trimToken(fields[labelIndex]))) {
-        droppedMissingLabel++;
-        return;
-      }
-      if (shardCode < 0) {
-        unassignedCount++;
-        if (unassignedRows.length < LISTED_OFFENDERS) unassignedRows.push(rowIndex);
-        return;
-      }
-      labelValues.push((label as ColumnAccumulator).add(fields[labelIndex], rowIndex));
-      const store = featureValues as RowStore;
-      const offset = store.appendRow();
-      const values = store.values;
-      for (let k = 0; k < featureIndices.length; k++) {
-        values[offset + k] = features[k].add(fields[featureIndices[k]], rowIndex);
-      }
-      shardCodes.push(shardCode);
-      keptRows++;
+      (collector as DatasetRowCollector).addRow(fields, rowIndex);
     },
   });
-
-  const problems: string[] = [];
-  if (unassignedCount > 0 && !dropUnassignedRows) {
-    problems.push(
-      `${unassignedCount} data rows with a label have no shard (rows ${listFirst(unassignedRows, unassignedCount)})`,
-    );
-  }
-  if (partition) {
-    const unknown = partition.findUnmatched();
-    if (unknown.length > 0) {
-      problems.push(
-        `${unknown.length} row ids in the partition map match no data row (${listFirst(unknown, unknown.length)})`,
-      );
-    }
-  }
-  if (problems.length > 0) {
-    throw new AnalysisInputError(problems.join("; "), {
-      file: partition ? partition.fileName : fileName,
-      column: partition ? "row_id" : columns.shardColumn,
-      expected: "every labelled data row assigned to exactly one shard",
-    });
-  }
-  if (keptRows === 0) {
-    throw new AnalysisInputError(
-      totalRows === 0 ? "the file has a header but no data rows" : "every data row lacks a label",
-      { file: fileName, column: columns.labelColumn, expected: "at least one row with a label" },
-    );
-  }
-
-  return {
-    fileName,
-    totalRows,
-    keptRows,
-    droppedMissingLabel,
-    droppedUnassigned: dropUnassignedRows ? unassignedCount : 0,
-    label: label as ColumnAccumulator,
-    labelValues: labelValues.toArray(),
-    features,
-    featureValues: (featureValues as RowStore).finish(),
-    featuresNamed: columns.features !== undefined,
-    shardCodes: shardCodes.toArray(),
-    shardIds,
-  };
+  const rows = collector as DatasetRowCollector;
+  return completeDataset(
+    {
+      fileName,
+      totalRows,
+      keptRows: rows.keptRows,
+      droppedMissingLabel: rows.droppedMissingLabel,
+      label: rows.label,
+      labelValues: rows.labelValues.toArray(),
+      features: rows.features,
+      featureValues: (featureValues as RowStore).finish(),
+      featuresNamed: columns.features !== undefined,
+      shardCodes: rows.shardCodes.toArray(),
+      shardIds: rows.shardIds,
+    },
+    { count: rows.unassignedCount, firstRows: rows.unassignedRows },
+    columns,
+    { partition, dropUnassignedRows },
+  );
 }

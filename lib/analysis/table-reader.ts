@@ -57,12 +57,21 @@ export async function readTable(
   return readCsvStream(stream, fileName, handler);
 }
 
+export function isLocalFile(source: TableSource): source is LocalFile {
+  return !(source instanceof Readable);
+}
+
+/** The format of a local file, from its first bytes. */
+export async function detectLocalTableFormat(path: string): Promise<TableFormat> {
+  return detectTableFormat(await readFileHead(path, SNIFFED_BYTES));
+}
+
 async function readLocalTable(
   file: LocalFile,
   fileName: string,
   handler: TableRowHandler,
 ): Promise<number> {
-  const format = detectTableFormat(await readFileHead(file.path, SNIFFED_BYTES));
+  const format = await detectLocalTableFormat(file.path);
   if (format === "parquet") return readParquetFile(file.path, fileName, handler);
   const stream = createReadStream(file.path);
   return format === "csv.gz"
