@@ -11,7 +11,13 @@ import path from "node:path";
 import { Readable } from "node:stream";
 import { parquetWriteBuffer } from "hyparquet-writer";
 import { beforeAll, describe, expect, it } from "vitest";
-import { analyzePartition, AnalysisInputError, type PartitionSummary } from "@/lib/analysis";
+import {
+  analyzePartition,
+  AnalysisInputError,
+  computeSchemaDigest,
+  readClientRows,
+  type PartitionSummary,
+} from "@/lib/analysis";
 import type { TableSource } from "@/lib/analysis/table-reader";
 import { loadPenguinsCsv, loadPenguinsRecords } from "./support/open-data";
 
@@ -103,6 +109,23 @@ describe("dataset and partition map formats", () => {
     expect(fromFile).toEqual(csvSummary);
     const fromStream = await analyze(streamOf("penguins.parquet"), streamOf("islands.csv"));
     expect(fromStream).toEqual(csvSummary);
+  });
+
+  it("gives a federated client the CSV's round-1 digest from gzip CSV and Parquet", async () => {
+    const schemaOf = async (data: string, partition: string) =>
+      computeSchemaDigest(
+        await readClientRows({
+          data: { path: inFolder(data) },
+          dataName: "penguins",
+          partition: { path: inFolder(partition) },
+          partitionName: "islands",
+          columns: OPTIONS,
+        }),
+        { client: "c1" },
+      );
+    const fromCsv = await schemaOf("penguins.csv", "islands.csv");
+    expect(await schemaOf("penguins.csv.gz", "islands.csv.gz")).toEqual(fromCsv);
+    expect(await schemaOf("penguins.parquet", "islands.parquet")).toEqual(fromCsv);
   });
 
   it("names the file when gzip data is cut short", async () => {
