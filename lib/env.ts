@@ -23,6 +23,23 @@ const environmentSchema = z.object({
    * (milliseconds). A frozen S3 then costs a request this long per attempt instead of hanging it.
    */
   STORAGE_TIMEOUT_MS: z.coerce.number().int().positive().default(10_000),
+  /**
+   * How long an analysis keeps retrying while storage is unreachable before it fails
+   * (milliseconds; half an hour by default, so a storage outage of that length loses no run).
+   */
+  STORAGE_RETRY_WINDOW_MS: z.coerce
+    .number()
+    .int()
+    .positive()
+    .default(30 * 60 * 1000),
+  /** How often a worker records that it is still running its analysis (milliseconds). */
+  WORKER_HEARTBEAT_MS: z.coerce.number().int().positive().default(10_000),
+  /**
+   * After how long without a heartbeat a running analysis counts as abandoned by a worker that
+   * died, and is handed back to the queue (milliseconds). Checked every heartbeat interval, so a
+   * dead worker's run is noticed within this plus one interval: 40 s by default.
+   */
+  WORKER_STALE_AFTER_MS: z.coerce.number().int().positive().default(30_000),
   SMTP_HOST: z.string().default("127.0.0.1"),
   SMTP_PORT: z.coerce.number().int().positive().default(2525),
   SMTP_USER: z.string().optional(),

@@ -11,6 +11,8 @@ import type PgBoss from "pg-boss";
 import { closeDb } from "@/db/client";
 import { ANALYSIS_QUEUE, analysisJobSchema, startBoss, type AnalysisJob } from "@/lib/jobs";
 import { runMailSender } from "@/lib/mail";
+import { env } from "@/lib/env";
+import { sweepLostRuns } from "@/lib/reports/lost-runs";
 import { runAnalysis } from "@/lib/reports/run-analysis";
 
 const shutdown = new AbortController();
@@ -34,6 +36,7 @@ async function handleJob(job: PgBoss.JobWithMetadata<AnalysisJob>): Promise<void
     const result = await runAnalysis(parsed.data, {
       willRetry: job.retryCount < job.retryLimit,
       signal: shutdown.signal,
+      heartbeatMs: env().WORKER_HEARTBEAT_MS,
     });
     const detail = result.outcome === "succeeded" ? ` (report ${result.reportId})` : "";
     log(`analysis ${analysisId}, ${attempt}: ${result.outcome}${detail} in ${elapsed()}`);
@@ -56,12 +59,21 @@ async function main() {
     signal: shutdown.signal,
     log: (line) => console.log(`[mail] ${line}`),
   });
+  // Every worker looks for runs whose worker died (no heartbeat), so one survivor is enough.
+  const sweep = () =>
+    sweepLostRuns(boss, { staleAfterMs: env().WORKER_STALE_AFTER_MS, log }).catch(
+      (error: unknown) =>
+        log(`could not look for lost runs: ${error instanceof Error ? error.message : error}`),
+    );
+  const sweeper = setInterval(() => void sweep(), env().WORKER_HEARTBEAT_MS);
+  void sweep();
   let stopping = false;
   const stop = async (signal: string) => {
     if (stopping) return;
     stopping = true;
     log(`${signal}: stopping`);
     shutdown.abort();
+    clearInterval(sweeper);
     await Promise.all([boss.stop({ graceful: true, timeout: 10_000 }), mailSender]);
     await closeDb();
     process.exit(0);

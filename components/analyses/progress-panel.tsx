@@ -8,6 +8,7 @@ import { cancelAnalysis } from "@/app/(workspace)/w/[workspaceId]/analyses/actio
 import { Button, buttonClasses } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import {
+  interruptionNotice,
   isFinished,
   overallProgress,
   SIMULATION_STAGE_LABEL,
@@ -87,6 +88,7 @@ export function ProgressPanel({
   };
 
   const finished = isFinished(data.status);
+  const notice = interruptionNotice(data, (iso) => new Date(iso).toLocaleTimeString());
   const progress = overallProgress(data);
   const headline = {
     queued: data.attempts > 0 ? "Waiting to try again" : "Waiting for a worker",
@@ -141,6 +143,7 @@ export function ProgressPanel({
       {error && !finished ? (
         <Notice tone="info">Lost contact with the server ({error.message}); still trying…</Notice>
       ) : null}
+      {notice ? <Notice tone="info">{notice}</Notice> : null}
       {data.status === "queued" && data.failureMessage ? (
         <Notice tone="info">{data.failureMessage}</Notice>
       ) : null}

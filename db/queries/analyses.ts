@@ -29,6 +29,8 @@ export type AnalysisStatusView = Pick<
   | "startedAt"
   | "finishedAt"
   | "simulationProgress"
+  | "workerLostAt"
+  | "storageUnreachableSince"
 > & {
   reportId: string | null;
   /** Whether the analysis was asked to simulate the plan (methods.md §7). */
@@ -163,6 +165,8 @@ export async function findAnalysisStatus(
       startedAt: analyses.startedAt,
       finishedAt: analyses.finishedAt,
       simulationProgress: analyses.simulationProgress,
+      workerLostAt: analyses.workerLostAt,
+      storageUnreachableSince: analyses.storageUnreachableSince,
       simulates: sql<boolean>`(${analyses.parameters} -> 'simulate') is not null`,
       reportId: reports.id,
     })
@@ -200,6 +204,8 @@ export async function claimAnalysis(
       fraction: 0,
       simulationProgress: null,
       failureMessage: null,
+      heartbeatAt: sql`now()`,
+      storageUnreachableSince: null,
     })
     .where(
       and(
@@ -252,6 +258,84 @@ export async function recordProgress(
     )
     .returning({ id: analyses.id });
   return updated.length > 0;
+}
+
+/** The worker's sign of life for a run it holds; false when the analysis is no longer running. */
+export async function recordHeartbeat(workspaceId: string, analysisId: string): Promise<boolean> {
+  const updated = await db()
+    .update(analyses)
+    .set({ heartbeatAt: sql`now()` })
+    .where(
+      and(
+        eq(analyses.workspaceId, workspaceId),
+        eq(analyses.id, analysisId),
+        eq(analyses.status, "running"),
+      ),
+    )
+    .returning({ id: analyses.id });
+  return updated.length > 0;
+}
+
+/** A run whose worker stopped giving signs of life, handed back to the queue. */
+export interface LostRun {
+  analysisId: string;
+  workspaceId: string;
+  jobId: string | null;
+}
+
+/**
+ * Hands every running analysis whose last heartbeat (or start, for a run from before heartbeats)
+ * is older than `staleAfterMs` back to the queue, with the time its worker was found gone and a
+ * note for the progress page. Across all workspaces: this is the workers' housekeeping, not a
+ * user's request.
+ */
+export async function handBackLostRuns(staleAfterMs: number, note: string): Promise<LostRun[]> {
+  return db()
+    .update(analyses)
+    .set({
+      status: "queued",
+      workerLostAt: sql`now()`,
+      failureMessage: note,
+      heartbeatAt: null,
+    })
+    .where(
+      and(
+        eq(analyses.status, "running"),
+        sql`coalesce(${analyses.heartbeatAt}, ${analyses.startedAt}) < now() - make_interval(secs => ${staleAfterMs / 1000})`,
+      ),
+    )
+    .returning({
+      analysisId: analyses.id,
+      workspaceId: analyses.workspaceId,
+      jobId: analyses.jobId,
+    });
+}
+
+/** Marks the run as waiting for storage since now, unless it already was; returns since when. */
+export async function recordStorageUnreachable(
+  workspaceId: string,
+  analysisId: string,
+): Promise<Date | undefined> {
+  const [row] = await db()
+    .update(analyses)
+    .set({ storageUnreachableSince: sql`coalesce(${analyses.storageUnreachableSince}, now())` })
+    .where(
+      and(
+        eq(analyses.workspaceId, workspaceId),
+        eq(analyses.id, analysisId),
+        eq(analyses.status, "running"),
+      ),
+    )
+    .returning({ since: analyses.storageUnreachableSince });
+  return row?.since ?? undefined;
+}
+
+/** Storage answers again: the run's notice goes. */
+export async function clearStorageUnreachable(workspaceId: string, analysisId: string) {
+  await db()
+    .update(analyses)
+    .set({ storageUnreachableSince: null })
+    .where(and(eq(analyses.workspaceId, workspaceId), eq(analyses.id, analysisId)));
 }
 
 /** True while the analysis is running; polled when no progress arrives for a while. */

@@ -144,6 +144,12 @@ export const analysisStatusSchema = z
       .meta({ description: "The simulation's latest run and round; null until it starts." }),
     reportId: z.string().nullable().meta({ description: "Set once the analysis succeeded." }),
     title: z.string(),
+    workerLostAt: z.iso.datetime().nullable().meta({
+      description: "When the worker running it was found stopped; the run was restarted.",
+    }),
+    storageUnreachableSince: z.iso.datetime().nullable().meta({
+      description: "Since when the run has been waiting for storage to answer; null when it does.",
+    }),
     createdAt: z.iso.datetime(),
     startedAt: z.iso.datetime().nullable(),
     finishedAt: z.iso.datetime().nullable(),

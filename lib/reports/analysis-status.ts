@@ -16,6 +16,10 @@ export interface AnalysisStatusJson {
   simulation: SimulationProgress | null;
   reportId: string | null;
   title: string;
+  /** When a sweeper found this analysis's worker gone (the run was handed back and restarted). */
+  workerLostAt: string | null;
+  /** Since when the current run has been waiting for storage to answer again. */
+  storageUnreachableSince: string | null;
   /** ISO 8601 times. */
   createdAt: string;
   startedAt: string | null;
@@ -34,10 +38,34 @@ export function toStatusJson(view: AnalysisStatusView): AnalysisStatusJson {
     simulation: view.simulationProgress,
     reportId: view.reportId,
     title: view.title,
+    workerLostAt: view.workerLostAt?.toISOString() ?? null,
+    storageUnreachableSince: view.storageUnreachableSince?.toISOString() ?? null,
     createdAt: view.createdAt.toISOString(),
     startedAt: view.startedAt?.toISOString() ?? null,
     finishedAt: view.finishedAt?.toISOString() ?? null,
   };
+}
+
+/**
+ * What the progress page says about trouble the run met and is riding out: storage that stopped
+ * answering, or a worker that died (whose run another worker took up). Null when there is none.
+ * `formatTime` renders a time in the reader's locale.
+ */
+export function interruptionNotice(
+  status: Pick<
+    AnalysisStatusJson,
+    "status" | "workerLostAt" | "storageUnreachableSince" | "startedAt"
+  >,
+  formatTime: (iso: string) => string,
+): string | null {
+  if (status.status !== "running") return null;
+  if (status.storageUnreachableSince) {
+    return `Storage unreachable since ${formatTime(status.storageUnreachableSince)}, retrying… The analysis goes on by itself once storage answers again.`;
+  }
+  if (status.workerLostAt && status.startedAt && status.startedAt > status.workerLostAt) {
+    return `The worker running this analysis stopped (noticed at ${formatTime(status.workerLostAt)}); another run of it restarted at ${formatTime(status.startedAt)}.`;
+  }
+  return null;
 }
 
 /** The engine's stages in order, as the progress page names them. */

@@ -10,6 +10,7 @@ import { notifyAnalysisEnded, type EndedRun } from "@/lib/notifications/analysis
 import { runEngineInThread } from "./engine-thread";
 import type { StoredFile } from "./hashed-object";
 import { createProgressWriter } from "./progress-writer";
+import { startHeartbeat } from "./worker-heartbeat";
 
 export type RunOutcome =
   | { outcome: "succeeded"; reportId: string }
@@ -26,6 +27,8 @@ export interface RunOptions {
   signal?: AbortSignal;
   /** At least this long between progress writes; 500 ms keeps it to two writes a second. */
   progressIntervalMs?: number;
+  /** How often the run records that its worker is alive (WORKER_HEARTBEAT_MS in the worker). */
+  heartbeatMs?: number;
 }
 
 const INTERNAL_FAILURE =
@@ -72,6 +75,7 @@ export async function runAnalysis(job: AnalysisJob, options: RunOptions): Promis
     pollMs: 1000,
     onStopped: () => stoppedFromOutside.abort(),
   });
+  const stopHeartbeat = startHeartbeat(job, options.heartbeatMs ?? 10_000);
   try {
     const result = await runEngineInThread(
       {
@@ -126,5 +130,7 @@ export async function runAnalysis(job: AnalysisJob, options: RunOptions): Promis
     });
     if (!options.willRetry) await notifyEnded({ outcome: "failed", message: INTERNAL_FAILURE });
     throw error;
+  } finally {
+    stopHeartbeat();
   }
 }

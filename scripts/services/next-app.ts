@@ -65,7 +65,8 @@ export async function startNextApp(
   supervisor: Supervisor,
   options: { projectRoot: string; port: number; env: NodeJS.ProcessEnv },
 ): Promise<{ url: string }> {
-  const server = supervisor.startService({
+  // Restarted if it dies, while the database, the worker and the fakes keep running.
+  const server = supervisor.keepRunning({
     name: "Next.js server",
     command: process.execPath,
     args: [
@@ -80,7 +81,7 @@ export async function startNextApp(
   });
   const url = `http://127.0.0.1:${options.port}`;
   let exited = false;
-  void server.exited.then(() => (exited = true));
+  void server.current.exited.then(() => (exited = true));
   const deadline = Date.now() + readyTimeoutMs;
   while (!exited) {
     try {

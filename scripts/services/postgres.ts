@@ -57,30 +57,35 @@ export async function startPostgres(
 
   const socketDir = mkdtempSync(path.join(os.tmpdir(), "partita-pg-socket-"));
   prepareOwnedFolder(socketDir, owner, 0o700);
-  const server = supervisor.startService({
-    name: "PostgreSQL",
-    command: path.join(binDir, "postgres"),
-    args: [
-      "-D",
-      options.dataDir,
-      "-p",
-      String(options.port),
-      "-c",
-      "listen_addresses=127.0.0.1",
-      "-c",
-      `unix_socket_directories=${socketDir}`,
-      "-c",
-      "logging_collector=off",
-    ],
-    uid: owner?.uid,
-    gid: owner?.gid,
-    logFile: options.logFile,
-    // SIGINT is PostgreSQL's "fast shutdown": roll back open transactions and exit cleanly.
-    stopSignal: "SIGINT",
-  });
+  // Restarted when it dies, as npm start's other parts are. A server someone else started on the
+  // same folder meanwhile (pg_ctl restart, say) is stopped first, so none is left orphaned.
+  const server = supervisor.keepRunning(
+    {
+      name: "PostgreSQL",
+      command: path.join(binDir, "postgres"),
+      args: [
+        "-D",
+        options.dataDir,
+        "-p",
+        String(options.port),
+        "-c",
+        "listen_addresses=127.0.0.1",
+        "-c",
+        `unix_socket_directories=${socketDir}`,
+        "-c",
+        "logging_collector=off",
+      ],
+      uid: owner?.uid,
+      gid: owner?.gid,
+      logFile: options.logFile,
+      // SIGINT is PostgreSQL's "fast shutdown": roll back open transactions and exit cleanly.
+      stopSignal: "SIGINT",
+    },
+    { beforeRestart: () => stopServerRunningOn(options.dataDir) },
+  );
 
   const serverUrl = connectionUrl(options.port, options.password, "postgres");
-  await waitUntilAcceptingConnections(serverUrl, server.exited, options.logFile);
+  await waitUntilAcceptingConnections(serverUrl, server.current.exited, options.logFile);
   await createDatabaseWhenMissing(serverUrl, options.database);
   return {
     url: connectionUrl(options.port, options.password, options.database),
@@ -189,14 +194,32 @@ async function initializeCluster(
 
 /** A server left running on this folder (e.g. by another `npm start`) would refuse a second one. */
 function assertNoServerRunning(dataDir: string) {
-  const pidFile = path.join(dataDir, "postmaster.pid");
-  if (!existsSync(pidFile)) return;
-  const pid = Number(readFileSync(pidFile, "utf8").split("\n")[0]);
-  if (!Number.isInteger(pid) || pid <= 0 || !isProcessAlive(pid)) return;
+  const pid = runningServerPid(dataDir);
+  if (pid === undefined) return;
   throw new Error(
     `A PostgreSQL server (pid ${pid}) is already running on ${dataDir}. ` +
       `Stop the other Partita start first, or end that server with: kill -INT ${pid}`,
   );
+}
+
+/** The pid in the folder's postmaster.pid when that process is alive, else undefined. */
+function runningServerPid(dataDir: string): number | undefined {
+  const pidFile = path.join(dataDir, "postmaster.pid");
+  if (!existsSync(pidFile)) return undefined;
+  const pid = Number(readFileSync(pidFile, "utf8").split("\n")[0]);
+  return Number.isInteger(pid) && pid > 0 && isProcessAlive(pid) ? pid : undefined;
+}
+
+/** Asks a server on this folder to shut down (fast mode), and kills it if it will not. */
+async function stopServerRunningOn(dataDir: string) {
+  const pid = runningServerPid(dataDir);
+  if (pid === undefined) return;
+  console.log(`Stopping the PostgreSQL server (pid ${pid}) started outside this command.`);
+  process.kill(pid, "SIGINT");
+  for (let waited = 0; runningServerPid(dataDir) === pid; waited += 200) {
+    if (waited >= 30_000) process.kill(pid, "SIGKILL");
+    await new Promise((resolve) => setTimeout(resolve, 200));
+  }
 }
 
 function isProcessAlive(pid: number): boolean {

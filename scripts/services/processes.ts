@@ -27,11 +27,37 @@ export interface SupervisedProcess {
   stop(): Promise<void>;
 }
 
+/** A part kept running by `keepRunning`, whose process changes when it is restarted. */
+export interface KeptService {
+  /** The process running now (the latest restart's). */
+  readonly current: SupervisedProcess;
+  /** Calls `listener` with each new process once it has been started again after a death. */
+  onRestart(listener: (process: SupervisedProcess) => void): void;
+  stop(): Promise<void>;
+}
+
+export interface RestartPolicy {
+  /** The wait before the first restart; it doubles with each death soon after a start. */
+  firstDelayMs: number;
+  longestDelayMs: number;
+  /** A process that ran this long before dying counts as healthy: the wait starts over. */
+  healthyAfterMs: number;
+  /** Runs before each restart, e.g. to clear up after the dead process. */
+  beforeRestart?(): Promise<void>;
+}
+
+const defaultRestartPolicy: RestartPolicy = {
+  firstDelayMs: 1000,
+  longestDelayMs: 30_000,
+  healthyAfterMs: 60_000,
+};
+
 const gracePeriodMs = 15_000;
 
 /**
  * Owns every process and in-process service an orchestrator starts, and stops them all (newest
- * first) on Ctrl-C, SIGTERM, an uncaught error, or when a long-running child dies unexpectedly.
+ * first) on Ctrl-C, SIGTERM or an uncaught error. A long-running part that dies is restarted
+ * (`keepRunning`), with backoff, while the rest keeps serving.
  * Children get their own process group, so a terminal's Ctrl-C reaches only the orchestrator, which
  * then shuts them down in order (the app before the database it uses), and so stopping a child
  * also stops whatever it forked.
@@ -74,18 +100,70 @@ export class Supervisor {
   }
 
   /**
-   * Starts a long-running program (a server). If it ends while the orchestrator is not shutting
-   * down, that is a failure: everything is stopped and the orchestrator exits non-zero.
+   * Starts a long-running program and starts it again whenever it dies while the orchestrator is
+   * not shutting down: after 1 s, then 2 s, 4 s … at most 30 s while it keeps dying soon after
+   * starting (the wait starts over once a run lasted a minute). Each death and restart is one line
+   * on the orchestrator's output. Stopping it stops whichever process runs at the time.
    */
-  startService(request: SpawnRequest): SupervisedProcess {
-    const child = this.spawnSupervised(request);
-    void child.exited.then((code) => {
-      if (this.isShuttingDown || child.stopRequested) return;
-      console.error(`\n${request.name} stopped unexpectedly (exit code ${code}).`);
+  keepRunning(request: SpawnRequest, policy: Partial<RestartPolicy> = {}): KeptService {
+    const settings = { ...defaultRestartPolicy, ...policy };
+    const listeners: ((process: SupervisedProcess) => void)[] = [];
+    let current = this.spawnSupervised(request, { register: false });
+    let delayMs = settings.firstDelayMs;
+    let pendingRestart: ReturnType<typeof setTimeout> | undefined;
+    let stopped = false;
+
+    const restart = async () => {
+      pendingRestart = undefined;
+      if (stopped || this.isShuttingDown) return;
+      try {
+        await settings.beforeRestart?.();
+        if (stopped || this.isShuttingDown) return;
+        current = this.spawnSupervised(request, { register: false });
+      } catch (error) {
+        console.error(
+          `Could not restart ${request.name}: ${error instanceof Error ? error.message : error}`,
+        );
+        scheduleRestart(-1);
+        return;
+      }
+      console.log(`${request.name} restarted (pid ${current.pid}).`);
+      watch(current);
+      for (const listener of listeners) listener(current);
+    };
+    const scheduleRestart = (code: number) => {
+      const cause = code < 0 ? "restart failed" : `exit code ${code}`;
+      console.error(
+        `\n${request.name} stopped unexpectedly (${cause}); restarting in ${delayMs / 1000} s.`,
+      );
       if (request.logFile) console.error(`Its log: ${request.logFile}`);
-      this.exitAfterShutdown(1);
-    });
-    return child;
+      pendingRestart = setTimeout(() => void restart(), delayMs);
+      delayMs = Math.min(settings.longestDelayMs, delayMs * 2);
+    };
+    const watch = (process: SupervisedProcess) => {
+      const startedAt = Date.now();
+      void process.exited.then((code) => {
+        if (stopped || this.isShuttingDown || process.stopRequested) return;
+        if (Date.now() - startedAt >= settings.healthyAfterMs) delayMs = settings.firstDelayMs;
+        scheduleRestart(code);
+      });
+    };
+    watch(current);
+
+    const stop = async () => {
+      stopped = true;
+      clearTimeout(pendingRestart);
+      this.unregister(stop);
+      await current.stop();
+    };
+    this.register(request.name, stop);
+    return {
+      get current() {
+        return current;
+      },
+      onRestart: (listener) => void listeners.push(listener),
+      stop,
+    };
   }
 
   /** Runs a program to completion (a build, a check) and resolves with its exit code. */
@@ -116,7 +194,14 @@ export class Supervisor {
     if (index >= 0) this.stops.splice(index, 1);
   }
 
-  private spawnSupervised(request: SpawnRequest): SupervisedProcess {
+  /**
+   * Spawns a child in its own process group. Registered, its stop runs at shutdown; a kept
+   * service registers one stop for all its restarts instead, keeping its place in the order.
+   */
+  private spawnSupervised(
+    request: SpawnRequest,
+    { register }: { register: boolean } = { register: true },
+  ): SupervisedProcess {
     if (this.isShuttingDown) throw new Error(`not starting ${request.name}: shutting down`);
     const logDescriptor = request.logFile ? openSync(request.logFile, "a") : undefined;
     const options: SpawnOptions = {
@@ -141,7 +226,7 @@ export class Supervisor {
       this.unregister(stop);
       return stopProcessGroup(pid, exited, request.stopSignal ?? "SIGTERM");
     };
-    this.register(request.name, stop);
+    if (register) this.register(request.name, stop);
     return {
       pid,
       exited,

@@ -57,6 +57,8 @@ describe("the analysis status route", () => {
         simulation: null,
         reportId: null,
         title: "penguins.csv · islands.csv",
+        workerLostAt: null,
+        storageUnreachableSince: null,
         createdAt: expect.stringMatching(/^\d{4}-\d\d-\d\dT/),
         startedAt: null,
         finishedAt: null,

@@ -1,0 +1,35 @@
+import type PgBoss from "pg-boss";
+import { handBackLostRuns } from "@/db/queries/analyses";
+import { ANALYSIS_JOB_POLICY, ANALYSIS_QUEUE } from "@/lib/jobs";
+
+/** Shown on the progress page while a run whose worker died waits to be taken again. */
+export const WORKER_LOST_NOTE =
+  "The worker running this analysis stopped. The analysis goes back to the queue and will restart shortly; your files are safe.";
+
+/**
+ * Finds analyses whose worker stopped sending heartbeats for `staleAfterMs` and hands them back:
+ * the analysis becomes queued again, and its pg-boss job is failed at once instead of waiting for
+ * its expiry, so pg-boss retries it (after its retry delay) on whichever worker is alive. The
+ * report is still stored at most once: the reports table keeps one report per analysis.
+ */
+export async function sweepLostRuns(
+  boss: PgBoss,
+  settings: { staleAfterMs: number; log(line: string): void },
+): Promise<void> {
+  const lost = await handBackLostRuns(settings.staleAfterMs, WORKER_LOST_NOTE);
+  for (const run of lost) {
+    if (run.jobId) {
+      await boss.fail(ANALYSIS_QUEUE, run.jobId, { message: "worker stopped sending heartbeats" });
+    }
+    const job = run.jobId ? await boss.getJobById(ANALYSIS_QUEUE, run.jobId) : null;
+    if (job?.state !== "retry") {
+      // Its job is gone (retried out, or never recorded): a new one takes its place.
+      await boss.send(
+        ANALYSIS_QUEUE,
+        { analysisId: run.analysisId, workspaceId: run.workspaceId },
+        { ...ANALYSIS_JOB_POLICY, singletonKey: run.analysisId },
+      );
+    }
+    settings.log(`analysis ${run.analysisId}: its worker stopped; handed back to the queue`);
+  }
+}
