@@ -14,7 +14,11 @@ import { loadPenguinsRecords } from "./support/open-data";
 const folder = mkdtempSync(path.join(tmpdir(), "partita-parallel-read-"));
 
 /** The penguins as CSV with `shard` = island; `edit` may change the text of each data row. */
-function writePenguins(name: string, edit: (line: string, index: number) => string = (l) => l) {
+function writePenguins(
+  name: string,
+  edit: (line: string, index: number) => string = (line) => line,
+  lineEnd = "\n",
+) {
   const records = loadPenguinsRecords();
   const columns = Object.keys(records[0]).filter((column) => column !== "Island");
   const lines = [["shard", ...columns].join(",")];
@@ -23,7 +27,7 @@ function writePenguins(name: string, edit: (line: string, index: number) => stri
     lines.push(edit(fields.join(","), index));
   });
   const file = path.join(folder, name);
-  writeFileSync(file, `${lines.join("\n")}\n`);
+  writeFileSync(file, `${lines.join(lineEnd)}${lineEnd}`);
   return file;
 }
 
@@ -63,6 +67,17 @@ describe("reading a CSV in parts on several threads", () => {
       const { single, parts } = await readBoth(file, threads);
       expect(parts).toEqual(single);
     }
+  });
+
+  it("gives the single read's dataset for Windows line ends and blank lines", async () => {
+    const file = writePenguins(
+      "crlf.csv",
+      (line, index) => (index % 50 === 7 ? `${line}\r\n` : line),
+      "\r\n",
+    );
+    const { single, parts } = await readBoth(file, 3);
+    expect(parts).toEqual(single);
+    expect(parts.totalRows).toBe(344);
   });
 
   it("keeps first appearances, dropped rows and unassigned rows across parts", async () => {
