@@ -4,16 +4,19 @@
  * computing the same summary; prints per-stage times, rows/s, CPU time, peak memory (VmHWM), the
  * time ratio and how closely the two summaries agree, and fails when they disagree by more than
  * 1e-4 relative. Then the simulation case: the analyze CLI with `--simulate` (methods.md §7) on the
- * 100k data, timing the simulation stage. `--small` runs only the 100k case, `--large` only the 1M
- * case, `--simulation` only the simulation case.
+ * 100k data, timing the simulation stage. Then the load test (scripts/bench/load-test.ts): the app
+ * on throwaway loopback services with 1,000 stored reports, under 20 concurrent clients. `--small`
+ * runs only the 100k case, `--large` only the 1M case, `--simulation` only the simulation case,
+ * `--load` only the load test.
  */
 import { spawn } from "node:child_process";
-import { existsSync, mkdirSync, readFileSync, statSync } from "node:fs";
+import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from "node:fs";
 import { availableParallelism, loadavg } from "node:os";
 import path from "node:path";
 import type { PartitionSummary } from "../lib/analysis";
 import { countAvailableThreads } from "../lib/analysis/pass-pool";
 import { writeBenchData, type BenchDataSpec } from "./bench/generate-data";
+import { LOAD_CLIENTS, LOAD_REPORTS, runLoadTest } from "./bench/load-test";
 
 const root = path.resolve(import.meta.dirname, "..");
 const outputFolder = path.join(root, "bench-out");
@@ -29,6 +32,15 @@ const CASES: BenchDataSpec[] = [
   { rows: 100_000, features: 32, classes: 10, shards: 100, alpha: 0.5, seed: 1 },
   { rows: 1_000_000, features: 64, classes: 10, shards: 100, alpha: 0.5, seed: 2 },
 ];
+/** The load test's reports hold this data's summary: 100 shards, as a typical layout has. */
+const LOAD_CASE: BenchDataSpec = {
+  rows: 20_000,
+  features: 8,
+  classes: 5,
+  shards: 100,
+  alpha: 0.5,
+  seed: 3,
+};
 /** The simulation case of issue 6: every one of the 100 shards each round, K = 10, R = 100, b = 32. */
 const SIMULATION_PLAN = { participants: 100, localSteps: 10, rounds: 100, batchSize: 32 };
 
@@ -266,15 +278,30 @@ async function benchSimulation(spec: BenchDataSpec): Promise<void> {
   );
 }
 
+/** The load test on reports of LOAD_CASE's summary, made by the analyze CLI. */
+async function benchLoad(): Promise<void> {
+  const file = await prepareData(LOAD_CASE, "load test: the reports hold the summary of ");
+  const engine = await runEngine(file);
+  const summaryFile = path.join(outputFolder, "load-summary.json");
+  writeFileSync(summaryFile, engine.stdout);
+  process.stdout.write(
+    `${LOAD_REPORTS} reports of ${(engine.stdout.length / 1024).toFixed(0)} kB each, ${LOAD_CLIENTS} concurrent clients on loopback\n`,
+  );
+  await runLoadTest(root, summaryFile);
+}
+
 async function main(): Promise<void> {
   mkdirSync(outputFolder, { recursive: true });
   process.stdout.write(
     `machine: ${availableParallelism()} cores, load average ${loadavg()[0].toFixed(1)} at the start (other work on the machine slows both programs)\n`,
   );
-  const only = ["--small", "--large", "--simulation"].find((flag) => process.argv.includes(flag));
+  const only = ["--small", "--large", "--simulation", "--load"].find((flag) =>
+    process.argv.includes(flag),
+  );
   if (only === undefined || only === "--small") await benchCase(CASES[0]);
   if (only === undefined || only === "--large") await benchCase(CASES[1]);
   if (only === undefined || only === "--simulation") await benchSimulation(CASES[0]);
+  if (only === undefined || only === "--load") await benchLoad();
 }
 
 main().catch((error: unknown) => {

@@ -1,0 +1,90 @@
+/**
+ * Seeds the load test's workspace (scripts/bench/load-test.ts): one account, `count` reports that
+ * each hold the given summary and its per-shard table, stored as the worker stores them, and one
+ * API token per load-test client (the API limits requests per token). Prints
+ * `{ tokens, reportId }` as JSON. Runs in a child process under `--conditions=react-server`, as
+ * the worker does, because the query modules are server-only.
+ *
+ * Usage: node --conditions=react-server --import tsx scripts/bench/seed-reports.ts SUMMARY COUNT TOKENS
+ */
+import { readFileSync } from "node:fs";
+import { closeDb, db } from "@/db/client";
+import { insertApiToken } from "@/db/queries/api-tokens";
+import { insertShardRows, listFiguresOf } from "@/db/queries/report-store";
+import { createAccountWithWorkspace } from "@/db/queries/workspaces";
+import { analyses, dataFiles, reports } from "@/db/schema";
+import type { PartitionSummary } from "@/lib/analysis";
+import { createApiTokenSecret } from "@/lib/auth/api-token-secret";
+
+async function seed(summary: PartitionSummary, count: number, tokenCount: number) {
+  const { userId, workspaceId } = await createAccountWithWorkspace({
+    name: "Load test",
+    email: `load-${crypto.randomUUID().slice(0, 8)}@bench.partita.local`,
+    passwordHash: null,
+    workspaceName: "Load test",
+  });
+  const [dataset] = await db()
+    .insert(dataFiles)
+    .values({
+      workspaceId,
+      kind: "dataset",
+      name: "bench.csv",
+      objectKey: `workspaces/${workspaceId}/files/bench/bench.csv`,
+      sizeBytes: 1,
+      uploadedBy: userId,
+    })
+    .returning({ id: dataFiles.id });
+  const parameters = { labelColumn: "label", shardColumn: "shard" };
+  let reportId = "";
+  for (let index = 0; index < count; index++) {
+    const [analysis] = await db()
+      .insert(analyses)
+      .values({
+        workspaceId,
+        title: `Bench report ${index + 1}`,
+        datasetFileId: dataset.id,
+        parameters,
+        status: "succeeded",
+        createdBy: userId,
+      })
+      .returning({ id: analyses.id });
+    reportId = crypto.randomUUID();
+    await db()
+      .insert(reports)
+      .values({
+        id: reportId,
+        workspaceId,
+        analysisId: analysis.id,
+        lineageId: reportId,
+        version: 1,
+        title: `Bench report ${index + 1}`,
+        ...listFiguresOf(summary),
+        summary,
+        parameters,
+        inputs: [],
+        engineVersion: summary.engineVersion,
+        timings: { total: 0 },
+        authorId: userId,
+      });
+    await insertShardRows(db(), reportId, summary.shards);
+  }
+  const tokens: string[] = [];
+  for (let index = 0; index < tokenCount; index++) {
+    const { token, tokenHash } = createApiTokenSecret();
+    await insertApiToken({
+      workspaceId,
+      userId,
+      name: `load client ${index + 1}`,
+      tokenHash,
+      expiresAt: new Date(Date.now() + 24 * 60 * 60 * 1000),
+    });
+    tokens.push(token);
+  }
+  return { tokens, reportId };
+}
+
+const [summaryFile, count, tokenCount] = process.argv.slice(2);
+const summary = JSON.parse(readFileSync(summaryFile, "utf8")) as PartitionSummary;
+seed(summary, Number(count), Number(tokenCount))
+  .then((seeded) => process.stdout.write(`${JSON.stringify(seeded)}\n`))
+  .finally(closeDb);
