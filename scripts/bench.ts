@@ -5,16 +5,19 @@
  * time ratio and how closely the two summaries agree, and fails when they disagree by more than
  * 1e-4 relative. Then the simulation case: the analyze CLI with `--simulate` (methods.md §7) on the
  * 100k data, timing the simulation stage. Then the load test (scripts/bench/load-test.ts): the app
- * on throwaway loopback services with 1,000 stored reports, under 20 concurrent clients. `--small`
- * runs only the 100k case, `--large` only the 1M case, `--simulation` only the simulation case,
- * `--load` only the load test.
+ * on throwaway loopback services with 1,000 stored reports, under 20 concurrent clients. Then the
+ * digest case (methods.md §9): one client's digests of the 1M data for a supplied reference against
+ * one local analysis of it, and the pooled-optimum fit with 5 clients on the 100k data against the
+ * central fit. `--small` runs only the 100k case, `--large` only the 1M case, `--simulation` only
+ * the simulation case, `--load` only the load test, `--digests` only the digest case.
  */
 import { spawn } from "node:child_process";
 import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from "node:fs";
 import { availableParallelism, loadavg } from "node:os";
 import path from "node:path";
-import type { PartitionSummary } from "../lib/analysis";
+import type { DigestEncoding, PartitionSummary } from "../lib/analysis";
 import { countAvailableThreads } from "../lib/analysis/pass-pool";
+import { splitBenchFile, timeDigestFit } from "./bench/bench-digests";
 import { writeBenchData, type BenchDataSpec } from "./bench/generate-data";
 import { LOAD_CLIENTS, LOAD_REPORTS, runLoadTest } from "./bench/load-test";
 
@@ -290,18 +293,91 @@ async function benchLoad(): Promise<void> {
   await runLoadTest(root, summaryFile);
 }
 
+/** `npm run digest -- …` on a bench file, timed end to end. */
+async function runDigest(args: string[]): Promise<RunResult> {
+  const run = await runMeasured(
+    process.execPath,
+    ["--max-old-space-size=1800", "--import", "tsx", "scripts/digest.ts", ...args],
+    () => null,
+  );
+  if (run.code !== 0) throw new Error(`digest failed: ${run.stderr}`);
+  return run;
+}
+
+/**
+ * The digest case of issue 11: (1) on the 1M data as one client, its round-1 and round-2 digests
+ * for a supplied reference (W = 0.01 everywhere) against one local analysis with that reference;
+ * (2) on the 100k data split among 5 clients, the pooled-optimum fit from their evaluation rounds
+ * (in one process) against the central analysis's fit stage.
+ */
+async function benchDigests(large: BenchDataSpec, small: BenchDataSpec): Promise<void> {
+  const file = await prepareData(large, "digests: ");
+  const data = ["--data", file, "--label", "label", "--shard-column", "shard"];
+  const schemaFile = path.join(outputFolder, "digest-schema.json");
+  const encodingFile = path.join(outputFolder, "digest-encoding.json");
+  const weightsFile = path.join(outputFolder, "digest-w.json");
+  const schema = await runDigest(["schema", ...data, "--out", schemaFile]);
+  await runDigest(["encoding", schemaFile, "--out", encodingFile]);
+  const encoding = JSON.parse(readFileSync(encodingFile, "utf8")) as DigestEncoding;
+  const width = encoding.featureNames.length + 1;
+  writeFileSync(
+    weightsFile,
+    JSON.stringify({
+      classes: encoding.classes,
+      features: encoding.featureNames,
+      weights: (encoding.classes ?? [null]).map(() => new Array<number>(width).fill(0.01)),
+    }),
+  );
+  const gradients = await runDigest([
+    "gradients",
+    ...data,
+    "--encoding",
+    encodingFile,
+    "--at",
+    weightsFile,
+    "--out",
+    path.join(outputFolder, "digest-gradients.json"),
+  ]);
+  const local = await runEngine(file, ["--reference", weightsFile]);
+  const digestSeconds = schema.seconds + gradients.seconds;
+  const digestCpu = schema.cpuSeconds + gradients.cpuSeconds;
+  process.stdout.write(
+    `one client's digests (schema ${schema.seconds.toFixed(1)}s + gradients ${gradients.seconds.toFixed(1)}s): ${digestSeconds.toFixed(1)}s wall, CPU ${digestCpu.toFixed(1)}s, peak ${Math.max(schema.peakMegabytes, gradients.peakMegabytes).toFixed(0)} MB
+` +
+      `one local analysis (--reference W): ${local.seconds.toFixed(1)}s wall, CPU ${local.cpuSeconds.toFixed(1)}s, peak ${local.peakMegabytes.toFixed(0)} MB
+` +
+      `ratio digests / analysis: ${(digestSeconds / local.seconds).toFixed(2)} wall, ${(digestCpu / local.cpuSeconds).toFixed(2)} CPU
+`,
+  );
+
+  const smallFile = await prepareData(small, "digests, pooled-optimum fit with 5 clients: ");
+  const central = await runEngine(smallFile);
+  const fitting = central.stages.fitting;
+  const parts = await splitBenchFile(smallFile, 5);
+  const fit = await timeDigestFit(parts);
+  process.stdout.write(
+    `fit from 5 clients' rounds: ${fit.seconds.toFixed(1)}s wall (${fit.rounds} evaluation rounds)
+` +
+      `central fit stage: ${fitting.seconds.toFixed(1)}s wall, CPU ${fitting.cpuSeconds.toFixed(1)}s
+` +
+      `ratio: ${(fit.seconds / fitting.seconds).toFixed(2)}
+`,
+  );
+}
+
 async function main(): Promise<void> {
   mkdirSync(outputFolder, { recursive: true });
   process.stdout.write(
     `machine: ${availableParallelism()} cores, load average ${loadavg()[0].toFixed(1)} at the start (other work on the machine slows both programs)\n`,
   );
-  const only = ["--small", "--large", "--simulation", "--load"].find((flag) =>
+  const only = ["--small", "--large", "--simulation", "--load", "--digests"].find((flag) =>
     process.argv.includes(flag),
   );
   if (only === undefined || only === "--small") await benchCase(CASES[0]);
   if (only === undefined || only === "--large") await benchCase(CASES[1]);
   if (only === undefined || only === "--simulation") await benchSimulation(CASES[0]);
   if (only === undefined || only === "--load") await benchLoad();
+  if (only === undefined || only === "--digests") await benchDigests(CASES[1], CASES[0]);
 }
 
 main().catch((error: unknown) => {

@@ -64,7 +64,7 @@ export interface PartitionInput {
 /** Data files from this size on are analysed with worker threads by default. */
 const PARALLEL_MIN_BYTES = 16 * 2 ** 20;
 /** Without a file size: rows × width × weight rows from which worker threads pay for their start. */
-const PARALLEL_MIN_WORK = 2 ** 26;
+export const PARALLEL_MIN_WORK = 2 ** 26;
 
 /** Points along the path W_t = t·W* where ζ² is measured (methods.md §3). */
 export const PATH_POINTS = [0, 0.25, 0.5, 0.75, 1];

@@ -16,6 +16,12 @@ export interface DigestAnalysisOptions {
   minimumShardRows?: number;
   /** Progress: the round the coordinator is in, and the fit's evaluations so far. */
   onRound?: (round: "schema" | "fit" | "gradients" | "merge", evaluations?: number) => void;
+  /**
+   * A client's request failed (a lost connection): resolve "retry" once it can answer again (it
+   * rejoined) or "fail" to end the analysis. Answers already received are kept either way, so only
+   * that client's request is asked again. Default: fail.
+   */
+  onClientError?: (client: string, error: unknown) => Promise<"retry" | "fail">;
 }
 
 /**
@@ -28,20 +34,23 @@ export async function analyzeFromDigests(
   clients: DigestClientConnection[],
   options: DigestAnalysisOptions,
 ): Promise<PartitionSummary> {
+  const ask = <Answer>(request: (client: DigestClientConnection) => Promise<Answer>) =>
+    Promise.all(clients.map((client) => askUntilAnswered(client, request, options.onClientError)));
   options.onRound?.("schema");
-  const schemas = await Promise.all(clients.map((client) => client.schema()));
+  const schemas = await ask((client) => client.schema());
   const encoding = mergeSchemaDigests(schemas, {
     task: options.task,
     minimumShardRows: options.minimumShardRows,
   });
   options.onRound?.("fit", 0);
-  const gram = encoding.task === "regression" ? await mergeGrams(clients, encoding) : undefined;
+  const gram =
+    encoding.task === "regression"
+      ? sumGrams(await ask((client) => client.gram(encoding)), encoding)
+      : undefined;
   const fit = await fitPooledOptimum(
     encoding,
     async (request) =>
-      mergeEvaluationSums(
-        await Promise.all(clients.map((client) => client.evaluate(encoding, request))),
-      ),
+      mergeEvaluationSums(await ask((client) => client.evaluate(encoding, request))),
     {
       lambda: options.lambda,
       schemas,
@@ -51,7 +60,7 @@ export async function analyzeFromDigests(
   );
   options.onRound?.("gradients");
   const request = createMeasurementRequest(encoding, options.reference, fit.weights);
-  const digests = await Promise.all(clients.map((client) => client.gradients(encoding, request)));
+  const digests = await ask((client) => client.gradients(encoding, request));
   options.onRound?.("merge");
   return mergeGradientDigests(encoding, digests, {
     lambda: options.lambda,
@@ -119,13 +128,25 @@ function checkReferenceWeights(
   }
 }
 
-async function mergeGrams(
-  clients: DigestClientConnection[],
-  encoding: DigestEncoding,
-): Promise<Float64Array> {
+/** One client's answer, asked again after each failure the host says to retry. */
+async function askUntilAnswered<Answer>(
+  client: DigestClientConnection,
+  request: (client: DigestClientConnection) => Promise<Answer>,
+  onClientError: DigestAnalysisOptions["onClientError"],
+): Promise<Answer> {
+  for (;;) {
+    try {
+      return await request(client);
+    } catch (error) {
+      if (!onClientError || (await onClientError(client.name, error)) === "fail") throw error;
+    }
+  }
+}
+
+function sumGrams(parts: number[][][], encoding: DigestEncoding): Float64Array {
   const width = encoding.columns.length + 1;
   const gram = new Float64Array(width * width);
-  for (const part of await Promise.all(clients.map((client) => client.gram(encoding)))) {
+  for (const part of parts) {
     part.forEach((row, j) => row.forEach((value, k) => (gram[j * width + k] += value)));
   }
   return gram;

@@ -1,12 +1,14 @@
 import { createMatrix } from "../../math/matrix";
 import { readTotals } from "../objective-pass";
-import { PassPool, type SharedDesign } from "../pass-pool";
+import { PARALLEL_MIN_WORK } from "../analyze-partition";
+import { countAvailableThreads, PassPool, type SharedDesign } from "../pass-pool";
 import type { ClientDesign } from "./client-rows";
 import type { EvaluationRequest, EvaluationSums } from "./digest-format";
 
 /**
- * A client's encoded rows shared with a pool of `threads` threads (1: the calling thread only): the
- * passes behind its round-2 digest and its answers to the fit's evaluations. `close` ends the threads.
+ * A client's encoded rows shared with a pool of `threads` threads (1: the calling thread only; by
+ * default every core when a pass is as much work as the central analysis's threshold): the passes
+ * behind its round-2 digest and its answers to the fit's evaluations. `close` ends the threads.
  */
 export class ClientPasses {
   readonly passes: SharedDesign;
@@ -14,9 +16,13 @@ export class ClientPasses {
 
   constructor(
     readonly design: ClientDesign,
-    threads = 1,
+    threads?: number,
   ) {
-    this.passes = new PassPool(threads).share(design, design.shardOffsets);
+    const weightRows =
+      design.labels === null ? 1 : design.labels.reduce((a, b) => Math.max(a, b), 0) + 1;
+    const work = design.x.rows * design.x.cols * weightRows;
+    const count = threads ?? (work >= PARALLEL_MIN_WORK ? countAvailableThreads() : 1);
+    this.passes = new PassPool(count).share(design, design.shardOffsets);
   }
 
   /**
