@@ -36,7 +36,6 @@ async function handleJob(job: PgBoss.JobWithMetadata<AnalysisJob>): Promise<void
     const result = await runAnalysis(parsed.data, {
       willRetry: job.retryCount < job.retryLimit,
       signal: shutdown.signal,
-      heartbeatMs: env().WORKER_HEARTBEAT_MS,
     });
     const detail = result.outcome === "succeeded" ? ` (report ${result.reportId})` : "";
     log(`analysis ${analysisId}, ${attempt}: ${result.outcome}${detail} in ${elapsed()}`);

@@ -1,5 +1,5 @@
 import "server-only";
-import { and, eq, inArray, sql } from "drizzle-orm";
+import { and, eq, inArray, or, sql } from "drizzle-orm";
 import { db } from "@/db/client";
 import { analyses, dataFiles, reports } from "@/db/schema";
 import type { AnalysisProgress, SimulationProgress } from "@/lib/analysis";
@@ -186,13 +186,15 @@ export type ClaimedAnalysis = Analysis & {
 };
 
 /**
- * Takes an analysis for a run: a queued one, or a running one whose worker died (its job was
- * retried). Marks it running with one more attempt. Returns undefined when it is finished or
- * cancelled (or gone), so a late or duplicated job simply completes.
+ * Takes an analysis for a run: a queued one, or a running one whose worker died (no heartbeat for
+ * `staleAfterMs`). Marks it running with one more attempt. Returns undefined when it is finished,
+ * cancelled, gone, or still running on a live worker (its job expired while a long run or a
+ * storage outage kept it busy), so a late or duplicated job simply completes.
  */
 export async function claimAnalysis(
   workspaceId: string,
   analysisId: string,
+  staleAfterMs: number,
 ): Promise<ClaimedAnalysis | undefined> {
   const [claimed] = await db()
     .update(analyses)
@@ -211,7 +213,13 @@ export async function claimAnalysis(
       and(
         eq(analyses.workspaceId, workspaceId),
         eq(analyses.id, analysisId),
-        inArray(analyses.status, ["queued", "running"]),
+        or(
+          eq(analyses.status, "queued"),
+          and(
+            eq(analyses.status, "running"),
+            sql`coalesce(${analyses.heartbeatAt}, ${analyses.startedAt}) < now() - make_interval(secs => ${staleAfterMs / 1000})`,
+          ),
+        ),
       ),
     )
     .returning();

@@ -11,6 +11,7 @@ import {
   type SimulationProgress,
 } from "@/lib/analysis";
 import { referenceWeightsSchema, type ReferenceWeights } from "@/lib/validation/analysis-options";
+import { isStorageUnreachable } from "@/lib/storage";
 import { openHashedObject, type StoredFile } from "./hashed-object";
 import type { EngineThreadInput, EngineThreadMessage } from "./engine-thread-protocol";
 
@@ -124,6 +125,8 @@ async function run(input: EngineThreadInput) {
 run(workerData as EngineThreadInput).catch((error: unknown) => {
   if (error instanceof AnalysisInputError) {
     post({ type: "input-error", message: error.message });
+  } else if (isStorageUnreachable(error)) {
+    post({ type: "storage-unreachable", detail: error instanceof Error ? error.message : "" });
   } else {
     const detail = error instanceof Error ? (error.stack ?? error.message) : String(error);
     post({ type: "internal-error", detail });

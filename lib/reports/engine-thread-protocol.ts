@@ -25,5 +25,7 @@ export type EngineThreadMessage =
     }
   /** Bad input: the engine's message, written for the user. */
   | { type: "input-error"; message: string }
+  /** Storage did not answer (refused, timed out, 5xx): worth trying again later. */
+  | { type: "storage-unreachable"; detail: string }
   /** Anything else, with its stack, for the server's log only. */
   | { type: "internal-error"; detail: string };

@@ -10,6 +10,14 @@ export class CancelledError extends Error {
   }
 }
 
+/** Storage did not answer while the engine read its inputs; the run may be tried again. */
+export class StorageUnreachableError extends Error {
+  constructor(detail: string) {
+    super(`storage unreachable: ${detail}`);
+    this.name = "StorageUnreachableError";
+  }
+}
+
 export type EngineOutcome =
   | Extract<EngineThreadMessage, { type: "finished" }>
   | Extract<EngineThreadMessage, { type: "input-error" }>;
@@ -65,6 +73,9 @@ export function runEngineInThread(
         case "finished":
         case "input-error":
           settle(() => resolve(message));
+          return;
+        case "storage-unreachable":
+          settle(() => reject(new StorageUnreachableError(message.detail)));
           return;
         case "internal-error":
           settle(() => reject(new Error(`engine thread: ${message.detail}`)));

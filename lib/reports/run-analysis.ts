@@ -5,11 +5,13 @@ import {
   type AnalysisInputFile,
 } from "@/db/queries/analyses";
 import { storeReport } from "@/db/queries/report-store";
+import { env } from "@/lib/env";
 import type { AnalysisJob } from "@/lib/jobs";
 import { notifyAnalysisEnded, type EndedRun } from "@/lib/notifications/analysis-ended";
 import { runEngineInThread } from "./engine-thread";
 import type { StoredFile } from "./hashed-object";
 import { createProgressWriter } from "./progress-writer";
+import { retryWhileStorageUnreachable } from "./storage-retry";
 import { startHeartbeat } from "./worker-heartbeat";
 
 export type RunOutcome =
@@ -27,12 +29,12 @@ export interface RunOptions {
   signal?: AbortSignal;
   /** At least this long between progress writes; 500 ms keeps it to two writes a second. */
   progressIntervalMs?: number;
-  /** How often the run records that its worker is alive (WORKER_HEARTBEAT_MS in the worker). */
-  heartbeatMs?: number;
 }
 
 const INTERNAL_FAILURE =
   "The analysis stopped because of an internal error, not because of your files. It was tried several times; please run it again later.";
+const STORAGE_FAILURE =
+  "Storage could not be reached for as long as Partita waits for it, so the analysis stopped. Your files are kept; run it again once storage is back.";
 const INTERNAL_RETRY =
   "The analysis was interrupted (an internal error or a worker restart, not a problem with your files). It will be tried again shortly.";
 
@@ -53,7 +55,12 @@ function storedFile(file: AnalysisInputFile): StoredFile {
  */
 export async function runAnalysis(job: AnalysisJob, options: RunOptions): Promise<RunOutcome> {
   const started = performance.now();
-  const analysis = await claimAnalysis(job.workspaceId, job.analysisId);
+  const settings = env();
+  const analysis = await claimAnalysis(
+    job.workspaceId,
+    job.analysisId,
+    settings.WORKER_STALE_AFTER_MS,
+  );
   if (!analysis) return { outcome: "skipped" };
 
   // A long run e-mails whoever started it at the end (lib/notifications/analysis-ended.ts).
@@ -75,9 +82,9 @@ export async function runAnalysis(job: AnalysisJob, options: RunOptions): Promis
     pollMs: 1000,
     onStopped: () => stoppedFromOutside.abort(),
   });
-  const stopHeartbeat = startHeartbeat(job, options.heartbeatMs ?? 10_000);
-  try {
-    const result = await runEngineInThread(
+  const stopHeartbeat = startHeartbeat(job, settings.WORKER_HEARTBEAT_MS);
+  const runEngine = () =>
+    runEngineInThread(
       {
         dataset: storedFile(analysis.dataset),
         layout: analysis.layout && storedFile(analysis.layout),
@@ -90,7 +97,20 @@ export async function runAnalysis(job: AnalysisJob, options: RunOptions): Promis
         signal,
       },
     );
+  try {
+    const result = await retryWhileStorageUnreachable(job, runEngine, {
+      windowMs: settings.STORAGE_RETRY_WINDOW_MS,
+      signal,
+    });
     await progress.stop();
+    if (result.type === "storage-gave-up") {
+      await endRunUnsuccessfully(job.workspaceId, job.analysisId, {
+        status: "failed",
+        message: STORAGE_FAILURE,
+      });
+      await notifyEnded({ outcome: "failed", message: STORAGE_FAILURE });
+      return { outcome: "failed", message: STORAGE_FAILURE };
+    }
     if (result.type === "input-error") {
       await endRunUnsuccessfully(job.workspaceId, job.analysisId, {
         status: "failed",

@@ -23,3 +23,4 @@ export {
   createMultipartUpload,
   type UploadedPart,
 } from "./multipart";
+export { isStorageUnreachable } from "./unreachable";
