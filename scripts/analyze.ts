@@ -28,7 +28,12 @@ import {
   readPlanFlags,
   readReference,
   readTask,
+  readTextFormatFlags,
   requireReadableFile,
+  attachDashedValues,
+  describeInputError,
+  TEXT_FORMAT_FLAGS,
+  TEXT_FORMAT_USAGE,
 } from "../lib/cli/analysis-flags";
 import { runOnServer, ServerAnalysisError } from "../lib/cli/server-run";
 import type { AnalysisOptionsInput } from "../lib/validation/analysis-options";
@@ -38,6 +43,7 @@ const USAGE = `usage: npm run analyze -- --data FILE --label COL (--partition FI
   [--reference optimum|zero|FILE.json] [--participants M] [--local-steps K] [--rounds R]
   [--batch-size b] [--out FILE] [--server URL [--token T]] [--fail-on RULE]…
   [--simulate [--seeds S] [--seed N] [--budget MULTIPLY_ADDS]]
+  ${TEXT_FORMAT_USAGE}
   --token defaults to $PARTITA_API_TOKEN; RULE is KEY OP VALUE, e.g. 'js>0.1' or verdict!=local-updates`;
 
 const EXIT_BAD_INPUT = 2;
@@ -46,7 +52,7 @@ const EXIT_RULE_CROSSED = 3;
 
 /** Runs the analysis and answers the exit code: 0, or 3 when a --fail-on rule is crossed. */
 async function main(): Promise<number> {
-  const { flags, failOn, simulate } = readFlags(process.argv.slice(2));
+  const { flags, failOn, simulate, switches } = readFlags(process.argv.slice(2));
   const rules = failOn.map(parseFailOnRule);
   const dataSize = requireReadableFile(flags.data, "--data");
   if (flags.partition !== undefined) requireReadableFile(flags.partition, "--partition");
@@ -60,6 +66,7 @@ async function main(): Promise<number> {
     reference:
       flags.server && isWeightsFile(flags.reference) ? undefined : readReference(flags.reference),
     ...readPlanFlags(flags),
+    ...readTextFormatFlags(switches),
     simulate: simulate
       ? {
           seeds: readNumber(flags.seeds, "--seeds"),
@@ -133,14 +140,21 @@ function readWeightsPath(value: string | undefined): string | undefined {
 
 type Flags = { data: string; label: string } & Partial<Record<string, string>>;
 
-function readFlags(argv: string[]): { flags: Flags; failOn: string[]; simulate: boolean } {
+function readFlags(argv: string[]): {
+  flags: Flags;
+  failOn: string[];
+  simulate: boolean;
+  /** The string flags and switches together, for readers that take both. */
+  switches: Partial<Record<string, string | boolean>>;
+} {
   const text = { type: "string" } as const;
   let values: Partial<Record<string, string | string[] | boolean>>;
   try {
     values = parseArgs({
-      args: argv,
+      args: attachDashedValues(argv),
       options: {
         ...DATA_FLAGS,
+        ...TEXT_FORMAT_FLAGS,
         ...PLAN_FLAGS,
         reference: text,
         out: text,
@@ -172,8 +186,11 @@ function readFlags(argv: string[]): { flags: Flags; failOn: string[]; simulate: 
     throw new AnalysisInputError(`--${simulationFlag} only applies with --simulate\n${USAGE}`);
   }
   const { "fail-on": failOn = [], ...single } = values;
-  delete single.simulate; // a switch, not one of the string flags
-  return { flags: single as Flags, failOn: failOn as string[], simulate };
+  const switches = { ...single } as Partial<Record<string, string | boolean>>;
+  // Switches, not string flags.
+  delete single.simulate;
+  delete single["bad-numbers-as-missing"];
+  return { flags: single as Flags, failOn: failOn as string[], simulate, switches };
 }
 
 function createProgressPrinter(): (progress: AnalysisProgress) => void {
@@ -238,7 +255,7 @@ main().then(
   },
   (error: unknown) => {
     if (error instanceof AnalysisInputError || error instanceof FailOnRuleError) {
-      process.stderr.write(`partita: bad input: ${error.message}\n`);
+      process.stderr.write(`partita: bad input: ${describeInputError(error)}\n`);
       process.exitCode = EXIT_BAD_INPUT;
       return;
     }

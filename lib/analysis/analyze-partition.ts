@@ -124,6 +124,11 @@ async function analyzeWithPool(
     partition,
     dropUnassignedRows: options.dropUnassignedRows,
     threads: readThreads,
+    format: {
+      encoding: options.encoding,
+      delimiter: options.delimiter,
+      decimalMark: options.decimalMark,
+    },
     onBytesRead: input.dataBytes
       ? (bytes) => onProgress({ stage: "reading", fraction: Math.min(1, bytes / input.dataBytes!) })
       : undefined,
@@ -131,12 +136,14 @@ async function analyzeWithPool(
   onProgress({ stage: "reading", fraction: 1 });
 
   onProgress({ stage: "encoding", fraction: 0 });
-  const design = encodeDesign(raw, options.task);
+  const design = encodeDesign(raw, options.task, {
+    badNumbersAsMissing: options.badNumbersAsMissing,
+  });
   const shardCount = design.shardIds.length;
   const participants = options.participants ?? shardCount;
   if (participants > shardCount) {
-    throw new AnalysisInputError(`the plan has ${participants} participants per round`, {
-      column: "participants",
+    throw new AnalysisInputError(`is ${participants} participants per round`, {
+      option: "participants",
       expected: `at most the number of shards (${shardCount})`,
     });
   }
@@ -306,6 +313,8 @@ async function analyzeWithPool(
       totalRows: raw.totalRows,
       droppedRowsMissingLabel: design.droppedRowsMissingLabel,
       droppedRowsUnassigned: design.droppedRowsUnassigned,
+      format: raw.format,
+      badNumbersCountedMissing: design.badNumbersCountedMissing,
       featureNames: design.featureNames,
       omittedColumns: design.omittedColumns,
       warnings: design.warnings,
@@ -318,9 +327,31 @@ function parseOptions(options: AnalysisOptionsInput): AnalysisOptions {
   const parsed = analysisOptionsSchema.safeParse(options);
   if (parsed.success) return parsed.data;
   const issue = parsed.error.issues[0];
-  throw new AnalysisInputError(`option ${issue.path.join(".") || "(options)"}: ${issue.message}`, {
-    expected: z.prettifyError(parsed.error).split("\n")[0],
+  const option = issue.path.length > 0 ? issue.path.join(".") : undefined;
+  const value = issue.path.reduce<unknown>(
+    (parent, key) => (parent as Record<PropertyKey, unknown> | undefined)?.[key],
+    options,
+  );
+  throw new AnalysisInputError(value === undefined ? "is missing" : `is ${JSON.stringify(value)}`, {
+    option,
+    expected: describeExpected(issue),
   });
+}
+
+/** What a failed option check accepts, in words (zod's own messages repeat themselves). */
+function describeExpected(issue: z.core.$ZodIssue): string {
+  switch (issue.code) {
+    case "too_small":
+      return `${issue.origin === "number" ? "a number" : "at least"} ${issue.inclusive ? "≥" : ">"} ${String(issue.minimum)}${issue.origin === "array" ? " items" : ""}`;
+    case "too_big":
+      return `${issue.origin === "number" ? "a number" : "at most"} ${issue.inclusive ? "≤" : "<"} ${String(issue.maximum)}${issue.origin === "array" ? " items" : ""}`;
+    case "invalid_type":
+      return issue.expected === "int" ? "a whole number" : `a ${issue.expected}`;
+    case "invalid_value":
+      return `one of ${issue.values.map((value) => JSON.stringify(value)).join(", ")}`;
+    default:
+      return issue.message;
+  }
 }
 
 /** Threads for a data file of this size. */

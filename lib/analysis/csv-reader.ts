@@ -1,11 +1,24 @@
 import { Readable } from "node:stream";
 import Papa from "papaparse";
+import { decodeText } from "./decode-text";
 import { AnalysisInputError } from "./errors";
+import {
+  DELIMITERS,
+  type CsvFormat,
+  type CsvFormatChoice,
+  type DecimalMark,
+  type Delimiter,
+} from "./text-format";
 import { trimToken } from "./tokens";
 
+/** Data rows of the first parsed chunk looked at to detect a decimal comma. */
+const DECIMAL_MARK_SAMPLE_ROWS = 200;
+const DECIMAL_COMMA_NUMBER = /^\s*[-+]?\d*,\d+\s*$/;
+const DECIMAL_POINT_NUMBER = /^\s*[-+]?\d*\.\d+\s*$/;
+
 export interface CsvRowHandler {
-  /** Receives the header's trimmed column names. */
-  onHeader(columns: string[]): void;
+  /** Receives the header's trimmed column names and the format the text is read in (none for Parquet). */
+  onHeader(columns: string[], format?: CsvFormat): void;
   /** Receives each data row's raw fields (untrimmed) and its 0-based index (header excluded). */
   onRow(fields: string[], rowIndex: number): void;
   /** Receives how many characters have been read so far (for progress). */
@@ -14,10 +27,12 @@ export interface CsvRowHandler {
 
 /**
  * Reads a CSV with a header row from a stream, one parsed chunk at a time, so a file of any size is
- * never held whole in memory. The delimiter is detected by papaparse (comma, semicolon, tab, …);
- * blank lines are skipped. A row whose field count differs from the header's, an unterminated
- * quote, a missing header or duplicate column names are AnalysisInputErrors naming the file.
- * Resolves with the number of data rows. With `part`, reads one part of a file cut at line ends.
+ * never held whole in memory. The bytes are decoded strictly (decode-text.ts). Unless chosen, the
+ * delimiter (comma, semicolon or tab) is detected by papaparse from the first chunk, and the decimal
+ * mark from the first rows (detectDecimalMark); blank lines are skipped. A row whose field count
+ * differs from the header's, an unterminated quote, a missing header or duplicate column names are
+ * AnalysisInputErrors naming the file. Resolves with the number of data rows. With `part`, reads
+ * one UTF-8 part of a file cut at line ends.
  */
 /** For reading one part of a CSV cut at line ends: its header comes from the file's first line. */
 export interface CsvPartOptions {
@@ -27,6 +42,8 @@ export interface CsvPartOptions {
   delimiter: string;
   /** Index of the part's first data row in the whole file. */
   firstRowIndex: number;
+  /** Where the part starts in the file, so a message can give a byte offset in the file. */
+  startByte: number;
 }
 
 export function readCsvStream(
@@ -34,6 +51,7 @@ export function readCsvStream(
   fileName: string,
   handler: CsvRowHandler,
   part?: CsvPartOptions,
+  choice: CsvFormatChoice = {},
 ): Promise<number> {
   return new Promise((resolve, reject) => {
     let header: string[] | null = part ? part.header : null;
@@ -42,19 +60,22 @@ export function readCsvStream(
     let charactersRead = 0;
     let failed = false;
 
-    stream.setEncoding("utf8");
-    const text = relayWithReadAhead(stream);
+    const encoding = part ? "utf-8" : (choice.encoding ?? "utf-8");
+    const decoded = decodeText(stream, fileName, encoding, part?.startByte);
+    const text = relayWithReadAhead(decoded);
     const fail = (error: unknown) => {
       if (failed) return;
       failed = true;
       stream.destroy();
+      decoded.destroy();
       text.destroy();
       reject(error);
     };
     stream.on("error", fail);
+    decoded.on("error", fail);
     if (handler.onProgress) {
       const onProgress = handler.onProgress;
-      stream.on("data", (chunk: string) => {
+      decoded.on("data", (chunk: string) => {
         charactersRead += chunk.length;
         onProgress(charactersRead);
       });
@@ -62,7 +83,8 @@ export function readCsvStream(
 
     Papa.parse<string[]>(text, {
       header: false,
-      delimiter: part?.delimiter,
+      delimiter: part?.delimiter ?? choice.delimiter,
+      delimitersToGuess: [...DELIMITERS],
       skipEmptyLines: true,
       chunk(results, parser) {
         if (failed) return;
@@ -75,10 +97,17 @@ export function readCsvStream(
               expected: 'a closing " before the end of the file',
             });
           }
-          for (const fields of results.data) {
+          for (const [index, fields] of results.data.entries()) {
             if (header === null) {
               header = readHeader(fields, fileName);
-              handler.onHeader(header);
+              const delimiter = results.meta.delimiter as Delimiter;
+              const decimalMark =
+                choice.decimalMark ??
+                detectDecimalMark(
+                  delimiter,
+                  results.data.slice(index + 1, index + 1 + DECIMAL_MARK_SAMPLE_ROWS),
+                );
+              handler.onHeader(header, { encoding, delimiter, decimalMark });
               continue;
             }
             if (fields.length !== header.length) {
@@ -115,6 +144,23 @@ export function readCsvStream(
       },
     });
   });
+}
+
+/**
+ * The decimal mark of a file's numbers, from its first data rows: a comma only when semicolons delimit
+ * (with comma-delimited fields a decimal comma cannot occur unquoted), some field is a number written
+ * with a decimal comma ("17,99") and none with a decimal point ("17.99"); a point otherwise.
+ */
+export function detectDecimalMark(delimiter: string, rows: string[][]): DecimalMark {
+  if (delimiter !== ";") return ".";
+  let commas = 0;
+  for (const fields of rows) {
+    for (const field of fields) {
+      if (DECIMAL_POINT_NUMBER.test(field)) return ".";
+      if (DECIMAL_COMMA_NUMBER.test(field)) commas++;
+    }
+  }
+  return commas > 0 ? "," : ".";
 }
 
 /** Text held back for papaparse before the source is paused (characters). */

@@ -1,5 +1,7 @@
 import { ChunkedFloat64, ChunkedInt32 } from "./chunked-arrays";
 import { ColumnAccumulator, MAX_ONE_HOT_LEVELS } from "./column-accumulator";
+import { quoteValue } from "./quote-value";
+import type { DecimalMark } from "./text-format";
 import { AnalysisInputError, listFirst } from "./errors";
 import type { PartitionMap } from "./partition-map";
 import type { RawDataset } from "./read-dataset";
@@ -41,7 +43,7 @@ export function locateColumns(
   const findColumn = (name: string, role: string) => {
     const index = header.indexOf(name);
     if (index < 0) {
-      throw new AnalysisInputError(`there is no ${role} column "${name}"`, {
+      throw new AnalysisInputError(`there is no ${role} column ${quoteValue(name)}`, {
         file: fileName,
         column: name,
         expected: `one of the header's columns: ${listFirst(header, header.length, 12)}`,
@@ -97,10 +99,11 @@ export class DatasetRowCollector {
     private readonly idColumn: string | undefined,
     private readonly partition: PartitionMap | null,
     private readonly sink: RowSink,
+    decimalMark: DecimalMark = ".",
   ) {
-    this.label = new ColumnAccumulator(header[positions.label], fileName, Infinity);
+    this.label = new ColumnAccumulator(header[positions.label], fileName, Infinity, decimalMark);
     this.features = positions.features.map(
-      (index) => new ColumnAccumulator(header[index], fileName, MAX_ONE_HOT_LEVELS),
+      (index) => new ColumnAccumulator(header[index], fileName, MAX_ONE_HOT_LEVELS, decimalMark),
     );
     this.shardIds = partition ? partition.shardIds : [];
   }
@@ -112,12 +115,15 @@ export class DatasetRowCollector {
       const rowId = positions.id >= 0 ? trimToken(fields[positions.id]) : String(rowIndex);
       shardCode = partition.lookUp(rowId);
       if (shardCode === -2) {
-        throw new AnalysisInputError(`the id "${rowId}" appears on more than one data row`, {
-          file: this.fileName,
-          row: rowIndex,
-          column: this.idColumn,
-          expected: "unique ids, so each row is assigned exactly once",
-        });
+        throw new AnalysisInputError(
+          `the id ${quoteValue(rowId)} appears on more than one data row`,
+          {
+            file: this.fileName,
+            row: rowIndex,
+            column: this.idColumn,
+            expected: "unique ids, so each row is assigned exactly once",
+          },
+        );
       }
     } else {
       const shard = trimToken(fields[positions.shard]);

@@ -33,6 +33,8 @@ export interface Design {
   omittedColumns: OmittedColumn[];
   droppedRowsMissingLabel: number;
   droppedRowsUnassigned: number;
+  /** Values that were not numbers in mostly numeric columns, counted as missing by the user's choice. */
+  badNumbersCountedMissing: { column: string; count: number }[];
   warnings: string[];
 }
 

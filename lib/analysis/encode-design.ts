@@ -9,6 +9,7 @@ import { MAX_ONE_HOT_LEVELS } from "./column-accumulator";
 import type { Design, OmittedColumn, Task } from "./design";
 import { AnalysisInputError } from "./errors";
 import type { RawDataset } from "./read-dataset";
+import { quoteValue } from "./quote-value";
 
 /** Columns whose population standard deviation is below this are dropped (methods.md §1). */
 export const MIN_FEATURE_STD = 1e-12;
@@ -41,8 +42,13 @@ type EncodedColumn =
  * column, and rows regrouped shard by shard. When every feature column is numeric and kept — the
  * common case — the design is built in place in the memory the values were read into.
  */
-export function encodeDesign(raw: RawDataset, requestedTask: Task | undefined): Design {
+export function encodeDesign(
+  raw: RawDataset,
+  requestedTask: Task | undefined,
+  { badNumbersAsMissing = false }: { badNumbersAsMissing?: boolean } = {},
+): Design {
   const warnings: string[] = [];
+  const badNumbersCountedMissing = resolveBadNumbers(raw, badNumbersAsMissing);
   const rows = raw.keptRows;
 
   const shardOrder = sortedOrder(raw.shardIds);
@@ -85,8 +91,40 @@ export function encodeDesign(raw: RawDataset, requestedTask: Task | undefined): 
     omittedColumns,
     droppedRowsMissingLabel: raw.droppedMissingLabel,
     droppedRowsUnassigned: raw.droppedUnassigned,
+    badNumbersCountedMissing,
     warnings,
   };
+}
+
+/**
+ * Methods.md §1's numeric columns with bad values (at least 95% of the non-missing values are
+ * numbers, some are not): an error naming the column, how many values and the first rows and values
+ * — or, when the user chose so, those values count as missing. Returns the counts per column.
+ */
+function resolveBadNumbers(
+  raw: RawDataset,
+  asMissing: boolean,
+): { column: string; count: number }[] {
+  const counted: { column: string; count: number }[] = [];
+  for (const source of raw.features) {
+    if (!source.hasBadNumbers) continue;
+    if (!asMissing) {
+      const examples = source.firstNonNumbers
+        .map(({ row, token }) => `${quoteValue(token)} in data row ${row}`)
+        .join(", ");
+      throw new AnalysisInputError(
+        `${source.nonNumberCount} of the column's ${source.numberCount + source.nonNumberCount} values are not numbers although the rest are (${examples}${source.nonNumberCount > source.firstNonNumbers.length ? ", …" : ""})`,
+        {
+          file: raw.fileName,
+          row: source.firstNonNumbers[0].row,
+          column: source.name,
+          expected: `finite numbers with ${raw.format?.decimalMark === "," ? "a decimal comma" : "a decimal point"} or a missing-value token (empty, NA, N/A, NaN, null, None); or choose to treat such values as missing`,
+        },
+      );
+    }
+    counted.push({ column: source.name, count: source.countBadNumbersAsMissing() });
+  }
+  return counted;
 }
 
 interface EncodedTarget {
@@ -115,7 +153,7 @@ function encodeTarget(
     const order = sortedOrder(label.levels);
     const classes = order.map((code) => label.levels[code]);
     if (classes.length < 2) {
-      throw new AnalysisInputError(`the label has a single class ("${classes[0]}")`, {
+      throw new AnalysisInputError(`the label has a single class (${quoteValue(classes[0])})`, {
         file: raw.fileName,
         column: label.name,
         expected: "at least two classes",
@@ -138,12 +176,15 @@ function encodeTarget(
 
   if (!label.numeric) {
     const first = label.firstNonNumeric as { row: number; token: string };
-    throw new AnalysisInputError(`regression needs a numeric label, found "${first.token}"`, {
-      file: raw.fileName,
-      row: first.row,
-      column: label.name,
-      expected: "a number",
-    });
+    throw new AnalysisInputError(
+      `regression needs a numeric label, found ${quoteValue(first.token)}`,
+      {
+        file: raw.fileName,
+        row: first.row,
+        column: label.name,
+        expected: "a number",
+      },
+    );
   }
   const values = raw.labelValues;
   label.release();
@@ -201,7 +242,7 @@ function planFeatureColumns(
   for (const [sourceIndex, source] of raw.features.entries()) {
     if (source.missingCount === rows) {
       omitted.push({ column: source.name, reason: "all-missing" });
-      warnings.push(`column "${source.name}" has no values and was left out`);
+      warnings.push(`column ${quoteValue(source.name)} has no values and was left out`);
       continue;
     }
     if (source.numeric) {
@@ -217,7 +258,7 @@ function planFeatureColumns(
       if (raw.featuresNamed) {
         const first = source.firstNonNumeric as { row: number; token: string };
         throw new AnalysisInputError(
-          `the feature is not numeric ("${first.token}") and has more than ${MAX_ONE_HOT_LEVELS} distinct values`,
+          `the feature is not numeric (${quoteValue(first.token)}) and has more than ${MAX_ONE_HOT_LEVELS} distinct values`,
           {
             file: raw.fileName,
             row: first.row,
@@ -228,7 +269,7 @@ function planFeatureColumns(
       }
       omitted.push({ column: source.name, reason: "too-many-levels" });
       warnings.push(
-        `column "${source.name}" is not numeric and has more than ${MAX_ONE_HOT_LEVELS} distinct values; it was left out`,
+        `column ${quoteValue(source.name)} is not numeric and has more than ${MAX_ONE_HOT_LEVELS} distinct values; it was left out`,
       );
       continue;
     }

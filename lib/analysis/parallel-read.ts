@@ -2,7 +2,7 @@ import { open } from "node:fs/promises";
 import { Worker } from "node:worker_threads";
 import Papa from "papaparse";
 import { ColumnAccumulator, MAX_ONE_HOT_LEVELS } from "./column-accumulator";
-import { readHeader } from "./csv-reader";
+import { detectDecimalMark, readHeader } from "./csv-reader";
 import {
   completeDataset,
   locateColumns,
@@ -12,6 +12,7 @@ import {
 import { AnalysisInputError } from "./errors";
 import type { RawDataset, ReadDatasetOptions } from "./read-dataset";
 import type { ReadPartData, ReadPartOrder, ReadPartReport } from "./read-part-protocol";
+import { DELIMITERS, type CsvFormat, type DecimalMark, type Delimiter } from "./text-format";
 
 /** Bytes of the file's beginning that must hold the header line (and show its delimiter). */
 const HEAD_BYTES = 64 * 1024;
@@ -41,7 +42,7 @@ export async function readCsvInParallel(
 ): Promise<RawDataset | null> {
   const layout = await cutIntoParts(path, fileName, threads);
   if (layout === null) return null;
-  const { header, delimiter, parts } = layout;
+  const { header, delimiter, decimalMark, parts } = layout;
   const positions = locateColumns(header, fileName, columns);
   const width = positions.features.length + 1;
   const workers = parts.map(
@@ -54,6 +55,7 @@ export async function readCsvInParallel(
           fileName,
           header,
           delimiter,
+          decimalMark,
           positions,
           idColumn: columns.idColumn,
         } satisfies ReadPartData,
@@ -82,6 +84,7 @@ export async function readCsvInParallel(
     throwFirstInputError(reports);
     if (reports.some((report) => report.type !== "read")) return null;
     return joinParts(reports as Extract<ReadPartReport, { type: "read" }>[], rowCounts, values, {
+      format: { encoding: "utf-8", delimiter, decimalMark },
       fileName,
       header,
       positions,
@@ -95,7 +98,8 @@ export async function readCsvInParallel(
 
 interface PartLayout {
   header: string[];
-  delimiter: string;
+  delimiter: Delimiter;
+  decimalMark: DecimalMark;
   headerBytes: number;
   parts: { start: number; end: number }[];
 }
@@ -113,7 +117,12 @@ async function cutIntoParts(
     const headerEnd = head.indexOf(LINE_FEED);
     if (headerEnd < 0 || head.includes(QUOTE)) return null;
     const text = new TextDecoder("utf-8").decode(head.subarray(0, head.lastIndexOf(LINE_FEED)));
-    const parsed = Papa.parse<string[]>(text, { header: false, skipEmptyLines: true, preview: 20 });
+    const parsed = Papa.parse<string[]>(text, {
+      header: false,
+      skipEmptyLines: true,
+      preview: 20,
+      delimitersToGuess: [...DELIMITERS],
+    });
     if (parsed.data.length === 0) return null;
     const header = readHeader(parsed.data[0], fileName);
     const dataStart = headerEnd + 1;
@@ -129,7 +138,14 @@ async function cutIntoParts(
     }
     cuts.push(size);
     const parts = cuts.slice(1).map((end, index) => ({ start: cuts[index], end }));
-    return { header, delimiter: parsed.meta.delimiter, headerBytes: dataStart, parts };
+    const delimiter = parsed.meta.delimiter as Delimiter;
+    return {
+      header,
+      delimiter,
+      decimalMark: detectDecimalMark(delimiter, parsed.data.slice(1)),
+      headerBytes: dataStart,
+      parts,
+    };
   } finally {
     await file.close();
   }
@@ -180,9 +196,10 @@ function joinParts(
     positions: ReturnType<typeof locateColumns>;
     columns: DatasetColumnChoice;
     dropUnassignedRows: boolean;
+    format: CsvFormat;
   },
 ): RawDataset {
-  const { fileName, header, positions, columns, dropUnassignedRows } = context;
+  const { fileName, header, positions, columns, dropUnassignedRows, format } = context;
   const width = positions.features.length + 1;
   // Each part wrote its kept rows from its first row index; close the gaps dropped rows left.
   let keptRows = 0;
@@ -240,6 +257,7 @@ function joinParts(
       ),
       featureValues: new Float64Array(values.buffer, 0, keptRows * width),
       featuresNamed: columns.features !== undefined,
+      format,
       shardCodes,
       shardIds,
     },

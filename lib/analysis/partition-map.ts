@@ -1,5 +1,6 @@
 import { AnalysisInputError, listFirst } from "./errors";
 import { isMissingToken, trimToken } from "./tokens";
+import { quoteValue } from "./quote-value";
 import { readTable, type TableSource } from "./table-reader";
 
 /**
@@ -46,7 +47,7 @@ export async function readPartitionMap(
       rowIdColumn = columns.findIndex((column) => column.toLowerCase() === "row_id");
       shardColumn = columns.findIndex((column) => column.toLowerCase() === "shard");
       if (rowIdColumn < 0 || shardColumn < 0) {
-        throw new AnalysisInputError(`the header is "${columns.join(",")}"`, {
+        throw new AnalysisInputError(`the header is ${quoteValue(columns.join(","))}`, {
           file: fileName,
           expected: "a header row_id,shard",
         });
@@ -116,7 +117,7 @@ export async function readPartitionMap(
 
 function canonicalRowIndex(token: string, fileName: string, rowIndex: number): string {
   if (!/^\+?\d+$/.test(token)) {
-    throw new AnalysisInputError(`the row id "${token}" is not a row index`, {
+    throw new AnalysisInputError(`the row id ${quoteValue(token)} is not a row index`, {
       file: fileName,
       row: rowIndex,
       column: "row_id",

@@ -9,6 +9,7 @@ import type { PartitionMap } from "./partition-map";
 import { RowStore } from "./row-store";
 import { readCsvInParallel } from "./parallel-read";
 import { detectLocalTableFormat, isLocalFile, readTable, type TableSource } from "./table-reader";
+import type { CsvFormat, CsvFormatChoice } from "./text-format";
 
 export type { DatasetColumnChoice } from "./dataset-rows";
 
@@ -32,6 +33,8 @@ export interface RawDataset {
   featureValues: Float64Array;
   /** True when the user named the features (then an unusable one is an error, not a warning). */
   featuresNamed: boolean;
+  /** The encoding, delimiter and decimal mark a text file was read with; null for Parquet. */
+  format: CsvFormat | null;
   /** Per kept row, an index into `shardIds`. */
   shardCodes: Int32Array;
   /** Shard ids in first-appearance order (sorted later). */
@@ -48,6 +51,8 @@ export interface ReadDatasetOptions {
    * that many threads (parallel-read.ts), with the same result. Default 1.
    */
   threads?: number;
+  /** The user's encoding, delimiter and decimal mark for a text file; what is not given is detected. */
+  format?: CsvFormatChoice;
 }
 
 /**
@@ -60,9 +65,21 @@ export async function readDataset(
   source: TableSource,
   fileName: string,
   columns: DatasetColumnChoice,
-  { partition, dropUnassignedRows, onBytesRead, threads = 1 }: ReadDatasetOptions,
+  {
+    partition,
+    dropUnassignedRows,
+    onBytesRead,
+    threads = 1,
+    format: formatChoice = {},
+  }: ReadDatasetOptions,
 ): Promise<RawDataset> {
-  if (threads > 1 && partition === null && isLocalFile(source)) {
+  // Parts of a file are cut at line feeds, which only UTF-8 (or ASCII) text allows, and take the
+  // delimiter and decimal mark found in its first lines.
+  const detectedFormat =
+    (formatChoice.encoding ?? "utf-8") === "utf-8" &&
+    formatChoice.delimiter === undefined &&
+    formatChoice.decimalMark === undefined;
+  if (threads > 1 && partition === null && isLocalFile(source) && detectedFormat) {
     if ((await detectLocalTableFormat(source.path)) === "csv") {
       const read = await readCsvInParallel(source.path, fileName, columns, threads, {
         dropUnassignedRows,
@@ -75,24 +92,32 @@ export async function readDataset(
   // narrowing them to null).
   let collector = null as DatasetRowCollector | null;
   let featureValues = null as RowStore | null;
-  const totalRows = await readTable(source, fileName, {
-    onProgress: onBytesRead,
-    onHeader(header) {
-      const positions = locateColumns(header, fileName, columns);
-      featureValues = new RowStore(positions.features.length + 1);
-      collector = new DatasetRowCollector(
-        header,
-        fileName,
-        positions,
-        columns.idColumn,
-        partition,
-        featureValues,
-      );
+  let format: CsvFormat | null = null;
+  const totalRows = await readTable(
+    source,
+    fileName,
+    {
+      onProgress: onBytesRead,
+      onHeader(header, detected) {
+        format = detected ?? null;
+        const positions = locateColumns(header, fileName, columns);
+        featureValues = new RowStore(positions.features.length + 1);
+        collector = new DatasetRowCollector(
+          header,
+          fileName,
+          positions,
+          columns.idColumn,
+          partition,
+          featureValues,
+          detected?.decimalMark,
+        );
+      },
+      onRow(fields, rowIndex) {
+        (collector as DatasetRowCollector).addRow(fields, rowIndex);
+      },
     },
-    onRow(fields, rowIndex) {
-      (collector as DatasetRowCollector).addRow(fields, rowIndex);
-    },
-  });
+    formatChoice,
+  );
   const rows = collector as DatasetRowCollector;
   return completeDataset(
     {
@@ -105,6 +130,7 @@ export async function readDataset(
       features: rows.features,
       featureValues: (featureValues as RowStore).finish(),
       featuresNamed: columns.features !== undefined,
+      format,
       shardCodes: rows.shardCodes.toArray(),
       shardIds: rows.shardIds,
     },

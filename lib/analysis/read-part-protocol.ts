@@ -1,6 +1,7 @@
 import type { ColumnSnapshot } from "./column-accumulator";
 import type { ColumnPositions } from "./dataset-rows";
 import type { InputProblemLocation } from "./errors";
+import type { DecimalMark } from "./text-format";
 
 /** What a part-reading thread is started with (workerData). */
 export interface ReadPartData {
@@ -11,6 +12,8 @@ export interface ReadPartData {
   fileName: string;
   header: string[];
   delimiter: string;
+  /** The decimal mark found in the file's first lines (methods.md §1), the same for every part. */
+  decimalMark: DecimalMark;
   positions: ColumnPositions;
   idColumn: string | undefined;
 }

@@ -68,6 +68,7 @@ async function readPart(order: ReadPartOrder, countedRows: number): Promise<void
     part.idColumn,
     null,
     sink,
+    part.decimalMark,
   );
   let reported = 0;
   const read = await readCsvStream(
@@ -83,7 +84,12 @@ async function readPart(order: ReadPartOrder, countedRows: number): Promise<void
         }
       },
     },
-    { header: part.header, delimiter: part.delimiter, firstRowIndex: order.firstRowIndex },
+    {
+      header: part.header,
+      delimiter: part.delimiter,
+      firstRowIndex: order.firstRowIndex,
+      startByte: part.start,
+    },
   );
   if (read !== countedRows) {
     post({ type: "miscounted" });

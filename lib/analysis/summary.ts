@@ -1,6 +1,7 @@
 import type { Advice } from "./advise-plan";
 import type { OmittedColumn, Task } from "./design";
 import type { SimulationSummary } from "./simulation/simulate-plan";
+import type { CsvFormat } from "./text-format";
 
 /**
  * The machine-readable report of methods.md §6. The keys §6 lists have exactly its meanings; the
@@ -77,6 +78,10 @@ export interface PartitionSummary {
     totalRows: number;
     droppedRowsMissingLabel: number;
     droppedRowsUnassigned: number;
+    /** The encoding, delimiter and decimal mark a text dataset was read with (methods.md §1); null for Parquet. */
+    format: CsvFormat | null;
+    /** Per numeric column with bad values, how many were counted as missing by the user's choice. */
+    badNumbersCountedMissing: { column: string; count: number }[];
     featureNames: string[];
     omittedColumns: OmittedColumn[];
     warnings: string[];

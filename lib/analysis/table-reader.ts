@@ -3,6 +3,7 @@ import { open } from "node:fs/promises";
 import { Readable } from "node:stream";
 import { createGunzip } from "node:zlib";
 import { readCsvStream, type CsvRowHandler } from "./csv-reader";
+import type { CsvFormatChoice } from "./text-format";
 import { AnalysisInputError } from "./errors";
 import { readParquetFile, readParquetStream } from "./parquet-reader";
 
@@ -48,13 +49,15 @@ export async function readTable(
   source: TableSource,
   fileName: string,
   handler: TableRowHandler,
+  /** A text file's encoding, delimiter and decimal mark as chosen; what is not given is detected. */
+  textFormat: CsvFormatChoice = {},
 ): Promise<number> {
-  if (!(source instanceof Readable)) return readLocalTable(source, fileName, handler);
+  if (!(source instanceof Readable)) return readLocalTable(source, fileName, handler, textFormat);
   const { head, stream } = await peekStream(source, SNIFFED_BYTES);
   const format = detectTableFormat(head);
   if (format === "parquet") return readParquetStream(stream, fileName, handler);
-  if (format === "csv.gz") return readGzipCsv(stream, fileName, handler);
-  return readCsvStream(stream, fileName, handler);
+  if (format === "csv.gz") return readGzipCsv(stream, fileName, handler, textFormat);
+  return readCsvStream(stream, fileName, handler, undefined, textFormat);
 }
 
 export function isLocalFile(source: TableSource): source is LocalFile {
@@ -70,13 +73,14 @@ async function readLocalTable(
   file: LocalFile,
   fileName: string,
   handler: TableRowHandler,
+  textFormat: CsvFormatChoice,
 ): Promise<number> {
   const format = await detectLocalTableFormat(file.path);
   if (format === "parquet") return readParquetFile(file.path, fileName, handler);
   const stream = createReadStream(file.path);
   return format === "csv.gz"
-    ? readGzipCsv(stream, fileName, handler)
-    : readCsvStream(stream, fileName, handler);
+    ? readGzipCsv(stream, fileName, handler, textFormat)
+    : readCsvStream(stream, fileName, handler, undefined, textFormat);
 }
 
 async function readFileHead(path: string, count: number): Promise<Uint8Array> {
@@ -94,6 +98,7 @@ function readGzipCsv(
   compressed: Readable,
   fileName: string,
   handler: TableRowHandler,
+  textFormat: CsvFormatChoice,
 ): Promise<number> {
   const gunzip = createGunzip();
   const { onProgress, ...rows } = handler;
@@ -119,7 +124,10 @@ function readGzipCsv(
       ),
     ),
   );
-  return Promise.race([readCsvStream(text, fileName, rows), decompressionError]);
+  return Promise.race([
+    readCsvStream(text, fileName, rows, undefined, textFormat),
+    decompressionError,
+  ]);
 }
 
 /**

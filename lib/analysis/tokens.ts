@@ -21,10 +21,15 @@ export function isMissingToken(trimmed: string): boolean {
  * Parses a trimmed, non-missing token as a decimal number. Returns NaN when it is not a number;
  * ±Infinity when it is written as a number but overflows (e.g. "1e999") or spelled "Infinity".
  * JavaScript's Number() also accepts hexadecimal, binary and octal literals ("0x1F"); those are not
- * decimal data and are rejected.
+ * decimal data and are rejected. With a decimal comma ("17,5") a point is not a number.
  */
-export function parseNumberToken(trimmed: string): number {
-  const value = +trimmed;
+export function parseNumberToken(trimmed: string, decimalMark: "." | "," = "."): number {
+  let text = trimmed;
+  if (decimalMark === ",") {
+    if (text.includes(".")) return Number.NaN;
+    text = text.replace(",", ".");
+  }
+  const value = +text;
   if (value === value && trimmed.length > 1 && trimmed.charCodeAt(0) === 48) {
     const second = trimmed.charCodeAt(1) | 32;
     if (second === 120 || second === 98 || second === 111) return Number.NaN;
@@ -45,9 +50,11 @@ const MAX_FAST_DIGITS = 15;
  * of the decimal (Clinger's fast path, "How to read floating point numbers accurately", PLDI 1990;
  * from memory). Reading a large CSV spends most of its time converting tokens to numbers.
  *
- * Example: "-12.50" gives −12.5; "1e3", " 7" and "0x1F" give NaN.
+ * `pointCode` is the decimal mark's character code: 46 for ".", 44 for a decimal comma.
+ *
+ * Example: "-12.50" gives −12.5; "1e3", " 7" and "0x1F" give NaN; ("-12,50", 44) gives −12.5.
  */
-export function parseSimpleDecimal(token: string): number {
+export function parseSimpleDecimal(token: string, pointCode = 46): number {
   const length = token.length;
   let index = 0;
   let negative = false;
@@ -67,7 +74,7 @@ export function parseSimpleDecimal(token: string): number {
       mantissa = mantissa * 10 + digit;
       digits++;
       if (pointSeen) fractionDigits++;
-    } else if (code === 46 && !pointSeen) {
+    } else if (code === pointCode && !pointSeen) {
       pointSeen = true;
     } else {
       return Number.NaN;

@@ -1,3 +1,5 @@
+import { quoteValue } from "../analysis/quote-value";
+
 /**
  * `--fail-on` rules: conditions on the JSON summary that make the CLI exit 3, so a pipeline can
  * stop a build when a layout is too skewed. Each rule names the condition that FAILS the build:
@@ -68,7 +70,7 @@ export function parseFailOnRule(text: string): FailOnRule {
   const match = RULE_PATTERN.exec(text);
   if (!match) {
     throw new FailOnRuleError(
-      `--fail-on "${text}": expected KEY OPERATOR VALUE, e.g. "js>0.1" or "verdict!=local-updates" ` +
+      `--fail-on ${quoteValue(text)}: expected KEY OPERATOR VALUE, e.g. "js>0.1" or "verdict!=local-updates" ` +
         `(operators ${OPERATORS.join(" ")})`,
     );
   }
@@ -77,7 +79,7 @@ export function parseFailOnRule(text: string): FailOnRule {
   const path = FAIL_ON_ALIASES[key] ?? key;
   if (!SECTIONS.has(path.split(".")[0])) {
     throw new FailOnRuleError(
-      `--fail-on "${text}": unknown key "${key}"; use one of ${Object.keys(FAIL_ON_ALIASES).join(", ")} ` +
+      `--fail-on ${quoteValue(text)}: unknown key ${quoteValue(key)}; use one of ${Object.keys(FAIL_ON_ALIASES).join(", ")} ` +
         `or a dotted path into the summary such as heterogeneity.zeta2Max`,
     );
   }
@@ -85,12 +87,12 @@ export function parseFailOnRule(text: string): FailOnRule {
   const isNumber = rawValue.trim() !== "" && Number.isFinite(number);
   if (!isNumber && operator !== "=" && operator !== "!=") {
     throw new FailOnRuleError(
-      `--fail-on "${text}": "${rawValue}" must be a number for ${operator}`,
+      `--fail-on ${quoteValue(text)}: ${quoteValue(rawValue)} must be a number for ${operator}`,
     );
   }
   if (!isNumber && !WORD_PATTERN.test(rawValue)) {
     throw new FailOnRuleError(
-      `--fail-on "${text}": "${rawValue}" must be a number or a word such as local-updates`,
+      `--fail-on ${quoteValue(text)}: ${quoteValue(rawValue)} must be a number or a word such as local-updates`,
     );
   }
   return { text, path, operator, value: isNumber ? number : rawValue };
@@ -133,12 +135,12 @@ export function checkFailOnRules(summary: unknown, rules: FailOnRule[]): RuleOut
       typeof actual === "number" || typeof actual === "string" || typeof actual === "boolean";
     if (!scalar) {
       throw new FailOnRuleError(
-        `--fail-on "${rule.text}": ${rule.path} is not a number or word in the summary`,
+        `--fail-on ${quoteValue(rule.text)}: ${rule.path} is not a number or word in the summary`,
       );
     }
     if (typeof actual !== "number" && rule.operator !== "=" && rule.operator !== "!=") {
       throw new FailOnRuleError(
-        `--fail-on "${rule.text}": ${rule.path} is "${String(actual)}", not a number`,
+        `--fail-on ${quoteValue(rule.text)}: ${rule.path} is "${String(actual)}", not a number`,
       );
     }
     return { rule, actual, crossed: compare(actual, rule) };

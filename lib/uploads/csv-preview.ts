@@ -1,7 +1,9 @@
 import Papa from "papaparse";
 import type { DataFilePreview } from "@/db/schema/analyses";
 import { readHeader } from "@/lib/analysis/csv-reader";
+import { describeNonText } from "@/lib/analysis/decode-text";
 import { AnalysisInputError } from "@/lib/analysis/errors";
+import { DELIMITERS } from "@/lib/analysis/text-format";
 import { isMissingToken, parseNumberToken, trimToken } from "@/lib/analysis/tokens";
 
 /** How much of a file's beginning the server reads for a preview. */
@@ -34,13 +36,12 @@ export function describeColumns(header: string[], rows: string[][]): PreviewColu
 }
 
 /**
- * True when the bytes are not text: a NUL byte (binary formats, spreadsheets, UTF-16) or more than
- * 1% control characters other than tab, line feed, form feed and carriage return.
+ * More than 1% control characters other than tab, line feed, form feed and carriage return: not
+ * text, even without the NUL bytes and signatures that describeNonText recognizes.
  */
-function looksBinary(bytes: Uint8Array): boolean {
+function hasManyControlCharacters(bytes: Uint8Array): boolean {
   let control = 0;
   for (const byte of bytes) {
-    if (byte === 0) return true;
     if (byte < 32 && byte !== 9 && byte !== 10 && byte !== 12 && byte !== 13) control++;
   }
   return control > bytes.length / 100;
@@ -76,8 +77,10 @@ export interface CsvHead {
  */
 export function readCsvHead({ bytes, totalBytes, fileName }: CsvPreviewSource): CsvHead {
   const truncated = totalBytes > bytes.length;
-  if (looksBinary(bytes)) {
-    throw new AnalysisInputError("this is not a text file (it holds binary data)", {
+  const nonText =
+    describeNonText(bytes, "utf-8") ?? (hasManyControlCharacters(bytes) ? "binary data" : null);
+  if (nonText !== null) {
+    throw new AnalysisInputError(`not a text CSV: ${nonText}`, {
       file: fileName,
       expected: "a CSV file saved as UTF-8 text, e.g. exported with “Save as CSV”",
     });
@@ -95,7 +98,11 @@ export function readCsvHead({ bytes, totalBytes, fileName }: CsvPreviewSource): 
     complete = bytes.subarray(0, lastLineEnd + 1);
   }
   const text = new TextDecoder("utf-8").decode(complete);
-  const parsed = Papa.parse<string[]>(text, { header: false, skipEmptyLines: true });
+  const parsed = Papa.parse<string[]>(text, {
+    header: false,
+    skipEmptyLines: true,
+    delimitersToGuess: [...DELIMITERS],
+  });
   let records = parsed.data;
   const quoteProblem = parsed.errors.find((problem) => problem.type === "Quotes");
   if (quoteProblem) {

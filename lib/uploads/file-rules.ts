@@ -1,6 +1,8 @@
 // What Partita accepts as an upload, shared by the browser (checks before any byte is sent) and the
 // server (the same checks again, since a browser can be bypassed). No Node or Next.js imports.
 
+import { quoteValue } from "@/lib/analysis/quote-value";
+
 export const DATA_FILE_KINDS = ["dataset", "layout", "weights"] as const;
 export type DataFileKind = (typeof DATA_FILE_KINDS)[number];
 
@@ -139,14 +141,14 @@ export function findUploadProblem(
   const contentType = file.contentType.split(";")[0].trim().toLowerCase();
   const format = findFileFormat(file.name, kind);
   if (!format) {
-    return `"${file.name}" is not ${rule.description}. The ${label} must be ${rule.description}.`;
+    return `${quoteValue(file.name)} is not ${rule.description}. The ${label} must be ${rule.description}.`;
   }
   if (!format.contentTypes.includes(contentType)) {
-    return `"${file.name}" is of type ${contentType}, not ${rule.description}. Save it as ${rule.description} and try again.`;
+    return `${quoteValue(file.name)} is of type ${contentType}, not ${rule.description}. Save it as ${rule.description} and try again.`;
   }
-  if (file.size === 0) return `"${file.name}" is empty (0 bytes).`;
+  if (file.size === 0) return `${quoteValue(file.name)} is empty (0 bytes).`;
   if (file.size > maxBytes) {
-    return `"${file.name}" is ${formatBytes(file.size)}; the largest file Partita accepts is ${formatBytes(maxBytes)}.`;
+    return `${quoteValue(file.name)} is ${formatBytes(file.size)}; the largest file Partita accepts is ${formatBytes(maxBytes)}.`;
   }
   return null;
 }

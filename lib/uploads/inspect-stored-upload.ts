@@ -1,6 +1,7 @@
 import "server-only";
 import type { DataFilePreview } from "@/db/schema/analyses";
 import { AnalysisInputError } from "@/lib/analysis/errors";
+import { quoteValue } from "@/lib/analysis/quote-value";
 import { RuleError } from "@/lib/errors";
 import { deleteObject, getObjectRange, headObject } from "@/lib/storage";
 import { findUploadProblem, formatBytes, type DataFileKind } from "./file-rules";
@@ -35,7 +36,7 @@ export async function inspectStoredUpload(request: {
   if (!details) {
     throw new RuleError(
       404,
-      `"${name}" has not arrived in storage. Please upload it again.`,
+      `${quoteValue(name)} has not arrived in storage. Please upload it again.`,
       "file",
     );
   }

@@ -8,6 +8,7 @@ import {
   summarizeCsvHead,
   type CsvPreviewSource,
 } from "./csv-preview";
+import { quoteValue } from "@/lib/analysis/quote-value";
 
 /** Reference weights are read whole; a model over thousands of features stays far below this. */
 export const WEIGHTS_MAX_BYTES = 8 * 1024 * 1024;
@@ -24,7 +25,7 @@ export function inspectDataset(source: CsvPreviewSource): DataFilePreview {
 
 export function checkDatasetHeader(header: string[], fileName: string): void {
   if (header.length < 2) {
-    throw new AnalysisInputError(`the header has one column only ("${header[0]}")`, {
+    throw new AnalysisInputError(`the header has one column only (${quoteValue(header[0])})`, {
       file: fileName,
       expected:
         "a label column and at least one feature column, separated by commas, semicolons or tabs",
@@ -43,7 +44,7 @@ export function checkLayoutHeader(header: string[], fileName: string): void {
   const names = header.map((column) => column.toLowerCase());
   // The engine matches these names case-insensitively and ignores other columns; so does this check.
   if (!names.includes("row_id") || !names.includes("shard")) {
-    throw new AnalysisInputError(`the header is "${header.join(",")}"`, {
+    throw new AnalysisInputError(`the header is ${quoteValue(header.join(","))}`, {
       file: fileName,
       expected:
         "a partition map with the header row_id,shard (row_id: the dataset's id or 0-based row number)",

@@ -5,6 +5,7 @@ import { RuleError } from "@/lib/errors";
 import { registerDataFileSchema, type RegisterDataFileInput } from "@/lib/validation/upload";
 import { isUploadKeyOf } from "./file-rules";
 import { inspectStoredUpload } from "./inspect-stored-upload";
+import { quoteValue } from "@/lib/analysis/quote-value";
 
 /**
  * Registers a file uploaded straight to storage, for the upload form and the API alike: only an
@@ -18,7 +19,7 @@ export async function registerUpload(
 ): Promise<DataFileSummary> {
   const { key, name, kind } = registerDataFileSchema.parse(input);
   if (!isUploadKeyOf(workspaceId, key)) {
-    throw new RuleError(404, `"${name}" was not uploaded to this workspace.`, "file");
+    throw new RuleError(404, `${quoteValue(name)} was not uploaded to this workspace.`, "file");
   }
   const stored = await inspectStoredUpload({
     key,

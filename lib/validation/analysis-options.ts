@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { DECIMAL_MARKS, DELIMITERS, TEXT_ENCODINGS } from "../analysis/text-format";
 
 /**
  * Reference weights supplied by the user (methods.md §2, "uploaded weights"): one row per class (one
@@ -60,6 +61,17 @@ export const analysisOptionsSchema = z
     localSteps: z.number().int().positive().default(10),
     rounds: z.number().int().positive().default(100),
     batchSize: z.number().int().positive().default(32),
+    /** The dataset's text encoding (methods.md §1). */
+    encoding: z.enum(TEXT_ENCODINGS).default("utf-8"),
+    /** The dataset's field delimiter; absent: detected from the header and first rows. */
+    delimiter: z.enum(DELIMITERS).optional(),
+    /** The dataset's decimal mark; absent: detected ("," only when ";" delimits). */
+    decimalMark: z.enum(DECIMAL_MARKS).optional(),
+    /**
+     * Count the values that are not numbers in a mostly numeric column as missing instead of
+     * rejecting the input (methods.md §1's numeric column with bad values).
+     */
+    badNumbersAsMissing: z.boolean().default(false),
     /** Drop labelled rows the partition does not assign instead of rejecting the input. */
     dropUnassignedRows: z.boolean().default(false),
     /** Also simulate the algorithms under the plan (methods.md §7); absent: no simulation. */

@@ -301,7 +301,7 @@ describe("rejections, each with a clear message", () => {
     expect(await register(binaryKey, "sheet.csv")).toMatchObject({
       ok: false,
       status: 422,
-      message: expect.stringMatching(/^sheet\.csv: this is not a text file/),
+      message: expect.stringMatching(/^sheet\.csv: not a text CSV/),
     });
 
     expect(await register(newKey(team.workspaceId, "never.csv"), "never.csv")).toMatchObject({

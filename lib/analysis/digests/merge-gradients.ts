@@ -231,6 +231,9 @@ export function mergeGradientDigests(
       totalRows: digests.reduce((total, digest) => total + digest.totalRows, 0),
       droppedRowsMissingLabel: digests.reduce((n, digest) => n + digest.droppedRowsMissingLabel, 0),
       droppedRowsUnassigned: digests.reduce((n, digest) => n + digest.droppedRowsUnassigned, 0),
+      // Each client read its own files; the coordinator never sees their text.
+      format: null,
+      badNumbersCountedMissing: [],
       featureNames: encoding.featureNames,
       omittedColumns: encoding.omittedColumns,
       warnings,

@@ -3,6 +3,7 @@ import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { promisify } from "node:util";
+import { gzipSync } from "node:zlib";
 import { describe, expect, it } from "vitest";
 import type { PartitionSummary } from "@/lib/analysis";
 
@@ -145,7 +146,7 @@ describe("analyze CLI", () => {
 
   const badInputs: Array<{
     name: string;
-    files: Record<string, string>;
+    files: Record<string, string | Buffer>;
     args: string[];
     message: RegExp;
   }> = [
@@ -228,6 +229,42 @@ describe("analyze CLI", () => {
       args: ["--shard-column", "colour", "--rounds", "many"],
       message: /--rounds is "many".*expected a number/,
     },
+    {
+      name: "a batch size of zero",
+      files: { "data.csv": GOOD },
+      args: ["--shard-column", "colour", "--batch-size", "0"],
+      message: /bad input: --batch-size is 0 \(expected a number > 0\)\n$/,
+    },
+    {
+      name: "more participants than shards",
+      files: { "data.csv": GOOD },
+      args: ["--shard-column", "colour", "--participants", "99"],
+      message: /bad input: --participants is 99 .*expected at most the number of shards \(2\)/,
+    },
+    {
+      name: "a negative number of rounds",
+      files: { "data.csv": GOOD },
+      args: ["--shard-column", "colour", "--rounds", "-5"],
+      message: /bad input: --rounds is -5 \(expected a number > 0\)/,
+    },
+    {
+      name: "an unknown delimiter",
+      files: { "data.csv": GOOD },
+      args: ["--shard-column", "colour", "--delimiter", "|"],
+      message: /--delimiter is "\|" \(expected one of ",", ";", tab\)/,
+    },
+    {
+      name: "a spreadsheet",
+      files: { "data.csv": Buffer.concat([Buffer.from("PK\u0003\u0004"), gzipSync(GOOD)]) },
+      args: ["--shard-column", "colour"],
+      message: /data\.csv: not a text CSV: a ZIP archive \(an \.xlsx or \.ods spreadsheet is one\)/,
+    },
+    {
+      name: "a header with terminal control sequences",
+      files: { "data.csv": GOOD.replace("label", "\u001b]0;owned\u0007label") },
+      args: ["--shard-column", "colour"],
+      message: /"\\x1b\]0;owned\\x07label"/,
+    },
   ];
 
   it.concurrent.each(badInputs)(
@@ -247,6 +284,8 @@ describe("analyze CLI", () => {
       expect(result.code, name).toBe(2);
       expect(result.stderr).toMatch(message);
       expect(result.stderr).not.toMatch(/\n\s+at /); // no stack trace
+      // No raw control character from the files reaches the terminal (line feeds end lines).
+      expect(result.stderr).not.toMatch(/[\u0000-\u0009\u000b-\u001f\u007f]/);
       expect(result.stdout).toBe("");
     },
   );

@@ -155,7 +155,7 @@ describe("files the preview refuses, with the reason", () => {
     const zip = new Uint8Array([0x50, 0x4b, 0x03, 0x04, 0x14, 0x00, 0x06, 0x00, 0x08, 0x00]);
     expect(
       refusal(() => inspectDataset({ bytes: zip, totalBytes: 10, fileName: "sheet.csv" })),
-    ).toMatch(/^sheet\.csv: this is not a text file/);
+    ).toMatch(/^sheet\.csv: not a text CSV/);
   });
 
   it("a file of blank lines, a header without rows, one column only", () => {
