@@ -13,7 +13,7 @@ import os from "node:os";
 import path from "node:path";
 import pg from "pg";
 import { assertPortFree } from "./ports";
-import type { Supervisor } from "./processes";
+import type { SupervisedProcess, Supervisor } from "./processes";
 
 export interface PostgresOptions {
   /** Cluster folder; created with initdb when it holds no cluster yet, reused otherwise. */
@@ -30,6 +30,8 @@ export interface PostgresOptions {
 
 export interface RunningPostgres {
   url: string;
+  /** Calls `listener` each time the supervisor has started the server again after it stopped. */
+  onRestart(listener: (server: SupervisedProcess) => void): void;
   stop(): Promise<void>;
 }
 
@@ -89,6 +91,7 @@ export async function startPostgres(
   await createDatabaseWhenMissing(serverUrl, options.database);
   return {
     url: connectionUrl(options.port, options.password, options.database),
+    onRestart: (listener) => server.onRestart(listener),
     stop: async () => {
       await server.stop();
       rmSync(socketDir, { recursive: true, force: true });
