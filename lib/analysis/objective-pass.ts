@@ -1,5 +1,5 @@
 import { softmaxInPlace } from "../math/softmax";
-import { addCompensated } from "../math/summation";
+import { addCompensated, roundingError } from "../math/summation";
 import type { Design } from "./design";
 
 /** What a pass reads of a design: the rows and their classes or targets. */
@@ -395,9 +395,4 @@ function addSquaredNorms(totals: PassTotals, value: number): void {
     next,
   );
   totals.squaredGradientNormSum = next;
-}
-
-/** What rounding lost in `sum` = fl(total + value), exactly (Neumaier's term). */
-function roundingError(total: number, value: number, sum: number): number {
-  return Math.abs(total) >= Math.abs(value) ? total - sum + value : value - sum + total;
 }

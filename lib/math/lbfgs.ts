@@ -1,4 +1,4 @@
-import { norm } from "./summation";
+import { dot, norm } from "./summation";
 
 /** Writes ∇f(x) into `gradient` and returns f(x). */
 export type ValueAndGradient = (x: Float64Array, gradient: Float64Array) => number;
@@ -131,20 +131,24 @@ export function minimizeLbfgs(
     }
     if (!accepted) break;
 
-    newest = (newest + 1) % memory;
-    const step = steps[newest];
-    const change = changes[newest];
+    // The pair is written to the slot after the newest only once its curvature sᵀy is known to be
+    // positive: a rejected pair must not overwrite the oldest pair of a full memory, which the next
+    // direction still uses.
+    let curvature = 0;
     for (let index = 0; index < size; index++) {
-      step[index] = candidate[index] - x[index];
-      change[index] = candidateGradient[index] - gradient[index];
+      curvature += (candidate[index] - x[index]) * (candidateGradient[index] - gradient[index]);
     }
-    const curvature = dotProduct(step, change);
     if (curvature > 0) {
-      inverseCurvatures[newest] = 1 / curvature;
+      newest = (newest + 1) % memory;
+      const step = steps[newest];
+      const change = changes[newest];
+      for (let index = 0; index < size; index++) {
+        step[index] = candidate[index] - x[index];
+        change[index] = candidateGradient[index] - gradient[index];
+      }
+      inverseCurvatures[newest] = 1 / dotProduct(step, change);
       stored = Math.min(stored + 1, memory);
       scale = curvature / preconditionedSquare(change, precondition, direction);
-    } else {
-      newest = (newest - 1 + memory) % memory;
     }
 
     x.set(candidate);
@@ -178,9 +182,7 @@ function preconditionedSquare(
 }
 
 function dotProduct(a: Float64Array, b: Float64Array): number {
-  let total = 0;
-  for (let index = 0; index < a.length; index++) total += a[index] * b[index];
-  return total;
+  return dot(a, 0, b, 0, a.length);
 }
 
 function axpy(factor: number, source: Float64Array, target: Float64Array): void {

@@ -25,6 +25,16 @@ export function sumPairwise(values: Float64Array, start = 0, end = values.length
 }
 
 /**
+ * What rounding lost when `sum` = fl(total + value) was computed, exactly: Neumaier's correction
+ * term, the one step every compensated sum here takes (Neumaier, ZAMM 54 (1974), from memory).
+ *
+ * Example: roundingError(1e100, 1, 1e100 + 1) is 1.
+ */
+export function roundingError(total: number, value: number, sum: number): number {
+  return Math.abs(total) >= Math.abs(value) ? total - sum + value : value - sum + total;
+}
+
+/**
  * A running sum with Neumaier's compensation (improved Kahan–Babuška): the rounding error of each
  * addition is carried in `compensation`, so the result is accurate to about ε regardless of length.
  * Source: Neumaier, ZAMM 54 (1974) (from memory).
@@ -37,11 +47,7 @@ export class CompensatedSum {
 
   add(value: number): void {
     const next = this.total + value;
-    if (Math.abs(this.total) >= Math.abs(value)) {
-      this.compensation += this.total - next + value;
-    } else {
-      this.compensation += value - next + this.total;
-    }
+    this.compensation += roundingError(this.total, value, next);
     this.total = next;
   }
 
@@ -66,11 +72,7 @@ export function addCompensated(
     const current = target[index];
     const value = source[index];
     const next = current + value;
-    if (Math.abs(current) >= Math.abs(value)) {
-      compensation[index] += current - next + value;
-    } else {
-      compensation[index] += value - next + current;
-    }
+    compensation[index] += roundingError(current, value, next);
     target[index] = next;
   }
 }
@@ -102,7 +104,8 @@ export function dot(
  */
 export function squaredNorm(values: Float64Array): number {
   const scale = maxAbs(values);
-  if (scale === 0 || !Number.isFinite(scale)) return scale === 0 ? 0 : Infinity;
+  // NaN stays NaN (as in `norm`); an infinite entry gives Infinity.
+  if (scale === 0 || !Number.isFinite(scale)) return scale * scale;
   let total = 0;
   for (let index = 0; index < values.length; index++) {
     const scaled = values[index] / scale;

@@ -1,4 +1,4 @@
-import { norm } from "../../math/summation";
+import { norm, roundingError } from "../../math/summation";
 import { compareCodePoints } from "../code-point-order";
 import {
   computeSampleStride,
@@ -96,8 +96,7 @@ class CompensatedVector {
       const total = this.sums[k];
       const value = values[k];
       const next = total + value;
-      this.compensation[k] +=
-        Math.abs(total) >= Math.abs(value) ? total - next + value : value - next + total;
+      this.compensation[k] += roundingError(total, value, next);
       this.sums[k] = next;
     }
   }

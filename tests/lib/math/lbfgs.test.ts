@@ -70,6 +70,58 @@ print(json.dumps(r.x.tolist()))`,
     expect(result.x[0]).toBeCloseTo(1, 14);
   });
 
+  it("keeps a full memory's pairs when a new pair has sᵀy ≤ 0 and steps by the kept pair's BFGS matrix", () => {
+    // f = (x² − 1)² + 2y² + xy/2: a double well in x (negative curvature near x = 0) coupled to y.
+    // From (0.1, 1) with memory 1, the first pair has sᵀy > 0 (the memory is full) and the second
+    // sᵀy < 0 (rejected): both are asserted below, so the test reaches the case it is about.
+    const f = (point: Float64Array, gradient: Float64Array) => {
+      const [x, y] = point;
+      gradient[0] = 4 * x * (x * x - 1) + y / 2;
+      gradient[1] = 4 * y + x / 2;
+      return (x * x - 1) ** 2 + 2 * y * y + (x * y) / 2;
+    };
+    const evaluated: { x: number[]; g: number[] }[] = [];
+    const accepted: number[] = [];
+    const start = [0.1, 1];
+    minimizeLbfgs(
+      (point, gradient) => {
+        const value = f(point, gradient);
+        evaluated.push({ x: [...point], g: [...gradient] });
+        return value;
+      },
+      Float64Array.from(start),
+      {
+        gradientTolerance: 1e-10,
+        memory: 1,
+        onIteration: () => accepted.push(evaluated.length - 1),
+      },
+    );
+    const [x0, x1, x2] = [evaluated[0], evaluated[accepted[0]], evaluated[accepted[1]]];
+    const minus = (a: number[], b: number[]) => a.map((value, i) => value - b[i]);
+    const dotOf = (a: number[], b: number[]) =>
+      a.reduce((total, value, i) => total + value * b[i], 0);
+    const [s1, y1] = [minus(x1.x, x0.x), minus(x1.g, x0.g)];
+    const [s2, y2] = [minus(x2.x, x1.x), minus(x2.g, x1.g)];
+    expect(dotOf(s1, y1)).toBeGreaterThan(0);
+    expect(dotOf(s2, y2)).toBeLessThan(0);
+
+    // The next direction is −H g₂ with H the BFGS update of γI by the kept pair (s₁, y₁) alone:
+    // H = (I − ρ s yᵀ) γ (I − ρ y sᵀ) + ρ s sᵀ, ρ = 1/sᵀy, γ = sᵀy/yᵀy (Nocedal & Wright,
+    // "Numerical Optimization", 2nd ed., eqs. 6.17 and 7.20; from memory). Its first trial point
+    // takes the unit step.
+    const rho = 1 / dotOf(s1, y1);
+    const gamma = dotOf(s1, y1) / dotOf(y1, y1);
+    const g2 = x2.g;
+    // v = (I − ρ y sᵀ) g₂, then H g₂ = (I − ρ s yᵀ) γ v + ρ s (sᵀ g₂).
+    const v = g2.map((value, i) => value - rho * y1[i] * dotOf(s1, g2));
+    const u = v.map((value) => gamma * value);
+    const hg = u.map(
+      (value, i) => value - rho * s1[i] * dotOf(y1, u) + rho * s1[i] * dotOf(s1, g2),
+    );
+    const trial = evaluated[accepted[1] + 1].x;
+    trial.forEach((value, i) => expect(value).toBeCloseTo(x2.x[i] - hg[i], 12));
+  });
+
   it("returns at once when the start is already optimal", () => {
     const result = minimizeLbfgs(
       (x, gradient) => {

@@ -4,6 +4,7 @@ import {
   CompensatedSum,
   dot,
   norm,
+  roundingError,
   squaredNorm,
   sumPairwise,
 } from "@/lib/math/summation";
@@ -43,8 +44,29 @@ describe("compensated sums", () => {
   it("keeps the small terms that naive summation loses (Neumaier's example)", () => {
     const sum = new CompensatedSum();
     for (const value of [1, 1e100, 1, -1e100]) sum.add(value);
+    // Exact value 2: Python's math.fsum([1, 1e100, 1, -1e100]) (exactly rounded) also gives 2.0.
     expect(sum.value).toBe(2);
-    expect(1 + 1e100 + 1 - 1e100).toBe(0);
+  });
+
+  it("takes exactly the rounding error of each addition, as exact rational arithmetic finds it", () => {
+    const pairs: [number, number][] = [
+      [1e100, 1],
+      [0.1, 0.2],
+      [-3.5e-8, 1.0000001],
+      [2 ** 53, 1],
+      [1e-300, -1e300],
+    ];
+    // Outside reference: Python's fractions.Fraction computes a + b − fl(a + b) exactly.
+    const reference = runPythonJson<number[]>(
+      `import sys, json
+from fractions import Fraction
+pairs = [(float(a), float(b)) for a, b in json.load(sys.stdin)]
+print(json.dumps([float(Fraction(a) + Fraction(b) - Fraction(a + b)) for a, b in pairs]))`,
+      pairs,
+    );
+    // (+ 0 makes a −0 error, which JSON cannot carry, compare as 0.)
+    expect(pairs.map(([a, b]) => roundingError(a, b, a + b) + 0)).toEqual(reference);
+    expect(reference.some((error) => error !== 0)).toBe(true);
   });
 
   it("merges arrays elementwise with compensation", () => {
@@ -70,5 +92,9 @@ describe("norms", () => {
 
   it("propagates NaN", () => {
     expect(norm(Float64Array.of(1, Number.NaN))).toBeNaN();
+    // IEEE 754: any operation on NaN gives NaN; the squared norm must not say Infinity.
+    expect(squaredNorm(Float64Array.of(1, Number.NaN))).toBeNaN();
+    expect(squaredNorm(Float64Array.of(Number.NaN, Infinity))).toBeNaN();
+    expect(squaredNorm(Float64Array.of(1, -Infinity))).toBe(Infinity);
   });
 });
