@@ -14,6 +14,8 @@ export const metadata: Metadata = {
   title: { default: "Partita", template: "%s · Partita" },
   description:
     "Measure shard heterogeneity and decide between local updates and large minibatches.",
+  manifest: "/manifest.webmanifest",
+  icons: { apple: "/apple-touch-icon.png" },
 };
 
 export default async function RootLayout({ children }: { children: React.ReactNode }) {

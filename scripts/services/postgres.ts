@@ -1,4 +1,5 @@
 import { execFileSync, spawnSync } from "node:child_process";
+import { createHash } from "node:crypto";
 import {
   chownSync,
   existsSync,
@@ -50,12 +51,13 @@ export async function startPostgres(
   const binDir = findPostgresBinDir();
   const owner = resolveServerUser();
   await assertPortFree(options.port, "PostgreSQL", options.portVariable);
-  prepareOwnedFolder(options.dataDir, owner, 0o700);
-  assertReachableBy(owner, options.dataDir);
-  if (!existsSync(path.join(options.dataDir, "PG_VERSION"))) {
-    await initializeCluster(binDir, owner, options);
+  const dataDir = chooseClusterFolder(owner, options.dataDir);
+  prepareOwnedFolder(dataDir, owner, 0o700);
+  assertReachableBy(owner, dataDir);
+  if (!existsSync(path.join(dataDir, "PG_VERSION"))) {
+    await initializeCluster(binDir, owner, { ...options, dataDir });
   }
-  assertNoServerRunning(options.dataDir);
+  assertNoServerRunning(dataDir);
 
   const socketDir = mkdtempSync(path.join(os.tmpdir(), "partita-pg-socket-"));
   prepareOwnedFolder(socketDir, owner, 0o700);
@@ -67,7 +69,7 @@ export async function startPostgres(
       command: path.join(binDir, "postgres"),
       args: [
         "-D",
-        options.dataDir,
+        dataDir,
         "-p",
         String(options.port),
         "-c",
@@ -83,7 +85,7 @@ export async function startPostgres(
       // SIGINT is PostgreSQL's "fast shutdown": roll back open transactions and exit cleanly.
       stopSignal: "SIGINT",
     },
-    { beforeRestart: () => stopServerRunningOn(options.dataDir) },
+    { beforeRestart: () => stopServerRunningOn(dataDir) },
   );
 
   const serverUrl = connectionUrl(options.port, options.password, "postgres");
@@ -145,6 +147,32 @@ function resolveServerUser(): ServerUser | undefined {
 function prepareOwnedFolder(folder: string, owner: ServerUser | undefined, mode: number) {
   mkdirSync(folder, { recursive: true, mode });
   if (owner) chownSync(folder, owner.uid, owner.gid);
+}
+
+/** Where clusters go whose own folder the server user cannot reach (one per project folder). */
+const REACHABLE_CLUSTERS_ROOT = "/var/lib/partita";
+
+/**
+ * The cluster's folder: the one asked for, or — when the server user cannot reach it, as in a clone
+ * under root's 0700 home folder or a `mktemp -d` folder — a folder of its own under /var/lib/partita
+ * named after the one asked for, so the same clone finds the same cluster on its next start.
+ */
+function chooseClusterFolder(owner: ServerUser | undefined, wanted: string): string {
+  if (!owner || canReach(owner, path.dirname(path.resolve(wanted)))) return wanted;
+  const name = createHash("sha256").update(path.resolve(wanted)).digest("hex").slice(0, 16);
+  const folder = path.join(REACHABLE_CLUSTERS_ROOT, name);
+  mkdirSync(REACHABLE_CLUSTERS_ROOT, { recursive: true, mode: 0o755 });
+  console.log(
+    `The postgres user cannot reach ${wanted}; the database cluster is kept in ${folder} instead.`,
+  );
+  return folder;
+}
+
+/** True when the server user can enter `folder` (and so every folder above it). */
+function canReach(owner: ServerUser, folder: string): boolean {
+  let existing = folder;
+  while (!existsSync(existing)) existing = path.dirname(existing);
+  return spawnSync("test", ["-x", existing], { uid: owner.uid, gid: owner.gid }).status === 0;
 }
 
 /** The server user must be able to traverse every parent folder (e.g. not under a 0700 /root). */
