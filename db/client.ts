@@ -19,6 +19,12 @@ export function db(): Database {
   return holder.partitaDb;
 }
 
+/** The process's pool itself, for libraries that take a pg Pool (the shared rate limits). */
+export function dbPool(): Pool {
+  db();
+  return holder.partitaPool!;
+}
+
 /**
  * An idle pooled connection that the server closed (a restart, a network reset) is reported here;
  * without a listener Node would crash the process. The pool drops that connection and opens a new

@@ -16,13 +16,15 @@ const WRONG_CREDENTIALS = "That e-mail and password don't match an account.";
 export function SignInForm({
   callbackUrl,
   initialError,
+  initialEmail,
 }: {
   callbackUrl: string;
   initialError?: string;
+  initialEmail?: string;
 }) {
   const router = useRouter();
   const [mode, setMode] = useState<Mode>("password");
-  const [email, setEmail] = useState("");
+  const [email, setEmail] = useState(initialEmail ?? "");
   const [password, setPassword] = useState("");
   const [error, setError] = useState(initialError);
   const [pending, startTransition] = useTransition();
@@ -37,8 +39,11 @@ export function SignInForm({
     startTransition(async () => {
       if (mode === "link") {
         const result = await signIn("email", { email, redirect: false, callbackUrl });
-        if (result?.error) setError("We couldn't send a link just now. Please try again.");
-        else router.push(`/sign-in/check-email?email=${encodeURIComponent(email.trim())}`);
+        if (result?.error) {
+          setError(
+            "We couldn't send a link just now. If you asked for several, wait a few minutes and try again.",
+          );
+        } else router.push(`/sign-in/check-email?email=${encodeURIComponent(email.trim())}`);
         return;
       }
       const result = await signIn("credentials", { email, password, redirect: false, callbackUrl });

@@ -2,7 +2,6 @@
 
 import Link from "next/link";
 import { useRouter } from "next/navigation";
-import { signIn } from "next-auth/react";
 import { useState, useTransition, type FormEvent } from "react";
 import { signUp } from "@/app/(auth)/sign-up/actions";
 import { Button } from "@/components/ui/button";
@@ -42,17 +41,7 @@ export function SignUpForm({
         setMessage(Object.keys(result.fieldErrors).length ? undefined : result.message);
         return;
       }
-      const signedIn = await signIn("credentials", {
-        email: values.email,
-        password: values.password,
-        redirect: false,
-      });
-      if (signedIn?.error) {
-        setMessage("Your account is ready, but signing in failed. Please sign in.");
-        return;
-      }
-      router.push(result.data.landing);
-      router.refresh();
+      router.push(`/sign-up/check-email?email=${encodeURIComponent(result.data.email)}`);
     });
   }
 

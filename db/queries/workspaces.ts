@@ -6,7 +6,11 @@ import type { Role } from "@/lib/auth/roles";
 
 type Transaction = Parameters<Parameters<Database["transaction"]>[0]>[0];
 
-/** Creates an account with its own workspace in one transaction: nobody is ever left without one. */
+/**
+ * Creates an account with a proven address and its own workspace in one transaction: nobody is
+ * ever left without one. Sign-up reaches this only through the confirmation link
+ * (db/queries/pending-sign-ups.ts); the demo seed and tests use it directly.
+ */
 export async function createAccountWithWorkspace(input: {
   name: string;
   email: string;
@@ -20,6 +24,7 @@ export async function createAccountWithWorkspace(input: {
         name: input.name,
         email: input.email.toLowerCase(),
         passwordHash: input.passwordHash,
+        emailVerified: new Date(),
       })
       .returning({ id: users.id });
     const workspaceId = await createOwnedWorkspace(tx, user.id, input.workspaceName);

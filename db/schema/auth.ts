@@ -1,5 +1,13 @@
-import { integer, pgTable, primaryKey, text, timestamp } from "drizzle-orm/pg-core";
-import { cascadingReference, createdAt, uuidPrimaryKey } from "./columns";
+import {
+  bigint,
+  integer,
+  pgTable,
+  primaryKey,
+  text,
+  timestamp,
+  varchar,
+} from "drizzle-orm/pg-core";
+import { cascadingReference, createdAt, instant, uuidPrimaryKey } from "./columns";
 
 /**
  * People who can sign in. The column set is what next-auth's Drizzle adapter expects, plus a
@@ -55,3 +63,30 @@ export const verificationTokens = pgTable(
   },
   (table) => [primaryKey({ columns: [table.identifier, table.token] })],
 );
+
+/**
+ * A sign-up waiting for its address to be proven. Nothing of the account exists until the link
+ * e-mailed to the address is followed; the password chosen at sign-up is installed only then, so
+ * nobody can set a password on an address they do not control.
+ */
+export const pendingSignUps = pgTable("pending_sign_ups", {
+  id: uuidPrimaryKey(),
+  email: text("email").notNull(),
+  name: text("name").notNull(),
+  passwordHash: text("password_hash").notNull(),
+  workspaceName: text("workspace_name").notNull(),
+  tokenHash: text("token_hash").notNull().unique(),
+  expiresAt: instant("expires_at").notNull(),
+  createdAt: createdAt(),
+});
+
+/**
+ * Counters of every rate limit (sign-in, sign-up, e-mail links, API, notification mail), shared by
+ * all app processes and the worker. The shape is the one rate-limiter-flexible's PostgreSQL store
+ * reads and writes: key, points used, expiry in epoch milliseconds.
+ */
+export const rateLimits = pgTable("rate_limits", {
+  key: varchar("key", { length: 255 }).primaryKey(),
+  points: integer("points").notNull().default(0),
+  expire: bigint("expire", { mode: "number" }),
+});

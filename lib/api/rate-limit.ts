@@ -1,4 +1,4 @@
-import { RateLimiterMemory, RateLimiterRes } from "rate-limiter-flexible";
+import { RateLimiterRes, sharedLimiter } from "@/lib/rate-limits/shared-limiter";
 import { rateLimited } from "./errors";
 
 /**
@@ -7,9 +7,8 @@ import { rateLimited } from "./errors";
  */
 export const API_REQUESTS_PER_MINUTE = 240;
 
-// In process memory, like the sign-in limits (lib/auth/rate-limit.ts): one app process serves an
-// installation today; several would share the package's PostgreSQL store instead.
-const perToken = new RateLimiterMemory({
+// Counted in PostgreSQL, so several app processes share one budget per token.
+const perToken = sharedLimiter({
   keyPrefix: "api-token",
   points: API_REQUESTS_PER_MINUTE,
   duration: 60,

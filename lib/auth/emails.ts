@@ -16,6 +16,21 @@ export function signInLinkMessage(url: string): Message {
   };
 }
 
+export function confirmAddressMessage(url: string): Message {
+  return {
+    subject: "Confirm your address for Partita",
+    text: [
+      "Someone, hopefully you, asked for a Partita account with this e-mail address.",
+      "Confirm the address to create the account:",
+      "",
+      url,
+      "",
+      "The link works once and expires in 24 hours. If you did not sign up, ignore this e-mail:",
+      "no account exists until the link is followed.",
+    ].join("\n"),
+  };
+}
+
 export function invitationMessage(input: {
   url: string;
   workspaceName: string;

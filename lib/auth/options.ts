@@ -6,27 +6,37 @@ import CredentialsProvider from "next-auth/providers/credentials";
 import EmailProvider from "next-auth/providers/email";
 import { db } from "@/db/client";
 import { accounts, sessions, users, verificationTokens } from "@/db/schema";
+import { findPendingPasswordHash, proveAddressByLink } from "@/db/queries/pending-sign-ups";
 import { endSession, isSessionLive, openSession } from "@/db/queries/sessions";
 import { findUserByEmail } from "@/db/queries/users";
 import { createOwnedWorkspace } from "@/db/queries/workspaces";
 import { env } from "@/lib/env";
+import { clientAddress, headerRecord } from "@/lib/http/client-address";
 import { queueMail } from "@/lib/mail";
 import { signInSchema } from "@/lib/validation/auth";
 import { signInLinkMessage } from "./emails";
 import { hashPassword, verifyPassword } from "./password";
 import { sameOriginPath } from "./redirects";
-import { clearSignInAttempts, recordSignInAttempt } from "./rate-limit";
+import {
+  admitSignInAttempt,
+  admitSignInLink,
+  clearSignInFailures,
+  recordFailedSignIn,
+} from "./rate-limit";
 
 // Comparing against a throwaway hash when the address is unknown keeps the response time the
 // same whether or not an account exists, so timing cannot enumerate accounts.
 let decoyHash: Promise<string> | undefined;
 const getDecoyHash = () => (decoyHash ??= hashPassword(crypto.randomUUID()));
 
-function clientAddress(headers: Record<string, string | string[] | undefined> | undefined): string {
-  const forwarded = headers?.["x-forwarded-for"];
-  const first = Array.isArray(forwarded) ? forwarded[0] : forwarded?.split(",")[0];
-  return first?.trim() || "local";
+async function matchesPendingSignUp(email: string, password: string): Promise<boolean> {
+  const pendingHash = await findPendingPasswordHash(email);
+  return pendingHash !== undefined && (await verifyPassword(password, pendingHash));
 }
+
+/** Said only to someone who typed the right password, so it reveals nothing to others. */
+const CONFIRM_FIRST =
+  "Confirm your e-mail address first: follow the link we sent when you signed up, or sign in once with an e-mail link.";
 
 /**
  * Twelve hours from sign-in: a working day, after which a left-open browser on a shared machine no
@@ -58,14 +68,23 @@ export function authOptions(): NextAuthOptions {
           const parsed = signInSchema.safeParse(credentials);
           if (!parsed.success) return null;
           const { email, password } = parsed.data;
-          await recordSignInAttempt(email, clientAddress(request?.headers));
+          const client = clientAddress(headerRecord(request?.headers), config.TRUSTED_PROXY_HOPS);
+          await admitSignInAttempt(email, client);
           const user = await findUserByEmail(email);
           const matches = await verifyPassword(
             password,
             user?.passwordHash ?? (await getDecoyHash()),
           );
-          if (!user?.passwordHash || !matches) return null;
-          await clearSignInAttempts(email);
+          if (!user?.passwordHash || !matches) {
+            if (!user?.emailVerified && (await matchesPendingSignUp(email, password))) {
+              throw new Error(CONFIRM_FIRST);
+            }
+            await recordFailedSignIn(email, client);
+            return null;
+          }
+          // An address nobody proved may belong to someone else than who set this password.
+          if (!user.emailVerified) throw new Error(CONFIRM_FIRST);
+          await clearSignInFailures(email, client);
           return { id: user.id, name: user.name, email: user.email };
         },
       }),
@@ -73,6 +92,7 @@ export function authOptions(): NextAuthOptions {
         from: config.MAIL_FROM,
         maxAge: 24 * 60 * 60,
         async sendVerificationRequest({ identifier, url }) {
+          await admitSignInLink(identifier);
           await queueMail({ to: identifier, ...signInLinkMessage(url) });
         },
       }),
@@ -81,6 +101,14 @@ export function authOptions(): NextAuthOptions {
       // next-auth's default throws (a 500) on a callback URL it cannot parse; this falls back instead.
       redirect({ url, baseUrl }) {
         return new URL(sameOriginPath(url, baseUrl), baseUrl).toString();
+      },
+      // Following an e-mail link proves the address; whatever was set on the account before
+      // that proof may be an intruder's and is ended (db/queries/pending-sign-ups.ts).
+      async signIn({ user, account, email }) {
+        if (account?.provider === "email" && !email?.verificationRequest && user.email) {
+          await proveAddressByLink(user.email);
+        }
+        return true;
       },
       // Runs on sign-in (with `user`) and on every request that reads the session: a token whose
       // server-side session has ended becomes empty, which signs nobody in.

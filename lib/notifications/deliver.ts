@@ -1,4 +1,4 @@
-import { RateLimiterMemory, RateLimiterRes } from "rate-limiter-flexible";
+import { RateLimiterRes, sharedLimiter } from "@/lib/rate-limits/shared-limiter";
 import { wantsEmail } from "@/db/queries/notification-preferences";
 import type { NotificationKind } from "@/db/schema";
 import { queueMail } from "@/lib/mail";
@@ -6,15 +6,15 @@ import type { NotificationMessage } from "./messages";
 
 /**
  * Limits on notification e-mail, so a loop of comments or requests cannot flood an inbox or the
- * relay: per recipient within a workspace, and per workspace overall. In process memory, like the
- * sign-in limits (lib/auth/rate-limit.ts): one app process and one worker serve an installation.
+ * relay: per recipient within a workspace, and per workspace overall. Counted in PostgreSQL, so the
+ * app processes and the worker share them.
  */
-const perRecipient = new RateLimiterMemory({
+const perRecipient = sharedLimiter({
   keyPrefix: "mail-recipient",
   points: 20,
   duration: 10 * 60,
 });
-const perWorkspace = new RateLimiterMemory({
+const perWorkspace = sharedLimiter({
   keyPrefix: "mail-workspace",
   points: 300,
   duration: 60 * 60,

@@ -10,6 +10,11 @@ const email = z
   .pipe(z.email("Enter a valid e-mail address, like name@example.com."))
   .transform((value) => value.toLowerCase());
 
+const newPassword = z
+  .string()
+  .min(MIN_PASSWORD_LENGTH, `Use at least ${MIN_PASSWORD_LENGTH} characters.`)
+  .max(200, "Use at most 200 characters.");
+
 export const signUpSchema = z.object({
   name: z
     .string()
@@ -17,10 +22,7 @@ export const signUpSchema = z.object({
     .min(1, "Enter your name.")
     .max(100, "Keep your name under 100 characters."),
   email,
-  password: z
-    .string()
-    .min(MIN_PASSWORD_LENGTH, `Use at least ${MIN_PASSWORD_LENGTH} characters.`)
-    .max(200, "Use at most 200 characters."),
+  password: newPassword,
   workspaceName: z
     .string()
     .trim()
@@ -29,6 +31,13 @@ export const signUpSchema = z.object({
   invitationToken: z.string().optional(),
 });
 export type SignUpInput = z.input<typeof signUpSchema>;
+
+export const passwordChangeSchema = z.object({
+  // Empty when the account has no password yet (it signs in by e-mail link only).
+  currentPassword: z.string(),
+  newPassword,
+});
+export type PasswordChangeInput = z.input<typeof passwordChangeSchema>;
 
 export const signInSchema = z.object({
   email,

@@ -2,6 +2,7 @@
 // revokes it; after a reload the token is listed (with its last use) but never shown again.
 import { afterEach, describe, expect, it } from "vitest";
 import { uniqueEmail } from "@/tests/support/accounts";
+import { signUpThroughForm } from "./support/sign-up";
 import { openBrowser, type BrowserSession } from "./support/browser";
 
 const baseUrl = process.env.E2E_BASE_URL ?? "http://127.0.0.1:3000";
@@ -23,13 +24,12 @@ describe("API tokens page", () => {
   it("creates a token shown once, records its use, and revokes it", async () => {
     browser = await openBrowser();
     const { page } = browser;
-    await page.goto("/sign-up");
-    await page.getByLabel("Your name").fill("Token Tester");
-    await page.getByLabel("E-mail").fill(uniqueEmail("tokens"));
-    await page.getByLabel("Password").fill("a token password");
-    await page.getByLabel("Workspace name").fill("Pipeline workspace");
-    await page.getByRole("button", { name: "Create account" }).click();
-    await page.waitForURL(/\/w\/[\w-]+$/);
+    await signUpThroughForm(page, {
+      name: "Token Tester",
+      email: uniqueEmail("tokens"),
+      password: "a token password",
+      workspaceName: "Pipeline workspace",
+    });
 
     await page.getByRole("link", { name: "API tokens" }).click();
     await page.getByLabel("Name").fill("nightly shard check");

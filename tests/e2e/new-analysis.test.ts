@@ -12,6 +12,7 @@ import { memberships } from "@/db/schema";
 import { SINGLE_PUT_MAX_BYTES } from "@/lib/uploads/file-rules";
 import { loadPenguinsCsv } from "@/tests/lib/analysis/support/open-data";
 import { createAccount, uniqueEmail } from "@/tests/support/accounts";
+import { signUpThroughForm } from "./support/sign-up";
 import { openBrowser, type BrowserSession } from "./support/browser";
 
 const folder = mkdtempSync(path.join(os.tmpdir(), "partita-e2e-uploads-"));
@@ -34,15 +35,12 @@ afterAll(async () => {
 
 /** Signs up through the form and returns the new workspace's id. */
 async function signUp(session: BrowserSession, label: string): Promise<string> {
-  const { page } = session;
-  await page.goto("/sign-up");
-  await page.getByLabel("Your name").fill("Upload Tester");
-  await page.getByLabel("E-mail").fill(uniqueEmail(label));
-  await page.getByLabel("Password").fill("an upload password");
-  await page.getByLabel("Workspace name").fill("Penguin shards");
-  await page.getByRole("button", { name: "Create account" }).click();
-  await page.waitForURL(/\/w\/[\w-]+$/);
-  return new URL(page.url()).pathname.split("/")[2];
+  return signUpThroughForm(session.page, {
+    name: "Upload Tester",
+    email: uniqueEmail(label),
+    password: "an upload password",
+    workspaceName: "Penguin shards",
+  });
 }
 
 describe("starting an analysis in the browser", () => {

@@ -7,6 +7,7 @@ import path from "node:path";
 import { afterAll, afterEach, describe, expect, it } from "vitest";
 import { loadPenguinsCsv } from "@/tests/lib/analysis/support/open-data";
 import { uniqueEmail } from "@/tests/support/accounts";
+import { signUpThroughForm } from "./support/sign-up";
 import { openBrowser, type BrowserSession } from "./support/browser";
 
 const folder = mkdtempSync(path.join(os.tmpdir(), "partita-e2e-flow-"));
@@ -32,13 +33,12 @@ afterAll(() => rmSync(folder, { recursive: true, force: true }));
 /** Signs up, uploads penguins and the island map, and maps the columns on the new-analysis form. */
 async function fillPenguinAnalysis(session: BrowserSession, label: string) {
   const { page } = session;
-  await page.goto("/sign-up");
-  await page.getByLabel("Your name").fill("Flow Tester");
-  await page.getByLabel("E-mail").fill(uniqueEmail(label));
-  await page.getByLabel("Password").fill("a flow password");
-  await page.getByLabel("Workspace name").fill("Penguin islands");
-  await page.getByRole("button", { name: "Create account" }).click();
-  await page.waitForURL(/\/w\/[\w-]+$/);
+  await signUpThroughForm(page, {
+    name: "Flow Tester",
+    email: uniqueEmail(label),
+    password: "a flow password",
+    workspaceName: "Penguin islands",
+  });
 
   await page.getByRole("link", { name: "New analysis" }).click();
   await page.getByLabel("Dataset file").setInputFiles(datasetFile);

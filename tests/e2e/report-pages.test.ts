@@ -8,6 +8,7 @@ import { closeDb, db } from "@/db/client";
 import { users } from "@/db/schema";
 import { uniqueEmail } from "@/tests/support/accounts";
 import { analyzePenguinsWithCli, insertReport } from "@/tests/support/report-fixtures";
+import { signUpThroughForm } from "./support/sign-up";
 import { openBrowser, type BrowserSession } from "./support/browser";
 
 let browser: BrowserSession | undefined;
@@ -38,13 +39,12 @@ beforeAll(async () => {
   ]);
   const session = await openBrowser();
   const { page } = session;
-  await page.goto("/sign-up");
-  await page.getByLabel("Your name").fill("Report Reader");
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill(password);
-  await page.getByLabel("Workspace name").fill("Penguin reports");
-  await page.getByRole("button", { name: "Create account" }).click();
-  await page.waitForURL(/\/w\/[\w-]+$/);
+  await signUpThroughForm(page, {
+    name: "Report Reader",
+    email,
+    password,
+    workspaceName: "Penguin reports",
+  });
   workspacePath = new URL(page.url()).pathname;
   await session.close();
 

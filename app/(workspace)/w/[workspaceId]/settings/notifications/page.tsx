@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import Link from "next/link";
 import { NotificationToggles } from "@/components/reviews/notification-toggles";
 import { readNotificationSettings } from "@/db/queries/notification-preferences";
 import { guardPage } from "@/lib/auth/page-guard";
@@ -24,7 +25,13 @@ export default async function NotificationSettingsPage({
         <h1 className="text-3xl font-semibold tracking-tight">E-mail notifications</h1>
         <p className="mt-1 text-sm text-ink-soft">
           Which e-mails Partita sends to {user.email}. The choice applies in every workspace you
-          belong to; invitations and sign-in links are always sent.
+          belong to; invitations and sign-in links are always sent.{" "}
+          <Link
+            href={`/w/${workspace.id}/settings/password`}
+            className="text-indigo hover:underline"
+          >
+            Change your password
+          </Link>
         </p>
       </div>
       <NotificationToggles workspaceId={workspace.id} initial={settings} />
