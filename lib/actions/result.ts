@@ -2,6 +2,7 @@ import { z } from "zod";
 import { AccessError } from "@/lib/auth/errors";
 import { RuleError } from "@/lib/errors";
 import { firstFieldErrors } from "@/lib/validation/field-errors";
+import { logSafeMessage } from "@/lib/log-safe";
 
 /** What every form action returns: success, or errors on the fields plus what the user typed. */
 export type ActionResult<TData = undefined> =
@@ -38,7 +39,7 @@ export function failWith(error: unknown, context: string): ActionResult<never> {
       error instanceof RuleError && error.field ? { [error.field]: error.message } : {};
     return { ok: false, status: error.status, message: error.message, fieldErrors };
   }
-  console.error(`[${context}] unexpected failure:`, error instanceof Error ? error.message : error);
+  console.error(`[${context}] unexpected failure:`, logSafeMessage(error));
   return {
     ok: false,
     status: 500,

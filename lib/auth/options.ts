@@ -12,6 +12,7 @@ import { findUserByEmail } from "@/db/queries/users";
 import { createOwnedWorkspace } from "@/db/queries/workspaces";
 import { env } from "@/lib/env";
 import { clientAddress, headerRecord } from "@/lib/http/client-address";
+import { logSafeMessage } from "@/lib/log-safe";
 import { queueMail } from "@/lib/mail";
 import { signInSchema } from "@/lib/validation/auth";
 import { signInLinkMessage } from "./emails";
@@ -59,6 +60,12 @@ export function authOptions(): NextAuthOptions {
     // Credentials sign-in only works with JWT sessions in next-auth 4; each token names a
     // server-side session row, so ending the row ends the session (db/queries/sessions.ts).
     session: { strategy: "jwt", maxAge: SESSION_MAX_AGE_SECONDS },
+    // next-auth logs adapter failures with the failed query's parameters (token hashes).
+    logger: {
+      error: (code, metadata) => console.error(`[auth] ${code}:`, logSafeMessage(metadata)),
+      warn: (code) => console.warn(`[auth] ${code}`),
+      debug: () => undefined,
+    },
     pages: { signIn: "/sign-in", verifyRequest: "/sign-in/check-email", error: "/sign-in" },
     providers: [
       CredentialsProvider({

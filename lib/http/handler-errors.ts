@@ -2,6 +2,7 @@ import { z } from "zod";
 import { AccessError } from "@/lib/auth/errors";
 import { RuleError } from "@/lib/errors";
 import { firstFieldErrors } from "@/lib/validation/field-errors";
+import { logSafeMessage } from "@/lib/log-safe";
 
 /** The body of every error a route handler returns. */
 export type HandlerErrorBody = {
@@ -38,7 +39,7 @@ export function respondWithError(error: unknown, context: string): Response {
       },
     });
   }
-  console.error(`[${context}] unexpected failure:`, error instanceof Error ? error.message : error);
+  console.error(`[${context}] unexpected failure:`, logSafeMessage(error));
   return errorResponse(500, {
     error: { code: "internal", message: "Something went wrong on our side. Please try again." },
   });
