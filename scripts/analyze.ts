@@ -12,7 +12,6 @@ import { writeFileSync } from "node:fs";
 import { parseArgs } from "node:util";
 import { analyzePartition, AnalysisInputError, type PartitionSummary } from "../lib/analysis";
 import type { SimulationProgress } from "../lib/analysis/simulation/simulate-plan";
-import type { AnalysisProgress } from "../lib/analysis/summary";
 import { ServerError } from "../lib/cli/api-client";
 import {
   checkFailOnRules,
@@ -35,6 +34,7 @@ import {
   TEXT_FORMAT_FLAGS,
   TEXT_FORMAT_USAGE,
 } from "../lib/cli/analysis-flags";
+import { createProgressPrinter } from "../lib/cli/progress-lines";
 import { runOnServer, ServerAnalysisError } from "../lib/cli/server-run";
 import type { AnalysisOptionsInput } from "../lib/validation/analysis-options";
 
@@ -191,18 +191,6 @@ function readFlags(argv: string[]): {
   delete single.simulate;
   delete single["bad-numbers-as-missing"];
   return { flags: single as Flags, failOn: failOn as string[], simulate, switches };
-}
-
-function createProgressPrinter(): (progress: AnalysisProgress) => void {
-  let lastStage = "";
-  let lastQuarter = -1;
-  return ({ stage, fraction }) => {
-    const quarter = Math.floor(fraction * 4);
-    if (stage === lastStage && quarter === lastQuarter) return;
-    lastStage = stage;
-    lastQuarter = quarter;
-    process.stderr.write(`partita: ${stage} ${Math.round(fraction * 100)}%\n`);
-  };
 }
 
 /** One line per simulation run (3 × (8 + S) runs), not per round. */

@@ -23,7 +23,7 @@ import { measureQuantitySkew } from "./measure-quantity-skew";
 import { countWeightRows } from "./objective";
 import { readPartitionMap } from "./partition-map";
 import { countAvailableThreads, PassPool, type PassResult } from "./pass-pool";
-import { readDataset } from "./read-dataset";
+import { readDataset, type RawDataset } from "./read-dataset";
 import type { TableSource } from "./table-reader";
 import {
   checkSimulationBudget,
@@ -139,7 +139,56 @@ async function analyzeWithPool(
   const design = encodeDesign(raw, options.task, {
     badNumbersAsMissing: options.badNumbersAsMissing,
   });
+  return analyzeDesign(
+    design,
+    options,
+    {
+      pool: openPool(design),
+      totalRows: raw.totalRows,
+      format: raw.format,
+      partitionName: input.partitionName ?? dataName,
+      referenceName: input.referenceName,
+      threads: input.threads,
+      signal: input.signal,
+      onSimulationProgress: input.onSimulationProgress,
+    },
+    onProgress,
+  );
+}
+
+/** What the analysis of an encoded design needs besides the design and the options. */
+export interface DesignAnalysisContext {
+  /** Threads for the passes over the rows; the caller closes it. */
+  pool: PassPool;
+  /** Data rows in the file, kept or not (reported). */
+  totalRows: number;
+  /** The dataset's file format (reported). */
+  format: RawDataset["format"];
+  /** Where the shards came from (a partition map, the dataset's shard column), for messages. */
+  partitionName: string;
+  referenceName?: string;
+  threads?: number;
+  signal?: AbortSignal;
+  onSimulationProgress?: (progress: SimulationProgress) => void;
+}
+
+/**
+ * The analysis after reading and encoding (methods.md §2–§5, and §7 when asked): fit, measure,
+ * advise. The layout planner encodes a dataset once and calls this once per candidate split.
+ */
+export async function analyzeDesign(
+  design: Design,
+  options: AnalysisOptions,
+  context: DesignAnalysisContext,
+  onProgress: (progress: AnalysisProgress) => void = () => {},
+): Promise<PartitionSummary> {
   const shardCount = design.shardIds.length;
+  if (shardCount < 2) {
+    throw new AnalysisInputError(`the partition has ${shardCount} shard`, {
+      file: context.partitionName,
+      expected: "at least two shards",
+    });
+  }
   const participants = options.participants ?? shardCount;
   if (participants > shardCount) {
     throw new AnalysisInputError(`is ${participants} participants per round`, {
@@ -163,7 +212,7 @@ async function analyzeWithPool(
       plan,
     );
   }
-  const passes = openPool(design).share(design, design.shardOffsets);
+  const passes = context.pool.share(design, design.shardOffsets);
   const gram = passes.computeGram();
   const smoothness = computeSmoothness(gram, design.x.cols, design.task, options.lambda);
   onProgress({ stage: "encoding", fraction: 1 });
@@ -175,7 +224,12 @@ async function analyzeWithPool(
   onProgress({ stage: "fitting", fraction: 1 });
 
   onProgress({ stage: "measuring", fraction: 0 });
-  const reference = chooseReference(options.reference, design, fitted.weights, input.referenceName);
+  const reference = chooseReference(
+    options.reference,
+    design,
+    fitted.weights,
+    context.referenceName,
+  );
   const summarize = (weights: Float64Array, pass: PassResult, withNoise: boolean) =>
     measureAtPoint(design, weights, options.lambda, pass.shards, {
       withNoise,
@@ -232,8 +286,8 @@ async function analyzeWithPool(
         },
         plan,
         // A caller's thread count (e.g. 1 to stay on one core) holds for the simulation too.
-        { ...options.simulate, threads: input.threads },
-        { onProgress: input.onSimulationProgress, signal: input.signal },
+        { ...options.simulate, threads: context.threads },
+        { onProgress: context.onSimulationProgress, signal: context.signal },
       )
     : undefined;
 
@@ -310,10 +364,10 @@ async function analyzeWithPool(
     },
     advice,
     preprocessing: {
-      totalRows: raw.totalRows,
+      totalRows: context.totalRows,
       droppedRowsMissingLabel: design.droppedRowsMissingLabel,
       droppedRowsUnassigned: design.droppedRowsUnassigned,
-      format: raw.format,
+      format: context.format,
       badNumbersCountedMissing: design.badNumbersCountedMissing,
       featureNames: design.featureNames,
       omittedColumns: design.omittedColumns,
@@ -323,7 +377,7 @@ async function analyzeWithPool(
   };
 }
 
-function parseOptions(options: AnalysisOptionsInput): AnalysisOptions {
+export function parseOptions(options: AnalysisOptionsInput): AnalysisOptions {
   const parsed = analysisOptionsSchema.safeParse(options);
   if (parsed.success) return parsed.data;
   const issue = parsed.error.issues[0];

@@ -34,23 +34,31 @@ export interface RowSink {
 /** Unassigned rows listed in messages. */
 export const LISTED_OFFENDERS = 5;
 
+/** Position of a column in the header; a missing one is an error naming its role ("label", …). */
+export function findHeaderColumn(
+  header: string[],
+  fileName: string,
+  name: string,
+  role: string,
+): number {
+  const index = header.indexOf(name);
+  if (index < 0) {
+    throw new AnalysisInputError(`there is no ${role} column ${quoteValue(name)}`, {
+      file: fileName,
+      column: name,
+      expected: `one of the header's columns: ${listFirst(header, header.length, 12)}`,
+    });
+  }
+  return index;
+}
+
 /** Finds the label, id, shard and feature columns in the header (methods.md §1 defaults). */
 export function locateColumns(
   header: string[],
   fileName: string,
   columns: DatasetColumnChoice,
 ): ColumnPositions {
-  const findColumn = (name: string, role: string) => {
-    const index = header.indexOf(name);
-    if (index < 0) {
-      throw new AnalysisInputError(`there is no ${role} column ${quoteValue(name)}`, {
-        file: fileName,
-        column: name,
-        expected: `one of the header's columns: ${listFirst(header, header.length, 12)}`,
-      });
-    }
-    return index;
-  };
+  const findColumn = (name: string, role: string) => findHeaderColumn(header, fileName, name, role);
   const label = findColumn(columns.labelColumn, "label");
   const id = columns.idColumn ? findColumn(columns.idColumn, "id") : -1;
   const shard = columns.shardColumn ? findColumn(columns.shardColumn, "shard") : -1;

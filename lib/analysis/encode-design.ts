@@ -39,7 +39,8 @@ type EncodedColumn =
 /**
  * Turns the raw columns into the design of methods.md §1: task and classes, shard order,
  * imputation, one-hot encoding, standardization with pooled mean and population deviation, the bias
- * column, and rows regrouped shard by shard. When every feature column is numeric and kept — the
+ * column, and rows regrouped shard by shard (one shard is fine here: the layout planner encodes the
+ * whole dataset as one before splitting it; the analysis asks for two). When every feature column is numeric and kept — the
  * common case — the design is built in place in the memory the values were read into.
  */
 export function encodeDesign(
@@ -52,12 +53,6 @@ export function encodeDesign(
   const rows = raw.keptRows;
 
   const shardOrder = sortedOrder(raw.shardIds);
-  if (raw.shardIds.length < 2) {
-    throw new AnalysisInputError(`the partition has ${raw.shardIds.length} shard`, {
-      file: raw.fileName,
-      expected: "at least two shards",
-    });
-  }
   const shardIds = shardOrder.map((code) => raw.shardIds[code]);
   const rankOfShardCode = invert(shardOrder);
   const shardOffsets = new Int32Array(shardIds.length + 1);

@@ -21,3 +21,4 @@ export {
 } from "./simulation/simulate-plan";
 export { ENGINE_VERSION } from "./version";
 export * from "./digests";
+export * from "./layouts";

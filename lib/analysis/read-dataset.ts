@@ -2,6 +2,7 @@ import type { ColumnAccumulator } from "./column-accumulator";
 import {
   completeDataset,
   DatasetRowCollector,
+  findHeaderColumn,
   locateColumns,
   type DatasetColumnChoice,
 } from "./dataset-rows";
@@ -10,6 +11,7 @@ import { RowStore } from "./row-store";
 import { readCsvInParallel } from "./parallel-read";
 import { detectLocalTableFormat, isLocalFile, readTable, type TableSource } from "./table-reader";
 import type { CsvFormat, CsvFormatChoice } from "./text-format";
+import { trimToken } from "./tokens";
 
 export type { DatasetColumnChoice } from "./dataset-rows";
 
@@ -53,6 +55,15 @@ export interface ReadDatasetOptions {
   threads?: number;
   /** The user's encoding, delimiter and decimal mark for a text file; what is not given is detected. */
   format?: CsvFormatChoice;
+  /**
+   * Columns whose trimmed text is handed over for every kept row, with the row's 0-based index
+   * (the layout planner's row ids and groups). Whether they are also features is unchanged.
+   */
+  keptRowText?: {
+    /** Each column's name and its role in messages ("group", …). */
+    columns: { name: string; role: string }[];
+    onRow: (values: string[], rowIndex: number) => void;
+  };
 }
 
 /**
@@ -71,6 +82,7 @@ export async function readDataset(
     onBytesRead,
     threads = 1,
     format: formatChoice = {},
+    keptRowText,
   }: ReadDatasetOptions,
 ): Promise<RawDataset> {
   // Parts of a file are cut at line feeds, which only UTF-8 (or ASCII) text allows, and take the
@@ -93,6 +105,7 @@ export async function readDataset(
   let collector = null as DatasetRowCollector | null;
   let featureValues = null as RowStore | null;
   let format: CsvFormat | null = null;
+  let keptRowTextIndices: number[] = [];
   const totalRows = await readTable(
     source,
     fileName,
@@ -111,9 +124,20 @@ export async function readDataset(
           featureValues,
           detected?.decimalMark,
         );
+        keptRowTextIndices = (keptRowText?.columns ?? []).map(({ name, role }) =>
+          findHeaderColumn(header, fileName, name, role),
+        );
       },
       onRow(fields, rowIndex) {
-        (collector as DatasetRowCollector).addRow(fields, rowIndex);
+        const rows = collector as DatasetRowCollector;
+        const keptBefore = rows.keptRows;
+        rows.addRow(fields, rowIndex);
+        if (keptRowText && rows.keptRows > keptBefore) {
+          keptRowText.onRow(
+            keptRowTextIndices.map((index) => trimToken(fields[index])),
+            rowIndex,
+          );
+        }
       },
     },
     formatChoice,
