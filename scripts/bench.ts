@@ -9,7 +9,9 @@
  * digest case (methods.md §9): one client's digests of the 1M data for a supplied reference against
  * one local analysis of it, and the pooled-optimum fit with 5 clients on the 100k data against the
  * central fit. `--small` runs only the 100k case, `--large` only the 1M case, `--simulation` only
- * the simulation case, `--load` only the load test, `--digests` only the digest case.
+ * the simulation case, `--load` only the load test, `--digests` only the digest case, `--layouts`
+ * only the planner case: `npm run layouts` with its eight default candidates (methods.md §8) on the
+ * 100k data against one analysis of it, both with every core (target: at most 4× its wall time).
  */
 import { spawn } from "node:child_process";
 import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from "node:fs";
@@ -365,19 +367,65 @@ async function benchDigests(large: BenchDataSpec, small: BenchDataSpec): Promise
   );
 }
 
+/** The planner's target: eight candidates in at most this many times one analysis's wall time. */
+const LAYOUTS_TARGET_RATIO = 4;
+
+/**
+ * The layout planner's eight default candidates (no group column) into as many shards as the case
+ * has, beside one analysis of the same file: one read and encoding, then eight fits and measures.
+ */
+async function benchLayouts(spec: BenchDataSpec): Promise<void> {
+  const file = await prepareData(spec, "layout planner: ");
+  const analysis = await runEngine(file);
+  const outDir = path.join(outputFolder, "layouts");
+  const planner = await runMeasured(
+    process.execPath,
+    [
+      "--max-old-space-size=1800",
+      "--import",
+      "tsx",
+      "scripts/layouts.ts",
+      "--data",
+      file,
+      "--label",
+      "label",
+      "--features",
+      Array.from({ length: spec.features }, (_, j) => `f${j}`).join(","),
+      "--shards",
+      String(spec.shards),
+      "--out-dir",
+      outDir,
+    ],
+    () => null,
+  );
+  if (planner.code !== 0) throw new Error(`layouts failed: ${planner.stderr}`);
+  const comparison = JSON.parse(readFileSync(path.join(outDir, "layouts.json"), "utf8")) as {
+    layouts: unknown[];
+    failures: Array<{ name: string; message: string }>;
+  };
+  const ratio = planner.seconds / analysis.seconds;
+  process.stdout.write(
+    `one analysis: ${analysis.seconds.toFixed(1)}s wall, CPU ${analysis.cpuSeconds.toFixed(1)}s, peak ${analysis.peakMegabytes.toFixed(0)} MB\n` +
+      `planner, ${comparison.layouts.length} candidates scored (${comparison.failures.length} failed${comparison.failures.map((failure) => `: ${failure.name} ${failure.message}`).join("")}): ` +
+      `${planner.seconds.toFixed(1)}s wall, CPU ${planner.cpuSeconds.toFixed(1)}s, peak ${planner.peakMegabytes.toFixed(0)} MB, ${countAvailableThreads()} threads\n` +
+      `planner / analysis wall time: ${ratio.toFixed(2)} (target at most ${LAYOUTS_TARGET_RATIO})\n`,
+  );
+}
+
 async function main(): Promise<void> {
   mkdirSync(outputFolder, { recursive: true });
   process.stdout.write(
     `machine: ${availableParallelism()} cores, load average ${loadavg()[0].toFixed(1)} at the start (other work on the machine slows both programs)\n`,
   );
-  const only = ["--small", "--large", "--simulation", "--load", "--digests"].find((flag) =>
-    process.argv.includes(flag),
+  const only = ["--small", "--large", "--simulation", "--load", "--digests", "--layouts"].find(
+    (flag) => process.argv.includes(flag),
   );
   if (only === undefined || only === "--small") await benchCase(CASES[0]);
   if (only === undefined || only === "--large") await benchCase(CASES[1]);
   if (only === undefined || only === "--simulation") await benchSimulation(CASES[0]);
   if (only === undefined || only === "--load") await benchLoad();
   if (only === undefined || only === "--digests") await benchDigests(CASES[1], CASES[0]);
+  if (only === undefined || only === "--layouts") await benchLayouts(CASES[0]);
 }
 
 main().catch((error: unknown) => {
