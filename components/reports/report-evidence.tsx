@@ -84,7 +84,7 @@ export function ReportEvidence({ summary }: { summary: PartitionSummary }) {
         <EvidenceSection
           id="agreement"
           title="Gradient agreement between shards"
-          caption="Whether two shards' gradients point the same way at the start of training: slate pairs pull together, cadmium pairs pull against each other."
+          caption="Whether two shards' gradients point the same way at the start of training. Each cell is one pair: the darker it is, the more the pair pulls together (cosine near +1); the warmer its tint, the more the pair pulls against each other (near −1); pale cells are unrelated (near 0). The key below the chart gives the scale; hover or tap a cell for its value."
         >
           {agreement === null ? (
             <ChartEmptyState>
@@ -105,7 +105,7 @@ export function ReportEvidence({ summary }: { summary: PartitionSummary }) {
         <EvidenceSection
           id="path"
           title="ζ² along the path to the optimum"
-          caption="How much the shards' gradients disagree on the straight path from the training start to the optimum; the local SGD bound uses the largest value."
+          caption="How much the shards' gradients disagree (weighted ζ²) at five points on the straight path from the training start (t = 0) to the optimum (t = 1). The local SGD bound uses the largest of the five (ζ² max). The heterogeneity barrier compares only the last point, ζ*² at the optimum (the ringed point), with the dashed line H²B²/R: earlier points above the line do not make a barrier, they show that shards disagree more on the way than at the end."
         >
           {heterogeneity.path.length === 0 ? (
             <ChartEmptyState>The engine recorded no path for this report.</ChartEmptyState>

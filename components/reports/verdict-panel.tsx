@@ -19,6 +19,14 @@ const HEADLINE_TONES = {
   "no-clear-winner": "text-ink",
 } as const;
 
+/** Why the third bound is on the page although ρ ignores it. */
+const ACCELERATED_NOTE =
+  "The accelerated minibatch bound shows what minibatch SGD could reach with acceleration (momentum-style steps). It does not enter ρ or the verdict, which compare the two plain algorithms a team usually chooses between, each without acceleration.";
+
+/** Which ζ² the barrier uses, and what the path chart's other values are for. */
+const BARRIER_WHICH_ZETA = (zeta2Max: number) =>
+  `The barrier uses ζ*² only, the ringed point at t = 1 in the path chart; the larger values earlier on the path (up to ζ² max = ${formatFigure(zeta2Max)}) enter the local SGD bound, not the barrier.`;
+
 /** The answer first: the verdict, ρ against its thresholds, the barrier flag and the caveats. */
 export function VerdictPanel({ summary }: { summary: PartitionSummary }) {
   const { advice, heterogeneity } = summary;
@@ -64,6 +72,7 @@ export function VerdictPanel({ summary }: { summary: PartitionSummary }) {
               ? "none up to K = 4096"
               : `local SGD wins from K = ${advice.crossoverLocalSteps}`}
           </dd>
+          <dd className="col-span-2 mt-2 max-w-xs text-xs text-ink-soft">{ACCELERATED_NOTE}</dd>
         </dl>
       </div>
 
@@ -73,14 +82,16 @@ export function VerdictPanel({ summary }: { summary: PartitionSummary }) {
           className="mt-5 rounded-md border border-cadmium/50 bg-cadmium-soft px-4 py-3 text-sm text-ink"
         >
           <strong className="text-cadmium">Heterogeneity barrier.</strong> ζ*² ={" "}
-          {formatFigure(heterogeneity.zeta2Star)} is at least H²B²/R = {formatFigure(threshold)}:
-          with shards this different, local SGD cannot beat minibatch SGD order-wise for R ={" "}
-          {advice.rounds}, however many local steps it takes.
+          {formatFigure(heterogeneity.zeta2Star)}, the shards&apos; disagreement at the optimum, is
+          at least H²B²/R = {formatFigure(threshold)}: with shards this different, local SGD cannot
+          beat minibatch SGD order-wise for R = {advice.rounds}, however many local steps it takes.{" "}
+          {BARRIER_WHICH_ZETA(heterogeneity.zeta2Max)}
         </div>
       ) : (
         <p className="mt-5 text-sm text-ink-soft">
-          No heterogeneity barrier: ζ*² = {formatFigure(heterogeneity.zeta2Star)} is below H²B²/R ={" "}
-          {formatFigure(threshold)}.
+          No heterogeneity barrier: ζ*² = {formatFigure(heterogeneity.zeta2Star)}, the shards&apos;
+          disagreement at the optimum, is below H²B²/R = {formatFigure(threshold)} for R ={" "}
+          {advice.rounds}. {BARRIER_WHICH_ZETA(heterogeneity.zeta2Max)}
         </p>
       )}
 

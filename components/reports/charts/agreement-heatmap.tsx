@@ -5,10 +5,12 @@ import { CHART_THEME, PALETTE, shortenLabel } from "./chart-style";
 
 /** Above this many shards the names no longer fit beside the cells, which are then drawn on a canvas. */
 const SVG_LIMIT = 24;
+/** Characters of a shard name beside a cell; the tooltip gives the whole name. */
+const LABEL_LENGTH = 12;
 
 /**
- * Cosine similarity of every pair of shard gradients at the training start: agreement shades to
- * slate, opposition to cadmium, orthogonal gradients stay paper-coloured.
+ * Cosine similarity of every pair of shard gradients at the training start: agreement shades dark,
+ * opposition shades warm, orthogonal gradients stay pale; the key below gives the scale.
  */
 export function AgreementHeatmap({
   names,
@@ -26,11 +28,19 @@ export function AgreementHeatmap({
     data: row.map((value, column) => ({ x: keys[column], y: value })),
   }));
   const named = names.length <= SVG_LIMIT;
+  // Column names stand upright (rotated a quarter turn) so neighbours never overlap; the margins
+  // fit the longest shortened name at about 6.5 px per character of the chart's 11 px type.
+  const longest = Math.max(...names.map((name) => shortenLabel(name, LABEL_LENGTH).length));
+  const labelRoom = Math.ceil(longest * 6.5) + 12;
   const margin = named
-    ? { top: 90, right: 16, bottom: 16, left: 110 }
+    ? { top: labelRoom, right: 16, bottom: 16, left: labelRoom }
     : { top: 16, right: 16, bottom: 16, left: 16 };
   const axis = named
-    ? { tickSize: 0, tickPadding: 6, format: (key: string) => shortenLabel(nameOf.get(key) ?? key) }
+    ? {
+        tickSize: 0,
+        tickPadding: 6,
+        format: (key: string) => shortenLabel(nameOf.get(key) ?? key, LABEL_LENGTH),
+      }
     : null;
   const common = {
     data,
@@ -47,7 +57,7 @@ export function AgreementHeatmap({
     enableLabels: names.length <= 8,
     valueFormat: ">-.2f",
     labelTextColor: PALETTE.ink,
-    axisTop: axis ? { ...axis, tickRotation: -45 } : null,
+    axisTop: axis ? { ...axis, tickRotation: -90 } : null,
     axisLeft: axis,
     theme: CHART_THEME,
     hoverTarget: "cell" as const,
@@ -58,7 +68,7 @@ export function AgreementHeatmap({
     }: {
       cell: { serieId: string; data: { x: string | number }; formattedValue: string | null };
     }) => (
-      <div className="rounded bg-white px-2 py-1 text-xs shadow">
+      <div className="rounded bg-white px-2 py-1 text-xs whitespace-nowrap shadow">
         <strong>{nameOf.get(cell.serieId)}</strong> and{" "}
         <strong>{nameOf.get(String(cell.data.x))}</strong>: cosine {cell.formattedValue ?? "—"}
       </div>

@@ -65,9 +65,15 @@ export const CHART_THEME: ChartTheme = {
   },
 };
 
-/** Shortens long user-given names (shard ids, class names) on an axis; tooltips show them whole. */
+/**
+ * Shortens long user-given names (shard ids, class names) on an axis; tooltips and the per-shard
+ * table show them whole. Keeps both ends, since shard names often share a prefix and differ only
+ * at the end ("north-valley-orchard-07" vs "…-12").
+ */
 export function shortenLabel(label: string, length = 14): string {
-  return label.length > length ? `${label.slice(0, length - 1)}…` : label;
+  if (label.length <= length) return label;
+  const tail = Math.max(3, Math.floor((length - 1) / 3));
+  return `${label.slice(0, length - 1 - tail)}…${label.slice(-tail)}`;
 }
 
 /** A colour `weight` of the way from `from` to `to` (both #rrggbb), mixed channel by channel. */

@@ -89,7 +89,7 @@ export function DivergenceChart({
           role="img"
           ariaLabel={`${label} Measure: ${DIVERGENCE_NAMES[metric]}.`}
           tooltip={({ indexValue, value }) => (
-            <div className="rounded bg-white px-2 py-1 text-xs shadow">
+            <div className="rounded bg-white px-2 py-1 text-xs whitespace-nowrap shadow">
               <strong>{nameOf.get(String(indexValue))}</strong>: {value.toPrecision(3)}
             </div>
           )}

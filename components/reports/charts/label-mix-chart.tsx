@@ -61,7 +61,7 @@ export function LabelMixChart({
           role="img"
           ariaLabel={label}
           tooltip={({ id, value, indexValue, data }) => (
-            <div className="rounded bg-white px-2 py-1 text-xs shadow">
+            <div className="rounded bg-white px-2 py-1 text-xs whitespace-nowrap shadow">
               <strong>{nameOf.get(String(indexValue))}</strong>:{" "}
               {categories[Number(String(id).slice(1))]} {(value * 100).toFixed(1)} % (about{" "}
               {Math.round(value * data.rows)} of {data.rows} rows)

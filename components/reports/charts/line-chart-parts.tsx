@@ -11,7 +11,7 @@ type AnySeries = { id: string | number; data: readonly { x: number; y: number }[
 export function makeSliceTooltip(heading: (x: string) => string) {
   return function SliceTooltip<Series extends AnySeries>({ slice }: SliceTooltipProps<Series>) {
     return (
-      <div className="rounded bg-white px-2 py-1 text-xs shadow">
+      <div className="rounded bg-white px-2 py-1 text-xs whitespace-nowrap shadow">
         <div className="font-semibold">{heading(String(slice.points[0]?.data.x))}</div>
         {slice.points.map((point) => (
           <div key={point.id} style={{ color: point.seriesColor }}>

@@ -1,12 +1,15 @@
 "use client";
 
-import { ResponsiveLine } from "@nivo/line";
+import { ResponsiveLine, type LineCustomSvgLayerProps } from "@nivo/line";
 import { formatDecade, formatFigure, spanDecades } from "@/lib/reports/report-view";
 import { CHART_THEME, PALETTE } from "./chart-style";
 
+type PathSeries = { id: string; data: { x: number; y: number }[] };
+
 /**
  * ζ² at W_t = t·W* from the training start (t = 0) to the optimum (t = 1), with the heterogeneity
- * barrier H²B²/R drawn across: ζ² at t = 1 on or above the line means the barrier holds.
+ * barrier H²B²/R drawn across. Only the point at t = 1 (ζ*²) is compared with the line, so it is
+ * ringed and named; the others inform ζ² max, which the local SGD bound uses.
  */
 export function PathChart({
   points,
@@ -22,7 +25,7 @@ export function PathChart({
   const decades = spanDecades(values);
   return (
     <div className="h-[300px] w-full">
-      <ResponsiveLine
+      <ResponsiveLine<PathSeries>
         data={[{ id: "ζ²", data: points.map((point) => ({ x: point.t, y: point.zeta2 })) }]}
         xScale={{ type: "linear", min: 0, max: 1 }}
         yScale={
@@ -56,22 +59,45 @@ export function PathChart({
             axis: "y",
             value: barrierThreshold,
             lineStyle: { stroke: PALETTE.cadmium, strokeWidth: 1.5, strokeDasharray: "5 4" },
-            legend: "barrier H²B²/R",
+            legend: "barrier H²B²/R (compared with ζ*² at t = 1)",
             legendPosition: "top-right",
             textStyle: { fontSize: 11, fill: PALETTE.cadmium },
           },
         ]}
+        layers={["grid", "markers", "axes", "lines", "points", OptimumRing, "mesh"]}
         useMesh
         theme={CHART_THEME}
         animate={false}
         role="img"
         ariaLabel={label}
         tooltip={({ point }) => (
-          <div className="rounded bg-white px-2 py-1 text-xs shadow">
-            t = {String(point.data.x)}: ζ² = {formatFigure(Number(point.data.y), 4)}
+          <div className="rounded bg-white px-2 py-1 text-xs whitespace-nowrap shadow">
+            t = {String(point.data.x)}: {point.data.x === 1 ? "ζ*²" : "ζ²"} ={" "}
+            {formatFigure(Number(point.data.y), 4)}
           </div>
         )}
       />
     </div>
+  );
+}
+
+/** A ring and a name around the point at the optimum: the one value the barrier is about. */
+function OptimumRing({ points }: Pick<LineCustomSvgLayerProps<PathSeries>, "points">) {
+  const optimum = points.find((point) => point.data.x === 1);
+  if (!optimum) return null;
+  return (
+    <g aria-hidden>
+      <circle
+        cx={optimum.x}
+        cy={optimum.y}
+        r={9}
+        fill="none"
+        stroke={PALETTE.ink}
+        strokeWidth={1.5}
+      />
+      <text x={optimum.x - 12} y={optimum.y - 14} textAnchor="end" fontSize={11} fill={PALETTE.ink}>
+        ζ*²
+      </text>
+    </g>
   );
 }

@@ -104,7 +104,7 @@ export function RegimeMapChart({ map, label }: { map: RegimeMap; label: string }
           role="img"
           ariaLabel={label}
           tooltip={({ cell }) => (
-            <div className="rounded bg-white px-2 py-1 text-xs shadow">
+            <div className="rounded bg-white px-2 py-1 text-xs whitespace-nowrap shadow">
               K = {cell.serieId.slice(1)}, R = {String(cell.data.x).slice(1)}: ρ ={" "}
               {cell.value === null ? "—" : formatFigure(10 ** cell.value, 3)} (
               {VERDICT_LABELS[classifyRegimeCell(cell.value)].toLowerCase()})
