@@ -209,7 +209,13 @@ export async function listShardIds(reportId: string, limit: number): Promise<str
 /** The stored summary for the JSON export, or undefined outside the workspace. */
 export async function findReportSummary(workspaceId: string, reportId: string) {
   const [row] = await db()
-    .select({ title: reports.title, version: reports.version, summary: reports.summary })
+    .select({
+      title: reports.title,
+      version: reports.version,
+      summary: reports.summary,
+      inputs: reports.inputs,
+      parameters: reports.parameters,
+    })
     .from(reports)
     .where(and(eq(reports.workspaceId, workspaceId), eq(reports.id, reportId)));
   return row;

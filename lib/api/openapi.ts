@@ -179,7 +179,8 @@ export function createApiDocument() {
       "/api/v1/reports/{reportId}": {
         get: operation({
           operationId: "getReportSummary",
-          summary: "A report's JSON summary (the CLI's output)",
+          summary:
+            "A report's JSON summary (the CLI's output, then `inputs`: files and parameters)",
           requestParams: { path: reportPathSchema },
           success: ["200", "The summary.", partitionSummarySchema],
           failures: ["404", "422"],

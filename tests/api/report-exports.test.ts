@@ -42,7 +42,7 @@ beforeAll(async () => {
 });
 
 describe("GET …/reports/[reportId]/summary.json", () => {
-  it("returns what the CLI printed for the same input and parameters, as a download", async () => {
+  it("returns what the CLI printed, plus the inputs as analysed, as a download", async () => {
     actAs(team.reviewer);
     const response = await call(getSummaryJson, team.workspaceId, reportId);
     expect(response.status).toBe(200);
@@ -50,9 +50,16 @@ describe("GET …/reports/[reportId]/summary.json", () => {
     expect(response.headers.get("content-disposition")).toBe(
       'attachment; filename="penguins-by-island-v1.summary.json"',
     );
-    // Byte for byte: the same keys in the same order, the same numbers, the same layout.
+    // Byte for byte what the CLI printed (the same keys in the same order, the same numbers, the
+    // same layout), followed by the inputs as analysed, so the file stands on its own.
     const text = await response.text();
-    expect(text).toBe(cliOutput);
+    const { inputs, ...summary } = JSON.parse(text) as PartitionSummary & { inputs: unknown };
+    expect(`${JSON.stringify(summary, null, 2)}\n`).toBe(cliOutput);
+    expect(text.startsWith(cliOutput.slice(0, -3))).toBe(true);
+    expect(inputs).toEqual({
+      files: [{ kind: "dataset", name: "penguins.csv", sizeBytes: 15_000, sha256: "0".repeat(64) }],
+      parameters: expect.objectContaining({ labelColumn: "Species", shardColumn: "Island" }),
+    });
     const exported = JSON.parse(text) as PartitionSummary;
     // The island split of methods.md's test data: three shards in code-point order.
     expect(exported.shards.map((shard) => shard.id)).toEqual(["Biscoe", "Dream", "Torgersen"]);

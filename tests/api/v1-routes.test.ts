@@ -272,13 +272,18 @@ describe("/api/v1 access", () => {
 });
 
 describe("/api/v1 answers", () => {
-  it("serves the report's summary byte for byte as the CLI printed it", async () => {
+  it("serves the report's summary as the CLI printed it, with its inputs appended", async () => {
     const response = await getReport(
       apiRequest(`/api/v1/reports/${fixtures.reportId}`, fixtures.tokens.reviewer),
       { params: Promise.resolve({ reportId: fixtures.reportId }) },
     );
     expect(response.headers.get("content-type")).toBe("application/json; charset=utf-8");
-    expect(await response.text()).toBe(fixtures.cliOutput);
+    const text = await response.text();
+    // The CLI's bytes up to its closing brace, then the inputs as analysed.
+    expect(text.startsWith(fixtures.cliOutput.slice(0, -3))).toBe(true);
+    expect(JSON.parse(text).inputs.files).toEqual([
+      { kind: "dataset", name: "penguins.csv", sizeBytes: 15_000, sha256: "0".repeat(64) },
+    ]);
   });
 
   it("lists reports and analysis status in the documented shapes", async () => {
