@@ -85,6 +85,9 @@ async function main(): Promise<number> {
         options,
         onProgress: createProgressPrinter(),
         onSimulationProgress: createSimulationProgressPrinter(),
+        onAnalysisStarted: ({ id }) =>
+          process.stderr.write(`partita: analysis ${id} started on ${flags.server}\n`),
+        onReportStored: ({ id, url }) => process.stderr.write(`partita: report ${id}: ${url}\n`),
       })
     : await analyzeLocally(flags, options, dataSize);
   if (flags.out) writeFileSync(flags.out, json);

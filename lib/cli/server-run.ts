@@ -18,6 +18,9 @@ export type ServerRunRequest = {
   onProgress: (progress: AnalysisProgress) => void;
   /** The simulation's run and round (options.simulate), as the server last stored them. */
   onSimulationProgress?: (progress: SimulationProgress) => void;
+  /** The analysis as soon as the server accepted it, and the report once it is stored. */
+  onAnalysisStarted?: (analysis: { id: string }) => void;
+  onReportStored?: (report: { id: string; url: string }) => void;
   pollIntervalMs?: number;
 };
 
@@ -114,7 +117,8 @@ export class ServerAnalysisError extends Error {
  */
 export async function runOnServer(request: ServerRunRequest): Promise<string> {
   const api = createApiClient(request.server, request.token);
-  await api.getJson("/api/v1/workspace"); // a bad token or address fails before any upload
+  // A bad token or address fails here, before any upload; the workspace names the report's page.
+  const { workspace } = await api.getJson<{ workspace: { id: string } }>("/api/v1/workspace");
   const datasetFileId = await uploadFile(api, request.dataPath, "dataset");
   const layoutFileId = request.partitionPath
     ? await uploadFile(api, request.partitionPath, "layout")
@@ -128,11 +132,14 @@ export async function runOnServer(request: ServerRunRequest): Promise<string> {
     weightsFileId,
     options: request.options,
   });
+  request.onAnalysisStarted?.({ id: analysisId });
   for (;;) {
     const status = await api.getJson<AnalysisStatus>(`/api/v1/analyses/${analysisId}`);
     if (status.stage) request.onProgress({ stage: status.stage, fraction: status.fraction });
     if (status.simulation) request.onSimulationProgress?.(status.simulation);
     if (status.status === "succeeded" && status.reportId) {
+      const url = new URL(`/w/${workspace.id}/reports/${status.reportId}`, request.server);
+      request.onReportStored?.({ id: status.reportId, url: url.toString() });
       return api.getText(`/api/v1/reports/${status.reportId}`);
     }
     if (status.status === "failed" || status.status === "cancelled") {

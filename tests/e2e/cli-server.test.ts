@@ -74,6 +74,10 @@ describe("npm run analyze -- --server", () => {
     // Polled once a second, so a quick run may show some of its stages or none (it can finish
     // before the first poll); the human summary on stderr always comes.
     expect(run.stderr).toMatch(/rows \d+, features \d+, classification/);
+    // The report's id and page, so a pipeline can link to what it just made.
+    const stored = run.stderr.match(/partita: report ([\w-]+): (\S+)\n/);
+    expect(stored?.[2]).toMatch(new RegExp(`/w/[\\w-]+/reports/${stored?.[1]}$`));
+    expect(run.stderr).toMatch(/partita: analysis [\w-]+ started on http/);
     const remote = JSON.parse(run.stdout) as Summary;
     expect(remote.shards.map((shard) => [shard.id, shard.rows])).toEqual(
       local.shards.map((shard) => [shard.id, shard.rows]),
