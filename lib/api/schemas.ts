@@ -122,7 +122,10 @@ const ANALYSIS_STAGES = ["reading", "encoding", "fitting", "measuring", "advisin
 export const analysisStatusSchema = z
   .object({
     status: z.enum(["queued", "running", "succeeded", "failed", "cancelled"]),
-    stage: z.enum(ANALYSIS_STAGES).nullable(),
+    stage: z.enum(ANALYSIS_STAGES).nullable().meta({
+      description:
+        "The engine's stage. Always set while running (reading until the worker reports otherwise); null while queued.",
+    }),
     fraction: z.number().meta({ description: "Progress within the stage, 0 to 1." }),
     progress: z.number().meta({ description: "Overall progress, 0 to 1, simulation included." }),
     failureMessage: z.string().nullable(),

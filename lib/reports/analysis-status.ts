@@ -4,6 +4,7 @@ import type { AnalysisStage, SimulationProgress } from "@/lib/analysis";
 /** What GET /api/workspaces/[workspaceId]/analyses/[analysisId] answers. */
 export interface AnalysisStatusJson {
   status: AnalysisStatusView["status"];
+  /** The engine's stage: always set while running; null while queued. */
   stage: AnalysisStage | null;
   /** Progress within `stage`, 0 to 1. */
   fraction: number;
@@ -29,8 +30,9 @@ export interface AnalysisStatusJson {
 export function toStatusJson(view: AnalysisStatusView): AnalysisStatusJson {
   return {
     status: view.status,
-    // Only the worker writes the stage, and only the engine's stage names.
-    stage: view.stage as AnalysisStage | null,
+    // Only the worker writes the stage, and only the engine's stage names. A running analysis
+    // whose worker has not reported yet is reading its input: callers never see a running null.
+    stage: (view.stage as AnalysisStage | null) ?? (view.status === "running" ? "reading" : null),
     fraction: view.fraction,
     failureMessage: view.failureMessage,
     attempts: view.attempts,
