@@ -16,6 +16,7 @@ import { ReferenceStep } from "@/components/analyses/reference-step";
 import { StartSection } from "@/components/analyses/start-section";
 import { useFeatureChoice } from "@/components/analyses/use-feature-choice";
 import type { DataFileSummary } from "@/db/queries/data-files";
+import { guessColumns } from "@/lib/uploads/guess-columns";
 
 export interface WorkspaceFiles {
   datasets: DataFileSummary[];
@@ -38,7 +39,7 @@ export function AnalysisSteps({
   initialFiles: WorkspaceFiles;
   featuresInitiallyChosen: boolean;
 }) {
-  const { control } = useFormContext<AnalysisFormValues>();
+  const { control, getValues, setValue } = useFormContext<AnalysisFormValues>();
   const values = useWatch({ control }) as AnalysisFormValues;
   const { options } = values;
   const setChoice = useSetChoice();
@@ -59,7 +60,17 @@ export function AnalysisSteps({
 
   function chooseDataset(file: DataFileSummary) {
     setChoice("datasetFileId", file.id);
-    featureChoice.followDataset((file.preview?.columns ?? []).map((column) => column.name));
+    const names = (file.preview?.columns ?? []).map((column) => column.name);
+    // A first dataset gets guessed roles (a re-run or an earlier choice keeps its own); the layout
+    // follows what the file holds: its shard column, or a partition map when it has none.
+    if (file.preview && !getValues("options.labelColumn")) {
+      const guess = guessColumns(file.preview);
+      setValue("options.labelColumn", guess.labelColumn);
+      if (!getValues("options.idColumn")) setValue("options.idColumn", guess.idColumn);
+      setValue("options.shardColumn", guess.shardColumn);
+      setValue("layoutSource", guess.shardColumn ? "column" : "file");
+    }
+    featureChoice.followDataset(names);
   }
 
   const layoutName =
