@@ -10,7 +10,7 @@ export function ComparisonTable({
 }) {
   const groups = [...new Set(rows.map((row) => row.group))];
   return (
-    <div className="overflow-x-auto rounded-lg border border-ink/10 bg-white">
+    <div className="relative overflow-x-auto rounded-lg border border-ink/10 bg-white">
       <table className="w-full text-left text-sm">
         <caption className="sr-only">
           Key figures of the two reports; rows marked “differs” have different values.

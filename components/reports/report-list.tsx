@@ -57,7 +57,7 @@ export function ReportList({
             : `Tick two reports to compare them (${picked.length} of 2).`}
         </span>
       </div>
-      <div className="overflow-x-auto rounded-lg border border-ink/10 bg-white">
+      <div className="relative overflow-x-auto rounded-lg border border-ink/10 bg-white">
         <table className="w-full text-left text-sm">
           <caption className="sr-only">Reports, newest first</caption>
           <thead className="bg-paper-deep/60 text-xs text-ink-soft">

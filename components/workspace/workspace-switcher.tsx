@@ -21,7 +21,7 @@ export function WorkspaceSwitcher({
           ▾
         </span>
       </summary>
-      <ul className="absolute left-0 z-20 mt-1 w-72 rounded-md border border-ink/10 bg-white p-1 shadow-lg">
+      <ul className="absolute left-0 z-20 mt-1 w-72 max-w-[calc(100vw-2rem)] rounded-md border border-ink/10 bg-white p-1 shadow-lg">
         {workspaces.map((workspace) => (
           <li key={workspace.id}>
             <Link

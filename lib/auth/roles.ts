@@ -44,3 +44,26 @@ export const ROLE_DESCRIPTIONS: Record<Role, string> = {
   analyst: "Uploads datasets and layouts, runs analyses, publishes reports.",
   reviewer: "Reads reports, comments, endorses layouts or returns them for rework.",
 };
+
+/** What each capability lets a person do, worded to finish "Only … may …" on a refusal. */
+export const CAPABILITY_DESCRIPTIONS: Record<Capability, string> = {
+  readWorkspace: "read this workspace",
+  manageMembers: "manage members and invitations",
+  uploadData: "upload data and start analyses",
+  runAnalysis: "start analyses",
+  manageApiTokens: "hold API tokens",
+  revokeAnyApiToken: "revoke other people's API tokens",
+  requestReview: "refer reports for review",
+  commentOnReport: "comment on reports",
+  decideReview: "endorse or return reports",
+  deleteReport: "delete reports",
+  readAuditLog: "read the audit log",
+};
+
+/** The role names that hold a capability, joined for a sentence: "owners and analysts". */
+export function describeHolders(capability: Capability): string {
+  const names = (CAPABILITIES[capability] as readonly Role[]).map(
+    (role) => `${ROLE_LABELS[role].toLowerCase()}s`,
+  );
+  return names.length > 1 ? `${names.slice(0, -1).join(", ")} and ${names.at(-1)}` : names[0];
+}

@@ -146,7 +146,10 @@ describe("starting an analysis in the browser", () => {
       .values({ workspaceId: owner.workspaceId, userId: membership.userId, role: "reviewer" });
 
     await page.goto(`/w/${owner.workspaceId}/analyses/new`);
-    await page.waitForURL(new RegExp(`/w/${owner.workspaceId}$`));
+    await page.waitForURL(new RegExp(`/w/${owner.workspaceId}/not-for-your-role\\?`));
+    // The refusal explains itself instead of a silent redirect.
+    await page.getByRole("heading", { name: "This page is not open to reviewers" }).waitFor();
+    await page.getByText("Only owners and analysts may upload data and start analyses").waitFor();
     expect(await page.getByRole("link", { name: "New analysis" }).count()).toBe(0);
   });
 });

@@ -24,12 +24,16 @@ export default async function WorkspaceLayout({
   return (
     <div className="min-h-screen">
       <header className="no-print border-b border-ink/10 bg-white/70 backdrop-blur">
-        <div className="mx-auto flex max-w-6xl items-center gap-4 px-6 py-3">
+        {/* On a phone the navigation takes a full row of its own and wraps, so no page scrolls sideways. */}
+        <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-x-4 gap-y-2 px-4 py-3 sm:px-6">
           <Link href={base} aria-label="Partita — workspace overview">
             <Wordmark />
           </Link>
           <WorkspaceSwitcher current={workspace} workspaces={workspaces} />
-          <nav aria-label="Workspace" className="flex gap-1 text-sm">
+          <nav
+            aria-label="Workspace"
+            className="order-last flex w-full flex-wrap gap-1 text-sm lg:order-none lg:w-auto"
+          >
             <NavLink href={base} exact>
               Overview
             </NavLink>
@@ -66,7 +70,7 @@ export default async function WorkspaceLayout({
           </div>
         </div>
       </header>
-      <main className="mx-auto max-w-6xl px-6 py-10">
+      <main className="mx-auto max-w-6xl px-4 py-6 sm:px-6 sm:py-10">
         <QueryProvider>{children}</QueryProvider>
       </main>
     </div>

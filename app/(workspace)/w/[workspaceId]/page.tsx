@@ -92,6 +92,11 @@ export default async function WorkspaceOverviewPage({
               ? "To start a report you will need the three things below."
               : "As a reviewer you will find reports here once analysts publish them; you can comment on them and endorse a layout or return it for rework."}
           </p>
+          {canUpload ? (
+            <Link href={`/w/${workspace.id}/analyses/new`} className={buttonClasses("primary")}>
+              Start your first analysis
+            </Link>
+          ) : null}
         </div>
         <figure className="rounded-lg border border-ink/10 bg-white p-4">
           <LabelMixSketch />

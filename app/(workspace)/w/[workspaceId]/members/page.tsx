@@ -30,9 +30,10 @@ export default async function MembersPage({
   ]);
   return (
     <div className="grid gap-8 lg:grid-cols-[1.6fr_1fr]">
-      <section className="space-y-4">
+      {/* min-w-0 lets the grid column shrink to a phone's width; the table then scrolls inside. */}
+      <section className="min-w-0 space-y-4">
         <h1 className="text-2xl font-semibold">Members</h1>
-        <div className="overflow-hidden rounded-lg border border-ink/10 bg-white">
+        <div className="relative overflow-x-auto rounded-lg border border-ink/10 bg-white">
           <table className="w-full text-sm">
             <thead className="bg-paper-deep text-left text-xs tracking-wide text-ink-soft uppercase">
               <tr>
@@ -57,7 +58,7 @@ export default async function MembersPage({
                         <span className="ml-2 text-xs text-ink-soft">(you)</span>
                       ) : null}
                     </span>
-                    <span className="block text-xs text-ink-soft">{member.email}</span>
+                    <span className="block text-xs break-all text-ink-soft">{member.email}</span>
                   </td>
                   <td className="px-4 py-3 text-ink-soft">{dateFormat.format(member.since)}</td>
                   <td className="px-4 py-3 text-right">

@@ -1,0 +1,153 @@
+// Every signed-in page at a phone's width (390 px) and a desktop's (1440 px) in Chromium: nothing
+// scrolls sideways, the navigation reaches every page, and the report's charts and key figures are
+// there. The report is the CLI's summary of penguins (vega-datasets, BSD-3) split by island, stored
+// the way the worker stores it. Set E2E_SCREENSHOTS to a folder to keep a picture of each page.
+import path from "node:path";
+import { eq } from "drizzle-orm";
+import type { Page } from "playwright-core";
+import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
+import { closeDb, db } from "@/db/client";
+import { users } from "@/db/schema";
+import { uniqueEmail } from "@/tests/support/accounts";
+import { analyzePenguinsWithCli, insertReport } from "@/tests/support/report-fixtures";
+import { openBrowser, type BrowserSession } from "./support/browser";
+
+let browser: BrowserSession | undefined;
+afterEach(async () => {
+  await browser?.close();
+  browser = undefined;
+});
+afterAll(closeDb);
+
+const email = uniqueEmail("widths");
+const password = "a phone and desk password";
+let workspacePath = "";
+let reportId = "";
+
+/**
+ * Page width beyond the viewport (0 when nothing scrolls sideways), with the innermost elements
+ * that stick out, so a failure says where to look.
+ */
+function sidewaysOverflow(page: Page): Promise<{ overflow: number; offenders: string[] }> {
+  return page.evaluate(() => {
+    const width = document.documentElement.clientWidth;
+    const overflow = document.documentElement.scrollWidth - width;
+    if (overflow <= 0) return { overflow: 0, offenders: [] };
+    const sticking = [...document.body.querySelectorAll("*")].filter(
+      (element) => element.getBoundingClientRect().right > width + 1,
+    );
+    const innermost = sticking.filter(
+      (element) => !sticking.some((o) => element.contains(o) && o !== element),
+    );
+    return {
+      overflow,
+      offenders: innermost
+        .slice(0, 5)
+        .map(
+          (element) =>
+            `${element.tagName.toLowerCase()}.${element.className}: ${element.textContent?.slice(0, 40)}`,
+        ),
+    };
+  });
+}
+
+async function keepPicture(page: Page, name: string) {
+  const folder = process.env.E2E_SCREENSHOTS;
+  if (folder) await page.screenshot({ path: path.join(folder, `${name}.png`), fullPage: true });
+}
+
+beforeAll(async () => {
+  const summary = await analyzePenguinsWithCli();
+  const session = await openBrowser();
+  const { page } = session;
+  await page.goto("/sign-up");
+  await page.getByLabel("Your name").fill("Width Tester");
+  await page.getByLabel("E-mail").fill(email);
+  await page.getByLabel("Password").fill(password);
+  await page.getByLabel("Workspace name").fill("Penguins at every width");
+  await page.getByRole("button", { name: "Create account" }).click();
+  await page.waitForURL(/\/w\/[\w-]+$/);
+  workspacePath = new URL(page.url()).pathname;
+  await session.close();
+  const [user] = await db().select({ id: users.id }).from(users).where(eq(users.email, email));
+  ({ reportId } = await insertReport({
+    workspaceId: workspacePath.split("/")[2],
+    authorId: user.id,
+    summary,
+    title: "Penguins by island",
+    createdAt: new Date(Date.UTC(2026, 0, 10, 9)),
+  }));
+});
+
+describe.each([
+  ["phone", 390, 844],
+  ["desktop", 1440, 900],
+])("signed-in pages on a %s (%i px wide)", (device, width, height) => {
+  it("scroll only downwards, and the navigation reaches every page", async () => {
+    browser = await openBrowser();
+    const { page } = browser;
+    await page.setViewportSize({ width, height });
+    await page.goto("/sign-in");
+    await page.getByLabel("E-mail").fill(email);
+    await page.getByLabel("Password").fill(password);
+    await page.getByRole("button", { name: "Sign in" }).click();
+    await page.waitForURL(/\/w\/[\w-]+$/);
+
+    const navigation = page.getByRole("navigation", { name: "Workspace" });
+    const pages = [
+      ["Overview", /\/w\/[\w-]+$/],
+      ["Reports", /\/reports$/],
+      ["New analysis", /\/analyses\/new$/],
+      ["Members", /\/members$/],
+      ["Audit log", /\/audit$/],
+      ["API tokens", /\/tokens$/],
+    ] as const;
+    for (const [name, address] of pages) {
+      await navigation.getByRole("link", { name, exact: true }).click();
+      await page.waitForURL(address);
+      await page.getByRole("heading", { level: 1 }).first().waitFor();
+      expect({ page: name, ...(await sidewaysOverflow(page)) }).toEqual({
+        page: name,
+        overflow: 0,
+        offenders: [],
+      });
+      await keepPicture(page, `${device}-${name.toLowerCase().replace(/ /g, "-")}`);
+    }
+
+    await page.goto(`${workspacePath}/settings/notifications`);
+    await page.getByRole("heading", { level: 1 }).first().waitFor();
+    expect(await sidewaysOverflow(page)).toEqual({ overflow: 0, offenders: [] });
+  });
+
+  it("shows the report with its charts and explained figures, without sideways scrolling", async () => {
+    browser = await openBrowser();
+    const { page } = browser;
+    await page.setViewportSize({ width, height });
+    await page.goto("/sign-in");
+    await page.getByLabel("E-mail").fill(email);
+    await page.getByLabel("Password").fill(password);
+    await page.getByRole("button", { name: "Sign in" }).click();
+    await page.waitForURL(/\/w\/[\w-]+$/);
+    await page.goto(`${workspacePath}/reports/${reportId}`);
+    for (const chart of [
+      "Label mix per shard",
+      "Gradient agreement between shards",
+      "Regime map",
+    ]) {
+      await page.getByRole("region", { name: chart }).locator("svg").first().waitFor();
+    }
+    const figures = page.getByRole("region", { name: "Key figures" });
+    expect(
+      await figures.getByText(/of all per-row gradient variance lies between shards/).count(),
+    ).toBe(1);
+    expect(await figures.getByText(/× the barrier H²B²\/R/).count()).toBe(1);
+    expect(await page.getByText("(from memory)").count()).toBe(0);
+    expect(await sidewaysOverflow(page)).toEqual({ overflow: 0, offenders: [] });
+    await keepPicture(page, `${device}-report`);
+
+    await page.goto(`${workspacePath}/reports/compare?a=${reportId}&b=${reportId}`);
+    await page.getByRole("heading", { level: 1 }).first().waitFor();
+    expect(await sidewaysOverflow(page)).toEqual({ overflow: 0, offenders: [] });
+    await keepPicture(page, `${device}-compare`);
+  });
+});
