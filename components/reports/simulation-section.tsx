@@ -84,9 +84,12 @@ export function SimulationSection({ summary }: { summary: PartitionSummary }) {
         </h3>
         <p className="mt-1 max-w-prose text-sm text-ink-soft">
           How far each algorithm&apos;s model is from the optimum of the reference objective after
-          every round, on a logarithmic scale; lower is better.
+          every round, on a logarithmic scale; lower is better. Each line is the mean over the
+          seeds; the shaded band around it, edged by thin dashed lines, spans the best and worst
+          seed.
         </p>
-        <div className="mt-4 max-w-[680px]">
+        {/* The whole card's width on screen; within an A4 page's text width in print. */}
+        <div className="mt-4 print:max-w-[680px]">
           {series.some((entry) => entry.points.length > 0) ? (
             <SimulationCurvesChart
               series={series}
@@ -108,7 +111,7 @@ export function SimulationSection({ summary }: { summary: PartitionSummary }) {
         ) : null}
       </div>
 
-      <div className="overflow-x-auto rounded-md border border-ink/10 bg-white">
+      <div className="relative overflow-x-auto rounded-md border border-ink/10 bg-white">
         <table className="w-full text-left text-sm">
           <caption className="sr-only">
             Each algorithm&apos;s chosen step size, final suboptimality and diverged seeds

@@ -51,20 +51,33 @@ export function SimulationCurvesChart({
           .reverse()
           .map((point) => `${xScale(point.round)},${yScale(point.min)}`);
         return (
-          <path
-            key={entry.name}
-            d={`M${[...upper, ...lower].join("L")}Z`}
-            fill={ALGORITHM_COLOURS[entry.name]}
-            fillOpacity={0.15}
-            stroke="none"
-          />
+          <g key={entry.name}>
+            <path
+              d={`M${[...upper, ...lower].join("L")}Z`}
+              fill={ALGORITHM_COLOURS[entry.name]}
+              fillOpacity={0.28}
+              stroke="none"
+            />
+            {/* Dashed edges keep a thin band visible where the seeds nearly agree. */}
+            {[upper, lower].map((edge, index) => (
+              <path
+                key={index}
+                d={`M${edge.join("L")}`}
+                fill="none"
+                stroke={ALGORITHM_COLOURS[entry.name]}
+                strokeOpacity={0.7}
+                strokeWidth={1}
+                strokeDasharray="3 3"
+              />
+            ))}
+          </g>
         );
       })}
     </g>
   );
   return (
     <div>
-      <div className="h-[320px] w-full">
+      <div className="h-[360px] w-full">
         <ResponsiveLine<LineSeries>
           data={drawn.map((entry) => ({
             id: entry.label,
