@@ -1,5 +1,6 @@
 "use client";
 
+import { useEffect } from "react";
 import { useFormContext } from "react-hook-form";
 import { FormField, WHOLE_NUMBER } from "@/components/analyses/analysis-fields";
 import { useFieldError } from "@/components/analyses/analysis-form-hooks";
@@ -16,9 +17,15 @@ export function SimulationFieldset({
   workspaceId: string;
   values: AnalysisFormValues;
 }) {
-  const { register } = useFormContext<AnalysisFormValues>();
+  const { register, clearErrors } = useFormContext<AnalysisFormValues>();
   const estimate = useSimulationEstimate(workspaceId, values);
   const error = useFieldError("options.simulate");
+  // The server's over-budget refusal sits on this field until the next submit; once a changed plan
+  // is estimated within the budget it no longer holds, so it goes.
+  const withinBudget = estimate.data ? estimate.data.refusal === null : false;
+  useEffect(() => {
+    if (withinBudget) clearErrors("options.simulate");
+  }, [withinBudget, clearErrors]);
   return (
     <fieldset
       className="space-y-3 rounded-md border border-ink/10 bg-white p-4"
