@@ -61,7 +61,15 @@ const FIGURES: Figure[] = [
   ["Heterogeneity", "B", ({ summary }) => formatFigure(summary.model.distance)],
   ["Skew", "Label skew, TV (weighted mean)", ({ summary }) => formatFigure(summary.labelSkew.tv)],
   ["Skew", "Label skew, JS (weighted mean)", ({ summary }) => formatFigure(summary.labelSkew.js)],
-  ["Skew", "Dirichlet α̂", ({ summary }) => formatFigure(summary.labelSkew.dirichletAlpha)],
+  ["Skew", "Dirichlet α̂ (total)", ({ summary }) => formatFigure(summary.labelSkew.dirichletAlpha)],
+  [
+    "Skew",
+    "Dirichlet α̂ per class (α̂/C)",
+    ({ summary }) =>
+      formatFigure(
+        summary.labelSkew.dirichletAlpha / Math.max(1, summary.labelSkew.categories.length),
+      ),
+  ],
   ["Skew", "Quantity skew, Gini", ({ summary }) => formatFigure(summary.quantitySkew.gini)],
   ["Skew", "Quantity skew, CV", ({ summary }) => formatFigure(summary.quantitySkew.cv)],
   ["Data", "Rows kept", ({ summary }) => summary.dataset.rows.toLocaleString("en-US")],

@@ -109,7 +109,10 @@ describe("starting an analysis in the browser", () => {
     // "Run again" starts from the same choices.
     await page.goto(`/w/${workspaceId}/analyses/new?from=${analysisId}`);
     // The form fills its fields once it runs in the browser.
-    await expect.poll(() => page.getByLabel("Id column (optional)").inputValue()).toBe("row");
+    // (Hydration can take seconds on a busy machine: wait for it rather than for a fixed second.)
+    await expect
+      .poll(() => page.getByLabel("Id column (optional)").inputValue(), { timeout: 60_000 })
+      .toBe("row");
     expect(await page.getByLabel("Rounds (R)").inputValue()).toBe("50");
     expect(await page.getByRole("checkbox", { name: /^Island/ }).isChecked()).toBe(false);
   });

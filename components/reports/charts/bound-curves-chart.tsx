@@ -14,7 +14,10 @@ const SERIES = [
   { id: "Accelerated minibatch SGD", key: "acceleratedMinibatch", colour: PALETTE.inkFaint },
 ] as const;
 
-/** The three bounds against local steps K on log–log axes, the plan's K and the crossover marked. */
+/**
+ * The three bounds against local steps K on log–log axes, the plan's K (dashed) and the crossover
+ * (solid) marked by vertical lines that the key below names.
+ */
 export function BoundCurvesChart({
   points,
   planLocalSteps,
@@ -64,9 +67,6 @@ export function BoundCurvesChart({
               axis: "x",
               value: planLocalSteps,
               lineStyle: { ...markerLine(PALETTE.ink), strokeDasharray: "4 3" },
-              legend: `your plan, K = ${planLocalSteps}`,
-              legendPosition: "top-left",
-              textStyle: { fontSize: 11, fill: PALETTE.ink },
             },
             ...(crossoverLocalSteps === null
               ? []
@@ -75,9 +75,6 @@ export function BoundCurvesChart({
                     axis: "x" as const,
                     value: crossoverLocalSteps,
                     lineStyle: markerLine(PALETTE.verdigris),
-                    legend: `crossover, K = ${crossoverLocalSteps}`,
-                    legendPosition: "bottom-right" as const,
-                    textStyle: { fontSize: 11, fill: PALETTE.verdigris },
                   },
                 ]),
           ]}
@@ -90,7 +87,22 @@ export function BoundCurvesChart({
           ariaLabel={label}
         />
       </div>
-      <LineLegend entries={SERIES.map((series) => ({ label: series.id, colour: series.colour }))} />
+      {/* The vertical lines are named in the key, not on the plot, where names ran into curves. */}
+      <LineLegend entries={SERIES.map((series) => ({ label: series.id, colour: series.colour }))}>
+        <li className="flex items-center gap-1.5">
+          <span
+            aria-hidden
+            className="inline-block h-3 border-l-[1.5px] border-dashed border-ink"
+          />
+          your plan, K = {planLocalSteps}
+        </li>
+        {crossoverLocalSteps === null ? null : (
+          <li className="flex items-center gap-1.5">
+            <span aria-hidden className="inline-block h-3 border-l-[1.5px] border-verdigris" />
+            crossover, K = {crossoverLocalSteps}
+          </li>
+        )}
+      </LineLegend>
     </div>
   );
 }

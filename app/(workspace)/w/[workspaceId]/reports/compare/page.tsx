@@ -1,12 +1,14 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
+import { BoundCurvesChart } from "@/components/reports/charts/bound-curves-chart";
 import { LabelMixChart } from "@/components/reports/charts/label-mix-chart";
 import { ComparisonTable } from "@/components/reports/comparison-table";
 import { VerdictChip } from "@/components/reports/verdict-chip";
 import { Cautions } from "@/components/workspace/cautions";
 import { findReport, type ReportDetail } from "@/db/queries/reports";
 import { guardPage } from "@/lib/auth/page-guard";
+import { computeBoundCurves, readBoundInputs } from "@/lib/reports/bound-curves";
 import { compareReports } from "@/lib/reports/report-comparison";
 import { buildLabelMix, formatFigure, formatReportDate } from "@/lib/reports/report-view";
 
@@ -135,6 +137,45 @@ export default async function CompareReportsPage({
                     The {mix.shownShards} most divergent of {mix.totalShards} shards.
                   </p>
                 ) : null}
+              </figure>
+            );
+          })}
+        </div>
+      </section>
+      <section aria-labelledby="compare-bounds" className="space-y-3">
+        <h2 id="compare-bounds" className="text-xl font-semibold">
+          Bounds against local steps, for each plan
+        </h2>
+        <p className="max-w-prose text-sm text-ink-soft">
+          Each report&apos;s three convergence bounds as its local steps per round grow, under its
+          own plan; the dashed vertical line is that plan&apos;s K, the solid one where local SGD
+          starts to beat minibatch SGD.
+        </p>
+        <div className="grid gap-6 md:grid-cols-2">
+          {[left, right].map((report, index) => {
+            const curves = computeBoundCurves(readBoundInputs(report.summary));
+            const { participants, localSteps, rounds, batchSize } = report.summary.advice;
+            return (
+              <figure
+                key={`${report.id}-${index}`}
+                className="min-w-0 rounded-lg border border-ink/10 bg-white p-4"
+              >
+                <figcaption className="mb-2 text-sm font-medium">
+                  {index === 0 ? "A" : "B"}: {label(report)} — plan M = {participants}, K ={" "}
+                  {localSteps}, R = {rounds}, b = {batchSize}
+                </figcaption>
+                {curves.drawable ? (
+                  <BoundCurvesChart
+                    points={curves.points}
+                    planLocalSteps={localSteps}
+                    crossoverLocalSteps={curves.crossoverLocalSteps}
+                    label={`Line chart: the bounds of report ${index === 0 ? "A" : "B"} against local steps, its plan's K = ${localSteps} marked.`}
+                  />
+                ) : (
+                  <p className="text-sm text-ink-soft">
+                    The bounds are zero or undefined for this report, so there is nothing to draw.
+                  </p>
+                )}
               </figure>
             );
           })}
