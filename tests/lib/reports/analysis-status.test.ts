@@ -16,6 +16,8 @@ const view = (status: AnalysisStatusView["status"], stage: string | null): Analy
   startedAt: status === "queued" ? null : at,
   finishedAt: null,
   simulationProgress: null,
+  workerLostAt: null,
+  storageUnreachableSince: null,
   reportId: null,
   simulates: false,
 });
