@@ -11,7 +11,7 @@ function report(overrides: Partial<PartitionSummary["advice"]> = {}, zeta2 = 0.0
     advice,
     heterogeneity: { zeta2, zeta2Max: 0.77, zeta2Star: 0.0014, sigma2: 0.009, smoothness: 1.9 },
     model: { distance: 5.7 },
-    labelSkew: { tv: 0.4, js: 0.15, dirichletAlpha: 0.35 },
+    labelSkew: { tv: 0.4, js: 0.15, dirichletAlpha: 0.35, categories: ["a", "b", "c"] },
     quantitySkew: { gini: 0.22, cv: 0.42 },
     dataset: { rows: 344, features: 7, classes: 3 },
     shards: [{}, {}, {}],
@@ -51,5 +51,7 @@ describe("compareReports", () => {
   it("ignores differences below the three digits the page shows", () => {
     const rows = compareReports(report({}, 0.0123451), report({}, 0.0123449));
     expect(rows.find((row) => row.label === "ζ² at the reference")?.differs).toBe(false);
+    // α̂ is the total concentration; per class it is α̂/C (methods.md §4): 0.35 / 3 classes.
+    expect(rows.find((row) => row.label === "Dirichlet α̂ per class (α̂/C)")?.a).toBe("0.117");
   });
 });
