@@ -41,8 +41,12 @@ export async function createTextClient(
   return new LocalDigestClient(name, raw, options);
 }
 
-/** Keys outside §6's contract that differ by construction: how the fit got there, the notes. */
-const SKIPPED = new Set(["engineVersion", "optimizer", "warnings", "digests"]);
+/**
+ * Keys outside §6's contract that differ by construction: how the fit got there, the notes, and the
+ * text format each client read its own files in (the coordinator never sees their text, so the
+ * merged summary states none).
+ */
+const SKIPPED = new Set(["engineVersion", "optimizer", "warnings", "digests", "format"]);
 /** Regression label skew comes from a 4096-cell histogram (methods.md §9's stated exception). */
 const HISTOGRAM_KEYS = new Set([
   "labelSkew",
