@@ -15,6 +15,7 @@ import { SeededRandom } from "@/lib/math/random";
 import { uniqueEmail } from "@/tests/support/accounts";
 import { issueTestToken } from "@/tests/support/api-tokens";
 import { baseUrl, openBrowser, type BrowserSession } from "./support/browser";
+import { signUpThroughForm } from "./support/sign-up";
 
 const CLIENTS = 100_000;
 const ROWS_PER_CLIENT = 2;
@@ -76,13 +77,12 @@ beforeAll(async () => {
   writeClientData();
   browser = await openBrowser();
   const { page } = browser;
-  await page.goto("/sign-up");
-  await page.getByLabel("Your name").fill("Federated Lead");
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill(password);
-  await page.getByLabel("Workspace name").fill("Federated clients");
-  await page.getByRole("button", { name: "Create account" }).click();
-  await page.waitForURL(/\/w\/[\w-]+$/);
+  await signUpThroughForm(page, {
+    name: "Federated Lead",
+    email,
+    password,
+    workspaceName: "Federated clients",
+  });
   workspacePath = new URL(page.url()).pathname;
   workspaceId = workspacePath.split("/")[2];
   const [user] = await db().select({ id: users.id }).from(users).where(eq(users.email, email));

@@ -11,6 +11,7 @@ import { users } from "@/db/schema";
 import { uniqueEmail } from "@/tests/support/accounts";
 import { analyzePenguinsWithCli, insertReport } from "@/tests/support/report-fixtures";
 import { openBrowser, type BrowserSession } from "./support/browser";
+import { signUpThroughForm } from "./support/sign-up";
 
 let browser: BrowserSession | undefined;
 afterEach(async () => {
@@ -60,13 +61,12 @@ beforeAll(async () => {
   const summary = await analyzePenguinsWithCli();
   const session = await openBrowser();
   const { page } = session;
-  await page.goto("/sign-up");
-  await page.getByLabel("Your name").fill("Width Tester");
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill(password);
-  await page.getByLabel("Workspace name").fill("Penguins at every width");
-  await page.getByRole("button", { name: "Create account" }).click();
-  await page.waitForURL(/\/w\/[\w-]+$/);
+  await signUpThroughForm(page, {
+    name: "Width Tester",
+    email,
+    password,
+    workspaceName: "Penguins at every width",
+  });
   workspacePath = new URL(page.url()).pathname;
   await session.close();
   const [user] = await db().select({ id: users.id }).from(users).where(eq(users.email, email));
