@@ -5,6 +5,7 @@ import {
   markMailSent,
 } from "@/db/queries/mail-outbox";
 import { env } from "@/lib/env";
+import { pause } from "@/lib/pause";
 import { sendMail, type OutgoingMail } from "./send";
 
 /**
@@ -76,16 +77,4 @@ export async function runMailSender(options: MailSenderOptions): Promise<void> {
     // A full batch may mean more is waiting: look again at once.
     if (claimed < batchSize) await pause(options.pollMs, options.signal);
   }
-}
-
-function pause(ms: number, signal: AbortSignal): Promise<void> {
-  return new Promise((resolve) => {
-    const timer = setTimeout(done, ms);
-    function done() {
-      clearTimeout(timer);
-      signal.removeEventListener("abort", done);
-      resolve();
-    }
-    signal.addEventListener("abort", done, { once: true });
-  });
 }

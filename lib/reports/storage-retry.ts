@@ -1,5 +1,6 @@
 import { clearStorageUnreachable, recordStorageUnreachable } from "@/db/queries/analyses";
 import type { AnalysisJob } from "@/lib/jobs";
+import { pause } from "@/lib/pause";
 import { StorageUnreachableError } from "./engine-thread";
 
 /** Waits between attempts: 5 s, doubling, at most a minute. */
@@ -40,16 +41,4 @@ export async function retryWhileStorageUnreachable<T>(
       waitMs = Math.min(longestWaitMs, waitMs * 2);
     }
   }
-}
-
-function pause(ms: number, signal: AbortSignal): Promise<void> {
-  return new Promise((resolve) => {
-    const timer = setTimeout(done, ms);
-    function done() {
-      clearTimeout(timer);
-      signal.removeEventListener("abort", done);
-      resolve();
-    }
-    signal.addEventListener("abort", done, { once: true });
-  });
 }
