@@ -196,7 +196,7 @@ function readFlags(argv: string[]): {
   return { flags: single as Flags, failOn: failOn as string[], simulate, switches };
 }
 
-/** One line per simulation run (3 × (8 + S) runs), not per round. */
+/** One line per simulation run (3 × (8 + S) runs, a few more when a grid is extended), not per round. */
 function createSimulationProgressPrinter(): (progress: SimulationProgress) => void {
   let lastRun = 0;
   return ({ algorithm, phase, run, runs }) => {

@@ -276,7 +276,7 @@ async function benchSimulation(spec: BenchDataSpec): Promise<void> {
     .map((algorithm) => `${algorithm.name} ${algorithm.final?.toExponential(2) ?? "n/a"}`)
     .join(", ");
   process.stdout.write(
-    `plan M=${participants} K=${localSteps} R=${rounds} b=${batchSize}, ${simulation.seeds} seeds (${3 * (8 + simulation.seeds)} runs), estimated ${simulation.cost.toExponential(2)} multiply-adds, ${countAvailableThreads()} threads\n` +
+    `plan M=${participants} K=${localSteps} R=${rounds} b=${batchSize}, ${simulation.seeds} seeds (${simulation.algorithms.reduce((runs, algorithm) => runs + algorithm.grid.length + simulation.seeds, 0)} runs), estimated ${simulation.cost.toExponential(2)} multiply-adds, ${countAvailableThreads()} threads\n` +
       `simulation: ${stage.seconds.toFixed(1)}s wall, CPU ${stage.cpuSeconds.toFixed(1)}s (CPU / wall ${(stage.cpuSeconds / stage.seconds).toFixed(2)})\n` +
       `engine end to end: ${engine.seconds.toFixed(1)}s wall, CPU ${engine.cpuSeconds.toFixed(1)}s, peak ${engine.peakMegabytes.toFixed(0)} MB\n` +
       `final F − F*: ${finals}; verdict ${simulation.verdict} (bounds: ${summary.advice.verdict})\n`,

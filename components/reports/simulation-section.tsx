@@ -3,6 +3,7 @@ import { formatFigure } from "@/lib/reports/report-view";
 import {
   ALGORITHM_LABELS,
   describeComparison,
+  describeStepSizeEdges,
   SUBOPTIMALITY_FLOOR,
   toCurvePoints,
 } from "@/lib/reports/simulation-view";
@@ -38,6 +39,7 @@ export function SimulationSection({ summary }: { summary: PartitionSummary }) {
   }));
   const clamped = series.some((entry) => entry.clamped);
   const comparison = describeComparison(simulation.verdict, advice.verdict, simulation.ratio);
+  const edges = describeStepSizeEdges(simulation.algorithms);
   return (
     <section aria-labelledby="simulation-heading" className="space-y-4 print:break-before-page">
       <div className="space-y-1">
@@ -48,7 +50,8 @@ export function SimulationSection({ summary }: { summary: PartitionSummary }) {
           Minibatch SGD, local SGD and drift-corrected local updates ran on the reference
           model&apos;s objective over your shards, under your plan (M = {advice.participants}, K ={" "}
           {advice.localSteps}, R = {advice.rounds}, b = {advice.batchSize}). Each kept the best of
-          eight step sizes on one seed, then re-ran it on {simulation.seeds}{" "}
+          eight step sizes on one seed (trying up to three more beyond the grid while the best lay
+          at its end), then re-ran it on {simulation.seeds}{" "}
           {simulation.seeds === 1 ? "seed" : "seeds"}.
         </p>
       </div>
@@ -142,6 +145,11 @@ export function SimulationSection({ summary }: { summary: PartitionSummary }) {
                   {result.stepSize === null
                     ? "none: every step size diverged"
                     : formatFigure(result.stepSize)}
+                  {result.stepSizeAtEdge ? (
+                    <span className="ml-2 rounded-sm bg-cadmium-soft px-1.5 py-0.5 text-xs text-ink">
+                      at the grid&apos;s edge
+                    </span>
+                  ) : null}
                 </td>
                 <td className="px-3 py-2 tabular-nums">{formatFinal(result)}</td>
                 <td className="px-3 py-2 tabular-nums">
@@ -152,6 +160,16 @@ export function SimulationSection({ summary }: { summary: PartitionSummary }) {
           </tbody>
         </table>
       </div>
+
+      {edges.length > 0 ? (
+        <div role="note" aria-label="Step sizes at the grid's edge" className="space-y-1 text-sm">
+          {edges.map((sentence) => (
+            <p key={sentence} className="max-w-prose text-ink">
+              {sentence}
+            </p>
+          ))}
+        </div>
+      ) : null}
 
       <aside
         aria-label="Simulation caveat"

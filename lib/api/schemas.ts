@@ -137,7 +137,10 @@ export const analysisStatusSchema = z
         phase: z.enum(["step-size", "seeds"]).meta({
           description: "Searching the step size on one seed, or re-running it on S seeds.",
         }),
-        run: z.number().int().meta({ description: "1-based run among `runs` = 3 × (8 + S)." }),
+        run: z.number().int().meta({
+          description:
+            "1-based run among `runs` = 3 × (8 + 3 + S): per algorithm the step-size grid, three places for extending it (skipped unless needed) and the seeds.",
+        }),
         runs: z.number().int(),
         round: z.number().int().meta({ description: "Rounds finished in this run." }),
         rounds: z.number().int(),

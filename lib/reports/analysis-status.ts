@@ -98,7 +98,8 @@ const STAGE_SHARES: Record<AnalysisStage, number> = {
 const STAGES = Object.keys(STAGE_LABELS) as AnalysisStage[];
 
 /**
- * The simulation's share of the progress bar when there is one. Its 3 × (8 + S) runs take most of
+ * The simulation's share of the progress bar when there is one. Its runs (3 × (8 + S), a few more
+ * when a step-size grid is extended) take most of
  * the time: on the benchmark's 100 000 rows even R = 10 made it about 30 of 37 s of CPU time (the
  * engine alone: 6.4 s, README), and R = 100 ten times as much.
  */

@@ -104,3 +104,26 @@ export function describeComparison(
     bound === "no-clear-winner" ? "the bounds see no clear winner" : `the bounds favour ${bounds}`;
   return `The simulation on your shards does not back the bounds' verdict: ${boundsSide}, but ${measured}, ${outcome}.`;
 }
+
+/**
+ * methods.md §7: when an algorithm's chosen step size is still at an end of the extended grid, the
+ * report says that a better one may lie beyond and the comparison may be unfair to it: one
+ * sentence per flagged algorithm. Summaries stored before the flag existed carry none, and read as
+ * not flagged.
+ *
+ * Example: local SGD flagged at η = 8/H = 0.4 → "Local SGD's best step size, 0.4, is the largest
+ * tried: a larger one might do better, so the comparison may be unfair to it."
+ */
+export function describeStepSizeEdges(
+  algorithms: readonly Pick<AlgorithmResult, "name" | "stepSize" | "stepSizeAtEdge" | "grid">[],
+): string[] {
+  return algorithms.flatMap((result) => {
+    if (!result.stepSizeAtEdge || result.stepSize === null || result.grid.length === 0) return [];
+    const largest = result.stepSize === result.grid[0].stepSize;
+    return [
+      `${ALGORITHM_LABELS[result.name]}'s best step size, ${formatFigure(result.stepSize)}, is the ` +
+        `${largest ? "largest" : "smallest"} tried: a ${largest ? "larger" : "smaller"} one might ` +
+        "do better, so the comparison may be unfair to it.",
+    ];
+  });
+}

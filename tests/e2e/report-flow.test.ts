@@ -106,7 +106,7 @@ describe("from upload to report in the browser", () => {
     expect(await refusal.textContent()).toMatch(/^the simulation would take about 7\.60e11/);
     expect(await page.getByLabel("Label column", { exact: true }).inputValue()).toBe("Species");
 
-    // A small plan keeps the run short: 3 × (8 + 2) runs of 20 rounds.
+    // A small plan keeps the run short: 3 × (8 + 2) runs of 20 rounds (a few more if a grid grows).
     await page.getByLabel("Rounds (R)").fill("20");
     await page.getByLabel("Seeds (S)").fill("2");
     await page.getByRole("button", { name: "Run analysis" }).click();

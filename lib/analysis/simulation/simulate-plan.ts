@@ -14,6 +14,7 @@ import {
   ALGORITHMS,
   checkSimulationBudget,
   estimateSimulationCost,
+  EXTENSION_STEP_COUNT,
   GRID_CHECK_POINTS,
   MAX_CURVE_POINTS,
   STEP_SIZE_COUNT,
@@ -65,7 +66,10 @@ export interface SimulationProgress {
   algorithm: AlgorithmName;
   /** Searching the step size on one seed, or re-running the chosen one on S seeds. */
   phase: "step-size" | "seeds";
-  /** 1-based run number among `runs` = 3 × (8 + S). */
+  /**
+   * 1-based run number among `runs` = 3 × (8 + 3 + S): per algorithm the grid, three places for
+   * extending it (skipped unless needed) and the seeds.
+   */
   run: number;
   runs: number;
   /** Rounds finished in this run. */
@@ -84,6 +88,11 @@ export interface AlgorithmResult {
   name: AlgorithmName;
   /** The chosen η; null when every step size of the grid diverged. */
   stepSize: number | null;
+  /**
+   * The chosen η is still at an end of the extended grid (2³/H or 2⁻¹⁰/H), so a better one may lie
+   * beyond it and the comparison may be unfair to this algorithm (methods.md §7).
+   */
+  stepSizeAtEdge: boolean;
   /** Final suboptimality F(W_R) − F(W*) over the seeds that did not diverge: mean, min, max. */
   final: number | null;
   finalMin: number | null;
@@ -92,7 +101,10 @@ export interface AlgorithmResult {
   curve: [number, number][];
   /** [round, min, max] over the seeds at the curve's rounds: the seed band. */
   band: [number, number, number][];
-  /** Every step size tried and its final suboptimality on the grid's seed (null: discarded). */
+  /**
+   * Every step size tried, largest first, and its final suboptimality on the grid's seed (null:
+   * discarded): the 8 of the grid and those the extension added.
+   */
   grid: { stepSize: number; final: number | null }[];
   /** Re-runs of the chosen step size that diverged (left out of the figures above). */
   divergedSeeds: number;
@@ -138,18 +150,21 @@ export async function simulatePlan(
   const threads = Math.min(options.threads ?? chooseThreadCount(cost), runs.length);
   const outcomes = await performRuns(input, plan, runs, threads, hooks);
 
-  const runsPerAlgorithm = STEP_SIZE_COUNT + options.seeds;
+  const searchRuns = STEP_SIZE_COUNT + EXTENSION_STEP_COUNT;
+  const runsPerAlgorithm = searchRuns + options.seeds;
   const algorithms = ALGORITHMS.map((algorithm, a) => {
     const first = a * runsPerAlgorithm;
-    const gridOutcomes = outcomes.slice(first, first + STEP_SIZE_COUNT);
-    const grid = gridOutcomes.map((outcome, k) => ({
-      stepSize: stepSizeAt(k, input.smoothness),
-      final: finalOfGridRun(outcome),
+    const trials = collectTrials(outcomes.slice(first, first + searchRuns));
+    const winner = chooseTrial(trials);
+    const grid = trials.map((trial) => ({
+      stepSize: stepSizeAt(trial.k, input.smoothness),
+      final: finalOfGridRun(trial.outcome),
     }));
-    const seedOutcomes = outcomes.slice(first + STEP_SIZE_COUNT, first + runsPerAlgorithm);
+    const seedOutcomes = outcomes.slice(first + searchRuns, first + runsPerAlgorithm);
     return summarizeAlgorithm(
       algorithm,
-      chooseFromGrid(gridOutcomes, input.smoothness),
+      winner === null ? null : stepSizeAt(winner.k, input.smoothness),
+      winner !== null && isAtEdge(winner, trials),
       grid,
       seedOutcomes.filter((outcome) => outcome !== null),
       curveRounds,
@@ -178,9 +193,11 @@ export async function simulatePlan(
 }
 
 /**
- * The runs in report order — per algorithm the step-size grid on the grid's seed, then the chosen
- * η on seeds seed + 1 … seed + S — numbered 1 … 3(8 + S) in progress reports. A grid run evaluates
- * F at `checkRounds`, a seed run at `curveRounds`.
+ * The runs in report order — per algorithm the step-size grid on the grid's seed, up to three runs
+ * extending it one step at a time while its winner is at an end (each waits for the ones before it
+ * and is dropped when not needed), then the chosen η on seeds seed + 1 … seed + S — numbered
+ * 1 … 3(8 + 3 + S) in progress reports. A search run evaluates F at `checkRounds`, a seed run at
+ * `curveRounds`.
  */
 function planRuns(
   smoothness: number,
@@ -190,8 +207,9 @@ function planRuns(
 ): PlannedRun[] {
   const runs: PlannedRun[] = [];
   for (const algorithm of ALGORITHMS) {
-    const grid = Array.from({ length: STEP_SIZE_COUNT }, (_, k) => runs.length + k);
+    const search: number[] = [];
     for (let k = 0; k < STEP_SIZE_COUNT; k++) {
+      search.push(runs.length);
       runs.push({
         algorithm,
         phase: "step-size",
@@ -201,6 +219,22 @@ function planRuns(
         chooseStepSize: () => stepSizeAt(k, smoothness),
       });
     }
+    for (let e = 0; e < EXTENSION_STEP_COUNT; e++) {
+      const before = [...search];
+      search.push(runs.length);
+      runs.push({
+        algorithm,
+        phase: "step-size",
+        seed: options.seed,
+        curveRounds: checkRounds,
+        after: before,
+        chooseStepSize: (outcomes) => {
+          const k = chooseExtension(collectTrials(before.map((index) => outcomes[index])));
+          return k === null ? null : stepSizeAt(k, smoothness);
+        },
+      });
+    }
+    const grid = [...search];
     for (let s = 1; s <= options.seeds; s++) {
       runs.push({
         algorithm,
@@ -208,11 +242,10 @@ function planRuns(
         seed: options.seed + s,
         curveRounds,
         after: grid,
-        chooseStepSize: (outcomes) =>
-          chooseFromGrid(
-            grid.map((index) => outcomes[index]),
-            smoothness,
-          ),
+        chooseStepSize: (outcomes) => {
+          const winner = chooseTrial(collectTrials(grid.map((index) => outcomes[index])));
+          return winner === null ? null : stepSizeAt(winner.k, smoothness);
+        },
       });
     }
   }
@@ -264,32 +297,78 @@ function chooseThreadCount(cost: number): number {
   return cost >= PARALLEL_MIN_COST ? countAvailableThreads() : 1;
 }
 
-/** η = 2⁻ᵏ/H, the grid's k-th step size (methods.md §7). */
+/** η = 2⁻ᵏ/H, the grid's k-th step size (methods.md §7); the extension adds k = −1 … −3 or 8 … 10. */
 function stepSizeAt(k: number, smoothness: number): number {
   return 2 ** -k / smoothness;
+}
+
+/** The extension's bounds on k: η from 2³/H down to 2⁻¹⁰/H (methods.md §7). */
+const SMALLEST_K = -EXTENSION_STEP_COUNT;
+const LARGEST_K = STEP_SIZE_COUNT - 1 + EXTENSION_STEP_COUNT;
+
+/** A step size tried on the grid's seed: η = 2⁻ᵏ/H and its run. */
+interface Trial {
+  k: number;
+  outcome: RunOutcome;
+}
+
+/**
+ * The step sizes tried, by increasing k (largest η first), from the search runs' outcomes in plan
+ * order: the grid's k = 0 … 7, then each extension run that was not dropped. An extension run's k
+ * is not stored, but follows from the trials before it, so it is worked out again here.
+ */
+function collectTrials(searchOutcomes: readonly (RunOutcome | null)[]): Trial[] {
+  const trials: Trial[] = [];
+  searchOutcomes.forEach((outcome, index) => {
+    if (outcome === null) return; // an extension run that was not needed
+    const k = index < STEP_SIZE_COUNT ? index : chooseExtension(trials);
+    if (k === null) throw new Error("an extension run ran without a step size to try");
+    trials.push({ k, outcome });
+    trials.sort((a, b) => a.k - b.k);
+  });
+  return trials;
+}
+
+/** The trial with the lowest final F (the largest η, on a tie), or null when every run diverged. */
+function chooseTrial(trials: readonly Trial[]): Trial | null {
+  let chosen: Trial | null = null;
+  let best = Infinity;
+  for (const trial of trials) {
+    const final = finalOfGridRun(trial.outcome);
+    if (final !== null && final < best) {
+      best = final;
+      chosen = trial;
+    }
+  }
+  return chosen;
+}
+
+/** The winner is the largest or the smallest η tried: a better one may lie beyond. */
+function isAtEdge(winner: Trial, trials: readonly Trial[]): boolean {
+  return winner.k === trials[0].k || winner.k === trials[trials.length - 1].k;
+}
+
+/**
+ * The next k to try beyond the grid (methods.md §7): while the winner is the largest η tried,
+ * double it (to 2³/H at most); while it is the smallest, halve it (to 2⁻¹⁰/H at most). Null when
+ * the winner lies inside, every run diverged or the bound is reached.
+ *
+ * Example: the grid's winner at k = 0 gives k = −1 (η = 2/H); if that wins too, k = −2.
+ */
+function chooseExtension(trials: readonly Trial[]): number | null {
+  const winner = chooseTrial(trials);
+  if (winner === null) return null;
+  const first = trials[0].k;
+  const last = trials[trials.length - 1].k;
+  if (winner.k === first && first > SMALLEST_K) return first - 1;
+  if (winner.k === last && last < LARGEST_K) return last + 1;
+  return null;
 }
 
 /** A grid run's suboptimality at its last check, or null when it diverged (discarded). */
 function finalOfGridRun(outcome: RunOutcome | null): number | null {
   if (outcome === null || outcome.diverged) return null;
   return outcome.suboptimality[outcome.suboptimality.length - 1];
-}
-
-/** The grid's η with the lowest final F (the first, on a tie), or null when every run diverged. */
-function chooseFromGrid(
-  outcomes: readonly (RunOutcome | null)[],
-  smoothness: number,
-): number | null {
-  let chosen: number | null = null;
-  let best = Infinity;
-  outcomes.forEach((outcome, k) => {
-    const final = finalOfGridRun(outcome);
-    if (final !== null && final < best) {
-      best = final;
-      chosen = stepSizeAt(k, smoothness);
-    }
-  });
-  return chosen;
 }
 
 /**
@@ -306,6 +385,7 @@ export function chooseCurveRounds(rounds: number, points = MAX_CURVE_POINTS): In
 function summarizeAlgorithm(
   name: AlgorithmName,
   stepSize: number | null,
+  stepSizeAtEdge: boolean,
   grid: AlgorithmResult["grid"],
   outcomes: RunOutcome[],
   curveRounds: Int32Array,
@@ -316,6 +396,7 @@ function summarizeAlgorithm(
     return {
       name,
       stepSize,
+      stepSizeAtEdge,
       final: null,
       finalMin: null,
       finalMax: null,
@@ -336,6 +417,7 @@ function summarizeAlgorithm(
   return {
     name,
     stepSize,
+    stepSizeAtEdge,
     final: curve[curve.length - 1][1],
     finalMin: last[1],
     finalMax: last[2],

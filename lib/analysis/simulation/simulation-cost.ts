@@ -8,6 +8,12 @@ import type { AlgorithmName, TrainingPlan } from "./run-algorithm";
 export const ALGORITHMS: readonly AlgorithmName[] = ["minibatch", "local", "scaffold"];
 /** Step sizes tried: η = 2⁻ᵏ/H for k = 0 … 7 (methods.md §7). */
 export const STEP_SIZE_COUNT = 8;
+/**
+ * Step sizes tried beyond an end of the grid while its winner sits there: doubling up to 2³/H,
+ * halving down to 2⁻¹⁰/H (methods.md §7). Only one end can be extended, so each algorithm has
+ * this many extra runs at most; the cost estimate keeps methods.md's 8 + S, which it calls "about".
+ */
+export const EXTENSION_STEP_COUNT = 3;
 /** A curve has at most this many points (methods.md §7). */
 export const MAX_CURVE_POINTS = 100;
 /**

@@ -54,7 +54,11 @@ describe("analyze CLI --simulate", () => {
       expect(algorithm.finalMax).toBeGreaterThanOrEqual(algorithm.final as number);
     }
     expect(simulation?.agreesWithBounds).toBe(simulation?.verdict === summary.advice.verdict);
-    expect(result.stderr).toContain("partita: simulating run 30/30 (scaffold, seeds)");
+    // 3 × (8 grid runs + 3 places to extend the grid + S = 2 seeds) = 39.
+    expect(result.stderr).toContain("partita: simulating run 39/39 (scaffold, seeds)");
+    for (const algorithm of simulation?.algorithms ?? []) {
+      expect(typeof algorithm.stepSizeAtEdge).toBe("boolean");
+    }
     expect(result.stderr).toContain(simulation?.note);
   });
 

@@ -4,11 +4,12 @@ import { AnalysisInputError, analyzePartition, type PartitionSummary } from "@/l
 import {
   chooseCurveRounds,
   estimateSimulationCost,
+  simulatePlan,
   type SimulationProgress,
 } from "@/lib/analysis/simulation/simulate-plan";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
 import { analyzeText } from "./support/analyze-text";
-import { loadDiabetesByTargetCsv, penguinsWithShards } from "./support/simulation-data";
+import { designOf, loadDiabetesByTargetCsv, penguinsWithShards } from "./support/simulation-data";
 
 type Simulation = NonNullable<PartitionSummary["simulation"]>;
 
@@ -103,7 +104,12 @@ describe("the simulation of methods.md §7", () => {
     });
     const simulation = summary.simulation as Simulation;
     for (const algorithm of simulation.algorithms) {
-      expect(algorithm.grid).toHaveLength(8);
+      // The 8 of the grid and up to 3 beyond one of its ends, each half the one before.
+      expect(algorithm.grid.length).toBeGreaterThanOrEqual(8);
+      expect(algorithm.grid.length).toBeLessThanOrEqual(11);
+      algorithm.grid.slice(1).forEach((entry, k) => {
+        expect(entry.stepSize).toBe(algorithm.grid[k].stepSize / 2);
+      });
       const kept = algorithm.grid.filter((entry) => entry.final !== null);
       const best = kept.reduce((a, b) => ((b.final as number) < (a.final as number) ? b : a));
       expect(algorithm.stepSize).toBe(best.stepSize);
@@ -112,7 +118,7 @@ describe("the simulation of methods.md §7", () => {
     const local = algorithmOf(simulation, "local");
     expect(local.grid[0].final).toBeNull();
     expect(local.stepSize).toBeLessThan(local.grid[0].stepSize);
-    // Step sizes are 2⁻ᵏ/H.
+    // Step sizes are 2⁻ᵏ/H; local SGD's largest diverged, so its grid was not extended upwards.
     const smoothness = summary.heterogeneity.smoothness;
     local.grid.forEach((entry, k) => expect(entry.stepSize).toBe(2 ** -k / smoothness));
   });
@@ -155,15 +161,70 @@ describe("the simulation of methods.md §7", () => {
       signal: controller.signal,
       onSimulationProgress: (progress) => {
         seen.push(progress);
-        if (progress.run === 10 && progress.round === 3) controller.abort(new Error("stopped"));
+        if (progress.run === 14 && progress.round === 3) controller.abort(new Error("stopped"));
       },
     });
     await expect(cancelled).rejects.toThrow("stopped");
-    expect(seen[0]).toMatchObject({ algorithm: "minibatch", phase: "step-size", run: 1, runs: 27 });
-    expect(seen[seen.length - 1]).toMatchObject({ run: 10, round: 3, algorithm: "local" });
+    // Per algorithm 8 grid runs, 3 places to extend the grid (runs 9–11 for minibatch SGD), 1 seed.
+    expect(seen[0]).toMatchObject({ algorithm: "minibatch", phase: "step-size", run: 1, runs: 36 });
+    expect(seen[seen.length - 1]).toMatchObject({ run: 14, round: 3, algorithm: "local" });
     const fractions = seen.map((progress) => progress.fraction);
     expect(fractions).toEqual([...fractions].sort((a, b) => a - b));
-    expect(seen.find((progress) => progress.run === 9)?.phase).toBe("seeds");
+    expect(seen.find((progress) => progress.run === 12)?.phase).toBe("seeds");
+  });
+
+  describe("extends the step-size grid while its best step size is at an end (methods.md §7)", () => {
+    // Open data: penguins, one shard per island. H is the simulation's input here, set wrong on
+    // purpose so the best step size lies outside the grid 2⁻ᵏ/H, k = 0…7. Expected step sizes
+    // follow from methods.md §7's rule; the finals they compare come from the runs themselves.
+    const plan = { participants: 2, localSteps: 4, rounds: 40, batchSize: 8 };
+    async function simulateWith(smoothness: number) {
+      const design = await designOf(
+        penguinsWithShards((_, record) => record.Island),
+        "Species",
+      );
+      // F(W₀) = log C for softmax at W = 0; the optimum's value only shifts every final equally.
+      const problem = { design, lambda: 1e-3, optimumValue: 0, startValue: Math.log(3) };
+      return simulatePlan({ ...problem, smoothness, boundVerdict: "no-clear-winner" }, plan, {
+        seeds: 1,
+        seed: 9,
+        budget: 1e12,
+        threads: 1,
+      });
+    }
+
+    it("H ten thousand times too large: every step is too small, the grid grows to 2³/H and says so", async () => {
+      const smoothness = 1e4;
+      const simulation = await simulateWith(smoothness);
+      for (const algorithm of simulation.algorithms) {
+        // Far below the stable step, a larger step makes more progress (common practice).
+        expect(algorithm.stepSize).toBe(8 / smoothness);
+        expect(algorithm.stepSizeAtEdge).toBe(true);
+        expect(algorithm.grid.map((entry) => entry.stepSize * smoothness)).toEqual(
+          Array.from({ length: 11 }, (_, i) => 2 ** (3 - i)),
+        );
+      }
+    });
+
+    it("H far too small: the large steps diverge and the grid grows downwards until one wins inside", async () => {
+      const smoothness = 1 / 512;
+      const simulation = await simulateWith(smoothness);
+      for (const algorithm of simulation.algorithms) {
+        const steps = algorithm.grid.map((entry) => entry.stepSize * smoothness);
+        expect(steps[0]).toBe(1); // never extended upwards: 1/H diverged
+        expect(algorithm.grid[0].final).toBeNull();
+        const chosen = steps.indexOf((algorithm.stepSize as number) * smoothness);
+        // The winner has a tried neighbour on each side, so it is not at the edge.
+        expect(chosen).toBeGreaterThan(0);
+        expect(chosen).toBeLessThan(steps.length - 1);
+        expect(algorithm.stepSizeAtEdge).toBe(false);
+        const finals = algorithm.grid.map((entry) => entry.final ?? Infinity);
+        expect(finals[chosen]).toBe(Math.min(...finals));
+      }
+      // Local SGD's best lies below the grid's smallest step 2⁻⁷/H, so the grid grew past it.
+      const local = simulation.algorithms[1];
+      expect((local.stepSize as number) * smoothness).toBeLessThan(2 ** -7);
+    });
   });
 
   it("keeps at most 100 curve points, from round 0 to round R", () => {

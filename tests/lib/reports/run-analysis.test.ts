@@ -362,15 +362,16 @@ describe("running an analysis job", () => {
 
     const writes = progressLog.writes.filter((write) => write.analysisId === analysisId);
     const simulation = writes.flatMap((write) => (write.simulation ? [write.simulation] : []));
-    // methods.md §7: 3 algorithms × (8 step sizes + S = 1 seed) runs of R = 5 rounds each, in
+    // methods.md §7: 3 algorithms × (8 step sizes + 3 places to extend the grid + S = 1 seed) runs of
+    // R = 5 rounds each, in
     // order minibatch, local, drift-corrected; the engine's five stages came first.
     expect(simulation.length).toBeGreaterThan(0);
     const firstSimulated = writes.findIndex((write) => write.simulation !== null);
     expect(writes.slice(firstSimulated).every((write) => write.stage === "advising")).toBe(true);
-    expect(simulation.every((step) => step.runs === 27 && step.rounds === 5)).toBe(true);
+    expect(simulation.every((step) => step.runs === 36 && step.rounds === 5)).toBe(true);
     const order = ["minibatch", "local", "scaffold"];
     simulation.forEach((step, index) => {
-      expect(order[Math.floor((step.run - 1) / 9)]).toBe(step.algorithm);
+      expect(order[Math.floor((step.run - 1) / 12)]).toBe(step.algorithm);
       if (index > 0) expect(step.fraction).toBeGreaterThanOrEqual(simulation[index - 1].fraction);
     });
 
@@ -397,7 +398,7 @@ describe("running an analysis job", () => {
     };
     const result = await runAnalysis(job, { willRetry: true, progressIntervalMs: 0 });
     expect(result).toEqual({ outcome: "cancelled" });
-    expect(cancelledAt).toMatchObject({ algorithm: "minibatch", runs: 33, rounds: 2000 });
+    expect(cancelledAt).toMatchObject({ algorithm: "minibatch", runs: 42, rounds: 2000 });
     // The engine thread was stopped: the run never finished, so nothing reached the store.
     expect(stored.analysisIds).not.toContain(analysisId);
     expect(await findAnalysisStatus(team.workspaceId, analysisId)).toMatchObject({

@@ -9,6 +9,7 @@ import {
   clampSuboptimality,
   describeComparison,
   describeSimulationProgress,
+  describeStepSizeEdges,
   SUBOPTIMALITY_FLOOR,
   toCurvePoints,
 } from "@/lib/reports/simulation-view";
@@ -83,5 +84,28 @@ describe("the simulation in the report", () => {
       "The simulation on your shards agrees with the bounds (large minibatches): local SGD ended at 4 times minibatch SGD's suboptimality.",
     );
     expect(sentence(null, 0.1)).toMatch(/gives no usable ratio .* \(local updates\)\.$/);
+  });
+});
+
+describe("step sizes at the grid's edge in the report (methods.md §7)", () => {
+  const grid = [8, 4, 2, 1].map((stepSize) => ({ stepSize, final: 1 / stepSize }));
+  it("names each flagged algorithm, which end it is at, and what that means", () => {
+    expect(
+      describeStepSizeEdges([
+        { name: "minibatch", stepSize: 8, stepSizeAtEdge: true, grid },
+        { name: "local", stepSize: 1, stepSizeAtEdge: true, grid },
+        { name: "scaffold", stepSize: 2, stepSizeAtEdge: false, grid },
+      ]),
+    ).toEqual([
+      "Minibatch SGD's best step size, 8, is the largest tried: a larger one might do better, " +
+        "so the comparison may be unfair to it.",
+      "Local SGD's best step size, 1, is the smallest tried: a smaller one might do better, " +
+        "so the comparison may be unfair to it.",
+    ]);
+  });
+
+  it("says nothing for reports stored before the flag existed", () => {
+    const stored = { name: "local" as const, stepSize: 8, grid };
+    expect(describeStepSizeEdges([stored as never])).toEqual([]);
   });
 });
