@@ -4,6 +4,7 @@
  */
 export { analyzePartition, type PartitionInput } from "./analyze-partition";
 export { AnalysisInputError } from "./errors";
+export { countShardsUpTo } from "./count-shards";
 export type { Advice, Verdict } from "./advise-plan";
 export type {
   AnalysisProgress,

@@ -7,8 +7,10 @@ import {
   setAnalysisJobId,
   type AnalysisInputFile,
 } from "@/db/queries/analyses";
+import { findDataFile } from "@/db/queries/data-files";
 import { RuleError } from "@/lib/errors";
 import { enqueueAnalysis } from "@/lib/jobs";
+import { checkParticipants } from "@/lib/reports/check-participants";
 import { estimateRequestedSimulation } from "@/lib/reports/estimate-requested-simulation";
 import {
   startAnalysisSchema,
@@ -78,6 +80,18 @@ export async function queueAnalysis(
   const files = await resolveInputFiles(workspaceId, request);
   if (request.previousReportId && !(await reportExists(workspaceId, request.previousReportId))) {
     throw new RuleError(422, "The report to revise is not in this workspace.", "previousReportId");
+  }
+  const { participants, shardColumn } = request.options;
+  if (participants !== undefined) {
+    const shardFile = files.layout ?? files.dataset;
+    const preview = (await findDataFile(workspaceId, shardFile.id))?.preview ?? null;
+    await checkParticipants(participants, {
+      fileName: shardFile.name,
+      objectKey: shardFile.objectKey,
+      sizeBytes: shardFile.sizeBytes,
+      preview,
+      column: files.layout ? "shard" : (shardColumn ?? "shard"),
+    });
   }
   // A simulation above the budget as the previews show it is refused here, on its own field, with
   // the engine's message; the engine checks the exact cost again once it has read the dataset.

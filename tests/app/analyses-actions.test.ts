@@ -227,6 +227,43 @@ describe("startAnalysis: what it accepts", () => {
     expect(await analysesIn(team.workspaceId)).toEqual([]);
   });
 
+  it("refuses more shards per round than the shards hold, on the plan's field, before queueing", async () => {
+    // Open data: the penguins (vega-datasets) live on three islands, Biscoe, Dream and Torgersen.
+    const { team, files, request } = await teamWithPenguins();
+    actAs(team.analyst);
+    const byMap = await startAnalysis(team.workspaceId, {
+      ...request,
+      options: { ...request.options, participants: 4 },
+    });
+    expect(byMap).toMatchObject({
+      ok: false,
+      status: 422,
+      fieldErrors: {
+        "options.participants":
+          'Shards per round (M) is 4, but column "shard" of "islands.csv" names 3 shards: ' +
+          "choose at most 3, or let every shard take part.",
+      },
+    });
+    const byColumn = await startAnalysis(team.workspaceId, {
+      datasetFileId: files.dataset.id,
+      options: { labelColumn: "Species", shardColumn: "Island", participants: 7 },
+    });
+    expect(byColumn).toMatchObject({ ok: false, status: 422 });
+    expect(byColumn.ok ? "" : byColumn.fieldErrors?.["options.participants"]).toMatch(
+      /^Shards per round \(M\) is 7, but column "Island" of "penguins.csv" names 3 shards/,
+    );
+    expect(await analysesIn(team.workspaceId)).toHaveLength(0);
+
+    // As many as there are, or fewer, is a plan the engine can run.
+    for (const participants of [3, 2]) {
+      const started = await startAnalysis(team.workspaceId, {
+        datasetFileId: files.dataset.id,
+        options: { labelColumn: "Species", shardColumn: "Island", participants },
+      });
+      expect(started.ok).toBe(true);
+    }
+  });
+
   it("keeps no analysis that could not be queued", async () => {
     const { team, request } = await teamWithPenguins();
     actAs(team.analyst);
