@@ -1,6 +1,8 @@
+import { createHash } from "node:crypto";
 import { mkdirSync } from "node:fs";
 import { createServer, type IncomingMessage, type ServerResponse } from "node:http";
 import type { AddressInfo } from "node:net";
+import { PassThrough } from "node:stream";
 import S3rver from "s3rver";
 import { verifyS3Signature, type Credentials, type Refusal } from "./s3-signature";
 
@@ -26,7 +28,9 @@ export interface RunningFakeS3 {
  * A local stand-in for S3 on 127.0.0.1. s3rver stores the objects; in front of it, every request
  * except a CORS preflight must carry a valid Signature Version 4 (an Authorization header or a
  * presigned URL that has not expired) made with `fakeS3Credentials`, or it is refused with a 403
- * and S3's error XML, as a private bucket would refuse it. The bucket gets a CORS rule for the
+ * and S3's error XML, as a private bucket would refuse it. A PUT (an object or a multipart upload's
+ * part) whose signed x-amz-content-sha256 names a SHA-256 is stored only when its body has that
+ * hash; otherwise S3's 400 XAmzContentSHA256Mismatch, and nothing is written. The bucket gets a CORS rule for the
  * app's origin that exposes ETag, which a browser needs to finish a multipart upload and to
  * confirm a PUT.
  */
@@ -43,9 +47,16 @@ export async function startFakeS3(options: FakeS3Options): Promise<RunningFakeS3
   const serveStore = store.callback();
   const server = createServer((request, response) => {
     void admit(request, fakeS3Credentials).then(
-      (refusal) => {
-        if (refusal) refuse(request, response, refusal, options.allowedOrigins);
-        else serveStore(request, response);
+      async (refusal) => {
+        if (refusal) return refuse(request, response, refusal, options.allowedOrigins);
+        const declaredHash = declaredPayloadHash(request);
+        if (declaredHash === undefined) return serveStore(request, response);
+        // The body must be whole before its hash is known, so it is held and then handed on.
+        const body = await readBody(request);
+        if (createHash("sha256").update(body).digest("hex") !== declaredHash) {
+          return refuse(request, response, payloadMismatch, options.allowedOrigins);
+        }
+        serveStore(replayed(request, body), response);
       },
       (error: unknown) => {
         const message = error instanceof Error ? error.message : String(error);
@@ -80,6 +91,46 @@ async function admit(request: IncomingMessage, credentials: Credentials) {
   );
 }
 
+/** S3's answer to a body that is not the one whose hash was signed. */
+const payloadMismatch: Refusal = {
+  code: "XAmzContentSHA256Mismatch",
+  message: "The provided 'x-amz-content-sha256' header does not match what was computed.",
+};
+
+/**
+ * The SHA-256 a PUT declares for its body, or undefined when there is nothing to check: other
+ * methods, UNSIGNED-PAYLOAD (presigned URLs, browsers) and the streaming forms, whose chunks carry
+ * signatures of their own.
+ */
+function declaredPayloadHash(request: IncomingMessage): string | undefined {
+  const declared = request.headers["x-amz-content-sha256"];
+  if (request.method !== "PUT" || typeof declared !== "string") return undefined;
+  return /^[0-9a-f]{64}$/i.test(declared) ? declared.toLowerCase() : undefined;
+}
+
+async function readBody(request: IncomingMessage): Promise<Buffer> {
+  const chunks: Buffer[] = [];
+  for await (const chunk of request) chunks.push(chunk as Buffer);
+  return Buffer.concat(chunks);
+}
+
+/** The request again, its body already read: what s3rver reads (method, URL, headers, stream). */
+function replayed(request: IncomingMessage, body: Buffer): IncomingMessage {
+  const stream = new PassThrough();
+  stream.end(body);
+  return Object.assign(stream, {
+    method: request.method,
+    url: request.url,
+    headers: request.headers,
+    rawHeaders: request.rawHeaders,
+    httpVersion: request.httpVersion,
+    httpVersionMajor: request.httpVersionMajor,
+    httpVersionMinor: request.httpVersionMinor,
+    socket: request.socket,
+    connection: request.socket,
+  }) as unknown as IncomingMessage;
+}
+
 function refuse(
   request: IncomingMessage,
   response: ServerResponse,
@@ -88,7 +139,8 @@ function refuse(
 ) {
   // Drain the body a refused upload was sending, so the client reads the answer, not a reset.
   request.resume();
-  const status = refusal.code === "InternalError" ? 500 : 403;
+  const status =
+    refusal.code === "InternalError" ? 500 : refusal.code === payloadMismatch.code ? 400 : 403;
   const origin = request.headers.origin;
   if (origin && allowedOrigins.includes(origin)) {
     // As S3 does for a matching CORS rule, so a browser can read why it was refused.

@@ -1,8 +1,9 @@
 // The S3 fake must authorize requests as S3 does, so that tests of storage exercise real
 // authorization. What counts as valid is decided by the AWS SDK's own signer (the S3 client and
 // @aws-sdk/s3-request-presigner), not by the fake's code: their requests must pass, and any change
-// to what they signed, a wrong key, an expired URL or no signature must get S3's 403 error XML
-// (error codes as documented in the Amazon S3 API reference, "Error responses").
+// to what they signed, a wrong key, an expired URL or no signature must get S3's 403 error XML,
+// and a body other than the one whose SHA-256 was signed S3's 400 (error codes as documented in
+// the Amazon S3 API reference, "Error responses").
 import { mkdtempSync, rmSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
@@ -38,6 +39,23 @@ function clientWith(credentials: { accessKeyId: string; secretAccessKey: string 
 
 async function errorCode(response: Response): Promise<string | undefined> {
   return /<Code>([^<]+)<\/Code>/.exec(await response.text())?.[1];
+}
+
+/**
+ * A client whose requests leave the SDK's signer intact but carry `body` instead of what was signed,
+ * as a body altered in transit would arrive (of the signed body's length: the length is signed).
+ */
+function clientSendingOtherBody(body: string): S3Client {
+  const altered = clientWith(fakeS3Credentials);
+  altered.middlewareStack.add(
+    (next) => async (args) => {
+      (args.request as { body?: unknown }).body = body;
+      return next(args);
+    },
+    // The deserialize step runs after signing (finalizeRequest), just before the request is sent.
+    { step: "deserialize", name: "swapBodyAfterSigning" },
+  );
+  return altered;
 }
 
 async function readObject(key: string): Promise<string> {
@@ -200,5 +218,40 @@ describe("the S3 fake refuses what S3 would refuse", () => {
     // Presigned URLs sign the Host header; the same URL sent to another name of the server fails.
     const response = await fetch(url.replace(signedHost, `localhost:${new URL(url).port}`));
     expect(await errorCode(response)).toBe("SignatureDoesNotMatch");
+  });
+
+  it("refuses a put or a part whose body is not the one whose SHA-256 was signed, storing nothing", async () => {
+    const key = "private/checked.csv";
+    await client.send(new PutObjectCommand({ Bucket: bucket, Key: key, Body: "genuine\n" }));
+    const altered = clientSendingOtherBody("altered\n");
+    await expect(
+      altered.send(new PutObjectCommand({ Bucket: bucket, Key: key, Body: "genuine\n" })),
+    ).rejects.toMatchObject({
+      name: "XAmzContentSHA256Mismatch",
+      $metadata: { httpStatusCode: 400 },
+    });
+    expect(await readObject(key)).toBe("genuine\n");
+
+    const multipartKey = "private/checked-parts.csv";
+    const { UploadId } = await client.send(
+      new CreateMultipartUploadCommand({ Bucket: bucket, Key: multipartKey }),
+    );
+    const part = { Bucket: bucket, Key: multipartKey, UploadId, PartNumber: 1, Body: "part 1\n\n" };
+    await expect(altered.send(new UploadPartCommand(part))).rejects.toMatchObject({
+      name: "XAmzContentSHA256Mismatch",
+      $metadata: { httpStatusCode: 400 },
+    });
+    // The same part with the body it was signed for is stored.
+    const { ETag } = await client.send(new UploadPartCommand(part));
+    await client.send(
+      new CompleteMultipartUploadCommand({
+        Bucket: bucket,
+        Key: multipartKey,
+        UploadId,
+        MultipartUpload: { Parts: [{ PartNumber: 1, ETag }] },
+      }),
+    );
+    expect(await readObject(multipartKey)).toBe("part 1\n\n");
+    altered.destroy();
   });
 });
