@@ -9,7 +9,7 @@ import { admitSignUp, TooManyAttemptsError } from "@/lib/auth/rate-limit";
 import { env } from "@/lib/env";
 import { RuleError } from "@/lib/errors";
 import { requestClientAddress } from "@/lib/http/request-client";
-import { sendMail } from "@/lib/mail";
+import { queueMail } from "@/lib/mail";
 import { signUpSchema, type SignUpInput } from "@/lib/validation/auth";
 
 /**
@@ -41,7 +41,8 @@ export async function signUp(input: SignUpInput): Promise<ActionResult<{ email: 
     link.searchParams.set("token", token);
     // The invitation travels with the link so the new account joins its workspace on confirming.
     if (values.invitationToken) link.searchParams.set("invitation", values.invitationToken);
-    await sendMail({ to: values.email, ...confirmAddressMessage(link.toString()) });
+    // Through the outbox like all mail: sign-up never waits for SMTP, nor fails while it is down.
+    await queueMail({ to: values.email, ...confirmAddressMessage(link.toString()) });
     return succeed({ email: values.email });
   } catch (error) {
     return failWith(error, "sign-up");
