@@ -13,6 +13,7 @@ import { AnalysisInputError } from "./errors";
 import { fitReferenceModel } from "./fit-reference-model";
 import {
   computeSmoothness,
+  findNoiseCentres,
   measureAtPoint,
   measureGradientAgreement,
   type PointMeasurement,
@@ -230,22 +231,29 @@ export async function analyzeDesign(
     fitted.weights,
     context.referenceName,
   );
-  const summarize = (weights: Float64Array, pass: PassResult, withNoise: boolean) =>
+  const summarize = (weights: Float64Array, pass: PassResult) =>
     measureAtPoint(design, weights, options.lambda, pass.shards, {
-      withNoise,
+      withNoise: false,
       vanishingGradient: fitted.tolerance,
     });
-  const measure = (weights: Float64Array, withNoise: boolean) =>
-    summarize(weights, passes.evaluate(weights, withNoise), withNoise);
-  const atReference = measure(reference.weights, true);
+  const measure = (weights: Float64Array) => summarize(weights, passes.evaluate(weights, false));
+  // σₘ² by two passes (methods.md §3): the mean gradients first, then the deviations from them.
+  const centres = findNoiseCentres(passes.evaluate(reference.weights, false));
+  const atReference = measureAtPoint(
+    design,
+    reference.weights,
+    options.lambda,
+    passes.evaluate(reference.weights, true, centres).shards,
+    { withNoise: true, vanishingGradient: fitted.tolerance, centres },
+  );
   const path: PointMeasurement[] = [];
   for (const [index, t] of PATH_POINTS.entries()) {
     onProgress({ stage: "measuring", fraction: (index + 1) / (PATH_POINTS.length + 1) });
     const weights = fitted.weights.map((value) => t * value);
     // Passes already made at the same point: the fit's first, at W = 0, and the reference's at W*.
-    if (t === 0) path.push(summarize(weights, fitted.atZero, false));
+    if (t === 0) path.push(summarize(weights, fitted.atZero));
     else if (t === 1 && reference.kind === "optimum") path.push(atReference);
-    else path.push(measure(weights, false));
+    else path.push(measure(weights));
   }
   const atOptimum = path[path.length - 1];
   const labelCounts = countLabelsPerShard(design);

@@ -1,3 +1,4 @@
+import { roundingError } from "../math/summation";
 import type { Design } from "./design";
 
 /**
@@ -8,20 +9,42 @@ import type { Design } from "./design";
  * Example: a shard whose rows all sit one pooled standard deviation above the mean in every feature
  * has feature shift 1.
  */
-export function measureFeatureShift(design: Design): number[] {
+export function measureFeatureShift(
+  design: Pick<Design, "x" | "shardIds" | "shardOffsets">,
+): number[] {
+  return sumFeaturesPerShard(design).map((sums, m) =>
+    measureFeatureShiftFromSums(sums, design.shardOffsets[m + 1] - design.shardOffsets[m]),
+  );
+}
+
+/**
+ * Σx̃ᵢ over each shard's rows, the d features (the bias's sum is the row count): what feature shift
+ * is made of, centrally and in a client's digest (methods.md §9). Neumaier-compensated per feature,
+ * because a shard's mean can be small beside its values (the interesting case) and rows are many.
+ *
+ * Example: one feature with rows 1, 1e16, 1, −1e16 sums to 2 (left to right in doubles: 0).
+ */
+export function sumFeaturesPerShard(
+  design: Pick<Design, "x" | "shardIds" | "shardOffsets">,
+): Float64Array[] {
   const width = design.x.cols;
   const features = width - 1;
   const x = design.x.data;
-  const sums = new Float64Array(features);
+  const compensations = new Float64Array(features);
   return design.shardIds.map((_, m) => {
-    const rowStart = design.shardOffsets[m];
-    const rowEnd = design.shardOffsets[m + 1];
-    sums.fill(0);
-    for (let row = rowStart; row < rowEnd; row++) {
+    const sums = new Float64Array(features);
+    compensations.fill(0);
+    for (let row = design.shardOffsets[m]; row < design.shardOffsets[m + 1]; row++) {
       const base = row * width;
-      for (let j = 0; j < features; j++) sums[j] += x[base + j];
+      for (let j = 0; j < features; j++) {
+        const value = x[base + j];
+        const next = sums[j] + value;
+        compensations[j] += roundingError(sums[j], value, next);
+        sums[j] = next;
+      }
     }
-    return measureFeatureShiftFromSums(sums, rowEnd - rowStart);
+    for (let j = 0; j < features; j++) sums[j] += compensations[j];
+    return sums;
   });
 }
 

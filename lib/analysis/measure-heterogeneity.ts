@@ -3,7 +3,8 @@ import { matrixFromValues } from "../math/matrix";
 import { dot, squaredNorm } from "../math/summation";
 import type { Design, Task } from "./design";
 import { finishPass } from "./objective";
-import type { PassTotals } from "./objective-pass";
+import { readTotals, type PassTotals } from "./objective-pass";
+import type { NoiseCentres, PassResult } from "./pass-pool";
 
 export interface ShardMeasurement {
   rows: number;
@@ -39,6 +40,11 @@ export interface PointMeasurement {
  * Measures methods.md §3 at the point W from one pass's per-shard totals at W (`shardTotals`, with
  * squared norms when `withNoise`): each shard's Fₘ, gₘ and (when `withNoise`) σₘ², then the
  * weighted and uniform ζ², the dissimilarity B(W) and σ², σ²_pooled.
+ * The noise is a variance about the mean, which does not move when every gradient is shifted by
+ * the same c: σₘ² = (1/nₘ) Σ ‖∇ℓᵢ − c‖² − ‖mean∇ℓ − c‖². With `centres` (the shards' and the
+ * pooled mean gradients, see `findNoiseCentres`) the totals hold sums about them, the second term
+ * vanishes and nothing cancels (the two-pass method); without, c = 0, the one-pass form that
+ * digests allow (methods.md §9), which loses digits when σₘ² ≪ ‖mean∇ℓ‖².
  * Sources: ζ², Woodworth et al. NeurIPS 2020 (from memory); B(W), Li et al. MLSys 2020, Definition 3;
  * σ² and the law of total variance σ²_pooled = σ² + ζ², standard.
  * `vanishingGradient` is the gradient norm treated as zero (the optimizer's tolerance).
@@ -48,7 +54,11 @@ export function measureAtPoint(
   weights: Float64Array,
   lambda: number,
   shardTotals: PassTotals[],
-  { withNoise, vanishingGradient }: { withNoise: boolean; vanishingGradient: number },
+  {
+    withNoise,
+    vanishingGradient,
+    centres = null,
+  }: { withNoise: boolean; vanishingGradient: number; centres?: NoiseCentres | null },
 ): PointMeasurement {
   const totalRows = design.x.rows;
   const width = design.x.cols;
@@ -58,7 +68,7 @@ export function measureAtPoint(
   const pooledDataGradient = new Float64Array(size);
   const uniformMean = new Float64Array(size);
   let loss = 0;
-  let pooledSquaredNorms = 0;
+  let pooledSquaredDeviations = 0;
   let sigma2 = 0;
   const shards: ShardMeasurement[] = [];
 
@@ -66,7 +76,11 @@ export function measureAtPoint(
     const evaluation = finishPass(shardTotals[m], weights, width, lambda, withNoise);
     const share = evaluation.rows / totalRows;
     const shardSigma2 = withNoise
-      ? Math.max(0, evaluation.meanSquaredSampleNorm - squaredNorm(evaluation.dataGradient))
+      ? Math.max(
+          0,
+          evaluation.meanSquaredSampleNorm -
+            squaredDistance(evaluation.dataGradient, centres?.shards[m] ?? null),
+        )
       : Number.NaN;
     loss += share * evaluation.value;
     for (let k = 0; k < size; k++) {
@@ -74,7 +88,7 @@ export function measureAtPoint(
       pooledDataGradient[k] += share * evaluation.dataGradient[k];
       uniformMean[k] += evaluation.gradient[k] / shardCount;
     }
-    pooledSquaredNorms += share * evaluation.meanSquaredSampleNorm;
+    pooledSquaredDeviations += readPooledDeviations(shardTotals[m], centres !== null);
     sigma2 += share * shardSigma2;
     shards.push({
       rows: evaluation.rows,
@@ -106,9 +120,29 @@ export function measureAtPoint(
       gradientNorm > vanishingGradient ? Math.sqrt(weightedSquaredNorms) / gradientNorm : null,
     sigma2,
     sigma2Pooled: withNoise
-      ? Math.max(0, pooledSquaredNorms - squaredNorm(pooledDataGradient))
+      ? Math.max(
+          0,
+          pooledSquaredDeviations / totalRows -
+            squaredDistance(pooledDataGradient, centres?.pooled ?? null),
+        )
       : Number.NaN,
   };
+}
+
+/**
+ * The mean data gradients of a pass (per shard and over all rows), to centre the noise pass at the
+ * same W on: methods.md §3's σₘ² by two passes.
+ */
+export function findNoiseCentres(pass: PassResult): NoiseCentres {
+  const meanOf = (totals: PassTotals) =>
+    readTotals(totals).gradient.map((value) => value / totals.rows);
+  return { shards: pass.shards.map(meanOf), pooled: meanOf(pass.pooled) };
+}
+
+/** A shard's Σ ‖∇ℓᵢ − c_pooled‖², or its Σ ‖∇ℓᵢ‖² when the pass had no centres (c = 0). */
+function readPooledDeviations(totals: PassTotals, centred: boolean): number {
+  const sums = readTotals(totals);
+  return centred ? sums.pooledSquaredDeviations : sums.squaredNorms;
 }
 
 /**
@@ -143,7 +177,9 @@ export function measureGradientAgreement(gradients: Float64Array[]): (number | n
   );
 }
 
-function squaredDistance(a: Float64Array, b: Float64Array): number {
+/** ‖a − b‖², with b = null standing for zero (then scaled like `squaredNorm`). */
+function squaredDistance(a: Float64Array, b: Float64Array | null): number {
+  if (b === null) return squaredNorm(a);
   let total = 0;
   for (let k = 0; k < a.length; k++) {
     const difference = a[k] - b[k];

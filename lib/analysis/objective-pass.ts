@@ -7,9 +7,13 @@ export type PassData = Pick<Design, "x" | "labels" | "targets">;
 
 /**
  * Sums over a set of rows that every statistic of methods.md §2–§3 is built from, at one point W:
- * Σ ℓᵢ(W), Σ ∇ℓᵢ(W) (data term only, no regularizer) and Σ ‖∇ℓᵢ(W)‖². They are plain sums, so
- * totals over chunks, shards, workers or machines merge by addition (`mergeTotals`).
- * Each sum carries a Neumaier compensation term, fed block by block.
+ * Σ ℓᵢ(W), Σ ∇ℓᵢ(W) (data term only, no regularizer) and Σ ‖∇ℓᵢ(W) − c‖² about a centre c: zero
+ * (Σ ‖∇ℓᵢ‖², what digests send, methods.md §9), or, for the noise σ² of §3, the rows' own mean
+ * gradient from an earlier pass at the same W, so the variance is summed from deviations (two
+ * passes) instead of E‖∇ℓ‖² − ‖E∇ℓ‖², which cancels when the gradients sit close to their mean.
+ * With centres the pass also sums Σ ‖∇ℓᵢ − c_pooled‖² about the mean over all rows, for σ²_pooled.
+ * They are plain sums, so totals over chunks, shards, workers or machines merge by addition
+ * (`mergeTotals`). Each sum carries a Neumaier compensation term, fed block by block.
  */
 export interface PassTotals {
   rows: number;
@@ -19,6 +23,17 @@ export interface PassTotals {
   gradientCompensation: Float64Array;
   squaredGradientNormSum: number;
   squaredGradientNormCompensation: number;
+  pooledSquaredDeviationSum: number;
+  pooledSquaredDeviationCompensation: number;
+}
+
+/**
+ * The centres a noise pass measures per-row gradients from: the mean data gradient of the rows'
+ * shard and of all rows, C × (d + 1) each, row-major like W.
+ */
+export interface PassCentres {
+  shard: Float64Array;
+  pooled: Float64Array;
 }
 
 export function createTotals(parameterCount: number): PassTotals {
@@ -30,6 +45,8 @@ export function createTotals(parameterCount: number): PassTotals {
     gradientCompensation: new Float64Array(parameterCount),
     squaredGradientNormSum: 0,
     squaredGradientNormCompensation: 0,
+    pooledSquaredDeviationSum: 0,
+    pooledSquaredDeviationCompensation: 0,
   };
 }
 
@@ -43,6 +60,10 @@ export function mergeTotals(target: PassTotals, source: PassTotals): void {
   }
   addCompensated(target.gradientSum, target.gradientCompensation, combined);
   addSquaredNorms(target, source.squaredGradientNormSum + source.squaredGradientNormCompensation);
+  addPooledDeviations(
+    target,
+    source.pooledSquaredDeviationSum + source.pooledSquaredDeviationCompensation,
+  );
 }
 
 /** The compensated value of each sum. */
@@ -50,6 +71,7 @@ export function readTotals(totals: PassTotals): {
   loss: number;
   gradient: Float64Array;
   squaredNorms: number;
+  pooledSquaredDeviations: number;
 } {
   const gradient = new Float64Array(totals.gradientSum.length);
   for (let k = 0; k < gradient.length; k++)
@@ -58,6 +80,8 @@ export function readTotals(totals: PassTotals): {
     loss: totals.lossSum + totals.lossCompensation,
     gradient,
     squaredNorms: totals.squaredGradientNormSum + totals.squaredGradientNormCompensation,
+    pooledSquaredDeviations:
+      totals.pooledSquaredDeviationSum + totals.pooledSquaredDeviationCompensation,
   };
 }
 
@@ -68,7 +92,10 @@ const BLOCK_ROWS = 256;
 export interface PassWorkspace {
   scores: Float64Array;
   blockGradient: Float64Array;
-  /** The block just summed: [Σ ℓᵢ, Σ ‖∇ℓᵢ‖²] (written here rather than returned as a pair). */
+  /**
+   * The block just summed: [Σ ℓᵢ, Σ ‖∇ℓᵢ − c‖², Σ ‖∇ℓᵢ − c_pooled‖²] (written here rather than
+   * returned as a triple).
+   */
   blockSums: Float64Array;
 }
 
@@ -82,7 +109,7 @@ export function createWorkspace(classCount: number, width: number): PassWorkspac
   return {
     scores: new Float64Array(ROW_GROUP * classCount),
     blockGradient: new Float64Array(classCount * width),
-    blockSums: new Float64Array(2),
+    blockSums: new Float64Array(3),
   };
 }
 
@@ -91,7 +118,9 @@ export function createWorkspace(classCount: number, width: number): PassWorkspac
  *
  * Softmax (methods.md §2): sᵢ = W x̃ᵢ, ℓᵢ = logsumexp(sᵢ) − s_{i,yᵢ}, ∇ℓᵢ = (pᵢ − e_{yᵢ}) x̃ᵢᵀ and
  * ‖∇ℓᵢ‖² = ‖pᵢ − e_{yᵢ}‖² ‖x̃ᵢ‖². Least squares: rᵢ = wᵀx̃ᵢ − yᵢ, ℓᵢ = ½ rᵢ², ∇ℓᵢ = rᵢ x̃ᵢ,
- * ‖∇ℓᵢ‖² = rᵢ² ‖x̃ᵢ‖². The per-sample gradient is never formed: its norm factorizes (§3).
+ * ‖∇ℓᵢ‖² = rᵢ² ‖x̃ᵢ‖². The per-sample gradient is never formed: its norm factorizes (§3). With
+ * `centres`, the squared norms are taken about them instead: ‖∇ℓᵢ − c‖² = Σ_cj (r_ic x̃_ij − c_cj)²,
+ * which costs another C·(d + 1) multiply-adds per row, once per analysis.
  */
 export function accumulatePass(
   design: PassData,
@@ -101,8 +130,19 @@ export function accumulatePass(
   totals: PassTotals,
   workspace: PassWorkspace,
   withSquaredNorms: boolean,
+  centres: PassCentres | null = null,
 ): void {
-  accumulateBlocks(design, weights, rowStart, rowEnd, totals, workspace, true, withSquaredNorms);
+  accumulateBlocks(
+    design,
+    weights,
+    rowStart,
+    rowEnd,
+    totals,
+    workspace,
+    true,
+    withSquaredNorms,
+    centres,
+  );
 }
 
 /**
@@ -121,7 +161,7 @@ export function accumulateLoss(
   totals: PassTotals,
   workspace: PassWorkspace,
 ): void {
-  accumulateBlocks(design, weights, rowStart, rowEnd, totals, workspace, false, false);
+  accumulateBlocks(design, weights, rowStart, rowEnd, totals, workspace, false, false, null);
 }
 
 /** The pass itself, block by block; without `withGradient` no gradient entry is touched. */
@@ -134,6 +174,7 @@ function accumulateBlocks(
   workspace: PassWorkspace,
   withGradient: boolean,
   withSquaredNorms: boolean,
+  centres: PassCentres | null,
 ): void {
   for (let blockStart = rowStart; blockStart < rowEnd; blockStart += BLOCK_ROWS) {
     const blockEnd = Math.min(rowEnd, blockStart + BLOCK_ROWS);
@@ -148,6 +189,7 @@ function accumulateBlocks(
         workspace,
         withGradient,
         withSquaredNorms,
+        centres,
       );
     } else {
       accumulateLeastSquaresBlock(
@@ -159,12 +201,14 @@ function accumulateBlocks(
         workspace,
         withGradient,
         withSquaredNorms,
+        centres,
       );
     }
     totals.rows += blockEnd - blockStart;
     addLoss(totals, workspace.blockSums[0]);
     if (!withGradient) continue;
     addSquaredNorms(totals, workspace.blockSums[1]);
+    addPooledDeviations(totals, workspace.blockSums[2]);
     addCompensated(totals.gradientSum, totals.gradientCompensation, workspace.blockGradient);
   }
 }
@@ -178,6 +222,7 @@ function accumulateSoftmaxBlock(
   workspace: PassWorkspace,
   withGradient: boolean,
   withSquaredNorms: boolean,
+  centres: PassCentres | null,
 ): void {
   const width = design.x.cols;
   const x = design.x.data;
@@ -186,6 +231,7 @@ function accumulateSoftmaxBlock(
   const gradient = workspace.blockGradient;
   let loss = 0;
   let squaredNorms = 0;
+  let pooledDeviations = 0;
   let row = rowStart;
   for (; row + ROW_GROUP <= rowEnd; row += ROW_GROUP) {
     const base0 = row * width;
@@ -255,7 +301,7 @@ function accumulateSoftmaxBlock(
       loss += softmaxInPlace(scores, offset, classCount) - labelScore;
       if (!withGradient) continue;
       scores[label] -= 1;
-      if (withSquaredNorms) {
+      if (withSquaredNorms && centres === null) {
         squaredNorms += squaredResidualTimesRowNorm(
           scores,
           offset,
@@ -264,6 +310,10 @@ function accumulateSoftmaxBlock(
           (row + k) * width,
           width,
         );
+      } else if (withSquaredNorms && centres !== null) {
+        const base = (row + k) * width;
+        squaredNorms += squaredDeviation(scores, offset, classCount, x, base, centres.shard);
+        pooledDeviations += squaredDeviation(scores, offset, classCount, x, base, centres.pooled);
       }
     }
     if (!withGradient) continue;
@@ -317,8 +367,11 @@ function accumulateSoftmaxBlock(
     loss += softmaxInPlace(scores, 0, classCount) - labelScore;
     if (!withGradient) continue;
     scores[label] -= 1;
-    if (withSquaredNorms) {
+    if (withSquaredNorms && centres === null) {
       squaredNorms += squaredResidualTimesRowNorm(scores, 0, classCount, x, base, width);
+    } else if (withSquaredNorms && centres !== null) {
+      squaredNorms += squaredDeviation(scores, 0, classCount, x, base, centres.shard);
+      pooledDeviations += squaredDeviation(scores, 0, classCount, x, base, centres.pooled);
     }
     for (let c = 0; c < classCount; c++) {
       const residual = scores[c];
@@ -328,6 +381,7 @@ function accumulateSoftmaxBlock(
   }
   workspace.blockSums[0] = loss;
   workspace.blockSums[1] = squaredNorms;
+  workspace.blockSums[2] = pooledDeviations;
 }
 
 /** ‖pᵢ − e_yᵢ‖² · ‖x̃ᵢ‖², the squared norm of the per-sample gradient (methods.md §3). */
@@ -347,6 +401,34 @@ function squaredResidualTimesRowNorm(
   return residualNorm * rowNorm;
 }
 
+/**
+ * ‖rᵢ x̃ᵢᵀ − c‖², the squared distance of the per-sample gradient from a centre c (C × width,
+ * C = residuals counted from `offset`, width = c.length / C), formed entry by entry so that nothing
+ * cancels when the gradient is close to c (methods.md §3, σₘ² by two passes).
+ *
+ * Example: residuals [1], row [2, 1] and c = [2, 0] give (2 − 2)² + (1 − 0)² = 1.
+ */
+function squaredDeviation(
+  residuals: Float64Array,
+  offset: number,
+  classCount: number,
+  x: Float64Array,
+  base: number,
+  centre: Float64Array,
+): number {
+  const width = centre.length / classCount;
+  let total = 0;
+  for (let c = 0; c < classCount; c++) {
+    const residual = residuals[offset + c];
+    const centreBase = c * width;
+    for (let j = 0; j < width; j++) {
+      const difference = residual * x[base + j] - centre[centreBase + j];
+      total += difference * difference;
+    }
+  }
+  return total;
+}
+
 function accumulateLeastSquaresBlock(
   design: PassData,
   targets: Float64Array,
@@ -356,27 +438,35 @@ function accumulateLeastSquaresBlock(
   workspace: PassWorkspace,
   withGradient: boolean,
   withSquaredNorms: boolean,
+  centres: PassCentres | null,
 ): void {
   const width = design.x.cols;
   const x = design.x.data;
   const gradient = workspace.blockGradient;
+  const residuals = workspace.scores;
   let loss = 0;
   let squaredNorms = 0;
+  let pooledDeviations = 0;
   for (let row = rowStart; row < rowEnd; row++) {
     const base = row * width;
     let residual = -targets[row];
     for (let j = 0; j < width; j++) residual += weights[j] * x[base + j];
     loss += 0.5 * residual * residual;
     if (!withGradient) continue;
-    if (withSquaredNorms) {
+    if (withSquaredNorms && centres === null) {
       let rowNorm = 0;
       for (let j = 0; j < width; j++) rowNorm += x[base + j] * x[base + j];
       squaredNorms += residual * residual * rowNorm;
+    } else if (withSquaredNorms && centres !== null) {
+      residuals[0] = residual;
+      squaredNorms += squaredDeviation(residuals, 0, 1, x, base, centres.shard);
+      pooledDeviations += squaredDeviation(residuals, 0, 1, x, base, centres.pooled);
     }
     for (let j = 0; j < width; j++) gradient[j] += residual * x[base + j];
   }
   workspace.blockSums[0] = loss;
   workspace.blockSums[1] = squaredNorms;
+  workspace.blockSums[2] = pooledDeviations;
 }
 
 /** Adds `value` to the compensated loss sum (Neumaier). */
@@ -384,6 +474,17 @@ function addLoss(totals: PassTotals, value: number): void {
   const next = totals.lossSum + value;
   totals.lossCompensation += roundingError(totals.lossSum, value, next);
   totals.lossSum = next;
+}
+
+/** Adds `value` to the compensated sum of squared deviations about the pooled centre (Neumaier). */
+function addPooledDeviations(totals: PassTotals, value: number): void {
+  const next = totals.pooledSquaredDeviationSum + value;
+  totals.pooledSquaredDeviationCompensation += roundingError(
+    totals.pooledSquaredDeviationSum,
+    value,
+    next,
+  );
+  totals.pooledSquaredDeviationSum = next;
 }
 
 /** Adds `value` to the compensated sum of squared per-row gradient norms (Neumaier). */

@@ -10,6 +10,7 @@ import {
   accumulatePass,
   createTotals,
   createWorkspace,
+  type PassCentres,
   type PassTotals,
   type PassWorkspace,
 } from "./objective-pass";
@@ -62,7 +63,15 @@ export type Job =
       designId: number;
       weights: Float64Array;
       withSquaredNorms: boolean;
-      /** Per chunk: rows, loss sum and compensation, squared-norm sum and compensation, gradient sum, its compensation. */
+      /**
+       * The centres squared norms are taken about (see objective-pass.ts), or null for zero: per
+       * task the centre of its chunk's shard, then the pooled centre, P doubles each.
+       */
+      centres: Float64Array | null;
+      /**
+       * Per chunk: rows, loss sum and compensation, squared-norm sum and compensation, pooled
+       * squared-deviation sum and compensation, gradient sum, its compensation.
+       */
       results: Float64Array;
     }
   | { kind: "gram"; designId: number; results: Float64Array }
@@ -103,8 +112,11 @@ export function countTasks(job: Job, design: SharedDesignData): number {
 
 /** Doubles in one pass task's result slot for P parameters. */
 export function passSlotSize(parameterCount: number): number {
-  return 5 + 2 * parameterCount;
+  return SLOT_GRADIENT + 2 * parameterCount;
 }
+
+/** Where the gradient sums start in a pass task's slot (after the scalar sums). */
+const SLOT_GRADIENT = 7;
 
 /** Reusable scratch space of one thread. */
 export interface TaskScratch {
@@ -181,6 +193,7 @@ function runTask(job: Job, design: SharedDesignData, task: number, scratch: Task
       totals,
       scratch.pass as PassWorkspace,
       job.withSquaredNorms,
+      job.centres && centresOfTask(job.centres, task, size),
     );
     writeTotals(totals, job.results, task * passSlotSize(size));
     return;
@@ -201,12 +214,22 @@ function runTask(job: Job, design: SharedDesignData, task: number, scratch: Task
   job.results.set(block, task * width * width);
 }
 
+/** Task `task`'s centres within a pass job's centre array (views, nothing copied). */
+function centresOfTask(centres: Float64Array, task: number, size: number): PassCentres {
+  return {
+    shard: centres.subarray(task * size, (task + 1) * size),
+    pooled: centres.subarray(centres.length - size),
+  };
+}
+
 function resetTotals(totals: PassTotals): PassTotals {
   totals.rows = 0;
   totals.lossSum = 0;
   totals.lossCompensation = 0;
   totals.squaredGradientNormSum = 0;
   totals.squaredGradientNormCompensation = 0;
+  totals.pooledSquaredDeviationSum = 0;
+  totals.pooledSquaredDeviationCompensation = 0;
   totals.gradientSum.fill(0);
   totals.gradientCompensation.fill(0);
   return totals;
@@ -219,8 +242,10 @@ function writeTotals(totals: PassTotals, results: Float64Array, offset: number):
   results[offset + 2] = totals.lossCompensation;
   results[offset + 3] = totals.squaredGradientNormSum;
   results[offset + 4] = totals.squaredGradientNormCompensation;
-  results.set(totals.gradientSum, offset + 5);
-  results.set(totals.gradientCompensation, offset + 5 + size);
+  results[offset + 5] = totals.pooledSquaredDeviationSum;
+  results[offset + 6] = totals.pooledSquaredDeviationCompensation;
+  results.set(totals.gradientSum, offset + SLOT_GRADIENT);
+  results.set(totals.gradientCompensation, offset + SLOT_GRADIENT + size);
 }
 
 /** The totals a pass task wrote into its slot. */
@@ -232,10 +257,12 @@ export function readSlot(results: Float64Array, task: number, parameterCount: nu
     lossCompensation: results[offset + 2],
     squaredGradientNormSum: results[offset + 3],
     squaredGradientNormCompensation: results[offset + 4],
-    gradientSum: results.slice(offset + 5, offset + 5 + parameterCount),
+    pooledSquaredDeviationSum: results[offset + 5],
+    pooledSquaredDeviationCompensation: results[offset + 6],
+    gradientSum: results.slice(offset + SLOT_GRADIENT, offset + SLOT_GRADIENT + parameterCount),
     gradientCompensation: results.slice(
-      offset + 5 + parameterCount,
-      offset + 5 + 2 * parameterCount,
+      offset + SLOT_GRADIENT + parameterCount,
+      offset + SLOT_GRADIENT + 2 * parameterCount,
     ),
   };
 }

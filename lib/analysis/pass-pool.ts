@@ -40,6 +40,12 @@ export interface PassResult {
   pooled: PassTotals;
 }
 
+/** Mean data gradients from an earlier pass at the same W: per shard, and over all rows. */
+export interface NoiseCentres {
+  shards: Float64Array[];
+  pooled: Float64Array;
+}
+
 /**
  * Threads that share the passes over the rows (objective and gradient, Gram matrix, Hessian blocks).
  * The calling thread works too, so a pool of n threads starts n − 1 worker threads; a pool of one
@@ -175,10 +181,15 @@ export class SharedDesign {
   }
 
   /**
-   * Σ ℓᵢ(W), Σ ∇ℓᵢ(W) and (when asked) Σ ‖∇ℓᵢ(W)‖² per shard and over all rows (see
-   * objective-pass.ts), in one pass shared by the pool's threads.
+   * Σ ℓᵢ(W), Σ ∇ℓᵢ(W) and (when asked) Σ ‖∇ℓᵢ(W) − c‖² per shard and over all rows (see
+   * objective-pass.ts), in one pass shared by the pool's threads. The centre c is zero, or with
+   * `centres` each shard's own (and the pooled one for the pooled deviations).
    */
-  evaluate(weights: Float64Array, withSquaredNorms: boolean): PassResult {
+  evaluate(
+    weights: Float64Array,
+    withSquaredNorms: boolean,
+    centres: NoiseCentres | null = null,
+  ): PassResult {
     const size = weights.length;
     const chunkStarts = this.data.chunkStarts;
     const taskCount = chunkStarts.length - 1;
@@ -190,7 +201,14 @@ export class SharedDesign {
         ? last.results
         : sharedFloat64(taskCount * passSlotSize(size));
     const control = this.pool.run(
-      { kind: "pass", designId: this.data.id, weights, withSquaredNorms, results },
+      {
+        kind: "pass",
+        designId: this.data.id,
+        weights,
+        withSquaredNorms,
+        centres: centres && this.layOutCentres(centres, size),
+        results,
+      },
       this.data,
     );
     this.lastPass = { results, control };
@@ -206,6 +224,20 @@ export class SharedDesign {
     const pooled = createTotals(size);
     for (const totals of shards) mergeTotals(pooled, totals);
     return { shards, pooled };
+  }
+
+  /** The centres as a pass job reads them: each chunk's shard's centre, then the pooled one. */
+  private layOutCentres(centres: NoiseCentres, size: number): Float64Array {
+    const chunkStarts = this.data.chunkStarts;
+    const taskCount = chunkStarts.length - 1;
+    const laidOut = sharedFloat64((taskCount + 1) * size);
+    let shard = 0;
+    for (let chunk = 0; chunk < taskCount; chunk++) {
+      while (chunkStarts[chunk] >= this.shardOffsets[shard + 1]) shard++;
+      laidOut.set(centres.shards[shard], chunk * size);
+    }
+    laidOut.set(centres.pooled, taskCount * size);
+    return laidOut;
   }
 
   /**

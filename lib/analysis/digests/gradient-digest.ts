@@ -1,5 +1,6 @@
 import { PATH_POINTS } from "../analyze-partition";
 import { AnalysisInputError } from "../errors";
+import { sumFeaturesPerShard } from "../measure-feature-shift";
 import { readTotals, type PassTotals } from "../objective-pass";
 import type { ClientDesign } from "./client-rows";
 import type { ClientPasses } from "./client-passes";
@@ -66,7 +67,7 @@ export function computeGradientDigest(
       rows: design.shardOffsets[m + 1] - design.shardOffsets[m],
       labelCounts: design.labels && countLabels(design, m, encoding),
       targetHistogram: histograms && histograms[m],
-      featureSums: featureSums[m],
+      featureSums: Array.from(featureSums[m]),
       atReference: describeSums(atReference[m], true),
       alongPath: alongPath.map((point) => describeSums(point[m], false)),
     })),
@@ -80,20 +81,6 @@ function describeSums(totals: PassTotals, withNoise: boolean): PointSums {
     gradientSum: Array.from(sums.gradient),
     squaredGradientNormSum: withNoise ? sums.squaredNorms : null,
   };
-}
-
-/** Σx̃ᵢ over each shard's rows, the d features (the bias's sum is the row count). */
-function sumFeaturesPerShard(design: ClientDesign): number[][] {
-  const width = design.x.cols;
-  const x = design.x.data;
-  return design.shardIds.map((_, m) => {
-    const sums = new Float64Array(width - 1);
-    for (let row = design.shardOffsets[m]; row < design.shardOffsets[m + 1]; row++) {
-      const base = row * width;
-      for (let j = 0; j < width - 1; j++) sums[j] += x[base + j];
-    }
-    return Array.from(sums);
-  });
 }
 
 function countLabels(design: ClientDesign, shard: number, encoding: DigestEncoding): number[] {
