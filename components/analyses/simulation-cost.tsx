@@ -52,8 +52,7 @@ export function SimulationCost({
           role="alert"
           className="rounded-md border border-cadmium/40 bg-cadmium-soft px-3 py-2 text-ink"
         >
-          Above the server&apos;s budget of {view.budget} multiply-adds, so it would be refused:{" "}
-          {view.refusal}.
+          {view.refusal}
         </p>
       ) : null}
     </div>

@@ -211,6 +211,7 @@ export async function analyzeDesign(
       estimateSimulationCost(plan, design.x.cols, weightRows, seeds),
       budget,
       plan,
+      seeds,
     );
   }
   const passes = context.pool.share(design, design.shardOffsets);

@@ -1,12 +1,12 @@
 import "server-only";
 import type { DataFilePreview } from "@/db/schema/analyses";
 import { MAX_ONE_HOT_LEVELS } from "@/lib/analysis/column-accumulator";
-import { AnalysisInputError } from "@/lib/analysis/errors";
 import type { TrainingPlan } from "@/lib/analysis/simulation/run-algorithm";
 import {
-  checkSimulationBudget,
+  countOf,
   estimateEvaluationCost,
   estimateSimulationCost,
+  fitWithinBudget,
 } from "@/lib/analysis/simulation/simulation-cost";
 import { formatFigure } from "@/lib/reports/report-view";
 import { detectTask } from "@/lib/uploads/preview-task";
@@ -69,6 +69,10 @@ export interface SimulationEstimate {
   weightRows: number;
   /** The plan it was estimated for, M filled in with the shards seen when the plan uses them all. */
   plan: TrainingPlan;
+  /** True when the plan takes every shard each round (M not given). */
+  allShards: boolean;
+  /** S. */
+  seeds: number;
   /** False when a preview stopped before the end of its file, so its counts may be too low. */
   wholeFiles: boolean;
 }
@@ -151,6 +155,8 @@ export function estimateSimulationFromPreviews(
     width,
     weightRows,
     plan,
+    allShards: options.participants === undefined,
+    seeds: input.seeds,
     wholeFiles:
       !dataset.truncated && (options.shardColumn !== undefined || !input.layout?.truncated),
   };
@@ -197,23 +203,43 @@ export interface SimulationCostView {
   weightRows: number;
   participants: number;
   wholeFiles: boolean;
-  budget: string;
-  /** The engine's refusal when the cost is above the budget, else null. */
+  /** The refusal when the cost is above the budget (findSimulationRefusal), else null. */
   refusal: string | null;
 }
 
-/** The engine's own refusal for this estimate (checkSimulationBudget), or null within the budget. */
+/**
+ * The refusal of an estimate above the budget, in the form's words and number format, saying what
+ * on the form would bring it within (fitWithinBudget); null within the budget. The budget itself is
+ * the server's, so it is not offered as something to change.
+ *
+ * Example: 7.6032e11 (penguins by island, all 3 shards, R = 1 000 000, S = 3), budget 1e11 →
+ * "The simulation would take about 7.6×10¹¹ multiply-adds, above the server's budget of 1.0×10¹¹.
+ * It fits with Rounds (R) at most 131,523."
+ */
 export function findSimulationRefusal(estimate: SimulationEstimate, budget: number): string | null {
-  try {
-    checkSimulationBudget(estimate.cost, budget, estimate.plan);
-    return null;
-  } catch (error) {
-    if (error instanceof AnalysisInputError) return error.message;
-    throw error;
-  }
+  if (estimate.cost <= budget) return null;
+  const fit = fitWithinBudget(estimate.cost, budget, estimate.plan, estimate.seeds);
+  const shards = fit.participants === null ? null : countOf(fit.participants, "shard");
+  const changes = [
+    fit.rounds === null ? null : `Rounds (R) at most ${fit.rounds.toLocaleString("en-US")}`,
+    shards === null
+      ? null
+      : estimate.allShards
+        ? `a sample of at most ${shards} per round (M) instead of all shards`
+        : `Shards per round (M) at most ${fit.participants}`,
+    fit.seeds === null ? null : `Seeds (S) at most ${fit.seeds}`,
+  ].filter((change) => change !== null);
+  const advice =
+    changes.length > 0
+      ? `It fits with ${changes.join(", or ")}.`
+      : "No one change fits it: lower the rounds, shards per round, local steps and batch size together.";
+  return (
+    `The simulation would take about ${formatFigure(estimate.cost, 2)} multiply-adds, above the ` +
+    `server's budget of ${formatFigure(budget, 2)}. ${advice}`
+  );
 }
 
-/** The estimate as the form shows it, with the engine's refusal when it is above the budget. */
+/** The estimate as the form shows it, with the refusal when it is above the budget. */
 export function toSimulationCostView(
   estimate: SimulationEstimate,
   budget: number,
@@ -228,7 +254,6 @@ export function toSimulationCostView(
     weightRows: estimate.weightRows,
     participants: estimate.plan.participants,
     wholeFiles: estimate.wholeFiles,
-    budget: formatFigure(budget, 2),
     refusal: findSimulationRefusal(estimate, budget),
   };
 }

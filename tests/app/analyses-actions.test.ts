@@ -290,7 +290,7 @@ async function addPreview(file: StoredInput) {
 }
 
 describe("startAnalysis: the simulation's cost (methods.md §7)", () => {
-  it("refuses a plan above the budget on the simulation's field, with the engine's message", async () => {
+  it("refuses a plan above the budget on the simulation's field, saying what would fit", async () => {
     const { team, files, request } = await teamWithPenguins();
     await Promise.all([addPreview(files.dataset), addPreview(files.layout)]);
     actAs(team.analyst);
@@ -308,10 +308,17 @@ describe("startAnalysis: the simulation's cost (methods.md §7)", () => {
       (error: Error) => error.message,
     );
     expect(engineMessage).toMatch(/^the simulation would take about 7\.60e11 multiply-adds/);
+    // The form's words for the same refusal, in the form's number format, naming what on the form
+    // brings it within: R ≤ 10⁶ × 10¹¹ / 7.6032×10¹¹ = 131,523.6 (by hand); M = 3 × 0.13 and
+    // S = 11 × 0.13 − 8 fit at no value of at least 1, so neither is offered.
     expect(refused).toMatchObject({
       ok: false,
       status: 422,
-      fieldErrors: { "options.simulate": engineMessage },
+      fieldErrors: {
+        "options.simulate":
+          "The simulation would take about 7.6×10¹¹ multiply-adds, above the server's budget of " +
+          "1.0×10¹¹. It fits with Rounds (R) at most 131,523.",
+      },
     });
     expect(await analysesIn(team.workspaceId)).toEqual([]);
     expect(queue.jobs).toEqual([]);

@@ -99,11 +99,13 @@ describe("from upload to report in the browser", () => {
 
     // Far above the budget: the form warns, and the server refuses on the simulation's field.
     await page.getByLabel("Rounds (R)").fill("1000000");
-    await page.getByText(/Above the server's budget of 1\.0×10¹¹ multiply-adds/).waitFor();
+    await page
+      .getByText(/above the server's budget of 1\.0×10¹¹\. It fits with Rounds \(R\)/)
+      .waitFor();
     await page.getByRole("button", { name: "Run analysis" }).click();
     const refusal = page.locator("#simulate-error");
     await refusal.waitFor();
-    expect(await refusal.textContent()).toMatch(/^the simulation would take about 7\.60e11/);
+    expect(await refusal.textContent()).toMatch(/^The simulation would take about 7\.6×10¹¹/);
     expect(await page.getByLabel("Label column", { exact: true }).inputValue()).toBe("Species");
 
     // A small plan keeps the run short: 3 × (8 + 2) runs of 20 rounds (a few more if a grid grows).

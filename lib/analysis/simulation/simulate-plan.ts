@@ -143,7 +143,7 @@ export async function simulatePlan(
 ): Promise<SimulationSummary> {
   const { design } = input;
   const cost = estimateSimulationCost(plan, design.x.cols, countWeightRows(design), options.seeds);
-  checkSimulationBudget(cost, options.budget, plan);
+  checkSimulationBudget(cost, options.budget, plan, options.seeds);
   const curveRounds = chooseCurveRounds(plan.rounds);
   const checkRounds = chooseCurveRounds(plan.rounds, GRID_CHECK_POINTS);
   const runs = planRuns(input.smoothness, options, checkRounds, curveRounds);

@@ -69,27 +69,69 @@ export function estimateEvaluationCost(
   return ALGORITHMS.length * passes * rows * width * weightRows;
 }
 
+/** The largest R, M and S that would each alone bring a simulation within its budget. */
+export interface BudgetFit {
+  rounds: number | null;
+  participants: number | null;
+  seeds: number | null;
+}
+
 /**
- * Throws AnalysisInputError when the estimated cost is above the budget, with the largest rounds R
- * and participants M that would fit so the user knows what to ask for instead.
+ * What alone would bring a simulation within its budget: the largest R, the largest M and the
+ * largest S that each fit with the rest of the plan unchanged (the cost is linear in R and M, and
+ * in 8 + S); null where even 1 does not fit.
+ *
+ * Example: cost 1.04544e9 (penguins by island, R = 1000, M = 3, S = 3), budget 1e8: R ≤ 95, M
+ * fits at no value ≥ 1 (3 × 0.0957 < 1), S fits at no value ≥ 1 (11 × 0.0957 − 8 < 1).
  */
-export function checkSimulationBudget(cost: number, budget: number, plan: TrainingPlan): void {
-  if (cost <= budget) return;
+export function fitWithinBudget(
+  cost: number,
+  budget: number,
+  plan: TrainingPlan,
+  seeds: number,
+): BudgetFit {
   const scale = budget / cost;
-  const rounds = Math.floor(plan.rounds * scale);
-  const participants = Math.floor(plan.participants * scale);
+  const atLeastOne = (value: number) => (value >= 1 ? value : null);
+  return {
+    rounds: atLeastOne(Math.floor(plan.rounds * scale)),
+    participants: atLeastOne(Math.floor(plan.participants * scale)),
+    seeds: atLeastOne(Math.floor((STEP_SIZE_COUNT + seeds) * scale - STEP_SIZE_COUNT)),
+  };
+}
+
+/** "1 round", "95 rounds". */
+export function countOf(count: number, noun: string): string {
+  return `${count} ${count === 1 ? noun : `${noun}s`}`;
+}
+
+/**
+ * Throws AnalysisInputError when the estimated cost is above the budget, naming the largest
+ * rounds, participants and seeds that would each fit (fitWithinBudget), so the user knows what to
+ * ask for instead.
+ */
+export function checkSimulationBudget(
+  cost: number,
+  budget: number,
+  plan: TrainingPlan,
+  seeds: number,
+): void {
+  if (cost <= budget) return;
+  const fit = fitWithinBudget(cost, budget, plan, seeds);
   const suggestions = [
-    rounds >= 1 ? `at most ${rounds} rounds` : null,
-    participants >= 1 ? `at most ${participants} participants per round` : null,
+    fit.rounds !== null ? `at most ${countOf(fit.rounds, "round")}` : null,
+    fit.participants !== null
+      ? `at most ${countOf(fit.participants, "participant")} per round`
+      : null,
+    fit.seeds !== null ? `at most ${countOf(fit.seeds, "seed")}` : null,
   ].filter((text) => text !== null);
   throw new AnalysisInputError(
     `the simulation would take about ${formatCount(cost)} multiply-adds, above the budget of ${formatCount(budget)}`,
     {
       expected:
         (suggestions.length > 0
-          ? `fewer rounds or participants (${suggestions.join(", or ")})`
-          : "fewer rounds, participants, local steps or a smaller batch") +
-        ", fewer seeds, or a larger budget",
+          ? suggestions.join(", or ")
+          : "fewer rounds, participants, local steps or a smaller batch together") +
+        ", or a larger budget",
     },
   );
 }

@@ -68,7 +68,8 @@ describe("analyze CLI --simulate", () => {
     expect(refused.stderr).toContain(
       "partita: bad input: the simulation would take about 5.23e9 multiply-adds, above the budget of 1.00e9",
     );
-    expect(refused.stderr).toContain("fewer rounds or participants (at most 956 rounds)");
+    // 5000 × 1e9 / 5.23e9 → 956 rounds; 3 participants and 3 seeds fit at no value of at least 1.
+    expect(refused.stderr).toContain("(expected at most 956 rounds, or a larger budget)");
     expect(refused.stdout).toBe("");
     const stray = await runCli([...BASE, "--seeds", "2"]);
     expect(stray.code).toBe(2);

@@ -13,6 +13,7 @@ import {
   describeSimulationCost,
   estimateRowCount,
   estimateSimulationFromPreviews,
+  findSimulationRefusal,
 } from "@/lib/reports/simulation-estimate";
 import { readCsvHead, summarizeCsvHead } from "@/lib/uploads/csv-preview";
 import { DEFAULT_SIMULATION_BUDGET } from "@/lib/validation/analysis-options";
@@ -129,6 +130,43 @@ describe("the simulation's cost shown before a run", () => {
         seeds: 3,
       }),
     ).toBeNull();
+  });
+});
+
+describe("the form's words when a simulation is above the budget", () => {
+  const estimate = (participants: number | undefined, seeds: number) => {
+    const dataset = previewOf(penguins.csv, "penguins.csv");
+    const options = { labelColumn: "Species", idColumn: "row", shardColumn: "Island" };
+    const found = estimateSimulationFromPreviews({
+      dataset,
+      options: { ...options, participants, localSteps: 10, rounds: 100, batchSize: 32 },
+      seeds,
+    });
+    if (!found) throw new Error("no estimate");
+    return found;
+  };
+
+  it("names the form's fields that would fit it, in the form's number format, never the budget", () => {
+    // All 3 islands, S = 3: 3 × 11 × 100 · 3 · 10 · 32 · 8 · 3 = 7.6032e7 (methods.md §7, by hand).
+    // Budget 5e7, share q = 0.6576: R ≤ ⌊65.8⌋ = 65, M ≤ ⌊1.97⌋ = 1, S ≤ ⌊11q − 8⌋ = ⌊−0.77⌋: none.
+    expect(findSimulationRefusal(estimate(undefined, 3), 5e7)).toBe(
+      "The simulation would take about 7.6×10⁷ multiply-adds, above the server's budget of " +
+        "5.0×10⁷. It fits with Rounds (R) at most 65, or a sample of at most 1 shard per round (M) " +
+        "instead of all shards.",
+    );
+    // M = 2 of a sample, S = 10: 3 × 18 × 100 · 2 · 10 · 32 · 8 · 3 = 8.2944e7; budget 7e7,
+    // q = 0.8439: R ≤ 84, M ≤ ⌊1.69⌋ = 1, S ≤ ⌊18q − 8⌋ = ⌊7.19⌋ = 7.
+    expect(findSimulationRefusal(estimate(2, 10), 7e7)).toBe(
+      "The simulation would take about 8.3×10⁷ multiply-adds, above the server's budget of " +
+        "7.0×10⁷. It fits with Rounds (R) at most 84, or Shards per round (M) at most 1, or " +
+        "Seeds (S) at most 7.",
+    );
+    expect(findSimulationRefusal(estimate(2, 10), 1e5)).toBe(
+      "The simulation would take about 8.3×10⁷ multiply-adds, above the server's budget of " +
+        "100,000. No one change fits it: lower the rounds, shards per round, local steps and " +
+        "batch size together.",
+    );
+    expect(findSimulationRefusal(estimate(2, 10), 8.2944e7)).toBeNull();
   });
 });
 
