@@ -1,6 +1,7 @@
 import Link from "next/link";
 import { formatFigure } from "@/lib/reports/report-view";
-import { SHARD_COLUMNS, type ShardTableRow } from "@/lib/reports/shard-table";
+import type { PartitionSummary } from "@/lib/analysis";
+import { SHARD_ID_HEADING, shardColumnsFor, type ShardTableRow } from "@/lib/reports/shard-table";
 import {
   lastShardPage,
   SHARD_PAGE_SIZE,
@@ -9,11 +10,6 @@ import {
   type ShardSortKey,
   type ShardTableView,
 } from "@/lib/reports/shard-table-view";
-
-const HEADINGS: { key: ShardSortKey; heading: string; description?: string }[] = [
-  { key: "shardId", heading: "Shard" },
-  ...SHARD_COLUMNS,
-];
 
 /**
  * One page of the per-shard table, sorted and filtered on the server: headings and page links are
@@ -26,6 +22,7 @@ export function ShardTable({
   matching,
   total,
   anchor,
+  task,
 }: {
   rows: ShardTableRow[];
   view: ShardTableView;
@@ -35,14 +32,21 @@ export function ShardTable({
   total: number;
   /** Id of the heading the table's links return to. */
   anchor: string;
+  /** The report's task: regression's "classes" are label bins. */
+  task: PartitionSummary["dataset"]["task"];
 }) {
+  const columns = shardColumnsFor(task);
+  const headings: { key: ShardSortKey; heading: string; description?: string }[] = [
+    { key: "shardId", heading: SHARD_ID_HEADING },
+    ...columns,
+  ];
   const href = (next: ShardTableView) => shardTableHref(next, anchor);
   const last = lastShardPage(matching);
   const first = (view.page - 1) * SHARD_PAGE_SIZE + 1;
   const sortName =
     view.sort === "shardId"
       ? "shard id"
-      : (SHARD_COLUMNS.find((column) => column.key === view.sort)?.heading ?? view.sort);
+      : (columns.find((column) => column.key === view.sort)?.heading ?? view.sort);
   const direction = view.descending
     ? view.sort === "shardId"
       ? " (reverse order)"
@@ -93,7 +97,7 @@ export function ShardTable({
           </caption>
           <thead className="bg-paper-deep/60 text-ink">
             <tr>
-              {HEADINGS.map((column) => (
+              {headings.map((column) => (
                 <th
                   key={column.key}
                   scope="col"
@@ -116,10 +120,7 @@ export function ShardTable({
           <tbody>
             {rows.length === 0 ? (
               <tr>
-                <td
-                  colSpan={SHARD_COLUMNS.length + 1}
-                  className="px-2 py-4 text-center text-ink-soft"
-                >
+                <td colSpan={columns.length + 1} className="px-2 py-4 text-center text-ink-soft">
                   {total === 0
                     ? "This report has no shards."
                     : matching === 0
@@ -137,7 +138,7 @@ export function ShardTable({
                   >
                     {row.shardId}
                   </th>
-                  {SHARD_COLUMNS.map((column) => (
+                  {columns.map((column) => (
                     <td key={column.key} className="px-2 py-1">
                       {column.key === "rows" || column.key === "classesPresent"
                         ? row[column.key].toLocaleString("en-US")

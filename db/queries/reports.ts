@@ -2,6 +2,7 @@ import "server-only";
 import { and, asc, count, desc, eq, gte, ilike, lt, sql, type SQL } from "drizzle-orm";
 import { db } from "@/db/client";
 import { reports, reportShards, users } from "@/db/schema";
+import type { PartitionSummary } from "@/lib/analysis";
 import type { ReportFilters } from "@/lib/reports/report-filters";
 import type { ShardTableRow } from "@/lib/reports/shard-table";
 import { SHARD_PAGE_SIZE, type ShardTableView } from "@/lib/reports/shard-table-view";
@@ -225,9 +226,21 @@ export async function findReportSummary(workspaceId: string, reportId: string) {
 export async function findReportShardTable(
   workspaceId: string,
   reportId: string,
-): Promise<{ title: string; version: number; shards: ShardTableRow[] } | undefined> {
+): Promise<
+  | {
+      title: string;
+      version: number;
+      task: PartitionSummary["dataset"]["task"];
+      shards: ShardTableRow[];
+    }
+  | undefined
+> {
   const [report] = await db()
-    .select({ title: reports.title, version: reports.version })
+    .select({
+      title: reports.title,
+      version: reports.version,
+      task: sql<PartitionSummary["dataset"]["task"]>`${reports.summary}->'dataset'->>'task'`,
+    })
     .from(reports)
     .where(and(eq(reports.workspaceId, workspaceId), eq(reports.id, reportId)));
   if (!report) return undefined;

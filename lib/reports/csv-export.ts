@@ -1,5 +1,6 @@
 import Papa from "papaparse";
-import { SHARD_COLUMNS, type ShardTableRow } from "./shard-table";
+import type { PartitionSummary } from "@/lib/analysis";
+import { SHARD_ID_HEADING, shardColumnsFor, type ShardTableRow } from "./shard-table";
 
 const FORMULA_TRIGGERS = ["=", "+", "-", "@", "\t", "\r"];
 
@@ -15,16 +16,20 @@ export function neutralizeSpreadsheetFormula(cell: string): string {
 }
 
 /**
- * The per-shard table as CSV: a header of the JSON summary's key names (`shard` for the id), one
- * row per shard in stored order, numbers at full precision so the file reads back exactly. Papa's
+ * The per-shard table as CSV: a header of the page table's headings for the report's task, one row
+ * per shard in stored order, numbers at full precision so the file reads back exactly. Papa's
  * unparse does the quoting (commas, quotes, line breaks inside a cell).
  */
-export function formatShardsCsv(rows: ShardTableRow[]): string {
+export function formatShardsCsv(
+  rows: ShardTableRow[],
+  task: PartitionSummary["dataset"]["task"],
+): string {
+  const columns = shardColumnsFor(task);
   return Papa.unparse({
-    fields: ["shard", ...SHARD_COLUMNS.map((column) => column.csvHeader)],
+    fields: [SHARD_ID_HEADING, ...columns.map((column) => column.heading)],
     data: rows.map((row) => [
       neutralizeSpreadsheetFormula(row.shardId),
-      ...SHARD_COLUMNS.map((column) => row[column.key]),
+      ...columns.map((column) => row[column.key]),
     ]),
   });
 }

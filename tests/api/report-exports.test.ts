@@ -75,25 +75,30 @@ describe("GET …/reports/[reportId]/shards.csv", () => {
     expect(response.headers.get("content-disposition")).toContain(
       "penguins-by-island-v1.shards.csv",
     );
-    const parsed = Papa.parse<Record<string, string>>(await response.text(), {
+    const bytes = new Uint8Array(await response.arrayBuffer());
+    // UTF-8's byte order mark first, so spreadsheets read the headings' symbols as UTF-8.
+    expect([...bytes.subarray(0, 3)]).toEqual([0xef, 0xbb, 0xbf]);
+    // TextDecoder drops the mark, as a UTF-8 reader does.
+    const parsed = Papa.parse<Record<string, string>>(new TextDecoder().decode(bytes), {
       header: true,
       skipEmptyLines: true,
     });
     expect(parsed.errors).toEqual([]);
+    // The headings are the page table's (components/reports/shard-table.tsx).
     expect(
       parsed.data.map((row) => ({
-        id: row.shard,
-        rows: Number(row.rows),
-        tv: Number(row.tv),
-        hellinger: Number(row.hellinger),
-        js: Number(row.js),
-        kl: Number(row.kl),
-        gradNorm2: Number(row.gradNorm2),
-        sigma2: Number(row.sigma2),
-        loss: Number(row.loss),
-        classesPresent: Number(row.classesPresent),
-        effectiveClasses: Number(row.effectiveClasses),
-        featureShift: Number(row.featureShift),
+        id: row.Shard,
+        rows: Number(row.Rows),
+        tv: Number(row.TV),
+        hellinger: Number(row.Hellinger),
+        js: Number(row.JS),
+        kl: Number(row.KL),
+        gradNorm2: Number(row["‖gₘ‖²"]),
+        sigma2: Number(row["σₘ²"]),
+        loss: Number(row["Fₘ"]),
+        classesPresent: Number(row.Classes),
+        effectiveClasses: Number(row["Eff. classes"]),
+        featureShift: Number(row["Feature shift"]),
       })),
     ).toEqual(
       cliSummary.shards.map((shard) => {

@@ -45,24 +45,32 @@ describe("formatShardsCsv", () => {
     shardRow('=HYPERLINK("http://x.invalid","open")', 3),
     shardRow("north, upper\nvalley", 12),
   ];
-  const parsed = Papa.parse<string[]>(formatShardsCsv(rows), { skipEmptyLines: true }).data;
+  const parsed = Papa.parse<string[]>(formatShardsCsv(rows, "classification"), {
+    skipEmptyLines: true,
+  }).data;
 
-  it("writes a header of the summary's key names and one row per shard", () => {
+  it("writes a header of the page table's headings and one row per shard", () => {
+    // The headings as the report page's per-shard table shows them (components/reports/shard-table.tsx).
     expect(parsed[0]).toEqual([
-      "shard",
-      "rows",
-      "tv",
-      "hellinger",
-      "js",
-      "kl",
-      "gradNorm2",
-      "sigma2",
-      "loss",
-      "classesPresent",
-      "effectiveClasses",
-      "featureShift",
+      "Shard",
+      "Rows",
+      "TV",
+      "Hellinger",
+      "JS",
+      "KL",
+      "‖gₘ‖²",
+      "σₘ²",
+      "Fₘ",
+      "Classes",
+      "Eff. classes",
+      "Feature shift",
     ]);
     expect(parsed).toHaveLength(4);
+  });
+
+  it("names regression's classes as the label's bins, as the page does (methods.md §4)", () => {
+    const [header] = Papa.parse<string[]>(formatShardsCsv(rows, "regression")).data;
+    expect(header.slice(9, 11)).toEqual(["Label bins", "Eff. bins"]);
   });
 
   it("reads back to the same numbers and ids, with formulas neutralized", () => {
@@ -80,6 +88,6 @@ describe("formatShardsCsv", () => {
   });
 
   it("writes only the header for a report without shards", () => {
-    expect(formatShardsCsv([]).trim().split(/\r?\n/)).toHaveLength(1);
+    expect(formatShardsCsv([], "classification").trim().split(/\r?\n/)).toHaveLength(1);
   });
 });

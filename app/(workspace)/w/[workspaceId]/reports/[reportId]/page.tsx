@@ -97,6 +97,7 @@ export default async function ReportPage({ params, searchParams }: PageProps) {
           matching={shardPage.matching}
           total={report.shardCount}
           anchor="shards-heading"
+          task={summary.dataset.task}
         />
       </section>
       <PreprocessingNotes summary={summary} />

@@ -14,7 +14,8 @@ export async function GET(_request: Request, context: RouteContext): Promise<Res
     const { workspace } = await requireRole(workspaceId, "readWorkspace");
     const table = await findReportShardTable(workspace.id, reportId);
     if (!table) throw new AccessError(404, "That report does not exist in this workspace.");
-    return new Response(`${formatShardsCsv(table.shards)}\r\n`, {
+    // A byte order mark, so spreadsheets read the headings' symbols (σₘ², ‖gₘ‖²) as UTF-8.
+    return new Response(`\uFEFF${formatShardsCsv(table.shards, table.task)}\r\n`, {
       headers: describeDownload(
         nameExportFile(table.title, table.version, "shards.csv"),
         "text/csv; charset=utf-8",
