@@ -1,5 +1,5 @@
 import "server-only";
-import { and, eq } from "drizzle-orm";
+import { and, eq, isNotNull } from "drizzle-orm";
 import { db } from "@/db/client";
 import { analyses, reports } from "@/db/schema";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
@@ -21,6 +21,9 @@ const formColumns = {
   parameters: analyses.parameters,
 };
 
+// A federated analysis has no dataset file to read again (its report was merged from client
+// digests), so the file form cannot start from it: both look-ups pass it by.
+
 /** An analysis of this workspace as the form's starting point ("run again"), or undefined. */
 export async function findAnalysisForForm(
   workspaceId: string,
@@ -29,8 +32,14 @@ export async function findAnalysisForForm(
   const [row] = await db()
     .select(formColumns)
     .from(analyses)
-    .where(and(eq(analyses.workspaceId, workspaceId), eq(analyses.id, analysisId)));
-  return row;
+    .where(
+      and(
+        eq(analyses.workspaceId, workspaceId),
+        eq(analyses.id, analysisId),
+        isNotNull(analyses.datasetFileId),
+      ),
+    );
+  return row && { ...row, datasetFileId: row.datasetFileId as string };
 }
 
 /** The analysis behind a report of this workspace, to revise it with other parameters. */
@@ -42,6 +51,12 @@ export async function findReportAnalysisForForm(
     .select(formColumns)
     .from(reports)
     .innerJoin(analyses, eq(analyses.id, reports.analysisId))
-    .where(and(eq(reports.workspaceId, workspaceId), eq(reports.id, reportId)));
-  return row;
+    .where(
+      and(
+        eq(reports.workspaceId, workspaceId),
+        eq(reports.id, reportId),
+        isNotNull(analyses.datasetFileId),
+      ),
+    );
+  return row && { ...row, datasetFileId: row.datasetFileId as string };
 }

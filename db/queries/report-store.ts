@@ -87,14 +87,14 @@ export function listFiguresOf(summary: PartitionSummary) {
   };
 }
 
-type Transaction = Parameters<Parameters<ReturnType<typeof db>["transaction"]>[0]>[0];
+export type Transaction = Parameters<Parameters<ReturnType<typeof db>["transaction"]>[0]>[0];
 
 /**
  * The lineage and next version for a revision of `previousReportId`. The lineage's first report is
  * locked so two revisions finishing at once take consecutive versions instead of colliding; the
  * version follows the highest in the lineage, so revising an older version never reuses a number.
  */
-async function nextVersionOf(
+export async function nextVersionOf(
   tx: Transaction,
   workspaceId: string,
   previousReportId: string,

@@ -74,9 +74,8 @@ export const analyses = pgTable(
     id: uuidPrimaryKey(),
     workspaceId: cascadingReference("workspace_id", () => workspaces.id),
     title: text("title").notNull(),
-    datasetFileId: text("dataset_file_id")
-      .notNull()
-      .references(() => dataFiles.id),
+    /** Null for a federated analysis: its report was merged from client digests, not read from a file. */
+    datasetFileId: text("dataset_file_id").references(() => dataFiles.id),
     layoutFileId: text("layout_file_id").references(() => dataFiles.id),
     weightsFileId: text("weights_file_id").references(() => dataFiles.id),
     parameters: jsonb("parameters").$type<AnalysisOptionsInput>().notNull(),

@@ -4,3 +4,4 @@ export * from "./analyses";
 export * from "./api-tokens";
 export * from "./reviews";
 export * from "./mail-outbox";
+export * from "./federated";

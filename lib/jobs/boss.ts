@@ -1,6 +1,7 @@
 import PgBoss from "pg-boss";
 import { env } from "@/lib/env";
 import { ANALYSIS_JOB_POLICY, ANALYSIS_QUEUE } from "./analysis-queue";
+import { FEDERATED_JOB_POLICY, FEDERATED_QUEUE } from "./federated-queue";
 
 export interface BossOptions {
   /** Shown in pg_stat_activity, e.g. "partita-worker". */
@@ -16,8 +17,8 @@ export interface BossOptions {
 
 /**
  * A started pg-boss on DATABASE_URL, with its tables in its own `pgboss` schema (created or
- * migrated on first start) and the analysis queue in place. The queue is "stately": at most one
- * queued and one active job per singleton key, and every analysis job's key is its analysis id.
+ * migrated on first start) and the analysis and federated queues in place. Both are "stately": at
+ * most one queued and one active job per singleton key, and every job's key is its analysis id.
  */
 export async function startBoss(options: BossOptions): Promise<PgBoss> {
   const boss = new PgBoss({
@@ -35,6 +36,11 @@ export async function startBoss(options: BossOptions): Promise<PgBoss> {
     name: ANALYSIS_QUEUE,
     policy: "stately",
     ...ANALYSIS_JOB_POLICY,
+  });
+  await boss.createQueue(FEDERATED_QUEUE, {
+    name: FEDERATED_QUEUE,
+    policy: "stately",
+    ...FEDERATED_JOB_POLICY,
   });
   return boss;
 }

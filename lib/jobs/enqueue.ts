@@ -2,6 +2,7 @@ import "server-only";
 import type PgBoss from "pg-boss";
 import { ANALYSIS_JOB_POLICY, ANALYSIS_QUEUE, type AnalysisJob } from "./analysis-queue";
 import { startBoss } from "./boss";
+import { FEDERATED_JOB_POLICY, FEDERATED_QUEUE, type FederatedJob } from "./federated-queue";
 
 // One sending pg-boss per server process, kept on globalThis so development reloads reuse it.
 const holder = globalThis as typeof globalThis & { partitaBoss?: Promise<PgBoss> };
@@ -30,6 +31,20 @@ export async function enqueueAnalysis(job: AnalysisJob): Promise<string> {
     singletonKey: job.analysisId,
   });
   if (!jobId) throw new Error(`analysis ${job.analysisId} already has a queued job`);
+  return jobId;
+}
+
+/**
+ * Queues the coordinator of a federated analysis whose encoding is ready; the analysis id is the
+ * singleton key, so one coordinator at a time works on it.
+ */
+export async function enqueueFederatedAnalysis(job: FederatedJob): Promise<string> {
+  const boss = await sendingBoss();
+  const jobId = await boss.send(FEDERATED_QUEUE, job, {
+    ...FEDERATED_JOB_POLICY,
+    singletonKey: job.federatedAnalysisId,
+  });
+  if (!jobId) throw new Error(`federated analysis ${job.federatedAnalysisId} already has a job`);
   return jobId;
 }
 

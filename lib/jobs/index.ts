@@ -6,4 +6,10 @@ export {
   type AnalysisJob,
 } from "./analysis-queue";
 export { startBoss, type BossOptions } from "./boss";
-export { enqueueAnalysis, stopSendingBoss } from "./enqueue";
+export { enqueueAnalysis, enqueueFederatedAnalysis, stopSendingBoss } from "./enqueue";
+export {
+  FEDERATED_JOB_POLICY,
+  FEDERATED_QUEUE,
+  federatedJobSchema,
+  type FederatedJob,
+} from "./federated-queue";

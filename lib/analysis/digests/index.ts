@@ -19,6 +19,7 @@ export {
   evaluationRequestSchema,
   evaluationSumsSchema,
   gradientDigestSchema,
+  hashDocument,
   measurementRequestSchema,
   schemaDigestSchema,
   TARGET_HISTOGRAM_CELLS,
@@ -39,6 +40,7 @@ export { LocalDigestClient } from "./local-client";
 export type { DigestClientConnection } from "./local-client";
 export { mergeGradientDigests } from "./merge-gradients";
 export type { DigestPlan, MergeGradientsOptions, PooledFit } from "./merge-gradients";
-export { computeEncodingHash, mergeSchemaDigests } from "./merge-schemas";
+export { checkSchemaAgreement, computeEncodingHash, mergeSchemaDigests } from "./merge-schemas";
+export { parseDigest } from "./parse-digest";
 export { computeSchemaDigest } from "./schema-digest";
 export type { SchemaDigestOptions } from "./schema-digest";

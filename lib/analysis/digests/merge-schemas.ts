@@ -42,7 +42,7 @@ export function mergeSchemaDigests(
     });
   }
   const minimum = options.minimumShardRows ?? DEFAULT_MINIMUM_SHARD_ROWS;
-  checkAgreement(digests, minimum);
+  checkSchemaAgreement(digests, minimum);
   const first = digests[0];
   const shards = digests.flatMap((digest) =>
     digest.shards.map((shard) => ({ ...shard, columnOf: columnIndexOf(digest) })),
@@ -139,7 +139,12 @@ export function computeEncodingHash(encoding: DigestEncoding): string {
   return hashDocument({ ...encoding, hash: undefined });
 }
 
-function checkAgreement(digests: SchemaDigest[], minimum: number): void {
+/**
+ * Round 1's digests belong together: one per client, the same label and feature columns, no shard
+ * sent twice, none under the minimum rows. A coordinator checks each arriving digest with those
+ * already accepted, so a bad one is refused on arrival and the others stay.
+ */
+export function checkSchemaAgreement(digests: SchemaDigest[], minimum: number): void {
   const first = digests[0];
   const featureSet = [...first.features].sort(compareCodePoints).join("\u0000");
   const ownerOfShard = new Map<string, string>();

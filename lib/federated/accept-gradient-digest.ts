@@ -1,0 +1,152 @@
+import "server-only";
+import { findFederatedAnalysisById, updateFederatedClient } from "@/db/queries/federated-analyses";
+import {
+  answerExchange,
+  findFederatedDigest,
+  findOpenExchange,
+  insertFederatedDigest,
+} from "@/db/queries/federated-digests";
+import {
+  AnalysisInputError,
+  gradientDigestSchema,
+  hashDocument,
+  parseDigest,
+  schemaDigestSchema,
+  type DigestEncoding,
+  type GradientDigest,
+} from "@/lib/analysis";
+import { PATH_POINTS } from "@/lib/analysis/analyze-partition";
+import type { ClientCaller } from "@/lib/auth/client-key-guard";
+import { RuleError } from "@/lib/errors";
+import { hashBody } from "./accept-schema-digest";
+import { asRefusal, ENDED_STATES } from "./federated-rules";
+
+type Sender = Pick<ClientCaller, "analysisId" | "client">;
+
+/**
+ * Round 2 from one client, the answer to the coordinator's open request: checked on arrival — its
+ * form (finite numbers), the encoding hash it quotes, the points it was measured at, and its
+ * shards against the client's round 1 (each once, with the same rows, none under the minimum) and
+ * the sums' shapes — then stored and the coordinator's request marked answered. A refusal names
+ * the client and shard and changes nothing stored; the same digest sent again is harmless.
+ */
+export async function acceptGradientDigest(
+  sender: Sender,
+  document: unknown,
+): Promise<{ repeated: boolean }> {
+  const analysis = await findFederatedAnalysisById(sender.analysisId);
+  if (!analysis) throw new RuleError(404, "There is no such federated analysis.");
+  const sha256 = hashBody(document);
+  const stored = await findFederatedDigest(sender.client.id, "gradients");
+  if (stored?.sha256 === sha256) return { repeated: true };
+  const name = sender.client.name;
+  try {
+    if (stored) {
+      throw new RuleError(409, `client "${name}" already sent its gradient digest`);
+    }
+    if (ENDED_STATES.includes(analysis.state) || analysis.encoding === null) {
+      throw new RuleError(409, `client "${name}": this analysis takes no gradient digest now`);
+    }
+    const digest = parseDigest(document, gradientDigestSchema, "gradient digest");
+    checkEncoding(digest, name, analysis.encoding);
+    const open = await findOpenExchange(sender.client.id);
+    if (!open || open.kind !== "gradients") {
+      throw new RuleError(
+        409,
+        `client "${name}": the coordinator has not asked for round 2 yet; wait for its request`,
+      );
+    }
+    if (hashDocument(digest.request) !== open.requestKey) {
+      throw new AnalysisInputError(
+        `client "${name}" measured at other points than the coordinator asked`,
+        { expected: "the digest of the request the server sent" },
+      );
+    }
+    const round1 = await findFederatedDigest(sender.client.id, "schema");
+    if (!round1) throw new RuleError(409, `client "${name}" sent no schema digest in round 1`);
+    const shardRows = new Map(
+      schemaDigestSchema.parse(round1.document).shards.map((shard) => [shard.id, shard.rows]),
+    );
+    checkShards(digest, name, shardRows, analysis.encoding);
+    await insertFederatedDigest({
+      clientId: sender.client.id,
+      round: "gradients",
+      document,
+      sha256,
+    });
+    await answerExchange(sender.client.id, open.id, { sha256 });
+    await updateFederatedClient(sender.client.id, { roundReached: "gradients", lastRefusal: null });
+    return { repeated: false };
+  } catch (error) {
+    const refusal = asRefusal(error);
+    if (refusal instanceof RuleError) {
+      await updateFederatedClient(sender.client.id, { lastRefusal: refusal.message });
+    }
+    throw refusal;
+  }
+}
+
+function checkEncoding(digest: GradientDigest, client: string, encoding: DigestEncoding): void {
+  if (digest.client !== client) {
+    throw new AnalysisInputError(
+      `the gradient digest is client "${digest.client}"'s, sent with client "${client}"'s key`,
+    );
+  }
+  for (const quoted of [digest.encodingHash, digest.request.encodingHash]) {
+    if (quoted !== encoding.hash) {
+      throw new AnalysisInputError(
+        `client "${client}" sent digests for encoding ${quoted.slice(0, 12)}…, not this analysis's ${encoding.hash.slice(0, 12)}…`,
+        { expected: "digests computed with this analysis's encoding (fetch it again)" },
+      );
+    }
+  }
+}
+
+/** Each shard of round 1 once, with its rows, and sums of the encoding's shape. */
+function checkShards(
+  digest: GradientDigest,
+  client: string,
+  shardRows: Map<string, number>,
+  encoding: DigestEncoding,
+): void {
+  const width = encoding.columns.length + 1;
+  const parameters = width * (encoding.classes === null ? 1 : encoding.classes.length);
+  const seen = new Set<string>();
+  for (const shard of digest.shards) {
+    const where = `client "${client}", shard "${shard.id}"`;
+    if (seen.has(shard.id)) throw new AnalysisInputError(`${where} was sent twice`);
+    seen.add(shard.id);
+    const rows = shardRows.get(shard.id);
+    if (rows === undefined) {
+      throw new AnalysisInputError(`${where} was not in the client's round 1`, {
+        expected: `the shards ${[...shardRows.keys()].join(", ")}`,
+      });
+    }
+    if (shard.rows < encoding.minimumShardRows) {
+      throw new AnalysisInputError(
+        `${where} has ${shard.rows} rows, under the minimum of ${encoding.minimumShardRows}`,
+      );
+    }
+    if (shard.rows !== rows) {
+      throw new AnalysisInputError(`${where} has ${shard.rows} rows, ${rows} in round 1`, {
+        expected: "the same rows as in round 1",
+      });
+    }
+    const sums = [shard.atReference, ...shard.alongPath];
+    if (
+      shard.alongPath.length !== PATH_POINTS.length ||
+      sums.some((point) => point.gradientSum.length !== parameters) ||
+      shard.featureSums.length !== width - 1
+    ) {
+      throw new AnalysisInputError(`${where}: the digest's sums have the wrong shape`, {
+        expected: `${PATH_POINTS.length} path points, gradients of ${parameters} numbers and ${width - 1} feature sums`,
+      });
+    }
+  }
+  const missing = [...shardRows.keys()].filter((id) => !seen.has(id));
+  if (missing.length > 0) {
+    throw new AnalysisInputError(
+      `client "${client}" left out shard${missing.length > 1 ? "s" : ""} ${missing.map((id) => `"${id}"`).join(", ")} of its round 1`,
+    );
+  }
+}

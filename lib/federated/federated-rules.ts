@@ -1,0 +1,34 @@
+import "server-only";
+import {
+  findFederatedAnalysis,
+  type FederatedAnalysisRow,
+  type FederatedClientRow,
+} from "@/db/queries/federated-analyses";
+import { AnalysisInputError } from "@/lib/analysis";
+import { compareCodePoints } from "@/lib/analysis/code-point-order";
+import { RuleError } from "@/lib/errors";
+
+/** States after which nothing more is accepted from clients or the analyst. */
+export const ENDED_STATES: FederatedAnalysisRow["state"][] = ["done", "failed"];
+
+/** The analysis of this workspace, or a 404 (another workspace's looks the same as none). */
+export async function requireFederatedAnalysis(
+  workspaceId: string,
+  analysisId: string,
+): Promise<FederatedAnalysisRow> {
+  const analysis = await findFederatedAnalysis(workspaceId, analysisId);
+  if (!analysis) throw new RuleError(404, "There is no such federated analysis in this workspace.");
+  return analysis;
+}
+
+/** The roster in code-point order of the names: the order every merge takes the clients in. */
+export function orderRoster<Client extends Pick<FederatedClientRow, "name">>(
+  clients: Client[],
+): Client[] {
+  return [...clients].sort((a, b) => compareCodePoints(a.name, b.name));
+}
+
+/** An engine input error as the refusal the API answers (422), its message unchanged. */
+export function asRefusal(error: unknown): unknown {
+  return error instanceof AnalysisInputError ? new RuleError(422, error.message) : error;
+}

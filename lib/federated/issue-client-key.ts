@@ -1,0 +1,40 @@
+import "server-only";
+import { findFederatedClientByName } from "@/db/queries/federated-analyses";
+import { insertClientKey } from "@/db/queries/federated-client-keys";
+import { createClientKeySecret } from "@/lib/auth/client-key-secret";
+import { RuleError } from "@/lib/errors";
+import { issueClientKeySchema } from "@/lib/validation/federated-analysis";
+import { ENDED_STATES, requireFederatedAnalysis } from "./federated-rules";
+
+const DAY_MS = 24 * 60 * 60 * 1000;
+
+/**
+ * Issues a key for one client of the roster: it can send that client's digests to this analysis
+ * and read its encoding, nothing else. The key is returned once and only its hash is stored.
+ * Issuing another for the same client (a lost key) leaves the earlier ones valid until revoked.
+ */
+export async function issueClientKey(
+  workspaceId: string,
+  userId: string,
+  analysisId: string,
+  input: unknown,
+  now = new Date(),
+): Promise<{ key: string; keyId: string; client: string; expiresAt: Date }> {
+  const { client, lifetimeDays } = issueClientKeySchema.parse(input);
+  const analysis = await requireFederatedAnalysis(workspaceId, analysisId);
+  if (ENDED_STATES.includes(analysis.state)) {
+    throw new RuleError(409, "This analysis has ended; its clients need no more keys.");
+  }
+  const row = await findFederatedClientByName(analysisId, client);
+  if (!row) {
+    throw new RuleError(422, `“${client}” is not on this analysis's roster.`, "client");
+  }
+  const { key, keyHash } = createClientKeySecret();
+  const inserted = await insertClientKey({
+    clientId: row.id,
+    keyHash,
+    expiresAt: new Date(now.getTime() + lifetimeDays * DAY_MS),
+    createdBy: userId,
+  });
+  return { key, keyId: inserted.id, client, expiresAt: inserted.expiresAt };
+}
