@@ -1,10 +1,10 @@
 import { execFile } from "node:child_process";
-import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
+import { createReadStream, mkdtempSync, readFileSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { promisify } from "node:util";
 import { describe, expect, it } from "vitest";
-import type { PartitionSummary } from "@/lib/analysis";
+import { analyzePartition, type PartitionSummary } from "@/lib/analysis";
 import { penguinsWithShards } from "./support/simulation-data";
 
 const run = promisify(execFile);
@@ -50,10 +50,26 @@ describe("analyze CLI --simulate", () => {
     ]);
     for (const algorithm of simulation?.algorithms ?? []) {
       expect(algorithm.curve).toHaveLength(7);
-      expect(algorithm.finalMin).toBeLessThanOrEqual(algorithm.final as number);
-      expect(algorithm.finalMax).toBeGreaterThanOrEqual(algorithm.final as number);
+      // S = 2: the mean over the seeds is the midpoint of their minimum and maximum, and the
+      // curve ends at it (methods.md §7).
+      const { final, finalMin, finalMax } = algorithm as { [key: string]: number };
+      expect(final).toBeCloseTo((finalMin + finalMax) / 2, 14);
+      expect(algorithm.curve.at(-1)).toEqual([6, final]);
     }
-    expect(simulation?.agreesWithBounds).toBe(simulation?.verdict === summary.advice.verdict);
+    // The command line hands the plan to the engine unchanged: the engine called directly on the
+    // same file and options gives the same simulation, bit for bit (methods.md §7, determinism).
+    const direct = await analyzePartition({
+      data: createReadStream(data),
+      options: {
+        labelColumn: "Species",
+        shardColumn: "part",
+        rounds: 6,
+        localSteps: 2,
+        batchSize: 4,
+        simulate: { seeds: 2 },
+      },
+    });
+    expect(simulation).toEqual(direct.simulation);
     // 3 × (8 grid runs + 3 places to extend the grid + S = 2 seeds) = 39.
     expect(result.stderr).toContain("partita: simulating run 39/39 (scaffold, seeds)");
     for (const algorithm of simulation?.algorithms ?? []) {
