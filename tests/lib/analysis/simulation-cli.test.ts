@@ -52,7 +52,11 @@ describe("analyze CLI --simulate", () => {
       expect(algorithm.curve).toHaveLength(7);
       // S = 2: the mean over the seeds is the midpoint of their minimum and maximum, and the
       // curve ends at it (methods.md §7).
-      const { final, finalMin, finalMax } = algorithm as { [key: string]: number };
+      const [final, finalMin, finalMax] = [
+        algorithm.final,
+        algorithm.finalMin,
+        algorithm.finalMax,
+      ] as number[];
       expect(final).toBeCloseTo((finalMin + finalMax) / 2, 14);
       expect(algorithm.curve.at(-1)).toEqual([6, final]);
     }

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { advisePlan, LOCAL_STEP_CHOICES } from "@/lib/analysis/advise-plan";
+import { LOCAL_STEP_CHOICES } from "@/lib/analysis/advise-plan";
 import { computeBoundCurves } from "@/lib/reports/bound-curves";
 import { PENGUIN_PLAN } from "./support/penguin-plan";
 
@@ -31,14 +31,30 @@ describe("computeBoundCurves", () => {
     }
   });
 
-  it("finds the same crossover K as the engine's advice, for calm and heterogeneous splits", () => {
-    for (const zeta2Max of [0, 1e-4, 0.77, 50, 1e4]) {
-      for (const sigma2 of [0, 0.009, 30]) {
-        const inputs = { ...PENGUIN_PLAN, zeta2Max, sigma2 };
-        const advice = advisePlan(inputs, zeta2Max);
-        expect(computeBoundCurves(inputs).crossoverLocalSteps).toBe(advice.crossoverLocalSteps);
-      }
-    }
+  it("finds the crossover K of a hand computation, and none behind the barrier", () => {
+    // methods.md §5 by hand with H = B = M = b = 1 and R = 1: the shared noise term σ_b B/√(MKR)
+    // cancels, so local < minibatch ⟺ 1/K + σ_b^{2/3}/K^{1/3} + ζ^{2/3} < 1. With σ² = 1.5³
+    // (σ_b^{2/3} = 1.5) and ζ² = 0: K = 4 gives 0.25 + 1.5/∛4 = 1.195, K = 8 gives
+    // 0.125 + 0.75 = 0.875, so the crossover is K = 8. ζ² = 1e-3 adds 0.1 (0.975 at K = 8, still
+    // K = 8); ζ² = 1 adds 1, so no K crosses (the barrier ζ² ≥ H²B²/R).
+    const hand = {
+      smoothness: 1,
+      distance: 1,
+      sigma2: 1.5 ** 3,
+      participants: 1,
+      localSteps: 1,
+      rounds: 1,
+      batchSize: 1,
+    };
+    expect(computeBoundCurves({ ...hand, zeta2Max: 0 }).crossoverLocalSteps).toBe(8);
+    expect(computeBoundCurves({ ...hand, zeta2Max: 1e-3 }).crossoverLocalSteps).toBe(8);
+    expect(computeBoundCurves({ ...hand, zeta2Max: 1 }).crossoverLocalSteps).toBeNull();
+    const atEight = computeBoundCurves({ ...hand, zeta2Max: 0 }).points.find(
+      (point) => point.localSteps === 8,
+    );
+    // minibatch = 1/R + σ_b/√K = 1 + √3.375/√8; local adds 0.875 − 1 to it.
+    expect(atEight?.minibatch).toBeCloseTo(1 + Math.sqrt(3.375 / 8), 14);
+    expect(atEight?.local).toBeCloseTo(0.875 + Math.sqrt(3.375 / 8), 14);
   });
 
   it("reports a crossover for a calm split and none behind the heterogeneity barrier", () => {

@@ -1,5 +1,4 @@
 import { describe, expect, it } from "vitest";
-import { advisePlan } from "@/lib/analysis/advise-plan";
 import { classifyRegimeCell, computeRegimeMap } from "@/lib/reports/regime-map";
 import { PENGUIN_PLAN } from "./support/penguin-plan";
 
@@ -24,19 +23,38 @@ describe("computeRegimeMap", () => {
     expect(cell(map, 10, 100)).toBeCloseTo(-1, 14);
   });
 
-  it("agrees with the engine's stored grid and gives the plan a cell equal to its ρ", () => {
-    const inputs = { ...PENGUIN_PLAN, localSteps: 12, rounds: 150 };
-    const advice = advisePlan(inputs, 0.5);
-    const map = computeRegimeMap(inputs);
-    expect(map.localSteps).toContain(12);
-    expect(map.rounds).toContain(150);
-    advice.regimeMap.localSteps.forEach((k, row) =>
-      advice.regimeMap.rounds.forEach((r, column) => {
-        expect(cell(map, k, r)).toBeCloseTo(advice.regimeMap.log10Ratio[row][column] as number, 12);
-      }),
-    );
-    expect(cell(map, 12, 150)).toBeCloseTo(Math.log10(advice.ratio as number), 12);
-    expect(classifyRegimeCell(cell(map, 12, 150))).toBe(advice.verdict);
+  it("gives every cell the hand-computed log₁₀ ρ, the plan's own K and R included", () => {
+    // methods.md §5 by hand with H = B = 1, σ = 0: ρ = (1/(KR) + ζ^{2/3}/R^{2/3}) / (1/R)
+    // = 1/K + ζ^{2/3}·∛R; K = 12, R = 150 join the axes as the plan's own.
+    const plan = {
+      smoothness: 1,
+      distance: 1,
+      sigma2: 0,
+      participants: 4,
+      localSteps: 12,
+      rounds: 150,
+      batchSize: 8,
+    };
+    for (const zeta2Max of [0, 1e-3]) {
+      const map = computeRegimeMap({ ...plan, zeta2Max });
+      expect(map.localSteps).toContain(12);
+      expect(map.rounds).toContain(150);
+      map.localSteps.forEach((k, row) =>
+        map.rounds.forEach((r, column) =>
+          expect(map.log10Ratio[row][column]).toBeCloseTo(
+            Math.log10(1 / k + Math.cbrt(zeta2Max) * Math.cbrt(r)),
+            12,
+          ),
+        ),
+      );
+    }
+    const map = computeRegimeMap({ ...plan, zeta2Max: 0 });
+    // ρ = 1/12 ≤ ½ → local updates; K = 1 gives ρ = 1 → no clear winner (methods.md §5 thresholds).
+    expect(classifyRegimeCell(cell(map, 12, 150))).toBe("local-updates");
+    expect(classifyRegimeCell(cell(map, 1, 150))).toBe("no-clear-winner");
+    expect(classifyRegimeCell(Math.log10(2))).toBe("large-minibatch");
+    expect(classifyRegimeCell(Math.log10(1.99))).toBe("no-clear-winner");
+    expect(classifyRegimeCell(Math.log10(0.5))).toBe("local-updates");
   });
 
   // methods.md §5: "for large K and small ζ local SGD wins; for small K and large σ² minibatch wins".

@@ -2,8 +2,8 @@ import type { BoundInputs } from "@/lib/analysis/advise-plan";
 
 /**
  * Bound inputs of the size the engine reports for penguins by island (vega-datasets) under the
- * default plan, rounded: realistic magnitudes for checks of report figures against the engine's own
- * advisePlan. The figures themselves are not checked against anything outside the project here.
+ * default plan, rounded: realistic magnitudes for the facts of methods.md §5 that report figures
+ * must show (no value is taken from the engine's own functions).
  */
 export const PENGUIN_PLAN: BoundInputs = {
   smoothness: 1.9,
