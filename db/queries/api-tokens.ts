@@ -1,5 +1,5 @@
 import "server-only";
-import { and, desc, eq, isNull, ne } from "drizzle-orm";
+import { and, desc, eq, isNull, lt, ne, or } from "drizzle-orm";
 import { db } from "@/db/client";
 import { apiTokens, memberships, users, workspaces } from "@/db/schema";
 import type { Role } from "@/lib/auth/roles";
@@ -98,6 +98,7 @@ export type ApiTokenGrant = {
   tokenName: string;
   expiresAt: Date;
   revokedAt: Date | null;
+  lastUsedAt: Date | null;
   user: { id: string; email: string; name: string | null };
   workspace: { id: string; name: string };
   role: Role | null;
@@ -110,6 +111,7 @@ export async function findApiTokenGrant(tokenHash: string): Promise<ApiTokenGran
       tokenName: apiTokens.name,
       expiresAt: apiTokens.expiresAt,
       revokedAt: apiTokens.revokedAt,
+      lastUsedAt: apiTokens.lastUsedAt,
       userId: users.id,
       email: users.email,
       userName: users.name,
@@ -134,12 +136,29 @@ export async function findApiTokenGrant(tokenHash: string): Promise<ApiTokenGran
     tokenName: row.tokenName,
     expiresAt: row.expiresAt,
     revokedAt: row.revokedAt,
+    lastUsedAt: row.lastUsedAt,
     user: { id: row.userId, email: row.email, name: row.userName },
     workspace: { id: row.workspaceId, name: row.workspaceName },
     role: row.role,
   };
 }
 
+/** The "last used" a token shows is this fine; a write on every request would cost each API call a disk flush. */
+export const TOKEN_USE_RESOLUTION_MS = 60_000;
+
+/**
+ * Records that the token was used, unless a use within the last minute is already recorded (the
+ * condition makes concurrent requests of one token write once, not once each).
+ */
 export async function recordApiTokenUse(tokenId: string, now = new Date()): Promise<void> {
-  await db().update(apiTokens).set({ lastUsedAt: now }).where(eq(apiTokens.id, tokenId));
+  const recentEnough = new Date(now.getTime() - TOKEN_USE_RESOLUTION_MS);
+  await db()
+    .update(apiTokens)
+    .set({ lastUsedAt: now })
+    .where(
+      and(
+        eq(apiTokens.id, tokenId),
+        or(isNull(apiTokens.lastUsedAt), lt(apiTokens.lastUsedAt, recentEnough)),
+      ),
+    );
 }

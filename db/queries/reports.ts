@@ -3,6 +3,7 @@ import { and, asc, count, desc, eq, gte, ilike, lt, sql, type SQL } from "drizzl
 import { db } from "@/db/client";
 import { reports, reportShards, users } from "@/db/schema";
 import type { PartitionSummary } from "@/lib/analysis";
+import { encodeReportCursor, type ReportCursor } from "@/lib/reports/report-cursor";
 import type { ReportFilters } from "@/lib/reports/report-filters";
 import type { ShardTableRow } from "@/lib/reports/shard-table";
 import { SHARD_PAGE_SIZE, type ShardTableView } from "@/lib/reports/shard-table-view";
@@ -50,13 +51,32 @@ function filterConditions(workspaceId: string, filters: ReportFilters): SQL[] {
   return conditions;
 }
 
-/** A workspace's reports matching the filters, newest first (dates are whole UTC days, inclusive). */
+/** A workspace's newest reports matching the filters (dates are whole UTC days, inclusive). */
 export async function listReports(
   workspaceId: string,
   filters: ReportFilters = {},
   limit = 100,
 ): Promise<ReportListItem[]> {
-  return db()
+  return (await selectReportRows(workspaceId, filters, limit)).map((row) => row.report);
+}
+
+/**
+ * Newest first, starting after `after` when given. Ties on the creation time are broken by version
+ * and id, so the order is total and a cursor never skips or repeats a report.
+ */
+async function selectReportRows(
+  workspaceId: string,
+  filters: ReportFilters,
+  limit: number,
+  after?: ReportCursor,
+): Promise<{ report: ReportListItem; cursor: ReportCursor }[]> {
+  const conditions = filterConditions(workspaceId, filters);
+  if (after) {
+    conditions.push(
+      sql`(${reports.createdAt}, ${reports.version}, ${reports.id}) < (${after.createdAt}::timestamptz, ${after.version}, ${after.id})`,
+    );
+  }
+  const rows = await db()
     .select({
       id: reports.id,
       title: reports.title,
@@ -71,12 +91,32 @@ export async function listReports(
       ratio: reports.ratio,
       datasetRows: reports.datasetRows,
       shardCount: reports.shardCount,
+      exactCreatedAt: sql<string>`${reports.createdAt}::text`,
     })
     .from(reports)
     .innerJoin(users, eq(users.id, reports.authorId))
-    .where(and(...filterConditions(workspaceId, filters)))
-    .orderBy(desc(reports.createdAt), desc(reports.version))
+    .where(and(...conditions))
+    .orderBy(desc(reports.createdAt), desc(reports.version), desc(reports.id))
     .limit(limit);
+  return rows.map(({ exactCreatedAt, ...report }) => ({
+    report,
+    cursor: { createdAt: exactCreatedAt, version: report.version, id: report.id },
+  }));
+}
+
+/** One page of the reports list and the cursor of the next, null on the last page. */
+export async function listReportPage(
+  workspaceId: string,
+  filters: ReportFilters,
+  limit: number,
+  after?: ReportCursor,
+): Promise<{ reports: ReportListItem[]; nextCursor: string | null }> {
+  // One more than shown tells whether a next page exists without counting the whole list.
+  const rows = await selectReportRows(workspaceId, filters, limit + 1, after);
+  return {
+    reports: rows.slice(0, limit).map((row) => row.report),
+    nextCursor: rows.length > limit ? encodeReportCursor(rows[limit - 1].cursor) : null,
+  };
 }
 
 /** People who wrote at least one report in the workspace, for the author filter. */

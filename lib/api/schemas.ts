@@ -33,6 +33,9 @@ export const listReportsQuerySchema = z.object({
     .max(100)
     .default(50)
     .meta({ description: "How many reports, newest first (1–100)." }),
+  cursor: z.string().max(300).optional().meta({
+    description: "Start after the reports already listed: the nextCursor of the previous page.",
+  }),
 });
 
 export const apiErrorSchema = z
@@ -179,6 +182,9 @@ export const reportListSchema = z
         shardCount: z.number().int(),
       }),
     ),
+    nextCursor: z.string().nullable().meta({
+      description: "Pass as cursor for the next page; null when this page is the last.",
+    }),
   })
   .meta({ id: "ReportList" });
 

@@ -286,6 +286,34 @@ describe("/api/v1 answers", () => {
     ]);
   });
 
+  it("pages the reports list with the cursor it hands out, and refuses one it did not", async () => {
+    const team = await createTeam();
+    for (const title of ["First", "Second", "Third"]) {
+      await insertReport({
+        workspaceId: team.workspaceId,
+        authorId: team.analyst.id,
+        summary: JSON.parse(fixtures.cliOutput),
+        title,
+      });
+    }
+    const { token } = await issueTestToken(team.reviewer.id, team.workspaceId);
+    const page = async (query: string) =>
+      reportListSchema.parse(
+        await (await listReports(apiRequest(`/api/v1/reports?${query}`, token))).json(),
+      );
+    const everything = await page("limit=100");
+    expect(everything.reports.map((report) => report.title)).toEqual(["Third", "Second", "First"]);
+    expect(everything.nextCursor).toBeNull();
+    const first = await page("limit=2");
+    expect(first.nextCursor).toEqual(expect.any(String));
+    const second = await page(`limit=2&cursor=${first.nextCursor}`);
+    expect([...first.reports, ...second.reports]).toEqual(everything.reports);
+    expect(second.nextCursor).toBeNull();
+    const forged = await listReports(apiRequest("/api/v1/reports?cursor=not-a-cursor", token));
+    expect(forged.status).toBe(422);
+    expect(await forged.json()).toMatchObject({ error: { code: "invalid" } });
+  });
+
   it("lists reports and analysis status in the documented shapes", async () => {
     const list = await listReports(
       apiRequest("/api/v1/reports?verdict=large-minibatch&limit=5", fixtures.tokens.reviewer),

@@ -16,6 +16,7 @@ import { GET as getCaller } from "@/app/api/v1/workspace/route";
 import { closeDb, db } from "@/db/client";
 import { listApiTokens, listOthersApiTokens } from "@/db/queries/api-tokens";
 import { listAuditEntries } from "@/db/queries/audit";
+import { requireToken } from "@/lib/auth/api-token-guard";
 import { apiTokens, memberships } from "@/db/schema";
 import { createAccount, createTeam } from "@/tests/support/accounts";
 import { apiRequest } from "@/tests/support/api-tokens";
@@ -92,6 +93,23 @@ describe("personal API tokens", () => {
     });
     const [after] = await listApiTokens(team.workspaceId, team.analyst.id);
     expect(after.lastUsedAt).not.toBeNull();
+
+    // The last use is kept to the minute: within it, a request writes nothing.
+    const used = after.lastUsedAt!.getTime();
+    await requireToken(
+      apiRequest("/api/v1/workspace", token),
+      "readWorkspace",
+      new Date(used + 30_000),
+    );
+    const [sameMinute] = await listApiTokens(team.workspaceId, team.analyst.id);
+    expect(sameMinute.lastUsedAt?.getTime()).toBe(used);
+    await requireToken(
+      apiRequest("/api/v1/workspace", token),
+      "readWorkspace",
+      new Date(used + 61_000),
+    );
+    const [nextMinute] = await listApiTokens(team.workspaceId, team.analyst.id);
+    expect(nextMinute.lastUsedAt?.getTime()).toBe(used + 61_000);
 
     // Another analyst cannot revoke it (nor learn that it exists); its holder can, once.
     const otherAnalyst = await createAccount("other-analyst");

@@ -7,9 +7,11 @@ import {
   findReportShardTable,
   findReportSummary,
   listReportAuthors,
+  listReportPage,
   listReports,
 } from "@/db/queries/reports";
 import { reports } from "@/db/schema";
+import { decodeReportCursor, type ReportCursor } from "@/lib/reports/report-cursor";
 import type { PartitionSummary } from "@/lib/analysis";
 import { createAccount, createTeam } from "@/tests/support/accounts";
 import {
@@ -78,6 +80,48 @@ beforeAll(async () => {
 
 const titlesOf = (reports: { title: string; version: number }[]) =>
   reports.map((report) => `${report.title} v${report.version}`);
+
+describe("listReportPage", () => {
+  it("pages through every report exactly once, ties and microseconds apart included", async () => {
+    const account = await createAccount("paged");
+    const sameInstant = new Date("2026-04-01T09:00:00Z");
+    const inserted: string[] = [];
+    for (let index = 0; index < 5; index++) {
+      const { reportId } = await insertReport({
+        workspaceId: account.workspaceId,
+        authorId: account.id,
+        summary,
+        title: `Paged ${index}`,
+        createdAt: sameInstant,
+      });
+      inserted.push(reportId);
+    }
+    // Two reports a microsecond apart: the same millisecond to a JavaScript Date.
+    await db()
+      .update(reports)
+      .set({ createdAt: sql`'2026-04-02 09:00:00.000001+00'::timestamptz` })
+      .where(eq(reports.id, inserted[0]));
+    await db()
+      .update(reports)
+      .set({ createdAt: sql`'2026-04-02 09:00:00.000002+00'::timestamptz` })
+      .where(eq(reports.id, inserted[1]));
+
+    const whole = (await listReports(account.workspaceId)).map((report) => report.id);
+    expect(whole.slice(0, 2)).toEqual([inserted[1], inserted[0]]);
+    const paged: string[] = [];
+    let cursor: string | null = null;
+    let pages = 0;
+    do {
+      const after: ReportCursor | undefined = cursor ? decodeReportCursor(cursor) : undefined;
+      const page = await listReportPage(account.workspaceId, {}, 2, after);
+      paged.push(...page.reports.map((report) => report.id));
+      cursor = page.nextCursor;
+      pages++;
+    } while (cursor && pages < 10);
+    expect(paged).toEqual(whole);
+    expect(pages).toBe(3);
+  });
+});
 
 describe("listReports", () => {
   it("lists only the workspace's reports, newest first, with lineage and summary figures", async () => {

@@ -1,15 +1,26 @@
-import { listReports } from "@/db/queries/reports";
+import { listReportPage } from "@/db/queries/reports";
 import { answerApiRequest, respondWithJson } from "@/lib/api/respond";
 import { listReportsQuerySchema } from "@/lib/api/schemas";
 import { requireToken } from "@/lib/auth/api-token-guard";
+import { RuleError } from "@/lib/errors";
+import { decodeReportCursor } from "@/lib/reports/report-cursor";
 
-/** The workspace's reports, newest first, optionally filtered by verdict or title. */
+/** The workspace's reports, newest first, a page at a time, optionally filtered by verdict or title. */
 export async function GET(request: Request): Promise<Response> {
   return answerApiRequest("list-reports", async () => {
     const { workspace } = await requireToken(request, "readWorkspace");
     const query = Object.fromEntries(new URL(request.url).searchParams);
-    const { verdict, q, limit } = listReportsQuerySchema.parse(query);
-    const reports = await listReports(workspace.id, { verdict, q }, limit);
+    const { verdict, q, limit, cursor } = listReportsQuerySchema.parse(query);
+    const after = cursor === undefined ? undefined : decodeReportCursor(cursor);
+    if (cursor !== undefined && !after) {
+      throw new RuleError(422, "cursor must be a nextCursor this API returned.", "cursor");
+    }
+    const { reports, nextCursor } = await listReportPage(
+      workspace.id,
+      { verdict, q },
+      limit,
+      after,
+    );
     return respondWithJson({
       reports: reports.map((report) => ({
         id: report.id,
@@ -24,6 +35,7 @@ export async function GET(request: Request): Promise<Response> {
         datasetRows: report.datasetRows,
         shardCount: report.shardCount,
       })),
+      nextCursor,
     });
   });
 }

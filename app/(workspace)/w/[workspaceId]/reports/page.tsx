@@ -5,15 +5,32 @@ import { ReportList } from "@/components/reports/report-list";
 import { buttonClasses } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import { Cautions } from "@/components/workspace/cautions";
-import { listReportAuthors, listReports } from "@/db/queries/reports";
+import { listReportAuthors, listReportPage } from "@/db/queries/reports";
 import { findReviewStates } from "@/db/queries/reviews";
 import { guardPage } from "@/lib/auth/page-guard";
 import { roleAllows } from "@/lib/auth/roles";
+import { decodeReportCursor } from "@/lib/reports/report-cursor";
 import { hasReportFilters, readReportFilters } from "@/lib/reports/report-filters";
 
 export const metadata: Metadata = { title: "Reports" };
 
-const LIST_LIMIT = 200;
+/** Reports per page: a page costs the same with a thousand reports as with ten. */
+const PAGE_SIZE = 50;
+
+/** The list's URL with the same filters, starting after `cursor` (the first page without one). */
+function pageHref(
+  base: string,
+  query: Record<string, string | string[] | undefined>,
+  cursor?: string,
+) {
+  const params = new URLSearchParams();
+  for (const [key, value] of Object.entries(query)) {
+    if (key !== "after" && key !== "deleted" && typeof value === "string") params.set(key, value);
+  }
+  if (cursor) params.set("after", cursor);
+  const search = params.toString();
+  return `${base}/reports${search ? `?${search}` : ""}`;
+}
 
 export default async function ReportsPage({
   params,
@@ -29,8 +46,10 @@ export default async function ReportsPage({
   // Set by the delete control after it deleted a report, to say what went.
   const deletedTitle = typeof query.deleted === "string" ? query.deleted : undefined;
   const filtered = hasReportFilters(filters);
-  const [reports, authors] = await Promise.all([
-    listReports(workspace.id, filters, LIST_LIMIT),
+  // A stale or hand-edited cursor shows the first page rather than an error.
+  const after = typeof query.after === "string" ? decodeReportCursor(query.after) : undefined;
+  const [{ reports, nextCursor }, authors] = await Promise.all([
+    listReportPage(workspace.id, filters, PAGE_SIZE, after),
     listReportAuthors(workspace.id),
   ]);
   const reviewStates = await findReviewStates(
@@ -77,10 +96,19 @@ export default async function ReportsPage({
               reviewState: reviewStates.get(report.id) ?? { kind: "not-referred" },
             }))}
           />
-          {reports.length === LIST_LIMIT ? (
-            <p className="text-sm text-ink-soft">
-              Showing the newest {LIST_LIMIT}; narrow the filters to find older reports.
-            </p>
+          {after || nextCursor ? (
+            <nav aria-label="Pages of reports" className="no-print flex flex-wrap gap-3 text-sm">
+              {after ? (
+                <Link href={pageHref(base, query)} className={buttonClasses("quiet")}>
+                  Newest reports
+                </Link>
+              ) : null}
+              {nextCursor ? (
+                <Link href={pageHref(base, query, nextCursor)} className={buttonClasses("quiet")}>
+                  Older reports
+                </Link>
+              ) : null}
+            </nav>
           ) : null}
         </>
       ) : filtered && hasAny ? (
