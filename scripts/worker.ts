@@ -21,7 +21,7 @@ function log(line: string) {
   console.log(`[worker] ${line}`);
 }
 
-async function handleJob(job: PgBoss.JobWithMetadata<AnalysisJob>): Promise<void> {
+async function handleJob(boss: PgBoss, job: PgBoss.JobWithMetadata<AnalysisJob>): Promise<void> {
   const parsed = analysisJobSchema.safeParse(job.data);
   if (!parsed.success) {
     // Retrying a malformed job would fail the same way; completing it keeps the queue moving.
@@ -35,6 +35,13 @@ async function handleJob(job: PgBoss.JobWithMetadata<AnalysisJob>): Promise<void
   try {
     const result = await runAnalysis(parsed.data, {
       willRetry: job.retryCount < job.retryLimit,
+      // Past its expiry pg-boss has failed the job while the run went on: it is no longer active.
+      // When the queue cannot be asked, the job counts as held, as before this question existed.
+      jobStillHeld: () =>
+        boss.getJobById(ANALYSIS_QUEUE, job.id).then(
+          (current) => current?.state === "active",
+          () => true,
+        ),
       signal: shutdown.signal,
     });
     const detail = result.outcome === "succeeded" ? ` (report ${result.reportId})` : "";
@@ -83,7 +90,7 @@ async function main() {
   await boss.work<AnalysisJob>(
     ANALYSIS_QUEUE,
     { includeMetadata: true, batchSize: 1, pollingIntervalSeconds: 1 },
-    async ([job]) => handleJob(job),
+    async ([job]) => handleJob(boss, job),
   );
   log(`ready: taking jobs from queue "${ANALYSIS_QUEUE}"`);
 }

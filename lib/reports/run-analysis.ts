@@ -6,7 +6,7 @@ import {
 } from "@/db/queries/analyses";
 import { storeReport } from "@/db/queries/report-store";
 import { env } from "@/lib/env";
-import type { AnalysisJob } from "@/lib/jobs";
+import { ANALYSIS_JOB_POLICY, type AnalysisJob } from "@/lib/jobs";
 import { notifyAnalysisEnded, type EndedRun } from "@/lib/notifications/analysis-ended";
 import { runEngineInThread } from "./engine-thread";
 import type { StoredFile } from "./hashed-object";
@@ -25,6 +25,12 @@ export type RunOutcome =
 export interface RunOptions {
   /** Whether the job will be tried again if this run throws; decides how an internal error ends. */
   willRetry: boolean;
+  /**
+   * Asked when a run ends in an error: false when the queue no longer holds the job for this run
+   * (it expired under a long run, for instance one waiting for storage), so no retry of it will
+   * come and "queued" would wait forever. The worker asks pg-boss; without it the job counts as held.
+   */
+  jobStillHeld?: () => Promise<boolean>;
   /** Aborted when the worker shuts down: the run stops and its job is handed back to the queue. */
   signal?: AbortSignal;
   /** At least this long between progress writes; 500 ms keeps it to two writes a second. */
@@ -35,6 +41,7 @@ const INTERNAL_FAILURE =
   "The analysis stopped because of an internal error, not because of your files. It was tried several times; please run it again later.";
 const STORAGE_FAILURE =
   "Storage could not be reached for as long as Partita waits for it, so the analysis stopped. Your files are kept; run it again once storage is back.";
+const EXPIRED_FAILURE = `The analysis ran longer than one attempt may (${ANALYSIS_JOB_POLICY.expireInSeconds / 60} minutes, waiting for storage included) and was then interrupted, so it stopped. Your files are kept; run it again.`;
 const INTERNAL_RETRY =
   "The analysis was interrupted (an internal error or a worker restart, not a problem with your files). It will be tried again shortly.";
 
@@ -51,7 +58,8 @@ function storedFile(file: AnalysisInputFile): StoredFile {
  * - A cancellation seen during the run stops the engine and resolves "cancelled".
  * - Anything else — an internal error, or the worker shutting down (`options.signal`) — is logged
  *   here (never shown to users), the analysis goes back to "queued", or to "failed" on the last
- *   attempt, and the error is rethrown so the queue retries the job.
+ *   attempt or when the job expired under the run (nothing would retry it), and the error is
+ *   rethrown so the queue retries the job.
  */
 export async function runAnalysis(job: AnalysisJob, options: RunOptions): Promise<RunOutcome> {
   const started = performance.now();
@@ -144,11 +152,14 @@ export async function runAnalysis(job: AnalysisJob, options: RunOptions): Promis
         error instanceof Error ? (error.stack ?? error.message) : error,
       );
     }
+    const jobExpired = options.willRetry && !(await (options.jobStillHeld?.() ?? true));
+    const retried = options.willRetry && !jobExpired;
+    const failure = jobExpired ? EXPIRED_FAILURE : INTERNAL_FAILURE;
     await endRunUnsuccessfully(job.workspaceId, job.analysisId, {
-      status: options.willRetry ? "queued" : "failed",
-      message: options.willRetry ? INTERNAL_RETRY : INTERNAL_FAILURE,
+      status: retried ? "queued" : "failed",
+      message: retried ? INTERNAL_RETRY : failure,
     });
-    if (!options.willRetry) await notifyEnded({ outcome: "failed", message: INTERNAL_FAILURE });
+    if (!retried) await notifyEnded({ outcome: "failed", message: failure });
     throw error;
   } finally {
     stopHeartbeat();

@@ -1,6 +1,7 @@
 // Storage that stops answering during an analysis: the run waits and retries with backoff,
 // the status (and so the progress page) says storage is unreachable, and the run goes on once
-// storage answers, or fails with a plain message when the retry window runs out. The window is
+// storage answers, or fails with a plain message when the retry window runs out; a run whose job
+// expired meanwhile ends failed, never "queued" with no job left to take it. The window is
 // shortened to 3 s here (STORAGE_RETRY_WINDOW_MS; half an hour by default). Storage "goes down"
 // by pointing the engine thread at a closed port: each attempt starts a thread, which takes the
 // process environment as it is at that moment.
@@ -93,5 +94,31 @@ describe("an analysis while storage is unreachable", () => {
     const status = await findAnalysisStatus(team.workspaceId, analysisId);
     expect(status).toMatchObject({ status: "failed", attempts: 1 });
     expect(status?.failureMessage).toMatch(/Your files are kept/);
+  });
+
+  it("fails with a plain message, not queued forever, when its job expired while it waited", async () => {
+    const { team, job, analysisId } = await startPenguinAnalysis();
+    process.env.S3_ENDPOINT = await closedEndpoint();
+    const quiet = vi.spyOn(console, "warn").mockImplementation(() => undefined);
+    const workerStopping = new AbortController();
+    // The queue gave the job up while the run waited for storage (pg-boss failed it at its
+    // expiry and its retry found the run still going); then the worker stops.
+    const run = runAnalysis(job, {
+      willRetry: true,
+      jobStillHeld: async () => false,
+      signal: workerStopping.signal,
+    });
+    let status = await findAnalysisStatus(team.workspaceId, analysisId);
+    while (!status?.storageUnreachableSince) {
+      await new Promise((resolve) => setTimeout(resolve, 50));
+      status = await findAnalysisStatus(team.workspaceId, analysisId);
+    }
+    workerStopping.abort();
+    await expect(run).rejects.toThrow();
+    quiet.mockRestore();
+    process.env.S3_ENDPOINT = settings.working;
+    status = await findAnalysisStatus(team.workspaceId, analysisId);
+    expect(status).toMatchObject({ status: "failed", attempts: 1 });
+    expect(status?.failureMessage).toMatch(/longer than one attempt may .*Your files are kept/);
   });
 });
