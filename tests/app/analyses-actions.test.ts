@@ -341,9 +341,12 @@ describe("startAnalysis: the simulation's cost (methods.md §7)", () => {
     const options = { ...PENGUIN_OPTIONS, rounds: 1_000_000, simulate };
     const above = await estimateSimulation(team.workspaceId, { ...request, options });
     const refused = await startAnalysis(team.workspaceId, { ...request, options });
-    expect(above.ok && above.data?.refusal).toBe(
-      !refused.ok && refused.fieldErrors["options.simulate"],
-    );
+    // The same words as the refusal at queueing (previous test's hand computation: R ≤ 131,523).
+    const refusal =
+      "The simulation would take about 7.6×10¹¹ multiply-adds, above the server's budget of " +
+      "1.0×10¹¹. It fits with Rounds (R) at most 131,523.";
+    expect(above).toMatchObject({ ok: true, data: { refusal } });
+    expect(refused).toMatchObject({ ok: false, fieldErrors: { "options.simulate": refusal } });
     // Choices that do not tell enough yet give no estimate, and no error.
     expect(
       await estimateSimulation(team.workspaceId, {

@@ -18,7 +18,6 @@ import { closeDb } from "@/db/client";
 import { listAuditEntries } from "@/db/queries/audit";
 import { findReviewOverview, findReviewStates } from "@/db/queries/reviews";
 import type { PartitionSummary } from "@/lib/analysis";
-import { findMessagesTo } from "@/lib/mail/dev-inbox";
 import { createAccount, createTeam } from "@/tests/support/accounts";
 import { actAs } from "@/tests/support/fake-session";
 import { subjectsTo, waitForMessage } from "@/tests/support/mailbox";
@@ -277,7 +276,17 @@ describe("review actions: roles", () => {
         statusOf(await decideReview(workspaceId, reportId, { decision: "endorse", reason: "x" })),
       ).toBe(expected);
     }
-    expect(await findMessagesTo(team.reviewer.email)).toEqual([]);
+    // A refused call must send nothing. Mail leaves through the outbox in order, so once a mail
+    // sent after the refusals has arrived, any mail they had sent would have arrived too: the
+    // reviewer then holds that one message only.
+    actAs(team.analyst);
+    expect(
+      (await requestReview(workspaceId, reportId, { reviewerIds: [team.reviewer.id] })).ok,
+    ).toBe(true);
+    await waitForMessage(team.reviewer.email, /^Referred to you: Penguins by island/);
+    expect(await subjectsTo(team.reviewer.email)).toEqual([
+      "Referred to you: Penguins by island (v1)",
+    ]);
   });
 
   it("rejects a pin to a shard or section the report does not have", async () => {
