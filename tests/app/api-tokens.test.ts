@@ -45,13 +45,19 @@ describe("personal API tokens", () => {
     const refused = await createApiToken(team.workspaceId, { name: "x", lifetimeDays: 30 });
     expect(refused).toMatchObject({ ok: false, status: 403 });
 
-    const created = await createTokenAs(team.analyst, team.workspaceId);
+    // The clock is frozen (Date only: timers and the database keep running), so the expiry is
+    // exactly 30 × 86 400 000 ms after it.
+    const now = new Date("2026-03-01T12:00:00.000Z");
+    vi.useFakeTimers({ toFake: ["Date"], now });
+    let created: Awaited<ReturnType<typeof createTokenAs>>;
+    try {
+      created = await createTokenAs(team.analyst, team.workspaceId);
+    } finally {
+      vi.useRealTimers();
+    }
     await createTokenAs(team.owner, team.workspaceId);
     expect(created.token).toMatch(/^prtk_[A-Za-z0-9_-]{43}$/);
-    // 30 days from now, within the test's own run time.
-    const days = (created.expiresAt.getTime() - Date.now()) / 86_400_000;
-    expect(days).toBeGreaterThan(29.99);
-    expect(days).toBeLessThanOrEqual(30);
+    expect(created.expiresAt.toISOString()).toBe("2026-03-31T12:00:00.000Z");
 
     const rows = await db().select().from(apiTokens).where(eq(apiTokens.userId, team.analyst.id));
     expect(rows).toHaveLength(1);

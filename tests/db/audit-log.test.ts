@@ -73,11 +73,24 @@ describe("audit log", () => {
   it("writes nothing when the action was refused", async () => {
     const team = await createTeam();
     actAs(team.analyst);
-    await inviteMember(team.workspaceId, { email: uniqueEmail("no"), role: "analyst" });
+    // Inviting needs an owner (lib/auth/roles.ts): 403.
+    expect(
+      await inviteMember(team.workspaceId, { email: uniqueEmail("no"), role: "analyst" }),
+    ).toMatchObject({ ok: false, status: 403 });
     actAs(team.owner);
     // The last owner cannot be demoted (a product rule), so there is no role change to record.
-    await changeMemberRole(team.workspaceId, { userId: team.owner.id, role: "analyst" });
+    expect(
+      await changeMemberRole(team.workspaceId, { userId: team.owner.id, role: "analyst" }),
+    ).toMatchObject({ ok: false });
     expect(await listAuditEntries(team.workspaceId)).toEqual([]);
+    // The same workspace does record an action that is allowed, so the empty log above is the
+    // refusals' doing.
+    expect(
+      (await changeMemberRole(team.workspaceId, { userId: team.analyst.id, role: "reviewer" })).ok,
+    ).toBe(true);
+    expect((await listAuditEntries(team.workspaceId)).map((entry) => entry.action)).toEqual([
+      "member.role-changed",
+    ]);
   });
 
   it("filters by action, actor and UTC day, and never shows another workspace's entries", async () => {
@@ -89,8 +102,17 @@ describe("audit log", () => {
     expect(await listAuditActors(team.workspaceId)).toEqual([
       { id: team.owner.id, email: team.owner.email },
     ]);
-    const today = new Date().toISOString().slice(0, 10);
-    expect(await listAuditEntries(team.workspaceId, { from: today, to: today })).toHaveLength(3);
+    // The UTC days the entries were written on, from the entries themselves rather than from the
+    // clock now (which near midnight may already show the next day).
+    const days = (await listAuditEntries(team.workspaceId))
+      .map((entry) => entry.createdAt.toISOString().slice(0, 10))
+      .sort();
+    const [first, last] = [days[0], days[days.length - 1]];
+    expect(await listAuditEntries(team.workspaceId, { from: first, to: last })).toHaveLength(3);
+    const dayBefore = new Date(Date.parse(`${first}T00:00:00Z`) - 86_400_000)
+      .toISOString()
+      .slice(0, 10);
+    expect(await listAuditEntries(team.workspaceId, { to: dayBefore })).toEqual([]);
     expect(await listAuditEntries(team.workspaceId, { to: "2000-01-01" })).toEqual([]);
   });
 
