@@ -1,6 +1,9 @@
 import "server-only";
 import type { DataFilePreview } from "@/db/schema/analyses";
-import { AnalysisInputError, countShardsUpTo } from "@/lib/analysis";
+// The engine's modules themselves: its index also exports the simulation, whose worker threads a
+// server bundle cannot hold.
+import { countShardsUpTo } from "@/lib/analysis/count-shards";
+import { AnalysisInputError } from "@/lib/analysis/errors";
 import { quoteValue } from "@/lib/analysis/quote-value";
 import { RuleError } from "@/lib/errors";
 import { getObjectStream } from "@/lib/storage";
