@@ -12,7 +12,7 @@ import {
 import { trimToken } from "./tokens";
 
 /** Data rows of the first parsed chunk looked at to detect a decimal comma. */
-const DECIMAL_MARK_SAMPLE_ROWS = 200;
+export const DECIMAL_MARK_SAMPLE_ROWS = 200;
 const DECIMAL_COMMA_NUMBER = /^\s*[-+]?\d*,\d+\s*$/;
 const DECIMAL_POINT_NUMBER = /^\s*[-+]?\d*\.\d+\s*$/;
 

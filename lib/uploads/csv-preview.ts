@@ -1,9 +1,9 @@
 import Papa from "papaparse";
 import type { DataFilePreview } from "@/db/schema/analyses";
-import { readHeader } from "@/lib/analysis/csv-reader";
+import { DECIMAL_MARK_SAMPLE_ROWS, detectDecimalMark, readHeader } from "@/lib/analysis/csv-reader";
 import { describeNonText } from "@/lib/analysis/decode-text";
 import { AnalysisInputError } from "@/lib/analysis/errors";
-import { DELIMITERS } from "@/lib/analysis/text-format";
+import { DELIMITERS, type DecimalMark } from "@/lib/analysis/text-format";
 import { isMissingToken, parseNumberToken, trimToken } from "@/lib/analysis/tokens";
 
 /** How much of a file's beginning the server reads for a preview. */
@@ -18,9 +18,14 @@ type PreviewColumn = DataFilePreview["columns"][number];
 /**
  * Detected type and distinct count of each column over the given rows, with methods.md §1's rules:
  * missing tokens (empty, NA, N/A, NaN, null, None) are skipped; a column is numeric when every other
- * value parses as a finite number, "empty" when it has no other value, categorical otherwise.
+ * value parses as a finite number (with the file's decimal mark), "empty" when it has no other
+ * value, categorical otherwise.
  */
-export function describeColumns(header: string[], rows: string[][]): PreviewColumn[] {
+export function describeColumns(
+  header: string[],
+  rows: string[][],
+  decimalMark: DecimalMark = ".",
+): PreviewColumn[] {
   return header.map((name, column) => {
     const distinct = new Set<string>();
     let numeric = true;
@@ -28,7 +33,7 @@ export function describeColumns(header: string[], rows: string[][]): PreviewColu
       const value = trimToken(row[column] ?? "");
       if (isMissingToken(value)) continue;
       distinct.add(value);
-      if (numeric && !Number.isFinite(parseNumberToken(value))) numeric = false;
+      if (numeric && !Number.isFinite(parseNumberToken(value, decimalMark))) numeric = false;
     }
     const type = distinct.size === 0 ? "empty" : numeric ? "numeric" : "categorical";
     return { name, type, distinct: distinct.size };
@@ -66,6 +71,8 @@ export interface CsvHead {
   rows: string[][];
   /** True when the bytes are not the whole file. */
   truncated: boolean;
+  /** The decimal mark, detected from the rows read as the engine detects it (methods.md §1). */
+  decimalMark: DecimalMark;
 }
 
 /**
@@ -140,13 +147,22 @@ export function readCsvHead({ bytes, totalBytes, fileName }: CsvPreviewSource): 
       expected: "at least one data row below the header",
     });
   }
-  return { header, rows, truncated };
+  const decimalMark = detectDecimalMark(
+    parsed.meta.delimiter,
+    rows.slice(0, DECIMAL_MARK_SAMPLE_ROWS),
+  );
+  return { header, rows, truncated, decimalMark };
 }
 
 /** A preview of a parsed CSV head: detected columns over every row read, and the first rows. */
-export function summarizeCsvHead({ header, rows, truncated }: CsvHead): DataFilePreview {
+export function summarizeCsvHead({
+  header,
+  rows,
+  truncated,
+  decimalMark,
+}: CsvHead): DataFilePreview {
   return {
-    columns: describeColumns(header, rows),
+    columns: describeColumns(header, rows, decimalMark),
     rows: rows.slice(0, PREVIEW_ROWS).map((row) => row.map(cutPreviewValue)),
     truncated,
   };

@@ -65,6 +65,8 @@ export async function readTableHead(
     header: layout.columns,
     rows,
     truncated: totalRows > rows.length,
+    // Parquet values arrive as numbers, written with a point.
+    decimalMark: ".",
     numeric: layout.numeric,
   };
 }

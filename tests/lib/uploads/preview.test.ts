@@ -6,6 +6,7 @@ import { describe, expect, it } from "vitest";
 import { AnalysisInputError } from "@/lib/analysis/errors";
 import { PREVIEW_BYTES, PREVIEW_ROWS, readCsvHead } from "@/lib/uploads/csv-preview";
 import { inspectDataset, inspectLayout, inspectWeights } from "@/lib/uploads/inspect-upload";
+import { analyzeText } from "@/tests/lib/analysis/support/analyze-text";
 import { loadPenguinsCsv } from "@/tests/lib/analysis/support/open-data";
 import { runPythonJson } from "@/tests/lib/analysis/support/run-python";
 
@@ -134,9 +135,20 @@ describe("methods.md §1 token rules in the preview", () => {
     ]);
   });
 
-  it("detects a semicolon-separated file as the engine does", () => {
-    const preview = inspectDataset(source("x;y;label\n1,5;2;a\n3;4;b\n"));
-    expect(preview.columns.map((column) => column.name)).toEqual(["x", "y", "label"]);
+  it("detects a semicolon-separated file as the engine does", async () => {
+    // Decimal commas in a semicolon file (methods.md §1): the preview and the engine, each reading
+    // the same bytes, must find the same columns and both take x as numeric.
+    const csv = "x;y;label;part\n1,5;2;a;p\n3;4;b;p\n2,25;1;a;q\n0,5;3;b;q\n";
+    const preview = inspectDataset(source(csv));
+    expect(preview.columns.map((column) => [column.name, column.type])).toEqual([
+      ["x", "numeric"],
+      ["y", "numeric"],
+      ["label", "categorical"],
+      ["part", "categorical"],
+    ]);
+    const summary = await analyzeText(csv, { labelColumn: "label", shardColumn: "part" });
+    expect(summary.preprocessing.format).toMatchObject({ delimiter: ";", decimalMark: "," });
+    expect(summary.preprocessing.featureNames).toEqual(["x", "y"]);
   });
 });
 
