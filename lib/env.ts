@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { parseMemorySize } from "./analysis/memory-size";
 
 /**
  * Configuration, parsed once. Every hosted service is reached through these values only, so pointing
@@ -69,6 +70,24 @@ const environmentSchema = z.object({
     .default(0),
   /** Set by scripts/serve-app.mjs: the address the app listens on. */
   PARTITA_LISTEN_HOST: z.string().optional(),
+  /**
+   * Peak memory an analysis aims to stay under (2 GiB by default), as a size such as 2G, 1.5GB or
+   * 512M: encoded rows beyond its share go to a scratch file, with the same report.
+   */
+  PARTITA_MEMORY_LIMIT: z
+    .string()
+    .optional()
+    .transform((value, context) => {
+      if (value === undefined || value === "") return undefined;
+      try {
+        return parseMemorySize(value, "PARTITA_MEMORY_LIMIT");
+      } catch {
+        context.addIssue("PARTITA_MEMORY_LIMIT must be a size such as 2G, 1.5GB, 512M or bytes");
+        return z.NEVER;
+      }
+    }),
+  /** Folder for an analysis's scratch files (the system's temporary folder by default). */
+  PARTITA_SCRATCH_DIR: z.string().optional(),
   /** Set only when the local SMTP fake is in use: the folder it writes messages to. Enables the dev inbox. */
   DEV_MAIL_DIR: z.string().optional(),
 });

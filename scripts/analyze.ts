@@ -10,7 +10,12 @@
  */
 import { writeFileSync } from "node:fs";
 import { parseArgs } from "node:util";
-import { analyzePartition, AnalysisInputError, type PartitionSummary } from "../lib/analysis";
+import {
+  analyzePartition,
+  AnalysisInputError,
+  readMemorySettings,
+  type PartitionSummary,
+} from "../lib/analysis";
 import type { SimulationProgress } from "../lib/analysis/simulation/simulate-plan";
 import { ServerError } from "../lib/cli/api-client";
 import {
@@ -43,7 +48,10 @@ const USAGE = `usage: npm run analyze -- --data FILE --label COL (--partition FI
   [--reference optimum|zero|FILE.json] [--participants M] [--local-steps K] [--rounds R]
   [--batch-size b] [--out FILE] [--server URL [--token T]] [--fail-on RULE]…
   [--simulate [--seeds S] [--seed N] [--budget MULTIPLY_ADDS]]
+  [--memory-limit SIZE] [--scratch-dir DIR]
   ${TEXT_FORMAT_USAGE}
+  --memory-limit (default $PARTITA_MEMORY_LIMIT, else 2G): encoded rows beyond it go to a
+  scratch file in --scratch-dir (default $PARTITA_SCRATCH_DIR, else the temporary folder)
   --token defaults to $PARTITA_API_TOKEN; RULE is KEY OP VALUE, e.g. 'js>0.1' or verdict!=local-updates`;
 
 const EXIT_BAD_INPUT = 2;
@@ -114,6 +122,16 @@ async function analyzeLocally(
       partitionName: flags.partition,
       referenceName: flags.reference,
       options,
+      memory: {
+        ...readMemorySettings(process.env, {
+          memoryLimit: flags["memory-limit"],
+          scratchDirectory: flags["scratch-dir"],
+        }),
+        onScratchFile: (file) =>
+          process.stderr.write(
+            `partita: rows beyond the memory limit go to scratch file ${file} (unlinked at once, freed at exit)\n`,
+          ),
+      },
       onSimulationProgress: createSimulationProgressPrinter(),
     },
     createProgressPrinter(),
@@ -168,6 +186,8 @@ function readFlags(argv: string[]): {
         seeds: text,
         seed: text,
         budget: text,
+        "memory-limit": text,
+        "scratch-dir": text,
       },
       strict: true,
       allowPositionals: false,

@@ -7,7 +7,7 @@ import {
 } from "../validation/analysis-options";
 import { norm } from "../math/summation";
 import { advisePlan } from "./advise-plan";
-import { BIAS_NAME, type Design } from "./design";
+import { BIAS_NAME, isDesignOnDisk, type EncodedDesign } from "./design";
 import { encodeDesign } from "./encode-design";
 import { AnalysisInputError } from "./errors";
 import { fitReferenceModel } from "./fit-reference-model";
@@ -21,10 +21,12 @@ import {
 import { measureFeatureShift } from "./measure-feature-shift";
 import { measureLabelSkew } from "./measure-label-skew";
 import { measureQuantitySkew } from "./measure-quantity-skew";
+import { measureLimitForRows, resolveMemorySettings, type MemorySettings } from "./memory-limit";
 import { countWeightRows } from "./objective";
 import { readPartitionMap } from "./partition-map";
-import { countAvailableThreads, PassPool, type PassResult } from "./pass-pool";
+import { countAvailableThreads, PassPool, type DesignPasses, type PassResult } from "./pass-pool";
 import { readDataset, type RawDataset } from "./read-dataset";
+import { StoredDesign } from "./stored-design";
 import type { TableSource } from "./table-reader";
 import {
   checkSimulationBudget,
@@ -56,6 +58,13 @@ export interface PartitionInput {
    * the same bit for bit whatever the number.
    */
   threads?: number;
+  /**
+   * The memory limit (default 2 GiB for the whole process) and the scratch folder (default the
+   * system's temporary folder): encoded rows beyond the limit's share live in a scratch file, read
+   * block by block for each pass, with the same summary bit for bit. The simulation needs the rows
+   * in memory.
+   */
+  memory?: Partial<MemorySettings>;
   /** Cancels the simulation (`options.simulate`) between rounds; it then throws the signal's reason. */
   signal?: AbortSignal;
   /** Progress of the simulation by run and round. */
@@ -112,9 +121,10 @@ async function analyzeWithPool(
   options: AnalysisOptions,
   onProgress: (progress: AnalysisProgress) => void,
   readThreads: number,
-  openPool: (design: Design) => PassPool,
+  openPool: (design: EncodedDesign) => PassPool,
 ): Promise<PartitionSummary> {
   const dataName = input.dataName ?? "dataset";
+  const memory = resolveMemorySettings(input.memory);
   onProgress({ stage: "reading", fraction: 0 });
   const partition = input.partition
     ? await readPartitionMap(input.partition, input.partitionName ?? "partition map", {
@@ -125,6 +135,7 @@ async function analyzeWithPool(
     partition,
     dropUnassignedRows: options.dropUnassignedRows,
     threads: readThreads,
+    memory,
     format: {
       encoding: options.encoding,
       delimiter: options.delimiter,
@@ -139,22 +150,27 @@ async function analyzeWithPool(
   onProgress({ stage: "encoding", fraction: 0 });
   const design = encodeDesign(raw, options.task, {
     badNumbersAsMissing: options.badNumbersAsMissing,
+    memory,
   });
-  return analyzeDesign(
-    design,
-    options,
-    {
-      pool: openPool(design),
-      totalRows: raw.totalRows,
-      format: raw.format,
-      partitionName: input.partitionName ?? dataName,
-      referenceName: input.referenceName,
-      threads: input.threads,
-      signal: input.signal,
-      onSimulationProgress: input.onSimulationProgress,
-    },
-    onProgress,
-  );
+  try {
+    return await analyzeDesign(
+      design,
+      options,
+      {
+        pool: openPool(design),
+        totalRows: raw.totalRows,
+        format: raw.format,
+        partitionName: input.partitionName ?? dataName,
+        referenceName: input.referenceName,
+        threads: input.threads,
+        signal: input.signal,
+        onSimulationProgress: input.onSimulationProgress,
+      },
+      onProgress,
+    );
+  } finally {
+    if (isDesignOnDisk(design)) design.x.file.close();
+  }
 }
 
 /** What the analysis of an encoded design needs besides the design and the options. */
@@ -178,7 +194,7 @@ export interface DesignAnalysisContext {
  * advise. The layout planner encodes a dataset once and calls this once per candidate split.
  */
 export async function analyzeDesign(
-  design: Design,
+  design: EncodedDesign,
   options: AnalysisOptions,
   context: DesignAnalysisContext,
   onProgress: (progress: AnalysisProgress) => void = () => {},
@@ -206,6 +222,7 @@ export async function analyzeDesign(
   if (options.simulate) {
     // Refuse before the fit, not after it: the cost is known once the design's width is.
     const { seeds, budget } = options.simulate;
+    if (isDesignOnDisk(design)) throw refuseSimulationOnDisk(design);
     const weightRows = countWeightRows(design);
     checkSimulationBudget(
       estimateSimulationCost(plan, design.x.cols, weightRows, seeds),
@@ -214,7 +231,9 @@ export async function analyzeDesign(
       seeds,
     );
   }
-  const passes = context.pool.share(design, design.shardOffsets);
+  const passes: DesignPasses = isDesignOnDisk(design)
+    ? new StoredDesign(context.pool, design)
+    : context.pool.share(design, design.shardOffsets);
   const gram = passes.computeGram();
   const smoothness = computeSmoothness(gram, design.x.cols, design.task, options.lambda);
   onProgress({ stage: "encoding", fraction: 1 });
@@ -283,22 +302,24 @@ export async function analyzeDesign(
   );
   onProgress({ stage: "advising", fraction: 1 });
 
-  const simulation = options.simulate
-    ? await simulatePlan(
-        {
-          design,
-          lambda: options.lambda,
-          optimumValue: fitted.value,
-          startValue: path[0].loss,
-          smoothness,
-          boundVerdict: advice.verdict,
-        },
-        plan,
-        // A caller's thread count (e.g. 1 to stay on one core) holds for the simulation too.
-        { ...options.simulate, threads: context.threads },
-        { onProgress: context.onSimulationProgress, signal: context.signal },
-      )
-    : undefined;
+  // A design on disk was refused above.
+  const simulation =
+    options.simulate && !isDesignOnDisk(design)
+      ? await simulatePlan(
+          {
+            design,
+            lambda: options.lambda,
+            optimumValue: fitted.value,
+            startValue: path[0].loss,
+            smoothness,
+            boundVerdict: advice.verdict,
+          },
+          plan,
+          // A caller's thread count (e.g. 1 to stay on one core) holds for the simulation too.
+          { ...options.simulate, threads: context.threads },
+          { onProgress: context.onSimulationProgress, signal: context.signal },
+        )
+      : undefined;
 
   const width = design.x.cols;
   return {
@@ -422,13 +443,26 @@ function countThreadsForBytes(dataBytes: number): number {
   return dataBytes >= PARALLEL_MIN_BYTES ? countAvailableThreads() : 1;
 }
 
+/** The simulation draws minibatches from anywhere in the rows: it needs them in memory. */
+function refuseSimulationOnDisk(design: EncodedDesign): AnalysisInputError {
+  const designBytes = design.x.rows * design.x.cols * Float64Array.BYTES_PER_ELEMENT;
+  const mebibytes = (bytes: number) => Math.ceil(bytes / 2 ** 20);
+  return new AnalysisInputError(
+    `the simulation needs the encoded rows in memory (${mebibytes(designBytes)} MiB), more than the memory limit leaves for them`,
+    {
+      option: "simulate",
+      expected: `a memory limit of at least ${mebibytes(measureLimitForRows(designBytes))} MiB (--memory-limit or PARTITA_MEMORY_LIMIT), or the analysis without the simulation`,
+    },
+  );
+}
+
 /** Threads for a design read from a stream of unknown size: by the work in one pass. */
-function countThreadsForDesign(design: Design): number {
+function countThreadsForDesign(design: EncodedDesign): number {
   const work = design.x.rows * design.x.cols * countWeightRows(design);
   return work >= PARALLEL_MIN_WORK ? countAvailableThreads() : 1;
 }
 
-function countLabelsPerShard(design: Design): number[][] {
+function countLabelsPerShard(design: EncodedDesign): number[][] {
   return design.shardIds.map((_, m) => {
     const counts = new Array<number>(design.skewCategoryCount).fill(0);
     for (let row = design.shardOffsets[m]; row < design.shardOffsets[m + 1]; row++) {
@@ -439,7 +473,7 @@ function countLabelsPerShard(design: Design): number[][] {
 }
 
 function describeWeights(
-  design: Design,
+  design: EncodedDesign,
   weights: Float64Array,
 ): PartitionSummary["model"]["optimum"] {
   const width = design.x.cols;
@@ -454,7 +488,7 @@ function describeWeights(
 
 function chooseReference(
   reference: AnalysisOptions["reference"],
-  design: Design,
+  design: EncodedDesign,
   optimum: Float64Array,
   referenceName = "reference weights",
 ): { kind: "optimum" | "zero" | "given"; weights: Float64Array } {
@@ -463,7 +497,11 @@ function chooseReference(
   return { kind: "given", weights: readGivenWeights(reference, design, referenceName) };
 }
 
-function readGivenWeights(given: ReferenceWeights, design: Design, file: string): Float64Array {
+function readGivenWeights(
+  given: ReferenceWeights,
+  design: EncodedDesign,
+  file: string,
+): Float64Array {
   const width = design.x.cols;
   const rows = countWeightRows(design);
   const sameList = (a: string[] | null, b: string[] | null) =>

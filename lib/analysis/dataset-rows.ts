@@ -5,6 +5,7 @@ import type { DecimalMark } from "./text-format";
 import { AnalysisInputError, listFirst } from "./errors";
 import type { PartitionMap } from "./partition-map";
 import type { RawDataset } from "./read-dataset";
+import type { StoredMatrix } from "./stored-matrix";
 import { isMissingToken, trimToken } from "./tokens";
 
 export interface DatasetColumnChoice {
@@ -178,15 +179,15 @@ export interface UnassignedRows {
  * The checks that need every row — the assignment (unassigned rows, unmatched partition ids) and at
  * least one kept row — and the dataset once they pass.
  */
-export function completeDataset(
-  raw: Omit<RawDataset, "droppedUnassigned">,
+export function completeDataset<FeatureValues extends Float64Array | StoredMatrix>(
+  raw: Omit<RawDataset<FeatureValues>, "droppedUnassigned">,
   unassigned: UnassignedRows,
   columns: DatasetColumnChoice,
   {
     partition,
     dropUnassignedRows,
   }: { partition: PartitionMap | null; dropUnassignedRows: boolean },
-): RawDataset {
+): RawDataset<FeatureValues> {
   const { fileName, totalRows, keptRows } = raw;
   const { count: unassignedCount, firstRows: unassignedRows } = unassigned;
   const problems: string[] = [];

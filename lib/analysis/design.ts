@@ -1,4 +1,5 @@
 import type { Matrix } from "../math/matrix";
+import { isStoredMatrix, type StoredMatrix } from "./stored-matrix";
 
 export type Task = "classification" | "regression";
 
@@ -36,6 +37,21 @@ export interface Design {
   /** Values that were not numbers in mostly numeric columns, counted as missing by the user's choice. */
   badNumbersCountedMissing: { column: string; count: number }[];
   warnings: string[];
+}
+
+/**
+ * A design whose rows did not fit in the memory limit: the same, with the rows in a scratch file
+ * (read block by block for each pass; the caller closes the file).
+ */
+export interface DesignOnDisk extends Omit<Design, "x"> {
+  x: StoredMatrix;
+}
+
+/** A design in memory or on disk. */
+export type EncodedDesign = Design | DesignOnDisk;
+
+export function isDesignOnDisk(design: EncodedDesign): design is DesignOnDisk {
+  return isStoredMatrix(design.x);
 }
 
 /** Name of the constant column appended to every row. */

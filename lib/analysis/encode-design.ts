@@ -1,15 +1,18 @@
 import { createMatrix, matrixFromValues, type Matrix } from "../math/matrix";
-import { measureColumnMoments, measureMoments } from "../math/moments";
+import { measureColumnMomentsInBlocks, measureMoments } from "../math/moments";
 import { quantileSorted } from "../math/quantile";
 import { CompensatedSum } from "../math/summation";
 import { compareCodePoints } from "./code-point-order";
 import { CHUNK_LENGTH } from "./chunked-arrays";
 import type { ColumnAccumulator } from "./column-accumulator";
 import { MAX_ONE_HOT_LEVELS } from "./column-accumulator";
-import type { Design, OmittedColumn, Task } from "./design";
+import type { Design, DesignOnDisk, OmittedColumn, Task } from "./design";
 import { AnalysisInputError } from "./errors";
+import { measureRowBudget, type MemorySettings } from "./memory-limit";
 import type { RawDataset } from "./read-dataset";
 import { quoteValue } from "./quote-value";
+import { ValueBlocks, writeDesignToFile } from "./stored-encoding";
+import { isStoredMatrix, type StoredMatrix } from "./stored-matrix";
 
 /** Columns whose population standard deviation is below this are dropped (methods.md §1). */
 export const MIN_FEATURE_STD = 1e-12;
@@ -46,8 +49,40 @@ type EncodedColumn =
 export function encodeDesign(
   raw: RawDataset,
   requestedTask: Task | undefined,
-  { badNumbersAsMissing = false }: { badNumbersAsMissing?: boolean } = {},
-): Design {
+  options?: { badNumbersAsMissing?: boolean; memory?: undefined },
+): Design;
+/**
+ * With memory settings: values read into a scratch file (or a design that would outgrow the limit)
+ * give a design on disk, the same values in a scratch file of its own; the values' file is closed.
+ */
+export function encodeDesign(
+  raw: RawDataset<Float64Array | StoredMatrix>,
+  requestedTask: Task | undefined,
+  options: { badNumbersAsMissing?: boolean; memory?: MemorySettings },
+): Design | DesignOnDisk;
+export function encodeDesign(
+  raw: RawDataset<Float64Array | StoredMatrix>,
+  requestedTask: Task | undefined,
+  {
+    badNumbersAsMissing = false,
+    memory,
+  }: { badNumbersAsMissing?: boolean; memory?: MemorySettings } = {},
+): Design | DesignOnDisk {
+  const blocks = new ValueBlocks(raw.featureValues, raw.keptRows, raw.features.length + 1);
+  try {
+    return encodeBlocks(raw, blocks, requestedTask, badNumbersAsMissing, memory);
+  } finally {
+    blocks.close();
+  }
+}
+
+function encodeBlocks(
+  raw: RawDataset<Float64Array | StoredMatrix>,
+  blocks: ValueBlocks,
+  requestedTask: Task | undefined,
+  badNumbersAsMissing: boolean,
+  memory: MemorySettings | undefined,
+): Design | DesignOnDisk {
   const warnings: string[] = [];
   const badNumbersCountedMissing = resolveBadNumbers(raw, badNumbersAsMissing);
   const rows = raw.keptRows;
@@ -64,16 +99,29 @@ export function encodeDesign(
   for (let row = 0; row < rows; row++) position[row] = next[rankOfShardCode[raw.shardCodes[row]]]++;
 
   const target = encodeTarget(raw, requestedTask, position);
-  const columns = planFeatureColumns(raw, warnings);
+  const columns = planFeatureColumns(raw, blocks, warnings);
   const omittedColumns = columns.omitted;
-  const x = encodeFeatures(raw, columns.kept, position);
+  const width = columns.kept.length + 1;
+  const x =
+    memory !== undefined &&
+    (isStoredMatrix(raw.featureValues) ||
+      (!isEncodedInPlace(raw, columns.kept) &&
+        (raw.featureValues.length + rows * width) * Float64Array.BYTES_PER_ELEMENT >
+          measureRowBudget(memory)))
+      ? writeDesignToFile(
+          blocks,
+          columns.kept,
+          (row) => rankOfShardCode[raw.shardCodes[row]],
+          shardOffsets,
+          memory,
+        )
+      : encodeFeatures(raw as RawDataset, columns.kept, position);
   for (const feature of raw.features) feature.release();
   if (columns.kept.length === 0) {
     warnings.push("no usable feature columns: the model has only the bias");
   }
 
-  return {
-    x,
+  const design = {
     task: target.task,
     classes: target.classes,
     labels: target.labels,
@@ -89,6 +137,7 @@ export function encodeDesign(
     badNumbersCountedMissing,
     warnings,
   };
+  return isStoredMatrix(x) ? { ...design, x } : { ...design, x };
 }
 
 /**
@@ -97,7 +146,7 @@ export function encodeDesign(
  * — or, when the user chose so, those values count as missing. Returns the counts per column.
  */
 function resolveBadNumbers(
-  raw: RawDataset,
+  raw: RawDataset<Float64Array | StoredMatrix>,
   asMissing: boolean,
 ): { column: string; count: number }[] {
   const counted: { column: string; count: number }[] = [];
@@ -132,7 +181,7 @@ interface EncodedTarget {
 }
 
 function encodeTarget(
-  raw: RawDataset,
+  raw: RawDataset<Float64Array | StoredMatrix>,
   requested: Task | undefined,
   position: Int32Array,
 ): EncodedTarget {
@@ -227,13 +276,14 @@ export function binIntoDeciles(values: Float64Array): { categories: Int32Array; 
 }
 
 function planFeatureColumns(
-  raw: RawDataset,
+  raw: RawDataset<Float64Array | StoredMatrix>,
+  blocks: ValueBlocks,
   warnings: string[],
 ): { kept: EncodedColumn[]; omitted: OmittedColumn[] } {
   const kept: EncodedColumn[] = [];
   const omitted: OmittedColumn[] = [];
   const rows = raw.keptRows;
-  const moments = measureNumericColumns(raw);
+  const moments = measureNumericColumns(raw, blocks);
   for (const [sourceIndex, source] of raw.features.entries()) {
     if (source.missingCount === rows) {
       omitted.push({ column: source.name, reason: "all-missing" });
@@ -289,32 +339,50 @@ function planFeatureColumns(
 
 /**
  * Mean and population deviation of every numeric feature column with values, after its missing
- * values are replaced in place by the mean of its present values (methods.md §1); by source index.
+ * values are replaced by the mean of its present values (methods.md §1; in place when the values
+ * are in memory); by source index.
  */
-function measureNumericColumns(raw: RawDataset): Map<number, { mean: number; std: number }> {
+function measureNumericColumns(
+  raw: RawDataset<Float64Array | StoredMatrix>,
+  blocks: ValueBlocks,
+): Map<number, { mean: number; std: number }> {
   const rows = raw.keptRows;
-  const stride = raw.features.length + 1;
-  const values = raw.featureValues;
+  const stride = blocks.stride;
   const numeric: number[] = [];
   raw.features.forEach((source, index) => {
     if (source.numeric && source.missingCount < rows) numeric.push(index);
   });
-  for (const index of numeric) {
-    if (raw.features[index].missingCount === 0) continue;
-    const present = new CompensatedSum();
-    for (let row = 0; row < rows; row++) {
-      const value = values[row * stride + index];
-      if (value === value) present.add(value);
-    }
-    const fill = present.value / (rows - raw.features[index].missingCount);
-    for (let row = 0; row < rows; row++) {
-      if (values[row * stride + index] !== values[row * stride + index]) {
-        values[row * stride + index] = fill;
-      }
-    }
+  const withMissing = numeric.filter((index) => raw.features[index].missingCount > 0);
+  const present = withMissing.map(() => new CompensatedSum());
+  if (withMissing.length > 0) {
+    blocks.forEach((values, _firstRow, rowCount) => {
+      withMissing.forEach((index, k) => {
+        for (let row = 0; row < rowCount; row++) {
+          const value = values[row * stride + index];
+          if (value === value) present[k].add(value);
+        }
+      });
+    });
   }
-  const moments = measureColumnMoments(values, rows, stride, numeric);
+  blocks.fillMissing(
+    withMissing.map((index, k) => ({
+      index,
+      value: present[k].value / (rows - raw.features[index].missingCount),
+    })),
+  );
+  const moments = measureColumnMomentsInBlocks(blocks.visitor, rows, stride, numeric);
   return new Map(numeric.map((index, k) => [index, moments[k]]));
+}
+
+/** True when the kept columns are exactly the feature columns read, all numeric. */
+function isEncodedInPlace(
+  raw: RawDataset<Float64Array | StoredMatrix>,
+  columns: EncodedColumn[],
+): boolean {
+  return (
+    columns.length === raw.features.length &&
+    columns.every((column, j) => column.kind === "numeric" && column.sourceIndex === j)
+  );
 }
 
 /**
@@ -326,10 +394,7 @@ function measureNumericColumns(raw: RawDataset): Map<number, { mean: number; std
 function encodeFeatures(raw: RawDataset, columns: EncodedColumn[], position: Int32Array): Matrix {
   const rows = raw.keptRows;
   const width = columns.length + 1;
-  const inPlace =
-    columns.length === raw.features.length &&
-    columns.every((column, j) => column.kind === "numeric" && column.sourceIndex === j);
-  if (!inPlace) {
+  if (!isEncodedInPlace(raw, columns)) {
     const x = createMatrix(rows, width, { shared: true });
     writeDesign(raw, columns, position, x);
     return x;

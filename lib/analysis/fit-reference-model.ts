@@ -2,10 +2,11 @@ import { choleskyDecompose, choleskySolveInPlace } from "../math/cholesky";
 import { minimizeLbfgs } from "../math/lbfgs";
 import { createMatrix, matrixFromValues } from "../math/matrix";
 import { norm } from "../math/summation";
-import type { Design } from "./design";
+import { isDesignOnDisk, type EncodedDesign } from "./design";
 import { countWeightRows, finishPass, type ObjectiveValue } from "./objective";
 import type { PassData } from "./objective-pass";
-import type { PassResult, SharedDesign } from "./pass-pool";
+import type { DesignPasses, PassResult, SharedDesign } from "./pass-pool";
+import { forEachStoredBlock } from "./stored-matrix";
 
 /** ‖∇F(W*)‖ ≤ this × max(1, ‖∇F(0)‖) (methods.md §2). */
 export const OPTIMUM_RELATIVE_TOLERANCE = 1e-8;
@@ -58,8 +59,8 @@ export interface FittedModel {
  * solve.
  */
 export function fitReferenceModel(
-  design: Design,
-  passes: SharedDesign,
+  design: EncodedDesign,
+  passes: DesignPasses,
   gram: Float64Array,
   lambda: number,
   onProgress?: (fraction: number) => void,
@@ -85,13 +86,15 @@ export function fitReferenceModel(
   }
 
   const stride = computeSampleStride(design.x.rows);
-  const sample =
-    stride > 1
-      ? passes.pool.share(
+  // With a stride of 1 the sample is all rows, chunked by shard as the passes over all rows are
+  // (rows on disk are then copied into memory: fewer than 2 × SAMPLE_ROWS of them).
+  const sample: SharedDesign =
+    stride === 1 && !isDesignOnDisk(design)
+      ? (passes as SharedDesign)
+      : passes.pool.share(
           subsampleRows(design, stride),
-          Int32Array.of(0, Math.ceil(design.x.rows / stride)),
-        )
-      : passes;
+          stride === 1 ? design.shardOffsets : Int32Array.of(0, Math.ceil(design.x.rows / stride)),
+        );
   const fitted = fitSoftmax(
     {
       width,
@@ -187,7 +190,7 @@ export function fitSoftmax(
 
 /** F and ∇F over all rows of a shared design, in one pass. */
 function evaluatePooled(
-  passes: SharedDesign,
+  passes: DesignPasses,
   weights: Float64Array,
   lambda: number,
 ): ObjectiveValue {
@@ -270,14 +273,19 @@ export function centerIntercepts(weights: Float64Array, width: number, classCoun
  * Every `stride`-th row, in shared memory (rows are grouped by shard, so each shard is represented
  * in proportion).
  */
-function subsampleRows(design: Design, stride: number): PassData {
+function subsampleRows(design: EncodedDesign, stride: number): PassData {
   const width = design.x.cols;
   const rows = Math.ceil(design.x.rows / stride);
   const x = createMatrix(rows, width, { shared: true });
   const labels = design.labels ? new Int32Array(rows) : null;
-  for (let k = 0; k < rows; k++) {
-    x.data.set(design.x.data.subarray(k * stride * width, (k * stride + 1) * width), k * width);
-    if (labels && design.labels) labels[k] = design.labels[k * stride];
-  }
+  const take = (values: Float64Array, firstRow: number, rowCount: number) => {
+    for (let k = Math.ceil(firstRow / stride); k * stride < firstRow + rowCount; k++) {
+      const row = k * stride - firstRow;
+      x.data.set(values.subarray(row * width, (row + 1) * width), k * width);
+    }
+  };
+  if (isDesignOnDisk(design)) forEachStoredBlock(design.x, take);
+  else take(design.x.data, 0, design.x.rows);
+  if (labels && design.labels) for (let k = 0; k < rows; k++) labels[k] = design.labels[k * stride];
   return { x, labels, targets: null };
 }

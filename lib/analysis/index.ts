@@ -5,6 +5,11 @@
 export { analyzePartition, type PartitionInput } from "./analyze-partition";
 export { AnalysisInputError } from "./errors";
 export { countShardsUpTo } from "./count-shards";
+export {
+  DEFAULT_MEMORY_LIMIT_BYTES,
+  readMemorySettings,
+  type MemorySettings,
+} from "./memory-limit";
 export type { Advice, Verdict } from "./advise-plan";
 export type {
   AnalysisProgress,

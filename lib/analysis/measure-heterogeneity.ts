@@ -1,7 +1,7 @@
 import { largestEigenvalueSymmetric } from "../math/eigen";
 import { matrixFromValues } from "../math/matrix";
 import { dot, squaredNorm } from "../math/summation";
-import type { Design, Task } from "./design";
+import type { Task } from "./design";
 import { finishPass } from "./objective";
 import { readTotals, type PassTotals } from "./objective-pass";
 import type { NoiseCentres, PassResult } from "./pass-pool";
@@ -50,7 +50,7 @@ export interface PointMeasurement {
  * `vanishingGradient` is the gradient norm treated as zero (the optimizer's tolerance).
  */
 export function measureAtPoint(
-  design: Pick<Design, "x" | "shardIds">,
+  design: { x: { rows: number; cols: number }; shardIds: string[] },
   weights: Float64Array,
   lambda: number,
   shardTotals: PassTotals[],

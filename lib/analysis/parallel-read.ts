@@ -10,6 +10,7 @@ import {
   type DatasetColumnChoice,
 } from "./dataset-rows";
 import { AnalysisInputError } from "./errors";
+import { measureRowBudget } from "./memory-limit";
 import type { RawDataset, ReadDatasetOptions } from "./read-dataset";
 import type { ReadPartData, ReadPartOrder, ReadPartReport } from "./read-part-protocol";
 import { DELIMITERS, type CsvFormat, type DecimalMark, type Delimiter } from "./text-format";
@@ -28,7 +29,8 @@ const LINE_FEED = 10;
  * parts' columns are then merged in file order, so the dataset is the one a single read gives,
  * value for value. Resolves null when the file cannot be cut safely — quoted fields (which may hold
  * line breaks), a header past the first 64 KB, rows that do not split as counted — and the caller
- * reads it on one thread instead.
+ * reads it on one thread instead; so also when the values would outgrow the memory limit (the
+ * single read moves them to a scratch file).
  */
 export async function readCsvInParallel(
   path: string,
@@ -38,7 +40,8 @@ export async function readCsvInParallel(
   {
     dropUnassignedRows,
     onBytesRead,
-  }: Pick<ReadDatasetOptions, "dropUnassignedRows" | "onBytesRead">,
+    memory,
+  }: Pick<ReadDatasetOptions, "dropUnassignedRows" | "onBytesRead" | "memory">,
 ): Promise<RawDataset | null> {
   const layout = await cutIntoParts(path, fileName, threads);
   if (layout === null) return null;
@@ -72,6 +75,11 @@ export async function readCsvInParallel(
     }
     const rowCounts = counted.map((report) => (report.type === "counted" ? report.rows : 0));
     const totalRows = rowCounts.reduce((sum, rows) => sum + rows, 0);
+    // The parts write into one array in memory; values beyond the memory limit are read on one
+    // thread into a scratch file instead.
+    if (memory && totalRows * width * Float64Array.BYTES_PER_ELEMENT > measureRowBudget(memory)) {
+      return null;
+    }
     const values = new Float64Array(new SharedArrayBuffer(totalRows * width * 8));
     let firstRowIndex = 0;
     const reads = workers.map((worker, index) => {

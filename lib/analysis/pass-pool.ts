@@ -108,14 +108,27 @@ export class PassPool {
   /** Shares a design with the threads; passes then run over its rows, chunked within shards. */
   share(design: PassData, shardOffsets: Int32Array): SharedDesign {
     const data: SharedDesignData = {
-      id: this.nextDesignId++,
+      id: this.reserveDesignId(),
       x: { rows: design.x.rows, cols: design.x.cols, data: toShared(design.x.data) },
       labels: design.labels && toShared(design.labels),
       targets: design.targets && toShared(design.targets),
       chunkStarts: planChunks(shardOffsets),
     };
-    this.post({ type: "share", design: data });
+    this.shareData(data);
     return new SharedDesign(this, data, shardOffsets);
+  }
+
+  /** A new id for designs shared through `shareData`. */
+  reserveDesignId(): number {
+    return this.nextDesignId++;
+  }
+
+  /**
+   * Shares rows already in shared memory under their id; sharing again under the same id replaces
+   * them (how a design read from a scratch file shows the threads one block after another).
+   */
+  shareData(data: SharedDesignData): void {
+    this.post({ type: "share", design: data });
   }
 
   /**
@@ -166,7 +179,7 @@ export class PassPool {
 }
 
 /** A design shared with a pool's threads, with the passes the analysis needs over its rows. */
-export class SharedDesign {
+export class SharedDesign implements DesignPasses {
   /** The last pass's result slots, reused once no worker can still write them. */
   private lastPass: { results: Float64Array; control: Int32Array } | null = null;
 
@@ -206,38 +219,13 @@ export class SharedDesign {
         designId: this.data.id,
         weights,
         withSquaredNorms,
-        centres: centres && this.layOutCentres(centres, size),
+        centres: centres && layOutCentres(centres, chunkStarts, this.shardOffsets, size),
         results,
       },
       this.data,
     );
     this.lastPass = { results, control };
-    const shards: PassTotals[] = [];
-    let chunk = 0;
-    for (let m = 0; m + 1 < this.shardOffsets.length; m++) {
-      const totals = createTotals(size);
-      for (; chunk < taskCount && chunkStarts[chunk] < this.shardOffsets[m + 1]; chunk++) {
-        mergeTotals(totals, readSlot(results, chunk, size));
-      }
-      shards.push(totals);
-    }
-    const pooled = createTotals(size);
-    for (const totals of shards) mergeTotals(pooled, totals);
-    return { shards, pooled };
-  }
-
-  /** The centres as a pass job reads them: each chunk's shard's centre, then the pooled one. */
-  private layOutCentres(centres: NoiseCentres, size: number): Float64Array {
-    const chunkStarts = this.data.chunkStarts;
-    const taskCount = chunkStarts.length - 1;
-    const laidOut = sharedFloat64((taskCount + 1) * size);
-    let shard = 0;
-    for (let chunk = 0; chunk < taskCount; chunk++) {
-      while (chunkStarts[chunk] >= this.shardOffsets[shard + 1]) shard++;
-      laidOut.set(centres.shards[shard], chunk * size);
-    }
-    laidOut.set(centres.pooled, taskCount * size);
-    return laidOut;
+    return combinePassSlots(results, chunkStarts, this.shardOffsets, size);
   }
 
   /**
@@ -247,16 +235,9 @@ export class SharedDesign {
    */
   computeGram(): Float64Array {
     const width = this.data.x.cols;
-    const tasks = Math.ceil(this.data.x.rows / GRAM_CHUNK_ROWS);
-    const results = sharedFloat64(tasks * width * width);
+    const results = sharedFloat64(countGramTasks(this.data.x.rows) * width * width);
     this.pool.run({ kind: "gram", designId: this.data.id, results }, this.data);
-    const gram = new Float64Array(width * width);
-    for (let task = 0; task < tasks; task++) {
-      for (let k = 0; k < gram.length; k++) gram[k] += results[task * width * width + k];
-    }
-    symmetrizeFromUpper(gram, width);
-    for (let k = 0; k < gram.length; k++) gram[k] /= this.data.x.rows;
-    return gram;
+    return combineGramSlots(results, this.data.x.rows, width);
   }
 
   /**
@@ -285,7 +266,81 @@ export class SharedDesign {
   }
 }
 
-function sharedFloat64(length: number): Float64Array {
+/** The centres as a pass job reads them: each chunk's shard's centre, then the pooled one. */
+export function layOutCentres(
+  centres: NoiseCentres,
+  chunkStarts: Int32Array,
+  shardOffsets: Int32Array,
+  size: number,
+): Float64Array {
+  const taskCount = chunkStarts.length - 1;
+  const laidOut = sharedFloat64((taskCount + 1) * size);
+  let shard = 0;
+  for (let chunk = 0; chunk < taskCount; chunk++) {
+    while (chunkStarts[chunk] >= shardOffsets[shard + 1]) shard++;
+    laidOut.set(centres.shards[shard], chunk * size);
+  }
+  laidOut.set(centres.pooled, taskCount * size);
+  return laidOut;
+}
+
+/**
+ * What the analysis runs over a design's rows, wherever they are (in memory: SharedDesign; in a
+ * scratch file: StoredDesign), with the same results bit for bit.
+ */
+export interface DesignPasses {
+  readonly pool: PassPool;
+  readonly x: { readonly rows: number; readonly cols: number };
+  evaluate(
+    weights: Float64Array,
+    withSquaredNorms: boolean,
+    centres?: NoiseCentres | null,
+  ): PassResult;
+  computeGram(): Float64Array;
+}
+
+/**
+ * A pass's totals per shard and pooled, from the chunks' result slots: each shard's chunks merged
+ * in order, then the shards in order.
+ */
+export function combinePassSlots(
+  results: Float64Array,
+  chunkStarts: Int32Array,
+  shardOffsets: Int32Array,
+  parameterCount: number,
+): PassResult {
+  const taskCount = chunkStarts.length - 1;
+  const shards: PassTotals[] = [];
+  let chunk = 0;
+  for (let m = 0; m + 1 < shardOffsets.length; m++) {
+    const totals = createTotals(parameterCount);
+    for (; chunk < taskCount && chunkStarts[chunk] < shardOffsets[m + 1]; chunk++) {
+      mergeTotals(totals, readSlot(results, chunk, parameterCount));
+    }
+    shards.push(totals);
+  }
+  const pooled = createTotals(parameterCount);
+  for (const totals of shards) mergeTotals(pooled, totals);
+  return { shards, pooled };
+}
+
+/** Gram tasks over `rows` rows. */
+export function countGramTasks(rows: number): number {
+  return Math.ceil(rows / GRAM_CHUNK_ROWS);
+}
+
+/** G = X̃ᵀX̃/N from the Gram tasks' upper-triangle slots, added in task order. */
+export function combineGramSlots(results: Float64Array, rows: number, width: number): Float64Array {
+  const gram = new Float64Array(width * width);
+  for (let task = 0; task < countGramTasks(rows); task++) {
+    for (let k = 0; k < gram.length; k++) gram[k] += results[task * width * width + k];
+  }
+  symmetrizeFromUpper(gram, width);
+  for (let k = 0; k < gram.length; k++) gram[k] /= rows;
+  return gram;
+}
+
+export function sharedFloat64(length: number): Float64Array {
   return new Float64Array(new SharedArrayBuffer(length * Float64Array.BYTES_PER_ELEMENT));
 }
 

@@ -1,4 +1,5 @@
 import type { ColumnAccumulator } from "./column-accumulator";
+import type { MemorySettings } from "./memory-limit";
 import {
   completeDataset,
   DatasetRowCollector,
@@ -9,14 +10,18 @@ import {
 import type { PartitionMap } from "./partition-map";
 import { RowStore } from "./row-store";
 import { readCsvInParallel } from "./parallel-read";
+import type { StoredMatrix } from "./stored-matrix";
 import { detectLocalTableFormat, isLocalFile, readTable, type TableSource } from "./table-reader";
 import type { CsvFormat, CsvFormatChoice } from "./text-format";
 import { trimToken } from "./tokens";
 
 export type { DatasetColumnChoice } from "./dataset-rows";
 
-/** The dataset's kept rows, column by column, before encoding (methods.md §1). */
-export interface RawDataset {
+/**
+ * The dataset's kept rows, column by column, before encoding (methods.md §1). The feature values
+ * are in memory unless the read was given memory settings (then they may be in a scratch file).
+ */
+export interface RawDataset<FeatureValues extends Float64Array | StoredMatrix = Float64Array> {
   fileName: string;
   /** Data rows in the file (header excluded). */
   totalRows: number;
@@ -30,9 +35,10 @@ export interface RawDataset {
   features: ColumnAccumulator[];
   /**
    * Per kept row, the numbers of the feature columns in order (NaN where missing or not a number)
-   * and one free slot (for the bias): keptRows × (features + 1), row-major, in a SharedArrayBuffer.
+   * and one free slot (for the bias): keptRows × (features + 1), row-major, in a SharedArrayBuffer
+   * — or in a scratch file when they outgrew the memory limit.
    */
-  featureValues: Float64Array;
+  featureValues: FeatureValues;
   /** True when the user named the features (then an unusable one is an error, not a warning). */
   featuresNamed: boolean;
   /** The encoding, delimiter and decimal mark a text file was read with; null for Parquet. */
@@ -64,6 +70,11 @@ export interface ReadDatasetOptions {
     columns: { name: string; role: string }[];
     onRow: (values: string[], rowIndex: number) => void;
   };
+  /**
+   * The memory limit and scratch folder: values read beyond the limit's share go to a scratch file
+   * (row-store.ts). Without settings everything stays in memory.
+   */
+  memory?: MemorySettings;
 }
 
 /**
@@ -76,6 +87,18 @@ export async function readDataset(
   source: TableSource,
   fileName: string,
   columns: DatasetColumnChoice,
+  options: ReadDatasetOptions & { memory?: undefined },
+): Promise<RawDataset>;
+export async function readDataset(
+  source: TableSource,
+  fileName: string,
+  columns: DatasetColumnChoice,
+  options: ReadDatasetOptions,
+): Promise<RawDataset<Float64Array | StoredMatrix>>;
+export async function readDataset(
+  source: TableSource,
+  fileName: string,
+  columns: DatasetColumnChoice,
   {
     partition,
     dropUnassignedRows,
@@ -83,8 +106,9 @@ export async function readDataset(
     threads = 1,
     format: formatChoice = {},
     keptRowText,
+    memory,
   }: ReadDatasetOptions,
-): Promise<RawDataset> {
+): Promise<RawDataset<Float64Array | StoredMatrix>> {
   // Parts of a file are cut at line feeds, which only UTF-8 (or ASCII) text allows, and take the
   // delimiter and decimal mark found in its first lines.
   const detectedFormat =
@@ -96,6 +120,7 @@ export async function readDataset(
       const read = await readCsvInParallel(source.path, fileName, columns, threads, {
         dropUnassignedRows,
         onBytesRead,
+        memory,
       });
       if (read) return read;
     }
@@ -106,60 +131,69 @@ export async function readDataset(
   let featureValues = null as RowStore | null;
   let format: CsvFormat | null = null;
   let keptRowTextIndices: number[] = [];
-  const totalRows = await readTable(
-    source,
-    fileName,
-    {
-      onProgress: onBytesRead,
-      onHeader(header, detected) {
-        format = detected ?? null;
-        const positions = locateColumns(header, fileName, columns);
-        featureValues = new RowStore(positions.features.length + 1);
-        collector = new DatasetRowCollector(
-          header,
-          fileName,
-          positions,
-          columns.idColumn,
-          partition,
-          featureValues,
-          detected?.decimalMark,
-        );
-        keptRowTextIndices = (keptRowText?.columns ?? []).map(({ name, role }) =>
-          findHeaderColumn(header, fileName, name, role),
-        );
-      },
-      onRow(fields, rowIndex) {
-        const rows = collector as DatasetRowCollector;
-        const keptBefore = rows.keptRows;
-        rows.addRow(fields, rowIndex);
-        if (keptRowText && rows.keptRows > keptBefore) {
-          keptRowText.onRow(
-            keptRowTextIndices.map((index) => trimToken(fields[index])),
-            rowIndex,
-          );
-        }
-      },
-    },
-    formatChoice,
-  );
-  const rows = collector as DatasetRowCollector;
-  return completeDataset(
-    {
+  try {
+    return await readRows();
+  } catch (error) {
+    featureValues?.discard();
+    throw error;
+  }
+
+  async function readRows(): Promise<RawDataset<Float64Array | StoredMatrix>> {
+    const totalRows = await readTable(
+      source,
       fileName,
-      totalRows,
-      keptRows: rows.keptRows,
-      droppedMissingLabel: rows.droppedMissingLabel,
-      label: rows.label,
-      labelValues: rows.labelValues.toArray(),
-      features: rows.features,
-      featureValues: (featureValues as RowStore).finish(),
-      featuresNamed: columns.features !== undefined,
-      format,
-      shardCodes: rows.shardCodes.toArray(),
-      shardIds: rows.shardIds,
-    },
-    { count: rows.unassignedCount, firstRows: rows.unassignedRows },
-    columns,
-    { partition, dropUnassignedRows },
-  );
+      {
+        onProgress: onBytesRead,
+        onHeader(header, detected) {
+          format = detected ?? null;
+          const positions = locateColumns(header, fileName, columns);
+          featureValues = new RowStore(positions.features.length + 1, { memory });
+          collector = new DatasetRowCollector(
+            header,
+            fileName,
+            positions,
+            columns.idColumn,
+            partition,
+            featureValues,
+            detected?.decimalMark,
+          );
+          keptRowTextIndices = (keptRowText?.columns ?? []).map(({ name, role }) =>
+            findHeaderColumn(header, fileName, name, role),
+          );
+        },
+        onRow(fields, rowIndex) {
+          const rows = collector as DatasetRowCollector;
+          const keptBefore = rows.keptRows;
+          rows.addRow(fields, rowIndex);
+          if (keptRowText && rows.keptRows > keptBefore) {
+            keptRowText.onRow(
+              keptRowTextIndices.map((index) => trimToken(fields[index])),
+              rowIndex,
+            );
+          }
+        },
+      },
+      formatChoice,
+    );
+    const rows = collector as DatasetRowCollector;
+    return completeDataset(
+      {
+        fileName,
+        totalRows,
+        keptRows: rows.keptRows,
+        droppedMissingLabel: rows.droppedMissingLabel,
+        label: rows.label,
+        labelValues: rows.labelValues.toArray(),
+        features: rows.features,
+        featureValues: (featureValues as RowStore).finish(),
+        featuresNamed: columns.features !== undefined,
+        format,
+        shardCodes: rows.shardCodes.toArray(),
+        shardIds: rows.shardIds,
+      },
+      { count: rows.unassignedCount, firstRows: rows.unassignedRows },
+      columns,
+      { partition, dropUnassignedRows },
+    );
+  }
 }

@@ -36,43 +36,73 @@ export function measureColumnMoments(
   stride: number,
   columns: readonly number[],
 ): Moments[] {
+  return measureColumnMomentsInBlocks((visit) => visit(values, rows), rows, stride, columns);
+}
+
+/**
+ * Rows of a row-major table visited in order, block by block: `visit` gets each block's values and
+ * row count (a block may be read into a reused buffer, so it is not kept).
+ */
+export type RowBlockVisitor = (visit: (values: Float64Array, rowCount: number) => void) => void;
+
+/** Rows per partial sum; blocks given to `measureColumnMomentsInBlocks` are multiples of it. */
+export const MOMENT_BLOCK_ROWS = BLOCK;
+
+/**
+ * `measureColumnMoments` of a table read block by block (three times: for the scales, the means and
+ * the deviations), for tables kept outside memory. Every block but the last must hold a multiple
+ * of MOMENT_BLOCK_ROWS rows; the partial sums then fall exactly where one table's do, so the results
+ * are the same bit for bit.
+ */
+export function measureColumnMomentsInBlocks(
+  forEachBlock: RowBlockVisitor,
+  rows: number,
+  stride: number,
+  columns: readonly number[],
+): Moments[] {
   const count = columns.length;
   if (rows === 0) return columns.map(() => ({ mean: Number.NaN, std: Number.NaN }));
   const scales = new Float64Array(count);
-  for (let row = 0; row < rows; row++) {
-    const base = row * stride;
-    for (let k = 0; k < count; k++) {
-      scales[k] = Math.max(scales[k], Math.abs(values[base + columns[k]]));
+  forEachBlock((values, blockRows) => {
+    for (let row = 0; row < blockRows; row++) {
+      const base = row * stride;
+      for (let k = 0; k < count; k++) {
+        scales[k] = Math.max(scales[k], Math.abs(values[base + columns[k]]));
+      }
     }
-  }
+  });
   const inverses = scales.map((scale) => (scale === 0 ? 0 : 1 / scale));
 
   const blocks = new Float64Array(count);
   const totals = columns.map(() => new CompensatedSum());
-  for (let start = 0; start < rows; start += BLOCK) {
-    const end = Math.min(rows, start + BLOCK);
-    blocks.fill(0);
-    for (let row = start; row < end; row++) {
-      const base = row * stride;
-      for (let k = 0; k < count; k++) blocks[k] += values[base + columns[k]] * inverses[k];
+  forEachBlock((values, blockRows) => {
+    for (let start = 0; start < blockRows; start += BLOCK) {
+      const end = Math.min(blockRows, start + BLOCK);
+      blocks.fill(0);
+      for (let row = start; row < end; row++) {
+        const base = row * stride;
+        for (let k = 0; k < count; k++) blocks[k] += values[base + columns[k]] * inverses[k];
+      }
+      for (let k = 0; k < count; k++) totals[k].add(blocks[k]);
     }
-    for (let k = 0; k < count; k++) totals[k].add(blocks[k]);
-  }
+  });
   const scaledMeans = totals.map((total) => total.value / rows);
 
   const squares = columns.map(() => new CompensatedSum());
-  for (let start = 0; start < rows; start += BLOCK) {
-    const end = Math.min(rows, start + BLOCK);
-    blocks.fill(0);
-    for (let row = start; row < end; row++) {
-      const base = row * stride;
-      for (let k = 0; k < count; k++) {
-        const deviation = values[base + columns[k]] * inverses[k] - scaledMeans[k];
-        blocks[k] += deviation * deviation;
+  forEachBlock((values, blockRows) => {
+    for (let start = 0; start < blockRows; start += BLOCK) {
+      const end = Math.min(blockRows, start + BLOCK);
+      blocks.fill(0);
+      for (let row = start; row < end; row++) {
+        const base = row * stride;
+        for (let k = 0; k < count; k++) {
+          const deviation = values[base + columns[k]] * inverses[k] - scaledMeans[k];
+          blocks[k] += deviation * deviation;
+        }
       }
+      for (let k = 0; k < count; k++) squares[k].add(blocks[k]);
     }
-    for (let k = 0; k < count; k++) squares[k].add(blocks[k]);
-  }
+  });
   return columns.map((_, k) =>
     scales[k] === 0
       ? { mean: 0, std: 0 }

@@ -108,6 +108,7 @@ async function run(input: EngineThreadInput) {
       partitionName: input.layout?.name,
       referenceName: input.weights?.name,
       options: reference ? { ...input.options, reference: reference.weights } : input.options,
+      memory: input.memory,
       onSimulationProgress: createSimulationProgressPoster(),
     },
     (progress) => {

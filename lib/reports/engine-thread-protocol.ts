@@ -1,5 +1,10 @@
 import type { ReportInput } from "@/db/schema/analyses";
-import type { AnalysisProgress, PartitionSummary, SimulationProgress } from "@/lib/analysis";
+import type {
+  AnalysisProgress,
+  MemorySettings,
+  PartitionSummary,
+  SimulationProgress,
+} from "@/lib/analysis";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
 import type { StoredFile } from "./hashed-object";
 
@@ -9,6 +14,8 @@ export interface EngineThreadInput {
   layout: StoredFile | null;
   weights: StoredFile | null;
   options: AnalysisOptionsInput;
+  /** The worker's memory limit and scratch folder (defaults where not configured). */
+  memory: Partial<Pick<MemorySettings, "limitBytes" | "scratchDirectory">>;
 }
 
 /** Everything the engine thread tells its parent. */

@@ -98,6 +98,10 @@ export async function runAnalysis(job: AnalysisJob, options: RunOptions): Promis
         layout: analysis.layout && storedFile(analysis.layout),
         weights: analysis.weights && storedFile(analysis.weights),
         options: analysis.parameters,
+        memory: {
+          limitBytes: settings.PARTITA_MEMORY_LIMIT,
+          scratchDirectory: settings.PARTITA_SCRATCH_DIR,
+        },
       },
       {
         onProgress: (value) => progress.report(value),

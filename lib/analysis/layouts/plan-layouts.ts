@@ -269,7 +269,7 @@ function checkShardCount(
 }
 
 interface WholeDataset {
-  raw: Awaited<ReturnType<typeof readDataset>>;
+  raw: RawDataset;
   rowIds: string[];
   groups: Int32Array | null;
   groupIds: string[];

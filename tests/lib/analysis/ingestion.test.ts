@@ -212,7 +212,7 @@ describe("RowStore", () => {
       const offset = store.appendRow();
       for (let k = 0; k < width; k++) store.values[offset + k] = row * width + k;
     }
-    const values = store.finish();
+    const values = store.finish() as Float64Array;
     expect(values.length).toBe(rows * width);
     expect(values.buffer).toBeInstanceOf(SharedArrayBuffer);
     expect(values.every((value, index) => value === index)).toBe(true);
