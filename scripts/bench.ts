@@ -12,6 +12,9 @@
  * the simulation case, `--load` only the load test, `--digests` only the digest case, `--layouts`
  * only the planner case: `npm run layouts` with its eight default candidates (methods.md §8) on the
  * 100k data against one analysis of it, both with every core (target: at most 4× its wall time).
+ * `--huge`, never part of a plain run (it writes about 5.5 GB of CSV and takes many minutes), runs
+ * the beyond-memory case: 10M rows under the default 2 GiB memory limit, so the encoded rows live in
+ * a scratch file, against the 1M case in the same run (targets: peak ≤ 2 GiB, wall ≤ 12× the 1M's).
  */
 import { spawn } from "node:child_process";
 import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from "node:fs";
@@ -37,6 +40,18 @@ const CASES: BenchDataSpec[] = [
   { rows: 100_000, features: 32, classes: 10, shards: 100, alpha: 0.5, seed: 1 },
   { rows: 1_000_000, features: 64, classes: 10, shards: 100, alpha: 0.5, seed: 2 },
 ];
+/** The beyond-memory case: its encoded rows (5.2 GB) are far past the default limit's share. */
+const HUGE_CASE: BenchDataSpec = {
+  rows: 10_000_000,
+  features: 64,
+  classes: 10,
+  shards: 100,
+  alpha: 0.5,
+  seed: 4,
+};
+/** Its targets: peak resident memory (MB) and wall time as a multiple of the 1M case's. */
+const HUGE_PEAK_MEGABYTES = 2048;
+const HUGE_WALL_RATIO = 12;
 /** The load test's reports hold this data's summary: 100 shards, as a typical layout has. */
 const LOAD_CASE: BenchDataSpec = {
   rows: 20_000,
@@ -367,6 +382,30 @@ async function benchDigests(large: BenchDataSpec, small: BenchDataSpec): Promise
   );
 }
 
+/**
+ * The 1M case, then the 10M case with the default memory limit (its rows go to a scratch file in
+ * bench-out/), each through the analyze CLI; their peaks and the ratio of their wall times.
+ */
+async function benchHuge(): Promise<void> {
+  const baseFile = await prepareData(CASES[1], "beyond memory, first the ");
+  const base = await runEngine(baseFile);
+  const file = await prepareData(HUGE_CASE, "beyond memory: ");
+  const huge = await runEngine(file, ["--scratch-dir", outputFolder]);
+  const describe = (run: RunResult) =>
+    `${run.seconds.toFixed(1)}s wall, CPU ${run.cpuSeconds.toFixed(1)}s, peak ${run.peakMegabytes.toFixed(0)} MB; stages ` +
+    Object.entries(run.stages)
+      .map(([stage, time]) => `${stage} ${time.seconds.toFixed(1)}s`)
+      .join(", ");
+  const ratio = huge.seconds / base.seconds;
+  process.stdout.write(
+    `1M case: ${describe(base)}
+` +
+      `10M case (rows in a scratch file: ${/scratch file/.test(huge.stderr) ? "yes" : "no"}): ${describe(huge)}
+` +
+      `peak ${huge.peakMegabytes.toFixed(0)} MB (target at most ${HUGE_PEAK_MEGABYTES}); wall 10M / 1M ${ratio.toFixed(2)} (target at most ${HUGE_WALL_RATIO})\n`,
+  );
+}
+
 /** The planner's target: eight candidates in at most this many times one analysis's wall time. */
 const LAYOUTS_TARGET_RATIO = 4;
 
@@ -417,15 +456,22 @@ async function main(): Promise<void> {
   process.stdout.write(
     `machine: ${availableParallelism()} cores, load average ${loadavg()[0].toFixed(1)} at the start (other work on the machine slows both programs)\n`,
   );
-  const only = ["--small", "--large", "--simulation", "--load", "--digests", "--layouts"].find(
-    (flag) => process.argv.includes(flag),
-  );
+  const only = [
+    "--small",
+    "--large",
+    "--simulation",
+    "--load",
+    "--digests",
+    "--layouts",
+    "--huge",
+  ].find((flag) => process.argv.includes(flag));
   if (only === undefined || only === "--small") await benchCase(CASES[0]);
   if (only === undefined || only === "--large") await benchCase(CASES[1]);
   if (only === undefined || only === "--simulation") await benchSimulation(CASES[0]);
   if (only === undefined || only === "--load") await benchLoad();
   if (only === undefined || only === "--digests") await benchDigests(CASES[1], CASES[0]);
   if (only === undefined || only === "--layouts") await benchLayouts(CASES[0]);
+  if (only === "--huge") await benchHuge();
 }
 
 main().catch((error: unknown) => {

@@ -69,3 +69,39 @@ print(json.dumps(out.getvalue()))`,
     [seed, alpha, shards],
   );
 }
+
+/** Made once per process by /usr/bin/python3, per number of copies. */
+const stackedDigits = new Map<number, string>();
+
+/**
+ * scikit-learn's bundled digits (UCI optical recognition of handwritten digits: 1797 rows, 64 pixel
+ * features, the digit as a 10-class label), `copies` copies stacked, as CSV text with a seeded
+ * label-skewed `shard` column (12 shards; NumPy's default_rng(13)), every 97th row's pixel_2_3
+ * blanked (imputation) and a three-level `ink` category from each image's pixel sum (one-hot).
+ */
+export function loadStackedDigitsCsv(copies: number): string {
+  let csv = stackedDigits.get(copies);
+  if (csv === undefined) {
+    csv = runPythonJson<string>(
+      `import json,sys,io
+import numpy as np
+import pandas as pd
+from sklearn.datasets import load_digits
+copies=json.load(sys.stdin)
+digits=load_digits(as_frame=True)
+frame=pd.concat([digits.frame.rename(columns={"target":"digit"})]*copies,ignore_index=True)
+rng=np.random.default_rng(13)
+home=frame["digit"].to_numpy()%12
+frame["shard"]=["s"+str(h if rng.random()<0.6 else rng.integers(12)) for h in home]
+frame.loc[::97,"pixel_2_3"]=np.nan
+ink=digits.frame.drop(columns="target").sum(axis=1)
+cuts=np.quantile(ink,[1/3,2/3])
+frame["ink"]=np.tile(np.where(ink<cuts[0],"light",np.where(ink<cuts[1],"medium","dark")),copies)
+out=io.StringIO(); frame.to_csv(out,index=False)
+print(json.dumps(out.getvalue()))`,
+      copies,
+    );
+    stackedDigits.set(copies, csv);
+  }
+  return csv;
+}
