@@ -7,8 +7,9 @@ const projectRoot = path.dirname(fileURLToPath(import.meta.url));
 const nextConfig = {
   // A stray lockfile in a parent folder would otherwise make Turbopack guess the wrong root.
   turbopack: { root: projectRoot },
-  // These run only on the server and ship native or Node-only code that must not be bundled.
-  serverExternalPackages: ["pg", "nodemailer", "mailparser", "bcryptjs", "pg-boss"],
+  // These run only on the server and ship native or Node-only code that must not be bundled (tsx:
+  // the engine's worker-thread entries register it, and bundling it drags in esbuild's binary).
+  serverExternalPackages: ["pg", "nodemailer", "mailparser", "bcryptjs", "pg-boss", "tsx"],
   poweredByHeader: false,
   // `npm test` runs `tsc --noEmit` over the whole project first; checking again here only slows builds.
   typescript: { ignoreBuildErrors: true },
