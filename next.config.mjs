@@ -11,6 +11,9 @@ const nextConfig = {
   // the engine's worker-thread entries register it, and bundling it drags in esbuild's binary).
   serverExternalPackages: ["pg", "nodemailer", "mailparser", "bcryptjs", "pg-boss", "tsx"],
   poweredByHeader: false,
+  // A client's digest file, uploaded on the roster page, is a server action's argument (components/
+  // federated/digest-upload-form.tsx checks the same limit before sending); the default is 1 MB.
+  experimental: { serverActions: { bodySizeLimit: "8mb" } },
   // `npm test` runs `tsc --noEmit` over the whole project first; checking again here only slows builds.
   typescript: { ignoreBuildErrors: true },
 };

@@ -31,13 +31,25 @@ export function PlanStep({
   workspaceId: string;
   values: AnalysisFormValues;
 }) {
-  const sampled = values.participantsMode === "sample";
   return (
     <FormStep
       number={5}
       title="Plan"
       intro="The training you intend: Partita compares local SGD with minibatch SGD for it."
     >
+      <PlanFields sampled={values.participantsMode === "sample"} />
+      <SimulationFieldset workspaceId={workspaceId} values={values} />
+    </FormStep>
+  );
+}
+
+/**
+ * The plan's fields (participants, K, R, b), also used by the federated analysis form, whose
+ * values carry the same names.
+ */
+export function PlanFields({ sampled }: { sampled: boolean }) {
+  return (
+    <>
       <ChoiceGroup
         legend="Participants per round (M)"
         path="participantsMode"
@@ -55,7 +67,6 @@ export function PlanStep({
           />
         ))}
       </div>
-      <SimulationFieldset workspaceId={workspaceId} values={values} />
-    </FormStep>
+    </>
   );
 }

@@ -38,6 +38,30 @@ export function ReferenceStep({
       title="Reference model"
       intro="Heterogeneity is measured at a reference point of a convex proxy model."
     >
+      <ReferencePointFields />
+      {usesWeightsFile ? (
+        <FileField
+          path="weightsFileId"
+          workspaceId={workspaceId}
+          kind="weights"
+          maxBytes={maxBytes}
+          files={weights}
+          onUploaded={onUploaded}
+          inputLabel="Reference weights file"
+          groupLabel="Weights in this workspace"
+        />
+      ) : null}
+    </FormStep>
+  );
+}
+
+/**
+ * λ and the reference point, also used by the federated analysis form, whose values carry the
+ * same names.
+ */
+export function ReferencePointFields() {
+  return (
+    <>
       <div className="max-w-xs">
         <FormField
           id="lambda"
@@ -55,18 +79,6 @@ export function ReferenceStep({
         choices={REFERENCE_POINTS}
         columns={3}
       />
-      {usesWeightsFile ? (
-        <FileField
-          path="weightsFileId"
-          workspaceId={workspaceId}
-          kind="weights"
-          maxBytes={maxBytes}
-          files={weights}
-          onUploaded={onUploaded}
-          inputLabel="Reference weights file"
-          groupLabel="Weights in this workspace"
-        />
-      ) : null}
-    </FormStep>
+    </>
   );
 }

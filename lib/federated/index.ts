@@ -3,7 +3,8 @@
  * actions call. Analyst side (the caller has checked the capability): createFederatedAnalysis,
  * issueClientKey, revokeClientKey, closeRoster, getFederatedStatus, listFederatedAnalysesOf.
  * Client side (a client key's caller, or the analyst uploading a client's file):
- * acceptSchemaDigest, readClientEncoding, waitForClientWork, answerExchange, acceptGradientDigest.
+ * acceptSchemaDigest, readClientEncoding, waitForClientWork, answerExchange, acceptGradientDigest;
+ * findRosterSender names the client an analyst uploads a digest file for.
  * The coordinator runs in the worker: runFederatedCoordinator.
  */
 export { acceptGradientDigest } from "./accept-gradient-digest";
@@ -16,5 +17,6 @@ export type { FederatedStatus, RosterEntry } from "./federated-status";
 export { issueClientKey } from "./issue-client-key";
 export { readClientEncoding } from "./read-client-encoding";
 export { revokeClientKey } from "./revoke-client-key";
+export { findRosterSender } from "./roster-sender";
 export { waitForClientWork } from "./wait-for-client-work";
 export type { ClientWork } from "./wait-for-client-work";

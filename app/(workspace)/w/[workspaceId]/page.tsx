@@ -60,9 +60,14 @@ export default async function WorkspaceOverviewPage({
                 All reports
               </Link>
               {canUpload ? (
-                <Link href={`${base}/analyses/new`} className={buttonClasses("primary")}>
-                  New analysis
-                </Link>
+                <>
+                  <Link href={`${base}/federated/new`} className={buttonClasses("quiet")}>
+                    New federated analysis
+                  </Link>
+                  <Link href={`${base}/analyses/new`} className={buttonClasses("primary")}>
+                    New analysis
+                  </Link>
+                </>
               ) : null}
             </div>
           </div>
@@ -93,9 +98,14 @@ export default async function WorkspaceOverviewPage({
               : "As a reviewer you will find reports here once analysts publish them; you can comment on them and endorse a layout or return it for rework."}
           </p>
           {canUpload ? (
-            <Link href={`/w/${workspace.id}/analyses/new`} className={buttonClasses("primary")}>
-              Start your first analysis
-            </Link>
+            <div className="flex flex-wrap gap-2">
+              <Link href={`/w/${workspace.id}/analyses/new`} className={buttonClasses("primary")}>
+                Start your first analysis
+              </Link>
+              <Link href={`/w/${workspace.id}/federated/new`} className={buttonClasses("quiet")}>
+                New federated analysis
+              </Link>
+            </div>
           ) : null}
         </div>
         <figure className="rounded-lg border border-ink/10 bg-white p-4">

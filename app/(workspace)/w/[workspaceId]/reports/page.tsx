@@ -70,9 +70,14 @@ export default async function ReportsPage({
           </p>
         </div>
         {canRun ? (
-          <Link href={`${base}/analyses/new`} className={buttonClasses("primary")}>
-            New analysis
-          </Link>
+          <div className="flex flex-wrap gap-2">
+            <Link href={`${base}/federated/new`} className={buttonClasses("quiet")}>
+              New federated analysis
+            </Link>
+            <Link href={`${base}/analyses/new`} className={buttonClasses("primary")}>
+              New analysis
+            </Link>
+          </div>
         ) : null}
       </div>
 

@@ -1,0 +1,80 @@
+import { revokeFederatedClientKey } from "@/app/(workspace)/w/[workspaceId]/federated/actions";
+import { ConfirmActionButton } from "@/components/ui/confirm-action-button";
+import type { FederatedStatus } from "@/lib/federated";
+
+const dateTimeFormat = new Intl.DateTimeFormat("en", {
+  dateStyle: "medium",
+  timeStyle: "short",
+  timeZone: "UTC",
+});
+
+type ClientKey = FederatedStatus["keys"][number];
+
+function describeKey(key: ClientKey, now: Date): { label: string; live: boolean } {
+  if (key.revokedAt)
+    return { label: `Revoked ${dateTimeFormat.format(key.revokedAt)}`, live: false };
+  if (key.expiresAt <= now) {
+    return { label: `Expired ${dateTimeFormat.format(key.expiresAt)}`, live: false };
+  }
+  return { label: `Expires ${dateTimeFormat.format(key.expiresAt)}`, live: true };
+}
+
+/** The analysis's client keys (never the keys themselves): whose, when used, expiry, Revoke. */
+export function ClientKeyTable({
+  workspaceId,
+  analysisId,
+  keys,
+  canRevoke,
+}: {
+  workspaceId: string;
+  analysisId: string;
+  keys: ClientKey[];
+  canRevoke: boolean;
+}) {
+  if (keys.length === 0) {
+    return <p className="text-sm text-ink-soft">No keys issued yet.</p>;
+  }
+  const now = new Date();
+  return (
+    <div className="overflow-x-auto rounded-lg border border-ink/10 bg-white">
+      <table className="w-full text-sm" aria-label="Client keys">
+        <thead className="bg-paper-deep text-left text-xs tracking-wide text-ink-soft uppercase">
+          <tr>
+            {["Client", "Issued (UTC)", "Last used", "State"].map((header) => (
+              <th key={header} scope="col" className="px-3 py-2 font-medium">
+                {header}
+              </th>
+            ))}
+            <th scope="col" className="px-3 py-2">
+              <span className="sr-only">Actions</span>
+            </th>
+          </tr>
+        </thead>
+        <tbody className="divide-y divide-ink/5">
+          {keys.map((key) => {
+            const state = describeKey(key, now);
+            return (
+              <tr key={key.id} className={state.live ? "" : "text-ink-faint"}>
+                <td className="px-3 py-2 font-medium">{key.client}</td>
+                <td className="px-3 py-2 tabular-nums">{dateTimeFormat.format(key.createdAt)}</td>
+                <td className="px-3 py-2 tabular-nums">
+                  {key.lastUsedAt ? dateTimeFormat.format(key.lastUsedAt) : "Never"}
+                </td>
+                <td className="px-3 py-2">{state.label}</td>
+                <td className="px-3 py-2 text-right">
+                  {state.live && canRevoke ? (
+                    <ConfirmActionButton
+                      label="Revoke"
+                      confirmation={`Revoke this key of “${key.client}”? A client using it can send nothing more with it.`}
+                      action={revokeFederatedClientKey.bind(null, workspaceId, analysisId, key.id)}
+                    />
+                  ) : null}
+                </td>
+              </tr>
+            );
+          })}
+        </tbody>
+      </table>
+    </div>
+  );
+}
