@@ -35,7 +35,10 @@ interface Reference {
     js: number[];
     kl: number[];
     dirichletAlpha: number;
+    weightedMean: Record<"tv" | "hellinger" | "js" | "kl", number>;
+    max: Record<"tv" | "hellinger" | "js" | "kl", number>;
   };
+  agreementAtZero: number[][];
 }
 
 const LAMBDA = 1e-3;
@@ -75,10 +78,19 @@ function expectMatchesReference(
   expect(summary.dataset.classNames).toEqual(reference.classes);
   expect(summary.shards.map((shard) => shard.id)).toEqual(reference.shardIds);
 
-  // scikit-learn's solution must itself satisfy the tolerance of methods.md §2.
+  // methods.md §2 promises W* "to about 1e-8" of an outside solver. What both solvers control is
+  // the gradient: the engine stops at ‖∇F(W*)‖ ≤ 1e-8·max(1, ‖∇F(0)‖) and scikit-learn's
+  // newton-cg must itself meet 1e-8, so that is checked as promised. The weights follow from it only
+  // up to the curvature: with F λ-strongly convex off the bias, ‖ΔW‖ ≲ (‖∇F‖ + ‖∇F_ref‖)/λ, about
+  // 7e-6 here (λ = 1e-3; observed: 4.5e-7 on penguins, 1.5e-7 on wine), so 1e-8 on the weights
+  // would need a gradient near 1e-11, past what the contract asks of the fit.
   expect(reference.optimum.gradNorm).toBeLessThan(1e-8);
+  expect(summary.model.gradNorm).toBeLessThanOrEqual(1e-8 * Math.max(1, atZero.model.gradNorm));
+  const weightBound = (summary.model.gradNorm + reference.optimum.gradNorm) / LAMBDA;
   const weights = summary.model.optimum.weights.flat();
-  weights.forEach((value, k) => expect(Math.abs(value - reference.weights[k])).toBeLessThan(1e-4));
+  weights.forEach((value, k) =>
+    expect(Math.abs(value - reference.weights[k])).toBeLessThan(weightBound),
+  );
   expect(summary.model.optimizer.converged).toBe(true);
   expect(Math.abs(summary.model.loss - reference.optimum.loss)).toBeLessThan(1e-10);
   expect(relativeError(summary.heterogeneity.smoothness, reference.smoothness)).toBeLessThan(1e-10);
@@ -101,6 +113,19 @@ function expectMatchesReference(
   expect(relativeError(heterogeneity.sigma2, reference.optimum.sigma2)).toBeLessThan(1e-5);
   expect(relativeError(heterogeneity.sigma2Pooled, reference.optimum.sigma2Pooled)).toBeLessThan(
     1e-5,
+  );
+  // Report-level label skew: NumPy's size-weighted means and maxima of SciPy's divergences, on
+  // shards of unequal size.
+  expect(new Set(summary.shards.map((shard) => shard.rows)).size).toBeGreaterThan(1);
+  for (const key of ["tv", "hellinger", "js", "kl"] as const) {
+    expect(summary.labelSkew[key]).toBeCloseTo(reference.labelSkew.weightedMean[key], 13);
+    expect(summary.labelSkew.max[key]).toBeCloseTo(reference.labelSkew.max[key], 13);
+  }
+  // Gradient agreement at W₀ = 0 on the same unequal shards: NumPy's cosines of its gradients.
+  const agreement = summary.heterogeneity.gradientAgreement as number[][];
+  expect(agreement).toHaveLength(reference.agreementAtZero.length);
+  agreement.forEach((row, m) =>
+    row.forEach((cosine, k) => expect(cosine).toBeCloseTo(reference.agreementAtZero[m][k], 11)),
   );
   // SciPy's bounded Brent search on log α vs the engine's grid + golden section: both to ~1e-6.
   expect(

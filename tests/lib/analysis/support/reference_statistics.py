@@ -126,6 +126,17 @@ def main():
     alpha = minimize_scalar(neg_log_likelihood, bounds=(np.log(1e-3), np.log(1e6)), method="bounded",
                             options={"xatol": 1e-9}).x
 
+    sizes = counts.sum(axis=1) / n
+    divergences = {
+        "tv": np.array([0.5 * np.abs(qm - pooled).sum() for qm in q]),
+        "hellinger": np.array([np.sqrt(1 - np.sqrt(qm * pooled).sum()) for qm in q]),
+        "js": np.array([jensenshannon(qm, pooled) ** 2 for qm in q]),
+        "kl": np.array([entropy(qm, pooled) for qm in q]),
+    }
+    # Gradient agreement (methods.md §3): cosines of the shard gradients at the start W0 = 0.
+    start = np.array(at_point(np.zeros_like(W))["shardGradients"])
+    unit = start / np.linalg.norm(start, axis=1, keepdims=True)
+
     print(json.dumps({
         "features": names,
         "classes": classes,
@@ -140,7 +151,12 @@ def main():
             "js": [float(jensenshannon(qm, pooled) ** 2) for qm in q],
             "kl": [float(entropy(qm, pooled)) for qm in q],
             "dirichletAlpha": float(np.exp(alpha)),
+            # methods.md §4: the report's label skew is the wm-weighted mean of each divergence
+            # (wm = nm/N), and its maximum over the shards.
+            "weightedMean": {k: float(np.sum(sizes * v)) for k, v in divergences.items()},
+            "max": {k: float(np.max(v)) for k, v in divergences.items()},
         },
+        "agreementAtZero": (unit @ unit.T).tolist(),
     }))
 
 
