@@ -26,7 +26,11 @@ export function ReportProvenance({
     ["Label column", parameters.labelColumn],
     [
       "Shards from",
-      parameters.shardColumn ? `column ${parameters.shardColumn}` : "the partition map",
+      report.summary.digests
+        ? "each client's own data"
+        : parameters.shardColumn
+          ? `column ${parameters.shardColumn}`
+          : "the partition map",
     ],
     ...(parameters.idColumn ? [["Id column", parameters.idColumn] as [string, string]] : []),
     ["Features", describeFeatures(parameters.features)],
@@ -41,6 +45,11 @@ export function ReportProvenance({
         <h2 id="inputs-heading" className="mb-1 font-semibold text-ink">
           Inputs as analysed
         </h2>
+        {report.summary.digests ? (
+          <p className="text-ink-soft">
+            No file: the clients&apos; digests (see “Built from client digests”).
+          </p>
+        ) : null}
         <ul className="space-y-2">
           {report.inputs.map((input) => (
             <li key={input.objectKey}>

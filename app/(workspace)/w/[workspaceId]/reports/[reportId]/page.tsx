@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import { notFound } from "next/navigation";
 import { cache } from "react";
 import { DeleteReportControl } from "@/components/reports/delete-report-control";
+import { DigestProvenance } from "@/components/reports/digest-provenance";
 import { KeyFigures } from "@/components/reports/key-figures";
 import { MethodsSection } from "@/components/reports/methods-section";
 import { PreprocessingNotes } from "@/components/reports/preprocessing-notes";
@@ -78,6 +79,7 @@ export default async function ReportPage({ params, searchParams }: PageProps) {
       </a>
       <VerdictPanel summary={summary} />
       <KeyFigures summary={summary} />
+      {summary.digests ? <DigestProvenance digests={summary.digests} /> : null}
       <ReportProvenance report={report} />
       <Cautions sharing />
       <ReportEvidence summary={summary} />
