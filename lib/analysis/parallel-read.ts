@@ -104,7 +104,7 @@ export async function readCsvInParallel(
   }
 }
 
-interface PartLayout {
+export interface PartLayout {
   header: string[];
   delimiter: Delimiter;
   decimalMark: DecimalMark;
@@ -112,8 +112,11 @@ interface PartLayout {
   parts: { start: number; end: number }[];
 }
 
-/** The header, the delimiter, and up to `count` parts of whole lines covering the data rows. */
-async function cutIntoParts(
+/**
+ * The header, the delimiter, and up to `count` parts of whole lines covering the data rows; null
+ * when the file cannot be cut safely (see `readCsvInParallel`).
+ */
+export async function cutIntoParts(
   path: string,
   fileName: string,
   count: number,

@@ -36,9 +36,13 @@ export class ClientPasses {
     const sums = readTotals(pooled);
     let hessianSum: number[] | null = null;
     if (request.hessian) {
-      // The pass pool's Hessian is a mean over the rows; the coordinator pools sums.
-      const mean = target.computeSoftmaxHessian(weights, 0);
-      hessianSum = Array.from(mean, (value) => value * pooled.rows);
+      // The pass pool's Hessian is a mean over the rows; the coordinator pools sums. A part of a
+      // dataset can hold none of the subsample's rows: its sum is zero.
+      const size = weights.length;
+      hessianSum =
+        pooled.rows === 0
+          ? new Array<number>(size * size).fill(0)
+          : Array.from(target.computeSoftmaxHessian(weights, 0), (value) => value * pooled.rows);
     }
     return {
       rows: pooled.rows,

@@ -35,6 +35,14 @@ export type {
 export { fitPooledOptimum, mergeEvaluationSums } from "./fit-pooled-optimum";
 export type { EvaluatePooled } from "./fit-pooled-optimum";
 export { ClientPasses } from "./client-passes";
+export {
+  combineEvaluationSums,
+  combineGradientDigests,
+  combineSchemaDigests,
+} from "./combine-parts";
+export { openDatasetPart, planDatasetParts, readDatasetPart } from "./dataset-parts";
+export type { DatasetPart, DatasetPartPlan } from "./dataset-parts";
+export { PartsConnection } from "./parts-connection";
 export { computeGradientDigest } from "./gradient-digest";
 export { LocalDigestClient } from "./local-client";
 export type { DigestClientConnection } from "./local-client";

@@ -208,7 +208,7 @@ function mergeLevels(parts: (Record<string, number> | null)[]): Map<string, numb
  * Pools per-part moments (Chan, Golub & LeVeque, Amer. Statistician 37(3), 1983, the pairwise
  * update; from memory): M2 = Σ M2ₘ + Σ nₘ (x̄ₘ − x̄)², with compensated sums.
  */
-function poolMoments(
+export function poolMoments(
   parts: { present: number; sum: number | null; sumSquaredDeviations: number | null }[],
 ): Moments {
   const sum = new CompensatedSum();

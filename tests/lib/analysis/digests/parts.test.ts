@@ -1,0 +1,73 @@
+// One analysis shared by several workers: the file cut into parts at line ends, each part's digests
+// (methods.md §9) computed on its own, combined shard by shard — shards span parts here — and merged
+// by the coordinator must give the one-process summary to 1e-9 relative (§9's defining identity; the
+// one-process analysis is itself checked against scikit-learn elsewhere). The data is scikit-learn's
+// bundled digits stacked 23 times (41 331 rows: more than the fit's 2 × 20 000-row subsample, so the
+// subsample's rows are placed across parts too), on a dozen of its pixels and a derived category.
+import { mkdtempSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
+import { describe, expect, it } from "vitest";
+import {
+  analyzeFromDigests,
+  analyzePartition,
+  LocalDigestClient,
+  planDatasetParts,
+  PartsConnection,
+  readDatasetPart,
+} from "@/lib/analysis";
+import { loadStackedDigitsCsv } from "../support/open-data";
+import { compareSummaries } from "./support";
+
+/** A dozen pixels (some blanked, so imputed) and the ink category: the fit's work kept small. */
+const FEATURES = [
+  ...["2_3", "2_4", "3_2", "3_5", "4_2", "4_5", "5_3", "5_4", "6_3", "1_4", "6_5"].map(
+    (cell) => `pixel_${cell}`,
+  ),
+  "ink",
+];
+const COLUMNS = { labelColumn: "digit", shardColumn: "shard", features: FEATURES };
+const PLAN = { localSteps: 10, rounds: 100, batchSize: 32 };
+
+describe("one analysis in parts", () => {
+  it("gives the one-process summary to 1e-9 with 4 parts whose shards span parts", async () => {
+    const file = path.join(mkdtempSync(path.join(tmpdir(), "partita-parts-")), "digits.csv");
+    writeFileSync(file, loadStackedDigitsCsv(23));
+    const plan = await planDatasetParts(file, "digits.csv", 4);
+    expect(plan.parts).toHaveLength(4);
+    const parts = await Promise.all(
+      plan.parts.map(
+        async (_, index) =>
+          new LocalDigestClient(
+            `part-${index + 1}`,
+            await readDatasetPart(file, "digits.csv", plan, index, COLUMNS),
+            { minimumShardRows: 1, threads: 1 },
+          ),
+      ),
+    );
+    try {
+      const whole = new PartsConnection("digits.csv", parts);
+      const [central, merged] = [
+        await analyzePartition({ data: { path: file }, options: COLUMNS, threads: 1 }),
+        await analyzeFromDigests([whole], {
+          lambda: 1e-3,
+          reference: "optimum",
+          plan: PLAN,
+          minimumShardRows: 1,
+        }),
+      ];
+      // Every shard has rows in every part: each part's rows of a shard are summed with the others'.
+      const partSchemas = await Promise.all(parts.map((part) => part.schema()));
+      for (const schema of partSchemas) expect(schema.shards).toHaveLength(12);
+      expect(central.dataset.rows).toBe(41_331);
+      const differences = compareSummaries(central, merged, false).filter(
+        // ‖∇F(W*)‖ is the optimizer's residual: compared with its tolerance below.
+        (line) => !line.startsWith(".model.gradNorm"),
+      );
+      expect(differences).toEqual([]);
+      expect(merged.model.gradNorm).toBeLessThanOrEqual(merged.model.optimizer.tolerance);
+    } finally {
+      await Promise.all(parts.map((part) => part.close()));
+    }
+  }, 900_000);
+});
