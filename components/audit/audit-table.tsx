@@ -9,6 +9,12 @@ function describeVersions(versions: unknown): string {
     : `versions ${list.map((v) => `v${v}`).join(", ")}`;
 }
 
+/** The start of a comment's earlier text, enough to recognize it in the log. */
+function excerpt(text: unknown): string {
+  const body = typeof text === "string" ? text.replace(/\s+/g, " ") : "";
+  return body.length > 80 ? `${body.slice(0, 80)}…` : body;
+}
+
 /** What happened, in words, from an entry's stored details (which vary by kind of event). */
 function describeEntry(entry: AuditEntry): string {
   const details = entry.details as Record<string, string | number | string[] | undefined>;
@@ -30,6 +36,10 @@ function describeEntry(entry: AuditEntry): string {
       return `"${details.title}" v${details.version}: ${details.reason}`;
     case "report.deleted":
       return `"${details.title}" deleted with ${describeVersions(details.versions)}`;
+    case "comment.edited":
+      return `"${details.title}" v${details.version}: a comment that read "${excerpt(details.before)}" was rewritten`;
+    case "comment.deleted":
+      return `"${details.title}" v${details.version}: a comment that read "${excerpt(details.before)}" was deleted`;
     case "api-token.created":
       return `"${details.name}" for ${details.owner}, expires ${details.expiresOn}`;
     case "api-token.revoked":

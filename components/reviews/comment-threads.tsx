@@ -2,25 +2,37 @@ import type { ReviewComment } from "@/db/queries/reviews";
 import { describeAnchor } from "@/lib/reviews/anchors";
 import { formatReportDate } from "@/lib/reports/report-view";
 import { CommentForm } from "./comment-form";
+import { OwnComment } from "./own-comment";
 
 type Thread = { first: ReviewComment; replies: ReviewComment[] };
 
-/** First comments (oldest first) each with their replies; comments arrive in time order. */
+/**
+ * First comments (oldest first) each with their replies; comments arrive in time order. A deleted
+ * reply is left out, and so is a deleted first comment with no replies left to hold together.
+ */
 function groupThreads(comments: ReviewComment[]): Thread[] {
   const threads = new Map<string, Thread>();
   for (const comment of comments) {
     if (!comment.parentId) threads.set(comment.id, { first: comment, replies: [] });
-    else threads.get(comment.parentId)?.replies.push(comment);
+    else if (!comment.deletedAt) threads.get(comment.parentId)?.replies.push(comment);
   }
-  return [...threads.values()];
+  return [...threads.values()].filter(
+    (thread) => !thread.first.deletedAt || thread.replies.length > 0,
+  );
 }
 
 function CommentBody({ comment }: { comment: ReviewComment }) {
+  if (comment.deletedAt) {
+    return <p className="text-sm text-ink-soft italic">Its author deleted this comment.</p>;
+  }
   return (
     <div>
       <p className="text-xs text-ink-soft">
         <span className="font-medium text-ink">{comment.authorName}</span> ·{" "}
         {formatReportDate(comment.createdAt)}
+        {comment.editedAt ? (
+          <span title={`Edited ${formatReportDate(comment.editedAt)}`}> · edited</span>
+        ) : null}
       </p>
       <p className="mt-1 text-sm whitespace-pre-wrap">{comment.body}</p>
     </div>
@@ -32,13 +44,30 @@ export function CommentThreads({
   reportId,
   comments,
   canComment,
+  viewerId,
 }: {
   workspaceId: string;
   reportId: string;
   comments: ReviewComment[];
   canComment: boolean;
+  /** The reader: their own comments get Edit and Delete. */
+  viewerId: string;
 }) {
   const threads = groupThreads(comments);
+  // The reader's own live comments, while they may still comment, can be changed.
+  const showComment = (comment: ReviewComment) =>
+    canComment && comment.authorId === viewerId && !comment.deletedAt ? (
+      <OwnComment
+        workspaceId={workspaceId}
+        reportId={reportId}
+        commentId={comment.id}
+        body={comment.body}
+      >
+        <CommentBody comment={comment} />
+      </OwnComment>
+    ) : (
+      <CommentBody comment={comment} />
+    );
   if (threads.length === 0) {
     return <p className="text-sm text-ink-soft">No comments on this version yet.</p>;
   }
@@ -57,13 +86,11 @@ export function CommentThreads({
                 On: {pin}
               </p>
             ) : null}
-            <CommentBody comment={first} />
+            {showComment(first)}
             {replies.length > 0 ? (
               <ol className="space-y-3 border-l-2 border-ink/10 pl-4">
                 {replies.map((reply) => (
-                  <li key={reply.id}>
-                    <CommentBody comment={reply} />
-                  </li>
+                  <li key={reply.id}>{showComment(reply)}</li>
                 ))}
               </ol>
             ) : null}

@@ -115,6 +115,7 @@ export function ReviewPanel({
           reportId={report.id}
           comments={overview.comments}
           canComment={can.comment}
+          viewerId={viewerId}
         />
         {can.comment ? (
           <div className="no-print">

@@ -10,7 +10,7 @@ export interface NewAuditEntry {
   workspaceId: string;
   actor: { id: string; email: string };
   action: AuditAction;
-  targetType: "member" | "invitation" | "report" | "api-token";
+  targetType: "member" | "invitation" | "report" | "comment" | "api-token";
   targetId: string;
   details?: Record<string, unknown>;
 }

@@ -1,5 +1,5 @@
 import "server-only";
-import { and, asc, eq, inArray, sql } from "drizzle-orm";
+import { and, asc, eq, inArray, isNull, sql } from "drizzle-orm";
 import { db } from "@/db/client";
 import {
   memberships,
@@ -10,6 +10,7 @@ import {
   reviewRequests,
   users,
 } from "@/db/schema";
+import { AccessError } from "@/lib/auth/errors";
 import type { Role } from "@/lib/auth/roles";
 import { RuleError } from "@/lib/errors";
 import { isReportSection } from "@/lib/reviews/anchors";
@@ -160,6 +161,75 @@ export async function addComment(input: {
   return row;
 }
 
+/**
+ * The author's own, undeleted comment on this version, or a refusal: 404 when it is gone (or never
+ * was on this version), 403 when someone else wrote it.
+ */
+async function findOwnComment(input: {
+  report: ReportForReview;
+  commentId: string;
+  authorId: string;
+}): Promise<{ body: string; mentions: string[] }> {
+  const [comment] = await db()
+    .select({
+      authorId: reviewComments.authorId,
+      body: reviewComments.body,
+      mentions: reviewComments.mentions,
+    })
+    .from(reviewComments)
+    .where(
+      and(
+        eq(reviewComments.id, input.commentId),
+        eq(reviewComments.workspaceId, input.report.workspaceId),
+        eq(reviewComments.reportId, input.report.id),
+        isNull(reviewComments.deletedAt),
+      ),
+    );
+  if (!comment) throw new RuleError(404, "That comment no longer exists.");
+  if (comment.authorId !== input.authorId) {
+    throw new AccessError(403, "Only a comment's author may edit or delete it.");
+  }
+  return comment;
+}
+
+/**
+ * The author rewrites their comment: new body and mentions, marked as edited. Returns the earlier
+ * text, for the audit log, and the members it already mentioned, so only newly mentioned ones are
+ * told.
+ */
+export async function editComment(input: {
+  report: ReportForReview;
+  commentId: string;
+  authorId: string;
+  body: string;
+  mentions: string[];
+}): Promise<{ earlierBody: string; earlierMentions: string[] }> {
+  const { body: earlierBody, mentions: earlierMentions } = await findOwnComment(input);
+  await db()
+    .update(reviewComments)
+    .set({ body: input.body, mentions: input.mentions, editedAt: sql`now()` })
+    .where(eq(reviewComments.id, input.commentId));
+  return { earlierBody, earlierMentions };
+}
+
+/**
+ * The author deletes their comment. The row stays with its body emptied, so the replies under a
+ * thread's first comment keep their thread; who deleted it, and what it said, is the audit log's
+ * to keep (the text is returned for it).
+ */
+export async function deleteComment(input: {
+  report: ReportForReview;
+  commentId: string;
+  authorId: string;
+}): Promise<{ earlierBody: string }> {
+  const { body: earlierBody } = await findOwnComment(input);
+  await db()
+    .update(reviewComments)
+    .set({ body: "", mentions: [], deletedAt: sql`now()` })
+    .where(eq(reviewComments.id, input.commentId));
+  return { earlierBody };
+}
+
 export async function recordDecision(input: {
   report: ReportForReview;
   reviewerId: string;
@@ -205,9 +275,13 @@ export type ReviewComment = {
   parentId: string | null;
   anchorKind: "section" | "shard" | null;
   anchor: string | null;
+  /** Empty once deleted. */
   body: string;
+  authorId: string;
   authorName: string;
   createdAt: Date;
+  editedAt: Date | null;
+  deletedAt: Date | null;
 };
 
 export type ReviewOverview = {
@@ -277,8 +351,11 @@ export async function findReviewOverview(
         anchorKind: reviewComments.anchorKind,
         anchor: reviewComments.anchor,
         body: reviewComments.body,
+        authorId: reviewComments.authorId,
         authorName: personName,
         createdAt: reviewComments.createdAt,
+        editedAt: reviewComments.editedAt,
+        deletedAt: reviewComments.deletedAt,
       })
       .from(reviewComments)
       .innerJoin(users, eq(users.id, reviewComments.authorId))

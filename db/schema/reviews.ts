@@ -57,6 +57,13 @@ export const reviewComments = pgTable(
     /** User ids of the members the body mentions (resolved when the comment was written). */
     mentions: text("mentions").array().notNull().default([]),
     createdAt: createdAt(),
+    /** When its author last changed the body; null while it reads as first written. */
+    editedAt: instant("edited_at"),
+    /**
+     * When its author deleted it. The row stays, with its body emptied, so replies keep their
+     * thread; the page says it was deleted and the audit log keeps who did it.
+     */
+    deletedAt: instant("deleted_at"),
   },
   (table) => [index("review_comments_report_idx").on(table.reportId, table.createdAt)],
 );
@@ -96,6 +103,8 @@ export const AUDIT_ACTIONS = [
   "report.endorsed",
   "report.returned",
   "report.deleted",
+  "comment.edited",
+  "comment.deleted",
   "api-token.created",
   "api-token.revoked",
 ] as const;

@@ -16,6 +16,8 @@ export const AUDIT_ACTION_LABELS: Record<AuditAction, string> = {
   "report.endorsed": "Layout endorsed",
   "report.returned": "Returned for rework",
   "report.deleted": "Report deleted",
+  "comment.edited": "Comment edited",
+  "comment.deleted": "Comment deleted",
   "api-token.created": "API token created",
   "api-token.revoked": "API token revoked",
 };

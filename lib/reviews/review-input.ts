@@ -9,13 +9,15 @@ export const reviewRequestSchema = z.object({
   note: z.string().trim().max(2000, "Keep the note under 2,000 characters.").optional(),
 });
 
+const commentBody = z
+  .string()
+  .trim()
+  .min(1, "Write a comment first.")
+  .max(10_000, "Keep a comment under 10,000 characters.");
+
 export const commentSchema = z
   .object({
-    body: z
-      .string()
-      .trim()
-      .min(1, "Write a comment first.")
-      .max(10_000, "Keep a comment under 10,000 characters."),
+    body: commentBody,
     parentId: z.string().min(1).optional(),
     anchorKind: z.enum(["section", "shard"]).optional(),
     anchor: z.string().trim().min(1).max(200).optional(),
@@ -24,6 +26,12 @@ export const commentSchema = z
     message: "A pinned comment needs both what it is pinned to and its name.",
     path: ["anchor"],
   });
+
+/** A comment's new text; where it sits (thread, pin) does not change. */
+export const commentEditSchema = z.object({
+  commentId: z.string().min(1),
+  body: commentBody,
+});
 
 export const decisionSchema = z.object({
   decision: z.enum(REVIEW_DECISION_KINDS, {

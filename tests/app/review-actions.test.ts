@@ -11,7 +11,9 @@ vi.mock("next/cache", () => ({ revalidatePath: () => undefined }));
 import {
   decideReview,
   postComment,
+  removeComment,
   requestReview,
+  reviseComment,
 } from "@/app/(workspace)/w/[workspaceId]/reports/[reportId]/review-actions";
 import { updateNotificationSetting } from "@/app/(workspace)/w/[workspaceId]/settings/notifications/actions";
 import { closeDb } from "@/db/client";
@@ -147,6 +149,111 @@ describe("the review cycle", () => {
     actAs(team.owner);
     await decideReview(workspaceId, reportId, { decision: "endorse", reason: "Fine by me." });
     expect((await findReviewOverview(workspaceId, reportId)).state.kind).toBe("returned");
+  });
+});
+
+describe("comments: their authors edit and delete them", () => {
+  it("rewrites a comment, e-mails only the newly mentioned, and audits the earlier text", async () => {
+    const team = await teamWithReport();
+    const { workspaceId, reportId } = team;
+    actAs(team.reviewer);
+    const posted = await postComment(workspaceId, reportId, {
+      body: "@Test analyst is Dream too small?",
+    });
+    if (!posted.ok) throw new Error(posted.message);
+    const { commentId } = posted.data;
+    await waitForMessage(team.analyst.email, /mentioned you/);
+
+    // The analyst was mentioned already; the owner is new and the only one told.
+    const edited = await reviseComment(workspaceId, reportId, {
+      commentId,
+      body: "@Test analyst @Test owner is Dream too small for K = 10?",
+    });
+    expect(edited).toEqual({ ok: true, data: { mentioned: 1 } });
+    const ownerMail = await waitForMessage(team.owner.email, /mentioned you/);
+    expect(ownerMail.text).toContain("> @Test analyst @Test owner is Dream too small for K = 10?");
+    // Both were sent together, so the owner's arrival means a second one would be there too.
+    const analystMentions = (await subjectsTo(team.analyst.email)).filter((subject) =>
+      /mentioned you/.test(subject),
+    );
+    expect(analystMentions).toHaveLength(1);
+
+    const [comment] = (await findReviewOverview(workspaceId, reportId)).comments;
+    expect(comment).toMatchObject({
+      body: "@Test analyst @Test owner is Dream too small for K = 10?",
+      authorId: team.reviewer.id,
+      deletedAt: null,
+    });
+    expect(comment.editedAt).toBeInstanceOf(Date);
+    const [entry] = await listAuditEntries(workspaceId);
+    expect(entry).toMatchObject({
+      action: "comment.edited",
+      actorEmail: team.reviewer.email,
+      targetType: "comment",
+      targetId: commentId,
+      details: { title: "Penguins by island", before: "@Test analyst is Dream too small?" },
+    });
+    // An empty text is a comment's own error, on its field.
+    expect(await reviseComment(workspaceId, reportId, { commentId, body: "  " })).toMatchObject({
+      ok: false,
+      status: 422,
+      fieldErrors: { body: "Write a comment first." },
+    });
+  });
+
+  it("refuses everyone but the author, and keeps the thread when its first comment goes", async () => {
+    const team = await teamWithReport();
+    const { workspaceId, reportId } = team;
+    actAs(team.reviewer);
+    const first = await postComment(workspaceId, reportId, { body: "Why three shards?" });
+    if (!first.ok) throw new Error(first.message);
+    const { commentId } = first.data;
+    actAs(team.analyst);
+    const reply = await postComment(workspaceId, reportId, {
+      body: "One per island.",
+      parentId: commentId,
+    });
+    if (!reply.ok) throw new Error(reply.message);
+
+    // Not the author: 403, whatever their role; nothing changes.
+    for (const person of [team.analyst, team.owner]) {
+      actAs(person);
+      expect(
+        statusOf(await reviseComment(workspaceId, reportId, { commentId, body: "Changed." })),
+      ).toBe(403);
+      expect(statusOf(await removeComment(workspaceId, reportId, commentId))).toBe(403);
+    }
+    // Another workspace's member: 404; signed out: 401.
+    actAs(await createAccount("stranger"));
+    expect(statusOf(await removeComment(workspaceId, reportId, commentId))).toBe(404);
+    actAs(null);
+    expect(statusOf(await removeComment(workspaceId, reportId, commentId))).toBe(401);
+
+    actAs(team.reviewer);
+    expect(await removeComment(workspaceId, reportId, commentId)).toEqual({
+      ok: true,
+      data: undefined,
+    });
+    const comments = (await findReviewOverview(workspaceId, reportId)).comments;
+    // The first comment stays as a deleted placeholder, its text gone; the reply keeps its thread.
+    expect(comments.map((entry) => [entry.body, entry.deletedAt !== null, entry.parentId])).toEqual(
+      [
+        ["", true, null],
+        ["One per island.", false, commentId],
+      ],
+    );
+    const [entry] = await listAuditEntries(workspaceId);
+    expect(entry).toMatchObject({
+      action: "comment.deleted",
+      actorEmail: team.reviewer.email,
+      targetId: commentId,
+      details: { before: "Why three shards?" },
+    });
+    // Gone is gone: neither edited nor deleted again.
+    expect(statusOf(await removeComment(workspaceId, reportId, commentId))).toBe(404);
+    expect(statusOf(await reviseComment(workspaceId, reportId, { commentId, body: "Back." }))).toBe(
+      404,
+    );
   });
 });
 

@@ -102,6 +102,25 @@ describe("review flow in the browser", () => {
     await thread.getByText("On: Shard Torgersen").waitFor();
     expect(await thread.getByText("Torgersen holds only Adelie.").count()).toBe(1);
 
+    // Its author edits it in place, then posts a second thread and deletes that one.
+    await thread.getByRole("button", { name: "Edit" }).click();
+    await thread
+      .getByLabel("Your comment")
+      .fill("@Ada Analyst Torgersen holds only Adelie penguins.");
+    await thread.getByRole("button", { name: "Save" }).click();
+    // Saved: the form gives way to the comment, marked as edited.
+    await thread.getByRole("form", { name: "Edit comment" }).waitFor({ state: "detached" });
+    await thread.getByText("· edited").waitFor();
+    expect(await thread.getByText("Torgersen holds only Adelie penguins.").count()).toBe(1);
+    await panel.getByLabel("Comment", { exact: true }).fill("A second thought, soon withdrawn.");
+    await panel.getByRole("button", { name: "Post comment" }).click();
+    const second = thread.filter({ hasText: "A second thought" });
+    await second.waitFor();
+    page.once("dialog", (dialog) => void dialog.accept());
+    await second.getByRole("button", { name: "Delete" }).click();
+    await second.waitFor({ state: "detached" });
+    expect(await thread.count()).toBe(1);
+
     await panel.getByRole("radio", { name: /Endorse the layout/ }).check();
     await panel.getByLabel("Reason").fill("The verdict follows from the island skew.");
     await panel.getByRole("button", { name: "Record decision" }).click();
@@ -149,5 +168,6 @@ describe("review flow in the browser", () => {
     await page.goto(`/w/${workspaceId}/audit?action=report.deleted`);
     expect(await entries.count()).toBe(1);
     expect(await entries.first().textContent()).toContain("its only version (v1)");
-  });
+    // Four people's sessions in turn, each signing in: more than the default two minutes on a busy machine.
+  }, 300_000);
 });

@@ -5,6 +5,8 @@ import { recordAudit } from "@/db/queries/audit";
 import {
   addComment,
   createReviewRequests,
+  deleteComment,
+  editComment,
   listRequesters,
   listWorkspacePeople,
   recordDecision,
@@ -21,7 +23,12 @@ import {
   reviewRequestedMessage,
 } from "@/lib/notifications/messages";
 import { findMentionedMembers } from "@/lib/reviews/mentions";
-import { commentSchema, decisionSchema, reviewRequestSchema } from "@/lib/reviews/review-input";
+import {
+  commentEditSchema,
+  commentSchema,
+  decisionSchema,
+  reviewRequestSchema,
+} from "@/lib/reviews/review-input";
 import { DECISION_AUDIT_ACTIONS } from "@/lib/reviews/review-state";
 
 function reportRef(report: ReportForReview) {
@@ -129,6 +136,86 @@ export async function postComment(
     return succeed({ commentId: id, mentioned: mentioned.length });
   } catch (error) {
     return failWith(error, "post-comment");
+  }
+}
+
+/**
+ * The author rewrites their own comment on this version. Audited with the earlier text; members
+ * the new text mentions for the first time get an e-mail.
+ */
+export async function reviseComment(
+  workspaceId: string,
+  reportId: string,
+  input: { commentId: string; body: string },
+): Promise<ActionResult<{ mentioned: number }>> {
+  try {
+    const { user, workspace } = await requireRole(workspaceId, "commentOnReport");
+    const values = commentEditSchema.parse(input);
+    const report = await requireReportInWorkspace(workspace.id, reportId);
+    const members = await listWorkspacePeople(workspace.id);
+    const mentioned = findMentionedMembers(values.body, members).filter(
+      (member) => member.userId !== user.id,
+    );
+    const { earlierBody, earlierMentions } = await editComment({
+      report,
+      commentId: values.commentId,
+      authorId: user.id,
+      body: values.body,
+      mentions: mentioned.map((member) => member.userId),
+    });
+    await recordAudit({
+      workspaceId: workspace.id,
+      actor: user,
+      action: "comment.edited",
+      targetType: "comment",
+      targetId: values.commentId,
+      details: { title: report.title, version: report.version, before: earlierBody },
+    });
+    const newlyMentioned = mentioned.filter((member) => !earlierMentions.includes(member.userId));
+    await Promise.all(
+      newlyMentioned.map((member) =>
+        deliverNotification({
+          workspaceId: workspace.id,
+          recipient: member,
+          kind: "mentioned",
+          message: mentionedMessage({
+            report: reportRef(report),
+            authorName: user.name ?? user.email,
+            body: values.body,
+            settingsUrl: settingsUrl(workspace.id),
+          }),
+        }),
+      ),
+    );
+    revalidatePath(reportPath(workspace.id, report.id));
+    return succeed({ mentioned: newlyMentioned.length });
+  } catch (error) {
+    return failWith(error, "edit-comment");
+  }
+}
+
+/** The author deletes their own comment on this version; audited with the text it had. */
+export async function removeComment(
+  workspaceId: string,
+  reportId: string,
+  commentId: string,
+): Promise<ActionResult> {
+  try {
+    const { user, workspace } = await requireRole(workspaceId, "commentOnReport");
+    const report = await requireReportInWorkspace(workspace.id, reportId);
+    const { earlierBody } = await deleteComment({ report, commentId, authorId: user.id });
+    await recordAudit({
+      workspaceId: workspace.id,
+      actor: user,
+      action: "comment.deleted",
+      targetType: "comment",
+      targetId: commentId,
+      details: { title: report.title, version: report.version, before: earlierBody },
+    });
+    revalidatePath(reportPath(workspace.id, report.id));
+    return succeed();
+  } catch (error) {
+    return failWith(error, "delete-comment");
   }
 }
 
