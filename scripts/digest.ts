@@ -6,6 +6,9 @@
  *   encoding  SCHEMA.json… [--task T] [--min-rows N] --out encoding.json   (merges round 1)
  *   gradients --data … --encoding encoding.json --at zero|W.json --out F   (round 2)
  *   merge     --encoding encoding.json GRADIENTS.json… [plan flags as analyze] --out summary.json
+ * Online, with a client key the analyst issued (no command):
+ *   --server URL --key K --data FILE --label COL (--shard-column COL | --partition FILE | --shard NAME)
+ *   sends round 1, waits for the encoding, answers the coordinator until the analysis ends.
  * Exit 0 on success, 2 on bad input (the message names the file, client and shard), 1 on an internal
  * error (stack only with DEBUG set).
  */
@@ -37,10 +40,13 @@ import {
   readTask,
   requireReadableFile,
 } from "../lib/cli/analysis-flags";
+import { createApiClient, ServerError } from "../lib/cli/api-client";
 import { readDigestFile, writeJson } from "../lib/cli/digest-files";
+import { FederatedAnalysisFailed, runOnlineClient } from "../lib/cli/digest-online";
 import { analysisOptionsSchema } from "../lib/validation/analysis-options";
 
-const USAGE = `usage: npm run digest -- schema DATA_FLAGS [--client NAME] [--min-rows N] --out FILE
+const USAGE = `usage: npm run digest -- --server URL --key K DATA_FLAGS [--dry-run]
+       npm run digest -- schema DATA_FLAGS [--client NAME] [--min-rows N] --out FILE
        npm run digest -- encoding SCHEMA.json… [--task classification|regression] [--min-rows N] --out FILE
        npm run digest -- gradients DATA_FLAGS --encoding FILE --at zero|W.json [--client NAME] --out FILE
        npm run digest -- merge --encoding FILE GRADIENTS.json… [--lambda X] [--participants M]
@@ -55,7 +61,12 @@ const text = { type: "string" } as const;
 type Flags = Partial<Record<string, string>>;
 
 async function main(): Promise<void> {
-  const [command, ...rest] = process.argv.slice(2);
+  const argv = process.argv.slice(2);
+  if (argv[0]?.startsWith("--")) {
+    const { flags, dryRun } = readFlags(argv);
+    return runOnline(flags, dryRun);
+  }
+  const [command, ...rest] = argv;
   const { flags, files } = readFlags(rest);
   switch (command) {
     case "schema":
@@ -69,6 +80,30 @@ async function main(): Promise<void> {
     default:
       throw new AnalysisInputError(`unknown command "${command ?? ""}"\n${USAGE}`);
   }
+}
+
+/** The online client: the key's analysis says the label and features; the rows never leave. */
+async function runOnline(flags: Flags, dryRun: boolean): Promise<void> {
+  const server = requireFlag(flags.server, "--server");
+  const key = requireFlag(flags.key, "--key");
+  await runOnlineClient({
+    api: createApiClient(server, key),
+    dryRun,
+    print: (json) => process.stdout.write(json),
+    log: (line) => process.stderr.write(`partita: ${line}\n`),
+    readRows: async (assignment) => {
+      if (flags.label !== undefined && flags.label !== assignment.labelColumn) {
+        throw new AnalysisInputError(`--label is "${flags.label}"`, {
+          expected: `the analysis's label column "${assignment.labelColumn}"`,
+        });
+      }
+      return readRows({
+        ...flags,
+        label: assignment.labelColumn,
+        features: flags.features ?? assignment.features?.join(","),
+      });
+    },
+  });
 }
 
 async function writeSchema(flags: Flags): Promise<void> {
@@ -181,7 +216,7 @@ function requireFlag(value: string | undefined, flag: string): string {
   return value;
 }
 
-function readFlags(argv: string[]): { flags: Flags; files: string[] } {
+function readFlags(argv: string[]): { flags: Flags; files: string[]; dryRun: boolean } {
   try {
     const { values, positionals } = parseArgs({
       args: argv,
@@ -194,11 +229,15 @@ function readFlags(argv: string[]): { flags: Flags; files: string[] } {
         encoding: text,
         at: text,
         out: text,
+        server: text,
+        key: text,
+        "dry-run": { type: "boolean" },
       },
       strict: true,
       allowPositionals: true,
     });
-    return { flags: values as Flags, files: positionals };
+    const { "dry-run": dryRun, ...flags } = values;
+    return { flags: flags as Flags, files: positionals, dryRun: dryRun === true };
   } catch (error) {
     throw new AnalysisInputError(`${(error as Error).message}\n${USAGE}`);
   }
@@ -212,6 +251,15 @@ main().then(
   (error: unknown) => {
     if (error instanceof AnalysisInputError) {
       process.stderr.write(`partita: bad input: ${error.message}\n`);
+      process.exitCode = EXIT_BAD_INPUT;
+      return;
+    }
+    if (error instanceof ServerError || error instanceof FederatedAnalysisFailed) {
+      const who =
+        error instanceof ServerError
+          ? `the server refused (${error.status})`
+          : "the analysis failed";
+      process.stderr.write(`partita: ${who}: ${error.message}\n`);
       process.exitCode = EXIT_BAD_INPUT;
       return;
     }

@@ -9,7 +9,16 @@
 // interrupted and its job handed back to the queue for another worker or the next start.
 import type PgBoss from "pg-boss";
 import { closeDb } from "@/db/client";
-import { ANALYSIS_QUEUE, analysisJobSchema, startBoss, type AnalysisJob } from "@/lib/jobs";
+import {
+  ANALYSIS_QUEUE,
+  analysisJobSchema,
+  FEDERATED_QUEUE,
+  federatedJobSchema,
+  startBoss,
+  type AnalysisJob,
+  type FederatedJob,
+} from "@/lib/jobs";
+import { runFederatedCoordinator } from "@/lib/federated/run-coordinator";
 import { runMailSender } from "@/lib/mail";
 import { env } from "@/lib/env";
 import { sweepLostRuns } from "@/lib/reports/lost-runs";
@@ -53,6 +62,27 @@ async function handleJob(boss: PgBoss, job: PgBoss.JobWithMetadata<AnalysisJob>)
   }
 }
 
+/**
+ * Coordinators a worker runs at once. A coordinator mostly waits for its clients' answers, so
+ * several share a worker without taking cores from the analyses.
+ */
+const FEDERATED_COORDINATORS = 4;
+
+async function handleFederatedJob(job: PgBoss.JobWithMetadata<FederatedJob>): Promise<void> {
+  const parsed = federatedJobSchema.safeParse(job.data);
+  if (!parsed.success) {
+    log(`job ${job.id}: not a federated job, skipped`);
+    return;
+  }
+  const { federatedAnalysisId } = parsed.data;
+  const result = await runFederatedCoordinator(federatedAnalysisId, {
+    signal: shutdown.signal,
+    willRetry: job.retryCount < job.retryLimit,
+  });
+  const detail = result.outcome === "succeeded" ? ` (report ${result.reportId})` : "";
+  log(`federated analysis ${federatedAnalysisId}: ${result.outcome}${detail}`);
+}
+
 async function main() {
   const boss = await startBoss({
     applicationName: "partita-worker",
@@ -92,7 +122,14 @@ async function main() {
     { includeMetadata: true, batchSize: 1, pollingIntervalSeconds: 1 },
     async ([job]) => handleJob(boss, job),
   );
-  log(`ready: taking jobs from queue "${ANALYSIS_QUEUE}"`);
+  for (let k = 0; k < FEDERATED_COORDINATORS; k++) {
+    await boss.work<FederatedJob>(
+      FEDERATED_QUEUE,
+      { includeMetadata: true, batchSize: 1, pollingIntervalSeconds: 1 },
+      async ([job]) => handleFederatedJob(job),
+    );
+  }
+  log(`ready: taking jobs from queues "${ANALYSIS_QUEUE}" and "${FEDERATED_QUEUE}"`);
 }
 
 main().catch((error: unknown) => {

@@ -9,6 +9,7 @@ import { registerDataFileSchema, signPartsSchema } from "@/lib/validation/upload
 import { startAnalysisSchema } from "@/lib/validation/start-analysis";
 import { API_TOKEN_PREFIX } from "@/lib/auth/api-token-secret";
 import { API_REQUESTS_PER_MINUTE } from "./rate-limit";
+import { clientKeyScheme, federatedPaths } from "./openapi-federated";
 import {
   analysisPathSchema,
   analysisStatusSchema,
@@ -89,6 +90,7 @@ export function createApiDocument() {
           scheme: "bearer",
           description: `A personal API token, starting with ${API_TOKEN_PREFIX}.`,
         },
+        ...clientKeyScheme,
       },
     },
     paths: {
@@ -186,6 +188,7 @@ export function createApiDocument() {
           failures: ["404", "422"],
         }),
       },
+      ...federatedPaths(operation, json),
       "/api/v1/openapi.json": {
         get: {
           operationId: "getOpenApiDocument",

@@ -14,6 +14,8 @@ export interface DigestAnalysisOptions {
   reference: "optimum" | "zero" | ReferenceWeights;
   plan: DigestPlan;
   minimumShardRows?: number;
+  /** Clients expected but left out when the roster was closed (the report lists them). */
+  missingClients?: string[];
   /** Progress: the round the coordinator is in, and the fit's evaluations so far. */
   onRound?: (round: "schema" | "fit" | "gradients" | "merge", evaluations?: number) => void;
   /**
@@ -66,6 +68,7 @@ export async function analyzeFromDigests(
     lambda: options.lambda,
     plan: options.plan,
     fit,
+    missingClients: options.missingClients,
   });
 }
 

@@ -8,6 +8,7 @@ import { mergeSchemaDigests, type SchemaDigest } from "@/lib/analysis";
 import { stopSendingBoss } from "@/lib/jobs";
 import {
   acceptSchemaDigest,
+  cancelFederatedAnalysis,
   closeRoster,
   createFederatedAnalysis,
   getFederatedStatus,
@@ -18,7 +19,13 @@ import { findFederatedClientByName } from "@/db/queries/federated-analyses";
 import { createTeam } from "@/tests/support/accounts";
 import { createPenguinClients } from "./support";
 
+const started: string[] = [];
+
 afterAll(async () => {
+  // Analyses left open would keep the worker's coordinators waiting for clients.
+  for (const analysisId of started) {
+    await cancelFederatedAnalysis(team.workspaceId, analysisId).catch(() => undefined);
+  }
   await stopSendingBoss();
   await closeDb();
 });
@@ -39,6 +46,7 @@ async function createAnalysis(clients = ["north", "south"]) {
     reference: "zero",
     clients,
   });
+  started.push(analysisId);
   const sender = async (name: string) => {
     const client = await findFederatedClientByName(analysisId, name);
     return { analysisId, client: { id: client!.id, name } };

@@ -1,0 +1,34 @@
+import "server-only";
+import { moveFederatedState } from "@/db/queries/federated-analyses";
+import { RuleError } from "@/lib/errors";
+import { ENDED_STATES, requireFederatedAnalysis } from "./federated-rules";
+
+/** Shown as the analysis's failure when the analyst stopped it. */
+export const CANCELLED_MESSAGE = "The analyst stopped this analysis.";
+
+/**
+ * Stops a federated analysis that has not ended: it fails with CANCELLED_MESSAGE, its
+ * coordinator lets go of it within a second, and its clients hear that it ended. Their accepted
+ * digests stay stored.
+ */
+export async function cancelFederatedAnalysis(
+  workspaceId: string,
+  analysisId: string,
+): Promise<void> {
+  const analysis = await requireFederatedAnalysis(workspaceId, analysisId);
+  const active = [
+    "collecting-schemas",
+    "encoding-ready",
+    "fitting",
+    "collecting-gradients",
+    "merging",
+  ] as const;
+  const moved =
+    !ENDED_STATES.includes(analysis.state) &&
+    (await moveFederatedState(analysisId, [...active], {
+      state: "failed",
+      failureMessage: CANCELLED_MESSAGE,
+      finishedAt: new Date(),
+    }));
+  if (!moved) throw new RuleError(409, "This analysis has already ended.");
+}

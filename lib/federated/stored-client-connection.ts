@@ -1,0 +1,117 @@
+import "server-only";
+import { findFederatedAnalysisById } from "@/db/queries/federated-analyses";
+import {
+  findFederatedDigest,
+  findAnsweredExchanges,
+  openExchange,
+} from "@/db/queries/federated-digests";
+import type { ExchangeKind } from "@/db/queries/federated-digests";
+import {
+  evaluationSumsSchema,
+  gradientDigestSchema,
+  hashDocument,
+  type DigestClientConnection,
+  type DigestEncoding,
+  type EvaluationRequest,
+  type EvaluationSums,
+  type GradientDigest,
+  type MeasurementRequest,
+  type SchemaDigest,
+} from "@/lib/analysis";
+import { pause } from "@/lib/pause";
+
+export interface StoredClientOptions {
+  analysisId: string;
+  client: { id: string; name: string };
+  schema: SchemaDigest;
+  /** The stored encoding: the coordinator's own merge must arrive at the same hash. */
+  encodingHash: string;
+  signal: AbortSignal;
+  pollMs: number;
+  /** How long a client may leave a question unanswered before the analysis fails. */
+  silenceLimitMs: number;
+}
+
+/** A client that stayed away longer than the analysis waits for it. */
+export class ClientSilentError extends Error {
+  constructor(client: string, minutes: number) {
+    super(
+      `client "${client}" did not answer the coordinator for ${minutes} minutes; start the analysis again when it can stay connected`,
+    );
+    this.name = "ClientSilentError";
+  }
+}
+
+/** The analysis ended while the coordinator waited (the analyst stopped it). */
+export class AnalysisEndedError extends Error {
+  constructor() {
+    super("the analysis ended while the coordinator waited for its clients");
+    this.name = "AnalysisEndedError";
+  }
+}
+
+/** Polls between looks at whether the analysis is still going (about once a second). */
+const POLLS_PER_STATE_CHECK = 20;
+
+/**
+ * The coordinator's side of one remote client (a DigestClientConnection over PostgreSQL): each
+ * question is stored as an exchange, once (keyed by the request's hash), and answered by the
+ * client through the API; the coordinator waits for the answer. An answer stored before — by this
+ * coordinator or by one that stopped — is taken at once, so a retried job replays the fit without
+ * asking anything twice, and a client that lost its connection finds the open question on return.
+ */
+export class StoredClientConnection implements DigestClientConnection {
+  readonly name: string;
+
+  constructor(private readonly options: StoredClientOptions) {
+    this.name = options.client.name;
+  }
+
+  async schema(): Promise<SchemaDigest> {
+    return this.options.schema;
+  }
+
+  async evaluate(encoding: DigestEncoding, request: EvaluationRequest): Promise<EvaluationSums> {
+    return evaluationSumsSchema.parse(await this.ask(encoding, "evaluate", request));
+  }
+
+  async gram(encoding: DigestEncoding): Promise<number[][]> {
+    return (await this.ask(encoding, "gram", { encodingHash: encoding.hash })) as number[][];
+  }
+
+  async gradients(encoding: DigestEncoding, request: MeasurementRequest): Promise<GradientDigest> {
+    await this.ask(encoding, "gradients", request);
+    const stored = await findFederatedDigest(this.options.client.id, "gradients");
+    if (!stored) throw new Error(`client "${this.name}": its gradient digest is missing`);
+    return gradientDigestSchema.parse(stored.document);
+  }
+
+  private async ask(encoding: DigestEncoding, kind: ExchangeKind, request: unknown) {
+    const { analysisId, client, signal, pollMs, silenceLimitMs } = this.options;
+    if (encoding.hash !== this.options.encodingHash) {
+      throw new Error("the coordinator's encoding differs from the one the clients were sent");
+    }
+    const exchange = await openExchange({
+      federatedAnalysisId: analysisId,
+      clientId: client.id,
+      kind,
+      requestKey: hashDocument(request),
+      request,
+    });
+    if (exchange.answer !== null) return exchange.answer;
+    const giveUpAt = Date.now() + silenceLimitMs;
+    for (let poll = 1; ; poll++) {
+      signal.throwIfAborted();
+      if (poll % POLLS_PER_STATE_CHECK === 0) {
+        const state = (await findFederatedAnalysisById(analysisId))?.state;
+        if (state === undefined || state === "done" || state === "failed") {
+          throw new AnalysisEndedError();
+        }
+      }
+      const answers = await findAnsweredExchanges([exchange.id]);
+      if (answers.has(exchange.id)) return answers.get(exchange.id);
+      if (Date.now() > giveUpAt) throw new ClientSilentError(client.name, silenceLimitMs / 60_000);
+      await pause(pollMs, signal);
+    }
+  }
+}
