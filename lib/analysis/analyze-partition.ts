@@ -1,3 +1,4 @@
+import { PATH_POINTS } from "./path-points";
 import { z } from "zod";
 import {
   analysisOptionsSchema,
@@ -76,8 +77,8 @@ const PARALLEL_MIN_BYTES = 16 * 2 ** 20;
 /** Without a file size: rows × width × weight rows from which worker threads pay for their start. */
 export const PARALLEL_MIN_WORK = 2 ** 26;
 
-/** Points along the path W_t = t·W* where ζ² is measured (methods.md §3). */
-export const PATH_POINTS = [0, 0.25, 0.5, 0.75, 1];
+// Its own module, so a server bundle can check digests against it without the engine's threads.
+export { PATH_POINTS } from "./path-points";
 /** The gradient-agreement matrix is reported up to this many shards (methods.md §3). */
 export const MAX_AGREEMENT_SHARDS = 200;
 

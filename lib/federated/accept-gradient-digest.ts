@@ -7,15 +7,15 @@ import {
   insertFederatedDigest,
 } from "@/db/queries/federated-digests";
 import {
-  AnalysisInputError,
   gradientDigestSchema,
   hashDocument,
-  parseDigest,
   schemaDigestSchema,
   type DigestEncoding,
   type GradientDigest,
-} from "@/lib/analysis";
-import { PATH_POINTS } from "@/lib/analysis/analyze-partition";
+} from "@/lib/analysis/digests/digest-format";
+import { parseDigest } from "@/lib/analysis/digests/parse-digest";
+import { AnalysisInputError } from "@/lib/analysis/errors";
+import { PATH_POINTS } from "@/lib/analysis/path-points";
 import type { ClientCaller } from "@/lib/auth/client-key-guard";
 import { RuleError } from "@/lib/errors";
 import { hashBody } from "./accept-schema-digest";

@@ -6,13 +6,10 @@ import {
   insertFederatedDigest,
   listFederatedDigests,
 } from "@/db/queries/federated-digests";
-import {
-  AnalysisInputError,
-  checkSchemaAgreement,
-  parseDigest,
-  schemaDigestSchema,
-  type SchemaDigest,
-} from "@/lib/analysis";
+import { schemaDigestSchema, type SchemaDigest } from "@/lib/analysis/digests/digest-format";
+import { checkSchemaAgreement } from "@/lib/analysis/digests/merge-schemas";
+import { parseDigest } from "@/lib/analysis/digests/parse-digest";
+import { AnalysisInputError } from "@/lib/analysis/errors";
 import type { ClientCaller } from "@/lib/auth/client-key-guard";
 import { RuleError } from "@/lib/errors";
 import { buildEncodingWhenReady } from "./build-encoding";

@@ -3,11 +3,11 @@ import { z } from "zod";
 import { findFederatedAnalysisById, updateFederatedClient } from "@/db/queries/federated-analyses";
 import { answerExchange as storeAnswer, findExchange } from "@/db/queries/federated-digests";
 import {
-  AnalysisInputError,
   evaluationRequestSchema,
   evaluationSumsSchema,
-  parseDigest,
-} from "@/lib/analysis";
+} from "@/lib/analysis/digests/digest-format";
+import { parseDigest } from "@/lib/analysis/digests/parse-digest";
+import { AnalysisInputError } from "@/lib/analysis/errors";
 import type { ClientCaller } from "@/lib/auth/client-key-guard";
 import { RuleError } from "@/lib/errors";
 import { asRefusal } from "./federated-rules";

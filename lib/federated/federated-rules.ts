@@ -4,7 +4,9 @@ import {
   type FederatedAnalysisRow,
   type FederatedClientRow,
 } from "@/db/queries/federated-analyses";
-import { AnalysisInputError } from "@/lib/analysis";
+// The engine's modules themselves, here and in every file a route bundles: the engine's index also
+// exports the simulation, whose worker threads a server bundle cannot hold.
+import { AnalysisInputError } from "@/lib/analysis/errors";
 import { compareCodePoints } from "@/lib/analysis/code-point-order";
 import { RuleError } from "@/lib/errors";
 
