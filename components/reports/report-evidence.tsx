@@ -1,5 +1,6 @@
 import type { PartitionSummary } from "@/lib/analysis/summary";
 import { computeBoundCurves, readBoundInputs } from "@/lib/reports/bound-curves";
+import { TOP_CHART_SHARDS } from "@/lib/reports/chart-shards";
 import { computeRegimeMap } from "@/lib/reports/regime-map";
 import {
   buildLabelMix,
@@ -14,14 +15,23 @@ import { PathChart } from "./charts/path-chart";
 import { RegimeMapChart } from "./charts/regime-map-chart";
 import { ChartEmptyState, EvidenceSection } from "./evidence-section";
 
-/** Bars per chart before a chart shows only the most divergent shards. */
+/** Bars per chart before a chart shows only the most divergent shards (at most TOP_CHART_SHARDS). */
 const LABEL_MIX_CAP = 30;
-const DIVERGENCE_CAP = 40;
+const DIVERGENCE_CAP = TOP_CHART_SHARDS;
 
-/** The charts behind the verdict, in the order a reader checks them. */
-export function ReportEvidence({ summary }: { summary: PartitionSummary }) {
+/**
+ * The charts behind the verdict, in the order a reader checks them. `summary.shards` holds the
+ * shards the charts draw (all, or the most divergent: see findReport); `shardCount` counts all.
+ */
+export function ReportEvidence({
+  summary,
+  shardCount,
+}: {
+  summary: PartitionSummary;
+  shardCount: number;
+}) {
   const { shards, heterogeneity, advice, labelSkew } = summary;
-  const labelMix = buildLabelMix(summary, LABEL_MIX_CAP);
+  const labelMix = buildLabelMix(summary, LABEL_MIX_CAP, shardCount);
   const inputs = readBoundInputs(summary);
   const curves = computeBoundCurves(inputs);
   const regimeMap = computeRegimeMap(inputs);
@@ -64,8 +74,8 @@ export function ReportEvidence({ summary }: { summary: PartitionSummary }) {
           title="Divergence per shard"
           caption="How far each shard's label mix is from the pooled mix, largest first; the dashed line is the average weighted by shard size."
           note={
-            shards.length > DIVERGENCE_CAP
-              ? `Showing the ${DIVERGENCE_CAP} largest of ${shards.length} shards.`
+            shardCount > DIVERGENCE_CAP
+              ? `Showing the ${DIVERGENCE_CAP} largest of ${shardCount} shards.`
               : undefined
           }
         >
@@ -88,8 +98,8 @@ export function ReportEvidence({ summary }: { summary: PartitionSummary }) {
         >
           {agreement === null ? (
             <ChartEmptyState>
-              Not computed: with {shards.length} shards (more than 200) the matrix would be too
-              large to read. The per-shard table still lists each shard&apos;s gradient norm.
+              Not computed: with {shardCount} shards (more than 200) the matrix would be too large
+              to read. The per-shard table still lists each shard&apos;s gradient norm.
             </ChartEmptyState>
           ) : shards.length < 2 ? (
             <ChartEmptyState>Agreement needs at least two shards.</ChartEmptyState>

@@ -4,7 +4,7 @@ import { db } from "@/db/client";
 import { analyses, federatedAnalyses, reports } from "@/db/schema";
 import type { PartitionSummary } from "@/lib/analysis";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
-import { insertShardRows, listFiguresOf, nextVersionOf } from "./report-store";
+import { insertShardRows, listFiguresOf, nextVersionOf, summaryHeaderOf } from "./report-store";
 
 export interface FinishedFederatedRun {
   federatedAnalysisId: string;
@@ -61,6 +61,7 @@ export async function storeFederatedReport(
       title: federated.title,
       ...listFiguresOf(run.summary),
       summary: run.summary,
+      summaryHeader: summaryHeaderOf(run.summary),
       parameters: run.parameters,
       // No file was read: what each client sent is in the summary's `digests`.
       inputs: [],

@@ -52,6 +52,7 @@ export async function storeReport(run: FinishedRun): Promise<StoreOutcome> {
         title: analysis.title,
         ...listFiguresOf(run.summary),
         summary: run.summary,
+        summaryHeader: summaryHeaderOf(run.summary),
         parameters: analysis.parameters,
         inputs: run.inputs,
         engineVersion: run.summary.engineVersion,
@@ -87,6 +88,11 @@ export function listFiguresOf(summary: PartitionSummary) {
   };
 }
 
+/** The summary as the report page reads it: without the per-shard array (report_shards holds it). */
+export function summaryHeaderOf(summary: PartitionSummary): PartitionSummary {
+  return { ...summary, shards: [] };
+}
+
 export type Transaction = Parameters<Parameters<ReturnType<typeof db>["transaction"]>[0]>[0];
 
 /**
@@ -118,13 +124,13 @@ export async function nextVersionOf(
 
 /**
  * Shard rows per INSERT. Each statement sends one array per column (unnest), so its parameter count
- * stays at 14 whatever the batch; the batch only bounds the size of one statement's arrays.
+ * stays at 15 whatever the batch; the batch only bounds the size of one statement's arrays.
  */
 const SHARD_ROWS_PER_INSERT = 10_000;
 
 /**
  * Writes a report's per-shard table. One parameter per value would pass PostgreSQL's limit of
- * 65,535 parameters a statement at about 4,680 shards (14 columns), and a federated population
+ * 65,535 parameters a statement at about 4,370 shards (15 columns), and a federated population
  * has far more clients: each column goes as one array parameter and `unnest` turns the arrays
  * back into rows. pg sends numbers in their shortest round-trip form, so doubles arrive exactly.
  */
@@ -140,10 +146,11 @@ export async function insertShardRows(
     await tx.execute(sql`
       insert into ${reportShards} (
         report_id, ordinal, shard_id, rows, tv, hellinger, js, kl, grad_norm2, sigma2, loss,
-        classes_present, effective_classes, feature_shift
+        classes_present, effective_classes, feature_shift, label_counts
       )
       select ${reportId}, ${start}::int + position::int - 1, shard_id, rows, tv, hellinger, js,
-        kl, grad_norm2, sigma2, loss, classes_present, effective_classes, feature_shift
+        kl, grad_norm2, sigma2, loss, classes_present, effective_classes, feature_shift,
+        label_counts::json
       from unnest(
           ${column((shard) => shard.id)}::text[],
           ${column((shard) => shard.rows)}::int[],
@@ -156,10 +163,11 @@ export async function insertShardRows(
           ${column((shard) => shard.loss)}::float8[],
           ${column((shard) => shard.classesPresent)}::int[],
           ${column((shard) => shard.effectiveClasses)}::float8[],
-          ${column((shard) => shard.featureShift)}::float8[]
+          ${column((shard) => shard.featureShift)}::float8[],
+          ${column((shard) => JSON.stringify(shard.labelCounts))}::text[]
         ) with ordinality as shard(
           shard_id, rows, tv, hellinger, js, kl, grad_norm2, sigma2, loss, classes_present,
-          effective_classes, feature_shift, position
+          effective_classes, feature_shift, label_counts, position
         )
     `);
   }

@@ -1,8 +1,22 @@
 import "server-only";
-import { and, asc, count, desc, eq, gte, ilike, lt, sql, type SQL } from "drizzle-orm";
+import {
+  and,
+  asc,
+  count,
+  desc,
+  eq,
+  getTableColumns,
+  gte,
+  ilike,
+  inArray,
+  lt,
+  sql,
+  type SQL,
+} from "drizzle-orm";
 import { db } from "@/db/client";
 import { reports, reportShards, users } from "@/db/schema";
-import type { PartitionSummary } from "@/lib/analysis";
+import type { PartitionSummary, ShardSummary } from "@/lib/analysis";
+import { ALL_CHART_SHARDS, TOP_CHART_SHARDS } from "@/lib/reports/chart-shards";
 import { encodeReportCursor, type ReportCursor } from "@/lib/reports/report-cursor";
 import type { ReportFilters } from "@/lib/reports/report-filters";
 import type { ShardTableRow } from "@/lib/reports/shard-table";
@@ -138,7 +152,14 @@ export type ReportVersion = {
   createdAt: Date;
 };
 
-export type ReportDetail = typeof reports.$inferSelect & {
+export type ReportDetail = Omit<typeof reports.$inferSelect, "summaryHeader"> & {
+  /**
+   * The summary with the shards its charts draw (not the stored whole, which is megabytes at
+   * 100,000 shards): every shard up to ALL_CHART_SHARDS, else the TOP_CHART_SHARDS most divergent
+   * by TV and by JS, in stored order. `shardCount` counts them all; the per-shard table pages
+   * through report_shards.
+   */
+  summary: PartitionSummary;
   authorName: string;
   /** Every version in the lineage, oldest first (this one included). */
   versions: ReportVersion[];
@@ -161,18 +182,44 @@ const shardColumns = {
   featureShift: reportShards.featureShift,
 };
 
+/** Every column of a report but the whole summary, which the page never parses. */
+function reportColumnsButSummary() {
+  const columns: Partial<ReturnType<typeof getTableColumns<typeof reports>>> = {
+    ...getTableColumns(reports),
+  };
+  delete columns.summary;
+  return columns as Omit<ReturnType<typeof getTableColumns<typeof reports>>, "summary">;
+}
+
 /** One report of the workspace with its lineage, or undefined. */
 export async function findReport(
   workspaceId: string,
   reportId: string,
 ): Promise<ReportDetail | undefined> {
   const [row] = await db()
-    .select({ report: reports, authorName })
+    .select({ report: reportColumnsButSummary(), authorName })
     .from(reports)
     .innerJoin(users, eq(users.id, reports.authorId))
     .where(and(eq(reports.workspaceId, workspaceId), eq(reports.id, reportId)));
   if (!row) return undefined;
-  const versions = await db()
+  const { summaryHeader, ...report } = row.report;
+  const [versions, chartShards] = await Promise.all([
+    listLineageVersions(workspaceId, report.lineageId),
+    findChartShards(reportId, report.shardCount),
+  ]);
+  const position = versions.findIndex((version) => version.id === reportId);
+  return {
+    ...report,
+    summary: { ...summaryHeader, shards: chartShards },
+    authorName: row.authorName,
+    versions,
+    previousVersion: versions[position - 1] ?? null,
+    nextVersion: versions[position + 1] ?? null,
+  };
+}
+
+function listLineageVersions(workspaceId: string, lineageId: string): Promise<ReportVersion[]> {
+  return db()
     .select({
       id: reports.id,
       version: reports.version,
@@ -180,16 +227,38 @@ export async function findReport(
       createdAt: reports.createdAt,
     })
     .from(reports)
-    .where(and(eq(reports.workspaceId, workspaceId), eq(reports.lineageId, row.report.lineageId)))
+    .where(and(eq(reports.workspaceId, workspaceId), eq(reports.lineageId, lineageId)))
     .orderBy(asc(reports.version));
-  const position = versions.findIndex((version) => version.id === reportId);
-  return {
-    ...row.report,
-    authorName: row.authorName,
-    versions,
-    previousVersion: versions[position - 1] ?? null,
-    nextVersion: versions[position + 1] ?? null,
-  };
+}
+
+/**
+ * The shards a report's charts draw, from its shard table in stored order: all of them up to
+ * ALL_CHART_SHARDS; else the TOP_CHART_SHARDS largest by TV and by JS (missing figures last, ties
+ * in stored order), which hold the most divergent shards every chart ranks, so the charts come out
+ * as from all shards.
+ */
+async function findChartShards(reportId: string, shardCount: number): Promise<ShardSummary[]> {
+  const ofReport = eq(reportShards.reportId, reportId);
+  let chosen: SQL | undefined;
+  if (shardCount > ALL_CHART_SHARDS) {
+    const largest = (column: typeof reportShards.tv | typeof reportShards.js) =>
+      db()
+        .select({ ordinal: reportShards.ordinal })
+        .from(reportShards)
+        .where(ofReport)
+        .orderBy(sql`${column} = 'NaN'::float8`, desc(column), asc(reportShards.ordinal))
+        .limit(TOP_CHART_SHARDS);
+    const [byTv, byJs] = await Promise.all([largest(reportShards.tv), largest(reportShards.js)]);
+    chosen = inArray(reportShards.ordinal, [
+      ...new Set([...byTv, ...byJs].map((row) => row.ordinal)),
+    ]);
+  }
+  const rows = await db()
+    .select({ ...shardColumns, labelCounts: reportShards.labelCounts })
+    .from(reportShards)
+    .where(and(ofReport, chosen))
+    .orderBy(asc(reportShards.ordinal));
+  return rows.map(({ shardId, ...figures }) => ({ id: shardId, ...figures }));
 }
 
 export interface ShardPage {

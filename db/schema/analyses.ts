@@ -146,6 +146,12 @@ export const reports = pgTable(
     // json, not jsonb: PostgreSQL keeps json text as written, so the exported summary has the CLI's
     // key order byte for byte (jsonb would reorder keys).
     summary: json("summary").$type<PartitionSummary>().notNull(),
+    /**
+     * The summary without its per-shard array (`shards: []`), for the report page's header and
+     * figures: at 100,000 shards the whole summary is some 30 MB to parse, this a few kilobytes.
+     * The shards are rows of report_shards.
+     */
+    summaryHeader: jsonb("summary_header").$type<PartitionSummary>().notNull(),
     parameters: jsonb("parameters").$type<AnalysisOptionsInput>().notNull(),
     inputs: jsonb("inputs").$type<ReportInput[]>().notNull(),
     engineVersion: text("engine_version").notNull(),
@@ -181,6 +187,8 @@ export const reportShards = pgTable(
     classesPresent: integer("classes_present").notNull(),
     effectiveClasses: doublePrecision("effective_classes").notNull(),
     featureShift: doublePrecision("feature_shift").notNull(),
+    /** Rows per label-skew category (the summary's labelCounts), for the label-mix chart. */
+    labelCounts: json("label_counts").$type<number[]>().notNull(),
   },
   (table) => [primaryKey({ columns: [table.reportId, table.ordinal] })],
 );

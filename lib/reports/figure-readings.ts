@@ -49,7 +49,7 @@ export function describeConcentration(alpha: number, classes: number): string {
  * The key figures with a plain reading of each: what the quantity is in a data engineer's words,
  * and a scale that says whether this split's value is small or large.
  */
-export function readKeyFigures(summary: PartitionSummary): FigureReading[] {
+export function readKeyFigures(summary: PartitionSummary, shardCount: number): FigureReading[] {
   const { dataset, heterogeneity, labelSkew, quantitySkew, model, advice } = summary;
   const between = shareBetweenShards(summary);
   const barrier = barrierFraction(summary);
@@ -61,7 +61,7 @@ export function readKeyFigures(summary: PartitionSummary): FigureReading[] {
   return [
     {
       name: "Rows · shards",
-      value: `${dataset.rows.toLocaleString("en-US")} · ${summary.shards.length.toLocaleString("en-US")}`,
+      value: `${dataset.rows.toLocaleString("en-US")} · ${shardCount.toLocaleString("en-US")}`,
       what: `${dataset.features} encoded features, ${dataset.classes === null ? "regression" : `${dataset.classes} classes`}.`,
       scale: `Shards hold ${quantitySkew.min.toLocaleString("en-US")}–${quantitySkew.max.toLocaleString("en-US")} rows.`,
     },

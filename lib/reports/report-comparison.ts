@@ -2,7 +2,11 @@ import type { PartitionSummary } from "@/lib/analysis/summary";
 import type { ReportInput } from "@/db/schema/analyses";
 import { formatBytes, formatFigure, VERDICT_LABELS } from "./report-view";
 
-export type ComparedReport = { summary: PartitionSummary; inputs: ReportInput[] };
+export type ComparedReport = {
+  summary: PartitionSummary;
+  inputs: ReportInput[];
+  shardCount: number;
+};
 
 export interface ComparisonRow {
   group: "Verdict" | "Plan" | "Heterogeneity" | "Skew" | "Data";
@@ -73,7 +77,7 @@ const FIGURES: Figure[] = [
   ["Skew", "Quantity skew, Gini", ({ summary }) => formatFigure(summary.quantitySkew.gini)],
   ["Skew", "Quantity skew, CV", ({ summary }) => formatFigure(summary.quantitySkew.cv)],
   ["Data", "Rows kept", ({ summary }) => summary.dataset.rows.toLocaleString("en-US")],
-  ["Data", "Shards", ({ summary }) => summary.shards.length.toLocaleString("en-US")],
+  ["Data", "Shards", ({ shardCount }) => shardCount.toLocaleString("en-US")],
   ["Data", "Encoded features", ({ summary }) => String(summary.dataset.features)],
   [
     "Data",

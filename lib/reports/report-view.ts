@@ -130,11 +130,16 @@ const POOLED_BAR_KEY = "pooled";
 
 /**
  * The label mix per shard as shares of its rows. All shards in stored order when they fit under the
- * cap; otherwise the `cap` most divergent by total variation, most divergent first.
+ * cap; otherwise the `cap` most divergent by total variation, most divergent first. `totalShards`
+ * counts every shard of the report; `summary.shards` may hold only the most divergent of them.
  */
-export function buildLabelMix(summary: PartitionSummary, cap: number): LabelMix {
+export function buildLabelMix(
+  summary: PartitionSummary,
+  cap: number,
+  totalShards: number,
+): LabelMix {
   const { categories, pooled } = summary.labelSkew;
-  const capped = summary.shards.length > cap;
+  const capped = totalShards > cap;
   const shown = capped
     ? rankShardsByDivergence(summary.shards, "tv").slice(0, cap)
     : summary.shards;
@@ -159,7 +164,7 @@ export function buildLabelMix(summary: PartitionSummary, cap: number): LabelMix 
       ),
     ],
     shownShards: shown.length,
-    totalShards: summary.shards.length,
+    totalShards,
     capped,
   };
 }

@@ -2,7 +2,11 @@ import type { reportShards } from "@/db/schema/analyses";
 import type { PartitionSummary } from "@/lib/analysis";
 
 /** One row of a report's per-shard table, as stored in `report_shards`. */
-export type ShardTableRow = Omit<typeof reportShards.$inferSelect, "reportId" | "ordinal">;
+/** A row of the per-shard table: a shard's figures (its label counts feed only the charts). */
+export type ShardTableRow = Omit<
+  typeof reportShards.$inferSelect,
+  "reportId" | "ordinal" | "labelCounts"
+>;
 
 export type ShardColumnKey = Exclude<keyof ShardTableRow, "shardId">;
 

@@ -12,7 +12,7 @@ import { readFileSync } from "node:fs";
 import { encode } from "next-auth/jwt";
 import { closeDb, db } from "@/db/client";
 import { insertApiToken } from "@/db/queries/api-tokens";
-import { insertShardRows, listFiguresOf } from "@/db/queries/report-store";
+import { insertShardRows, listFiguresOf, summaryHeaderOf } from "@/db/queries/report-store";
 import { openSession } from "@/db/queries/sessions";
 import { createAccountWithWorkspace } from "@/db/queries/workspaces";
 import { analyses, dataFiles, reports } from "@/db/schema";
@@ -66,6 +66,7 @@ async function seed(summary: PartitionSummary, count: number, tokenCount: number
         title: `Bench report ${index + 1}`,
         ...listFiguresOf(summary),
         summary,
+        summaryHeader: summaryHeaderOf(summary),
         parameters,
         inputs: [],
         engineVersion: summary.engineVersion,

@@ -126,4 +126,74 @@ describe("migrations", () => {
       );
     }
   });
+
+  it("give stored reports their summary header and each shard its label counts", async () => {
+    // A database migrated up to the migration before, holding a report stored the old way.
+    const oldName = `${databaseName}_header`;
+    const oldUrl = Object.assign(new URL(serverUrl), { pathname: `/${oldName}` }).toString();
+    const partialFolder = mkdtempSync(path.join(tmpdir(), "partita-migrations-"));
+    await onServer((client) => client.query(`CREATE DATABASE ${pg.escapeIdentifier(oldName)}`));
+    const pool = new pg.Pool({ connectionString: oldUrl, max: 1 });
+    try {
+      cpSync(migrationsFolder, partialFolder, { recursive: true });
+      const journalPath = path.join(partialFolder, "meta", "_journal.json");
+      const journal = JSON.parse(readFileSync(journalPath, "utf8")) as {
+        entries: { tag: string }[];
+      };
+      const cut = journal.entries.findIndex((entry) =>
+        entry.tag.endsWith("report_summary_header_and_shard_label_counts"),
+      );
+      expect(cut).toBeGreaterThan(0);
+      writeFileSync(
+        journalPath,
+        JSON.stringify({ ...journal, entries: journal.entries.slice(0, cut) }),
+      );
+      await migrate(drizzle(pool), { migrationsFolder: partialFolder });
+      // The summary's text as stored (json keeps it byte for byte), two shards in stored order.
+      const shards = [
+        { id: "a", rows: 3, labelCounts: [2, 1, 0] },
+        { id: "b", rows: 4, labelCounts: [0, 1, 3] },
+      ];
+      const summary = { engineVersion: "1", shards, advice: { verdict: "local-updates" } };
+      await pool.query(
+        `INSERT INTO users (id, email) VALUES ('u', 'u@example.test');
+         INSERT INTO workspaces (id, name) VALUES ('w', 'W');
+         INSERT INTO data_files (id, workspace_id, kind, name, object_key, size_bytes, uploaded_by)
+           VALUES ('f', 'w', 'dataset', 'd.csv', 'k', 1, 'u');
+         INSERT INTO analyses (id, workspace_id, title, dataset_file_id, parameters, created_by)
+           VALUES ('an', 'w', 'T', 'f', '{}', 'u')`,
+      );
+      await pool.query(
+        `INSERT INTO reports (id, workspace_id, analysis_id, lineage_id, version, title, verdict,
+           dataset_rows, shard_count, summary, parameters, inputs, engine_version, timings, author_id)
+         VALUES ('r', 'w', 'an', 'r', 1, 'T', 'local-updates', 7, 2, $1, '{}', '[]', '1', '{}', 'u')`,
+        [JSON.stringify(summary)],
+      );
+      for (const [ordinal, shard] of shards.entries()) {
+        await pool.query(
+          `INSERT INTO report_shards (report_id, ordinal, shard_id, rows, tv, hellinger, js, kl,
+             grad_norm2, sigma2, loss, classes_present, effective_classes, feature_shift)
+           VALUES ('r', $1, $2, $3, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0)`,
+          [ordinal, shard.id, shard.rows],
+        );
+      }
+
+      await migrate(drizzle(pool), { migrationsFolder });
+
+      const report = await pool.query("SELECT summary_header, summary FROM reports");
+      expect(report.rows).toEqual([{ summary_header: { ...summary, shards: [] }, summary }]);
+      const counts = await pool.query(
+        "SELECT shard_id, label_counts FROM report_shards ORDER BY ordinal",
+      );
+      expect(counts.rows).toEqual(
+        shards.map((shard) => ({ shard_id: shard.id, label_counts: shard.labelCounts })),
+      );
+    } finally {
+      await pool.end();
+      rmSync(partialFolder, { recursive: true, force: true });
+      await onServer((client) =>
+        client.query(`DROP DATABASE IF EXISTS ${pg.escapeIdentifier(oldName)} WITH (FORCE)`),
+      );
+    }
+  });
 });

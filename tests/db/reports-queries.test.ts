@@ -11,6 +11,8 @@ import {
   listReports,
 } from "@/db/queries/reports";
 import { reports } from "@/db/schema";
+import { TOP_CHART_SHARDS } from "@/lib/reports/chart-shards";
+import { buildLabelMix, selectDivergenceCandidates } from "@/lib/reports/report-view";
 import { decodeReportCursor, type ReportCursor } from "@/lib/reports/report-cursor";
 import type { PartitionSummary } from "@/lib/analysis";
 import { createAccount, createTeam } from "@/tests/support/accounts";
@@ -208,14 +210,41 @@ describe("findShardPage", () => {
   // Penguins (vega-datasets) dealt to 250 colonies by a partition map: more than two pages of 100.
   let colonies: PartitionSummary;
   let reportId: string;
+  let owner: Awaited<ReturnType<typeof createAccount>>;
   beforeAll(async () => {
     colonies = await analyzePenguinColoniesWithCli(250);
-    const owner = await createAccount("colonies");
+    owner = await createAccount("colonies");
     ({ reportId } = await insertReport({
       workspaceId: owner.workspaceId,
       authorId: owner.id,
       summary: colonies,
     }));
+  });
+
+  it("gives the report page the summary without reading it whole: its charts come out as from every shard", async () => {
+    // Stored without its shards (a few kB whatever the report's size), the summary comes back
+    // with the shards its charts draw: above 200, the 40 most divergent by TV and by JS.
+    const [stored] = await db()
+      .select({ header: reports.summaryHeader })
+      .from(reports)
+      .where(eq(reports.id, reportId));
+    expect(stored.header).toEqual({ ...colonies, shards: [] });
+    const report = await findReport(owner.workspaceId, reportId);
+    expect(report?.shardCount).toBe(250);
+    const chartShards = report!.summary.shards;
+    expect(chartShards.length).toBeGreaterThanOrEqual(TOP_CHART_SHARDS);
+    expect(chartShards.length).toBeLessThanOrEqual(2 * TOP_CHART_SHARDS);
+    expect(report!.summary).toEqual({ ...colonies, shards: chartShards });
+    // Each shard as the CLI printed it, label counts included, in the summary's order.
+    const inOrder = colonies.shards.filter((shard) => chartShards.some((s) => s.id === shard.id));
+    expect(chartShards).toEqual(inOrder);
+    // Identity: the charts rank and cut the same shards from the selection as from all 250.
+    expect(buildLabelMix(report!.summary, 30, 250)).toEqual(
+      buildLabelMix(colonies, 30, colonies.shards.length),
+    );
+    expect(selectDivergenceCandidates(chartShards, TOP_CHART_SHARDS)).toEqual(
+      selectDivergenceCandidates(colonies.shards, TOP_CHART_SHARDS),
+    );
   });
 
   /**

@@ -5,7 +5,7 @@ import path from "node:path";
 import { promisify } from "node:util";
 import { eq } from "drizzle-orm";
 import { db } from "@/db/client";
-import { insertShardRows, listFiguresOf } from "@/db/queries/report-store";
+import { insertShardRows, listFiguresOf, summaryHeaderOf } from "@/db/queries/report-store";
 import { analyses, dataFiles, reports } from "@/db/schema";
 import type { PartitionSummary } from "@/lib/analysis";
 import { loadPenguinsCsv } from "@/tests/lib/analysis/support/open-data";
@@ -139,6 +139,7 @@ export async function insertReport(input: {
       title,
       ...listFiguresOf(summary),
       summary,
+      summaryHeader: summaryHeaderOf(summary),
       parameters,
       inputs: [
         {

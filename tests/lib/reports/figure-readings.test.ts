@@ -35,7 +35,9 @@ describe.each([
   });
 
   it("gives H a range that contains it: ½·λmax of a correlation matrix lies in [½, ½·d], plus λ", () => {
-    const h = readKeyFigures(summary).find((figure) => figure.name.startsWith("H"));
+    const h = readKeyFigures(summary, summary.shards.length).find((figure) =>
+      figure.name.startsWith("H"),
+    );
     const [low, high] = (h?.scale.match(/[\d.]+/g) ?? []).map(Number);
     // Linear algebra (common practice): a d×d correlation matrix has trace d and its largest
     // eigenvalue between 1 and d.
@@ -44,7 +46,9 @@ describe.each([
   });
 
   it("shows α̂ in total and per class side by side", () => {
-    const alpha = readKeyFigures(summary).find((figure) => figure.name.startsWith("Dirichlet"));
+    const alpha = readKeyFigures(summary, summary.shards.length).find((figure) =>
+      figure.name.startsWith("Dirichlet"),
+    );
     expect(alpha?.name).toContain("total · per class");
     expect(alpha?.what).toContain("α̂/C = α̂/3");
   });

@@ -18,6 +18,7 @@ function report(overrides: Partial<PartitionSummary["advice"]> = {}, zeta2 = 0.0
   } as unknown as PartitionSummary; // only the fields compareReports reads
   return {
     summary,
+    shardCount: 3,
     inputs: [
       {
         kind: "dataset",

@@ -65,7 +65,7 @@ describe("buildLabelMix", () => {
   ];
 
   it("puts the pooled mix first and every shard in stored order when they fit", () => {
-    const mix = buildLabelMix(summaryWith(shards), 10);
+    const mix = buildLabelMix(summaryWith(shards), 10, shards.length);
     expect(mix.capped).toBe(false);
     expect(mix.bars.map((bar) => bar.name)).toEqual(["All shards", "a", "b", "c", "All shards"]);
     // A shard named like the pooled bar still gets a key of its own.
@@ -75,7 +75,7 @@ describe("buildLabelMix", () => {
   });
 
   it("keeps only the most divergent shards, most divergent first, above the cap", () => {
-    const mix = buildLabelMix(summaryWith(shards), 2);
+    const mix = buildLabelMix(summaryWith(shards), 2, shards.length);
     expect(mix).toMatchObject({ capped: true, shownShards: 2, totalShards: 4 });
     expect(mix.bars.map((bar) => bar.name)).toEqual(["All shards", "b", "All shards"]);
   });

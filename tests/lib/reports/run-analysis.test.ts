@@ -173,6 +173,7 @@ describe("running an analysis job", () => {
     ]);
     const direct = await analyzeDirectly({});
     expect(report.summary).toEqual(direct);
+    expect(report.summaryHeader).toEqual({ ...direct, shards: [] });
     expect(report.verdict).toBe(direct.advice.verdict);
     expect(report.engineVersion).toBe(direct.engineVersion);
     expect(report.parameters).toMatchObject(PENGUIN_OPTIONS);
@@ -186,10 +187,10 @@ describe("running an analysis job", () => {
       .orderBy(asc(reportShards.ordinal));
     expect(shards.map((shard) => shard.shardId)).toEqual(["Biscoe", "Dream", "Torgersen"]);
     shards.forEach((shard, ordinal) => {
-      const { labelCounts, id, ...measures } = direct.shards[ordinal];
+      const { id, ...measures } = direct.shards[ordinal];
       expect(shard).toEqual({ reportId: report.id, ordinal, shardId: id, ...measures });
       // Identity: a shard's label counts add up to its rows.
-      expect(labelCounts.reduce((sum, count) => sum + count, 0)).toBe(shard.rows);
+      expect(shard.labelCounts.reduce((sum, count) => sum + count, 0)).toBe(shard.rows);
     });
   });
 

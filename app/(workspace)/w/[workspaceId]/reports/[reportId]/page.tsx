@@ -78,11 +78,11 @@ export default async function ReportPage({ params, searchParams }: PageProps) {
         <ReviewStateChip state={review.state} />
       </a>
       <VerdictPanel summary={summary} />
-      <KeyFigures summary={summary} />
+      <KeyFigures summary={summary} shardCount={report.shardCount} />
       {summary.digests ? <DigestProvenance digests={summary.digests} /> : null}
       <ReportProvenance report={report} />
       <Cautions sharing />
-      <ReportEvidence summary={summary} />
+      <ReportEvidence summary={summary} shardCount={report.shardCount} />
       <SimulationSection summary={summary} />
       <section aria-labelledby="shards-heading" className="space-y-3 print:break-before-page">
         <h2 id="shards-heading" className="text-xl font-semibold text-ink">

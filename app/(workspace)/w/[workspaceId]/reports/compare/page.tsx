@@ -113,7 +113,7 @@ export default async function CompareReportsPage({
         </p>
         <div className="grid gap-6 md:grid-cols-2">
           {[left, right].map((report, index) => {
-            const mix = buildLabelMix(report.summary, LABEL_MIX_CAP);
+            const mix = buildLabelMix(report.summary, LABEL_MIX_CAP, report.shardCount);
             return (
               <figure
                 key={`${report.id}-${index}`}
