@@ -13,11 +13,11 @@ import type { RawDataset } from "./read-dataset";
 import { quoteValue } from "./quote-value";
 import { ValueBlocks, writeDesignToFile } from "./stored-encoding";
 import { isStoredMatrix, type StoredMatrix } from "./stored-matrix";
+import { MAX_CLASSES_FOR_NUMERIC_LABEL } from "./task-rules";
 
 /** Columns whose population standard deviation is below this are dropped (methods.md §1). */
 export const MIN_FEATURE_STD = 1e-12;
-/** A numeric label with at most this many distinct values is a class label (methods.md §1). */
-export const MAX_CLASSES_FOR_NUMERIC_LABEL = 20;
+export { MAX_CLASSES_FOR_NUMERIC_LABEL };
 
 /** One standardized column of the design and how to compute it from its source column. */
 type EncodedColumn =
