@@ -1,5 +1,6 @@
 // The analysis worker: takes analysis jobs from the pg-boss queue in PostgreSQL and runs them, one
-// at a time (the engine keeps a core busy; with two cores the web app keeps the other), and sends
+// at a time (the engine keeps a core busy; with two cores the web app keeps the other), runs layout
+// plans from their own queue (one at a time, beside the analyses), and sends
 // the e-mail waiting in the outbox. Start as many as you like, on one machine or several, with the same DATABASE_URL and S3_* configuration:
 // pg-boss hands each job to exactly one of them, and any of them retries a crashed worker's job.
 //
@@ -14,11 +15,15 @@ import {
   analysisJobSchema,
   FEDERATED_QUEUE,
   federatedJobSchema,
+  LAYOUT_PLAN_QUEUE,
+  layoutPlanJobSchema,
   startBoss,
   type AnalysisJob,
   type FederatedJob,
+  type LayoutPlanJob,
 } from "@/lib/jobs";
 import { runFederatedCoordinator } from "@/lib/federated/run-coordinator";
+import { runLayoutPlan } from "@/lib/layout-plans/run-layout-plan";
 import { runMailSender } from "@/lib/mail";
 import { env } from "@/lib/env";
 import { sweepLostRuns } from "@/lib/reports/lost-runs";
@@ -83,6 +88,29 @@ async function handleFederatedJob(job: PgBoss.JobWithMetadata<FederatedJob>): Pr
   log(`federated analysis ${federatedAnalysisId}: ${result.outcome}${detail}`);
 }
 
+async function handlePlanJob(job: PgBoss.JobWithMetadata<LayoutPlanJob>): Promise<void> {
+  const parsed = layoutPlanJobSchema.safeParse(job.data);
+  if (!parsed.success) {
+    log(`job ${job.id}: not a layout plan job, skipped`);
+    return;
+  }
+  const { planId } = parsed.data;
+  const started = performance.now();
+  const elapsed = () => `${((performance.now() - started) / 1000).toFixed(1)} s`;
+  try {
+    const result = await runLayoutPlan(parsed.data, {
+      willRetry: job.retryCount < job.retryLimit,
+      signal: shutdown.signal,
+    });
+    const detail =
+      result.outcome === "succeeded" ? ` (${result.scored} scored, ${result.failed} failed)` : "";
+    log(`layout plan ${planId}: ${result.outcome}${detail} in ${elapsed()}`);
+  } catch (error) {
+    log(`layout plan ${planId}: stopped after ${elapsed()}`);
+    throw error;
+  }
+}
+
 async function main() {
   const boss = await startBoss({
     applicationName: "partita-worker",
@@ -129,7 +157,14 @@ async function main() {
       async ([job]) => handleFederatedJob(job),
     );
   }
-  log(`ready: taking jobs from queues "${ANALYSIS_QUEUE}" and "${FEDERATED_QUEUE}"`);
+  await boss.work<LayoutPlanJob>(
+    LAYOUT_PLAN_QUEUE,
+    { includeMetadata: true, batchSize: 1, pollingIntervalSeconds: 1 },
+    async ([job]) => handlePlanJob(job),
+  );
+  log(
+    `ready: taking jobs from queues "${ANALYSIS_QUEUE}", "${FEDERATED_QUEUE}" and "${LAYOUT_PLAN_QUEUE}"`,
+  );
 }
 
 main().catch((error: unknown) => {

@@ -5,3 +5,4 @@ export * from "./api-tokens";
 export * from "./reviews";
 export * from "./mail-outbox";
 export * from "./federated";
+export * from "./layout-plans";

@@ -2,6 +2,7 @@ import PgBoss from "pg-boss";
 import { env } from "@/lib/env";
 import { ANALYSIS_JOB_POLICY, ANALYSIS_QUEUE } from "./analysis-queue";
 import { FEDERATED_JOB_POLICY, FEDERATED_QUEUE } from "./federated-queue";
+import { LAYOUT_PLAN_JOB_POLICY, LAYOUT_PLAN_QUEUE } from "./layout-plan-queue";
 
 export interface BossOptions {
   /** Shown in pg_stat_activity, e.g. "partita-worker". */
@@ -17,8 +18,9 @@ export interface BossOptions {
 
 /**
  * A started pg-boss on DATABASE_URL, with its tables in its own `pgboss` schema (created or
- * migrated on first start) and the analysis and federated queues in place. Both are "stately": at
- * most one queued and one active job per singleton key, and every job's key is its analysis id.
+ * migrated on first start) and the analysis, federated and layout plan queues in place. All are
+ * "stately": at most one queued and one active job per singleton key, and every job's key is its
+ * analysis's or plan's id.
  */
 export async function startBoss(options: BossOptions): Promise<PgBoss> {
   const boss = new PgBoss({
@@ -41,6 +43,11 @@ export async function startBoss(options: BossOptions): Promise<PgBoss> {
     name: FEDERATED_QUEUE,
     policy: "stately",
     ...FEDERATED_JOB_POLICY,
+  });
+  await boss.createQueue(LAYOUT_PLAN_QUEUE, {
+    name: LAYOUT_PLAN_QUEUE,
+    policy: "stately",
+    ...LAYOUT_PLAN_JOB_POLICY,
   });
   return boss;
 }

@@ -3,6 +3,7 @@ import type PgBoss from "pg-boss";
 import { ANALYSIS_JOB_POLICY, ANALYSIS_QUEUE, type AnalysisJob } from "./analysis-queue";
 import { startBoss } from "./boss";
 import { FEDERATED_JOB_POLICY, FEDERATED_QUEUE, type FederatedJob } from "./federated-queue";
+import { LAYOUT_PLAN_JOB_POLICY, LAYOUT_PLAN_QUEUE, type LayoutPlanJob } from "./layout-plan-queue";
 
 // One sending pg-boss per server process, kept on globalThis so development reloads reuse it.
 const holder = globalThis as typeof globalThis & { partitaBoss?: Promise<PgBoss> };
@@ -45,6 +46,17 @@ export async function enqueueFederatedAnalysis(job: FederatedJob): Promise<strin
     singletonKey: job.federatedAnalysisId,
   });
   if (!jobId) throw new Error(`federated analysis ${job.federatedAnalysisId} already has a job`);
+  return jobId;
+}
+
+/** Queues a layout plan for the workers and returns the job id (the plan id is the singleton key). */
+export async function enqueueLayoutPlan(job: LayoutPlanJob): Promise<string> {
+  const boss = await sendingBoss();
+  const jobId = await boss.send(LAYOUT_PLAN_QUEUE, job, {
+    ...LAYOUT_PLAN_JOB_POLICY,
+    singletonKey: job.planId,
+  });
+  if (!jobId) throw new Error(`layout plan ${job.planId} already has a queued job`);
   return jobId;
 }
 

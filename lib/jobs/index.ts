@@ -6,10 +6,21 @@ export {
   type AnalysisJob,
 } from "./analysis-queue";
 export { startBoss, type BossOptions } from "./boss";
-export { enqueueAnalysis, enqueueFederatedAnalysis, stopSendingBoss } from "./enqueue";
+export {
+  enqueueAnalysis,
+  enqueueFederatedAnalysis,
+  enqueueLayoutPlan,
+  stopSendingBoss,
+} from "./enqueue";
 export {
   FEDERATED_JOB_POLICY,
   FEDERATED_QUEUE,
   federatedJobSchema,
   type FederatedJob,
 } from "./federated-queue";
+export {
+  LAYOUT_PLAN_JOB_POLICY,
+  LAYOUT_PLAN_QUEUE,
+  layoutPlanJobSchema,
+  type LayoutPlanJob,
+} from "./layout-plan-queue";

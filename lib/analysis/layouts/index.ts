@@ -1,6 +1,7 @@
 /** The layout planner of methods.md §8: candidate splits of one dataset, scored and compared. */
 export {
   defaultLayoutSpecs,
+  describeLayoutParameters,
   GENERATOR_FACTS,
   LAYOUT_GENERATORS,
   nameLayout,
@@ -13,6 +14,7 @@ export {
   DEFAULT_LAYOUT_SEED,
   planLayouts,
   type LayoutCandidate,
+  type LayoutCandidateOutcome,
   type LayoutComparison,
   type LayoutFailure,
   type LayoutPlanInput,

@@ -41,7 +41,17 @@ export interface LayoutPlanInput {
   /** Cancels between candidates (and within a candidate's simulation). */
   signal?: AbortSignal;
   onProgress?: (progress: LayoutPlanProgress) => void;
+  /**
+   * Each candidate as soon as it is scored or has failed, awaited before the next one starts (a
+   * background run stores it, so a cancelled plan keeps the candidates it finished).
+   */
+  onCandidate?: (outcome: LayoutCandidateOutcome) => Promise<void>;
 }
+
+/** One candidate's outcome: scored (with its map's rows) or failed. */
+export type LayoutCandidateOutcome =
+  | { index: number; candidate: LayoutCandidate; rowIds: string[]; assignment: ShardAssignment }
+  | { index: number; failure: LayoutFailure };
 
 export type LayoutPlanProgress =
   | { stage: "reading" | "encoding"; fraction: number }
@@ -145,12 +155,16 @@ export async function planLayouts(input: LayoutPlanInput): Promise<LayoutPlanRes
         const assignment = generateLayout(spec, rows, input.shardCount, seed);
         const summary = await scoreLayout(design, assignment, raw, input, options, pool, report);
         assignments.set(name, assignment);
-        layouts.push({ ...record, shards: summary.shards.length, summary });
+        const candidate = { ...record, shards: summary.shards.length, summary };
+        layouts.push(candidate);
+        await input.onCandidate?.({ index, candidate, rowIds, assignment });
         report("done");
       } catch (error) {
         if (input.signal?.aborted) throw error;
         const badInput = error instanceof AnalysisInputError;
-        failures.push({ ...record, message: (error as Error).message, badInput });
+        const failure = { ...record, message: (error as Error).message, badInput };
+        failures.push(failure);
+        await input.onCandidate?.({ index, failure });
         report("failed");
       }
     }

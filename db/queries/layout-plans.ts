@@ -1,0 +1,311 @@
+import "server-only";
+import { and, asc, desc, eq, inArray, sql } from "drizzle-orm";
+import { db } from "@/db/client";
+import { dataFiles, layoutCandidates, layoutPlans } from "@/db/schema";
+import type { PartitionSummary } from "@/lib/analysis";
+// The generators' module itself: the engine's index also exports the passes' and the simulation's
+// worker threads, which a server bundle cannot hold.
+import { describeLayoutParameters, nameLayout } from "@/lib/analysis/layouts/generators";
+import type { LayoutPlanRequest } from "@/lib/validation/layout-plan";
+import { findInputFiles, type AnalysisInputFile } from "./analyses";
+
+// Every function here takes the workspace id and filters by it (candidates through their plan), so
+// no caller can reach another workspace's plans, whatever id it was handed.
+
+export type LayoutPlan = typeof layoutPlans.$inferSelect;
+export type LayoutPlanStatus = LayoutPlan["status"];
+export type LayoutCandidateRow = typeof layoutCandidates.$inferSelect;
+
+/** A plan with its candidates in the plan's order, as the pages and the API show it. */
+export type LayoutPlanView = LayoutPlan & {
+  datasetName: string;
+  candidates: LayoutCandidateRow[];
+};
+
+/** Records a requested plan and its candidates, queued; the caller checked the dataset's workspace. */
+export async function insertLayoutPlan(
+  workspaceId: string,
+  createdBy: string,
+  request: LayoutPlanRequest,
+): Promise<string> {
+  return db().transaction(async (tx) => {
+    const [plan] = await tx
+      .insert(layoutPlans)
+      .values({
+        workspaceId,
+        createdBy,
+        title: request.title,
+        datasetFileId: request.datasetFileId,
+        options: request.options,
+        groupColumn: request.groupColumn ?? null,
+        shardCount: request.shardCount,
+        generators: request.generators,
+        seed: request.seed,
+      })
+      .returning({ id: layoutPlans.id });
+    await tx.insert(layoutCandidates).values(
+      request.generators.map((spec, ordinal) => ({
+        planId: plan.id,
+        ordinal,
+        name: nameLayout(spec),
+        generator: spec.generator,
+        parameters: describeLayoutParameters(spec),
+      })),
+    );
+    return plan.id;
+  });
+}
+
+export async function setLayoutPlanJobId(workspaceId: string, planId: string, jobId: string) {
+  await db()
+    .update(layoutPlans)
+    .set({ jobId })
+    .where(and(eq(layoutPlans.workspaceId, workspaceId), eq(layoutPlans.id, planId)));
+}
+
+/** Removes a plan whose job could not be queued, so no plan waits for a job that never comes. */
+export async function deleteUnqueuedLayoutPlan(workspaceId: string, planId: string) {
+  await db()
+    .delete(layoutPlans)
+    .where(
+      and(
+        eq(layoutPlans.workspaceId, workspaceId),
+        eq(layoutPlans.id, planId),
+        sql`${layoutPlans.jobId} is null`,
+      ),
+    );
+}
+
+/** The workspace's plans, newest first, with how many candidates are done. */
+export async function listLayoutPlans(workspaceId: string) {
+  return db()
+    .select({
+      id: layoutPlans.id,
+      title: layoutPlans.title,
+      status: layoutPlans.status,
+      shardCount: layoutPlans.shardCount,
+      createdAt: layoutPlans.createdAt,
+      datasetName: dataFiles.name,
+      candidates: sql<number>`(select count(*)::int from ${layoutCandidates} where ${layoutCandidates.planId} = ${layoutPlans.id})`,
+      scored: sql<number>`(select count(*)::int from ${layoutCandidates} where ${layoutCandidates.planId} = ${layoutPlans.id} and ${layoutCandidates.status} = 'succeeded')`,
+    })
+    .from(layoutPlans)
+    .innerJoin(dataFiles, eq(dataFiles.id, layoutPlans.datasetFileId))
+    .where(eq(layoutPlans.workspaceId, workspaceId))
+    .orderBy(desc(layoutPlans.createdAt))
+    .limit(100);
+}
+
+/** One plan of this workspace with its candidates, or undefined. */
+export async function findLayoutPlan(
+  workspaceId: string,
+  planId: string,
+): Promise<LayoutPlanView | undefined> {
+  const [plan] = await db()
+    .select({ plan: layoutPlans, datasetName: dataFiles.name })
+    .from(layoutPlans)
+    .innerJoin(dataFiles, eq(dataFiles.id, layoutPlans.datasetFileId))
+    .where(and(eq(layoutPlans.workspaceId, workspaceId), eq(layoutPlans.id, planId)));
+  if (!plan) return undefined;
+  const candidates = await db()
+    .select()
+    .from(layoutCandidates)
+    .where(eq(layoutCandidates.planId, planId))
+    .orderBy(asc(layoutCandidates.ordinal));
+  return { ...plan.plan, datasetName: plan.datasetName, candidates };
+}
+
+/** A claimed plan and the dataset it reads. */
+export type ClaimedLayoutPlan = LayoutPlan & { dataset: AnalysisInputFile };
+
+/**
+ * Marks a queued plan running (a retried job finds it queued again) and returns it with its
+ * dataset; undefined when it was cancelled or already taken.
+ */
+export async function claimLayoutPlan(
+  workspaceId: string,
+  planId: string,
+): Promise<ClaimedLayoutPlan | undefined> {
+  const [claimed] = await db()
+    .update(layoutPlans)
+    .set({ status: "running", startedAt: sql`now()`, stage: null, fraction: 0 })
+    .where(
+      and(
+        eq(layoutPlans.workspaceId, workspaceId),
+        eq(layoutPlans.id, planId),
+        eq(layoutPlans.status, "queued"),
+      ),
+    )
+    .returning();
+  if (!claimed) return undefined;
+  const [dataset] = await findInputFiles(workspaceId, [claimed.datasetFileId]);
+  if (!dataset) throw new Error(`layout plan ${planId}: its dataset file is missing`);
+  // A retried job starts the candidates over.
+  await db()
+    .update(layoutCandidates)
+    .set({ status: "queued", stage: null, fraction: 0, failureMessage: null, finishedAt: null })
+    .where(and(eq(layoutCandidates.planId, planId), inArray(layoutCandidates.status, ["running"])));
+  return { ...claimed, dataset };
+}
+
+const planIs = (workspaceId: string, planId: string) =>
+  and(eq(layoutPlans.workspaceId, workspaceId), eq(layoutPlans.id, planId));
+
+/** Stores the shared stage's progress; false when the plan is no longer running (cancelled). */
+export async function recordLayoutPlanProgress(
+  workspaceId: string,
+  planId: string,
+  progress: { stage: string; fraction: number },
+): Promise<boolean> {
+  const rows = await db()
+    .update(layoutPlans)
+    .set(progress)
+    .where(and(planIs(workspaceId, planId), eq(layoutPlans.status, "running")))
+    .returning({ id: layoutPlans.id });
+  return rows.length > 0;
+}
+
+export async function isLayoutPlanRunning(workspaceId: string, planId: string): Promise<boolean> {
+  const [row] = await db()
+    .select({ status: layoutPlans.status })
+    .from(layoutPlans)
+    .where(planIs(workspaceId, planId));
+  return row?.status === "running";
+}
+
+/**
+ * Updates one candidate of a running plan: its progress, or its end (summary and map, or a failure
+ * message). The plan's workspace and running state are checked in the same statement.
+ */
+export async function updateLayoutCandidate(
+  workspaceId: string,
+  planId: string,
+  ordinal: number,
+  values: Partial<
+    Pick<
+      LayoutCandidateRow,
+      | "status"
+      | "stage"
+      | "fraction"
+      | "failureMessage"
+      | "failedOnInput"
+      | "mapObjectKey"
+      | "mapSizeBytes"
+    >
+  > & { summary?: PartitionSummary; finished?: boolean },
+): Promise<void> {
+  const { finished, ...columns } = values;
+  await db()
+    .update(layoutCandidates)
+    .set({ ...columns, ...(finished && { finishedAt: sql`now()` }) })
+    .where(
+      and(
+        eq(layoutCandidates.planId, planId),
+        eq(layoutCandidates.ordinal, ordinal),
+        sql`exists (select 1 from ${layoutPlans} where ${layoutPlans.id} = ${planId} and ${layoutPlans.workspaceId} = ${workspaceId} and ${layoutPlans.status} = 'running')`,
+      ),
+    );
+}
+
+/**
+ * Ends a running plan. Candidates not yet finished end with it: cancelled with a cancelled plan,
+ * failed (with the plan's message) otherwise.
+ */
+export async function endLayoutPlan(
+  workspaceId: string,
+  planId: string,
+  end: { status: "succeeded" | "failed" | "queued"; message?: string },
+): Promise<void> {
+  await db().transaction(async (tx) => {
+    const rows = await tx
+      .update(layoutPlans)
+      .set({
+        status: end.status,
+        failureMessage: end.message ?? null,
+        finishedAt: end.status === "queued" ? null : sql`now()`,
+        fraction: end.status === "succeeded" ? 1 : layoutPlans.fraction,
+      })
+      .where(and(planIs(workspaceId, planId), eq(layoutPlans.status, "running")))
+      .returning({ id: layoutPlans.id });
+    if (rows.length === 0 || end.status === "queued") return;
+    await tx
+      .update(layoutCandidates)
+      .set({ status: "failed", failureMessage: end.message ?? null, finishedAt: sql`now()` })
+      .where(
+        and(
+          eq(layoutCandidates.planId, planId),
+          inArray(layoutCandidates.status, ["queued", "running"]),
+        ),
+      );
+  });
+}
+
+/**
+ * Cancels a queued or running plan and its unfinished candidates; the worker notices and stops.
+ * Returns false when the plan had already ended.
+ */
+export async function cancelLayoutPlan(workspaceId: string, planId: string): Promise<boolean> {
+  return db().transaction(async (tx) => {
+    const rows = await tx
+      .update(layoutPlans)
+      .set({ status: "cancelled", finishedAt: sql`now()` })
+      .where(and(planIs(workspaceId, planId), inArray(layoutPlans.status, ["queued", "running"])))
+      .returning({ id: layoutPlans.id });
+    if (rows.length === 0) return false;
+    await tx
+      .update(layoutCandidates)
+      .set({ status: "cancelled", finishedAt: sql`now()` })
+      .where(
+        and(
+          eq(layoutCandidates.planId, planId),
+          inArray(layoutCandidates.status, ["queued", "running"]),
+        ),
+      );
+    return true;
+  });
+}
+
+/**
+ * Registers a scored candidate's stored map as a layout file of the workspace (once; later calls
+ * return the same file), so an analysis reads it like an uploaded partition map.
+ */
+export async function registerCandidateMap(
+  workspaceId: string,
+  planId: string,
+  ordinal: number,
+  uploadedBy: string,
+): Promise<string | undefined> {
+  return db().transaction(async (tx) => {
+    const [row] = await tx
+      .select({ candidate: layoutCandidates })
+      .from(layoutCandidates)
+      .innerJoin(layoutPlans, eq(layoutPlans.id, layoutCandidates.planId))
+      .where(
+        and(
+          planIs(workspaceId, planId),
+          eq(layoutCandidates.ordinal, ordinal),
+          eq(layoutCandidates.status, "succeeded"),
+        ),
+      )
+      .for("update", { of: layoutCandidates });
+    if (!row || row.candidate.mapObjectKey === null) return undefined;
+    if (row.candidate.mapFileId !== null) return row.candidate.mapFileId;
+    const [file] = await tx
+      .insert(dataFiles)
+      .values({
+        workspaceId,
+        kind: "layout",
+        name: `${row.candidate.name}.csv`,
+        objectKey: row.candidate.mapObjectKey,
+        sizeBytes: row.candidate.mapSizeBytes ?? 0,
+        contentType: "text/csv",
+        uploadedBy,
+      })
+      .returning({ id: dataFiles.id });
+    await tx
+      .update(layoutCandidates)
+      .set({ mapFileId: file.id })
+      .where(and(eq(layoutCandidates.planId, planId), eq(layoutCandidates.ordinal, ordinal)));
+    return file.id;
+  });
+}

@@ -1,0 +1,201 @@
+// A layout plan as background work, end to end against the real PostgreSQL and S3 fake that
+// `npm test` starts: queued through the action, run by the job's runner in this process (the
+// planner in its worker thread), candidates stored one by one. The outside check is methods.md §8's
+// read-back: every stored map, analysed by the engine directly, gives the stored summary.
+import { buffer } from "node:stream/consumers";
+import { Readable } from "node:stream";
+import { afterAll, beforeEach, describe, expect, it, vi } from "vitest";
+import type { LayoutPlanJob } from "@/lib/jobs";
+
+vi.mock("@/lib/auth/session", () => import("@/tests/support/fake-session"));
+
+const queue = vi.hoisted(() => ({ jobs: [] as LayoutPlanJob[] }));
+// Jobs are captured instead of sent, so this process runs each one exactly when the test says.
+vi.mock("@/lib/jobs", async (importOriginal) => ({
+  ...(await importOriginal<typeof import("@/lib/jobs")>()),
+  enqueueLayoutPlan: async (job: LayoutPlanJob) => {
+    queue.jobs.push(job);
+    return `captured-${queue.jobs.length}`;
+  },
+}));
+
+const candidateHook = vi.hoisted(() => ({
+  afterEnd: undefined as ((planId: string, ordinal: number) => Promise<void>) | undefined,
+}));
+// Lets a test act (cancel) right after a candidate's end was stored.
+vi.mock("@/db/queries/layout-plans", async (importOriginal) => {
+  const actual = await importOriginal<typeof import("@/db/queries/layout-plans")>();
+  return {
+    ...actual,
+    updateLayoutCandidate: async (...args: Parameters<typeof actual.updateLayoutCandidate>) => {
+      await actual.updateLayoutCandidate(...args);
+      if (args[3].finished) await candidateHook.afterEnd?.(args[1], args[2]);
+    },
+  };
+});
+
+import {
+  analyseCandidate,
+  cancelPlan,
+  startLayoutPlan,
+} from "@/app/(workspace)/w/[workspaceId]/layouts/actions";
+import { closeDb } from "@/db/client";
+import { findInputFiles } from "@/db/queries/analyses";
+import { findLayoutPlan } from "@/db/queries/layout-plans";
+import { analyzePartition, type PartitionSummary } from "@/lib/analysis";
+import { runLayoutPlan } from "@/lib/layout-plans/run-layout-plan";
+import { getObjectStream } from "@/lib/storage";
+import type { LayoutPlanInput } from "@/lib/validation/layout-plan";
+import { createTeam } from "@/tests/support/accounts";
+import { actAs } from "@/tests/support/fake-session";
+import { PENGUIN_OPTIONS, PENGUINS, storePenguins } from "../reports/support/stored-inputs";
+
+afterAll(closeDb);
+beforeEach(() => {
+  queue.jobs.length = 0;
+  candidateHook.afterEnd = undefined;
+});
+
+/** β = 10⁻⁴ over 3 shards leaves a shard empty in every one of the 100 draws (methods.md §8). */
+const FAILING_QUANTITY = { generator: "quantity", beta: 1e-4 } as const;
+
+async function planPenguins(overrides: Partial<LayoutPlanInput> = {}) {
+  const team = await createTeam();
+  const { dataset } = await storePenguins({
+    workspaceId: team.workspaceId,
+    uploadedBy: team.analyst.id,
+  });
+  actAs(team.analyst);
+  const started = await startLayoutPlan(team.workspaceId, {
+    title: "Penguin layouts",
+    datasetFileId: dataset.id,
+    options: PENGUIN_OPTIONS,
+    shardCount: 3,
+    generators: [
+      { generator: "iid" },
+      FAILING_QUANTITY,
+      { generator: "stratified" },
+      { generator: "classes", k: 2 },
+    ],
+    seed: 7,
+    ...overrides,
+  });
+  if (!started.ok) throw new Error(`startLayoutPlan failed: ${started.message}`);
+  return { team, planId: started.data.planId, job: queue.jobs.at(-1)! };
+}
+
+async function readObject(key: string): Promise<string> {
+  return (await buffer((await getObjectStream(key)).body)).toString("utf8");
+}
+
+describe("running a layout plan job", () => {
+  it("scores every candidate, records the failed one, and stores maps that read back to the summaries", async () => {
+    const { team, planId, job } = await planPenguins();
+    expect((await findLayoutPlan(team.workspaceId, planId))?.status).toBe("queued");
+
+    const outcome = await runLayoutPlan(job, { willRetry: false, progressIntervalMs: 0 });
+    expect(outcome).toEqual({ outcome: "succeeded", scored: 3, failed: 1 });
+
+    const plan = (await findLayoutPlan(team.workspaceId, planId))!;
+    expect(plan.status).toBe("succeeded");
+    expect(plan.seed).toBe(7);
+    expect(plan.candidates.map((candidate) => [candidate.name, candidate.status])).toEqual([
+      ["iid", "succeeded"],
+      ["quantity-0.0001", "failed"],
+      ["stratified", "succeeded"],
+      ["classes-2", "succeeded"],
+    ]);
+    expect(plan.candidates[1].failureMessage).toMatch(/empty|row/i);
+    for (const candidate of plan.candidates.filter((row) => row.status === "succeeded")) {
+      expect(candidate.fraction).toBe(1);
+      const map = await readObject(candidate.mapObjectKey!);
+      expect(map.startsWith("row_id,shard\n")).toBe(true);
+      // methods.md §8: the analysis given the exported map reaches the summary the plan stored.
+      const direct = await analyzePartition({
+        data: Readable.from([PENGUINS.csv]),
+        dataName: "penguins.csv",
+        partition: Readable.from([map]),
+        options: PENGUIN_OPTIONS,
+        threads: 1,
+      });
+      expect(candidate.summary, candidate.name).toEqual(
+        JSON.parse(JSON.stringify(direct)) as PartitionSummary,
+      );
+    }
+  }, 120_000);
+
+  it("registers a candidate's map once as a layout file, for analysts only and in its workspace", async () => {
+    const { team, planId, job } = await planPenguins({ generators: [{ generator: "iid" }] });
+    await runLayoutPlan(job, { willRetry: false });
+
+    const first = await analyseCandidate(team.workspaceId, planId, 0);
+    const again = await analyseCandidate(team.workspaceId, planId, 0);
+    expect(first.ok && again.ok && first.data.layoutFileId === again.data.layoutFileId).toBe(true);
+    const [file] = await findInputFiles(team.workspaceId, [
+      (first as { data: { layoutFileId: string } }).data.layoutFileId,
+    ]);
+    expect(file).toMatchObject({ kind: "layout", name: "iid.csv" });
+
+    actAs(team.reviewer);
+    expect(await analyseCandidate(team.workspaceId, planId, 0)).toMatchObject({ status: 403 });
+    const other = await createTeam();
+    actAs(other.owner);
+    expect(await analyseCandidate(other.workspaceId, planId, 0)).toMatchObject({ status: 404 });
+  }, 120_000);
+
+  it("stops when cancelled, keeping the candidates already scored", async () => {
+    const { team, planId, job } = await planPenguins({
+      generators: [
+        { generator: "iid" },
+        { generator: "stratified" },
+        { generator: "classes", k: 2 },
+      ],
+    });
+    candidateHook.afterEnd = async (id, ordinal) => {
+      if (id === planId && ordinal === 0) await cancelPlan(team.workspaceId, planId);
+    };
+    const outcome = await runLayoutPlan(job, { willRetry: false, pollMs: 20 });
+    expect(outcome).toEqual({ outcome: "cancelled" });
+    const plan = (await findLayoutPlan(team.workspaceId, planId))!;
+    expect(plan.status).toBe("cancelled");
+    expect(plan.candidates.map((candidate) => candidate.status)).toEqual([
+      "succeeded",
+      "cancelled",
+      "cancelled",
+    ]);
+  }, 120_000);
+
+  it("fails the whole plan with the engine's message when the group column does not exist", async () => {
+    const { team, planId, job } = await planPenguins({
+      groupColumn: "nest",
+      generators: [{ generator: "group-hash" }],
+    });
+    const outcome = await runLayoutPlan(job, { willRetry: false });
+    expect(outcome).toMatchObject({ outcome: "failed" });
+    const plan = (await findLayoutPlan(team.workspaceId, planId))!;
+    expect(plan.failureMessage).toMatch(/nest/);
+    expect(plan.candidates[0].status).toBe("failed");
+  }, 120_000);
+
+  it("refuses a plan a reviewer asks for, and a group generator without a group column", async () => {
+    const team = await createTeam();
+    const { dataset } = await storePenguins({
+      workspaceId: team.workspaceId,
+      uploadedBy: team.analyst.id,
+    });
+    const input = {
+      title: "t",
+      datasetFileId: dataset.id,
+      options: PENGUIN_OPTIONS,
+      shardCount: 3,
+      generators: [{ generator: "group-balanced" as const }],
+    };
+    actAs(team.reviewer);
+    expect(await startLayoutPlan(team.workspaceId, input)).toMatchObject({ status: 403 });
+    actAs(team.analyst);
+    const refused = await startLayoutPlan(team.workspaceId, input);
+    expect(refused.ok).toBe(false);
+    expect(JSON.stringify(refused)).toMatch(/needs a group column/);
+    expect(queue.jobs).toEqual([]);
+  });
+});
