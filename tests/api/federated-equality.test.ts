@@ -2,9 +2,14 @@
 // loop against the /api/v1/digests handlers, the worker's coordinator merges their digests, and the
 // stored report's summary (read back through GET /api/v1/reports/{id}) equals the central
 // analysis of the pooled rows — every summary key to 1e-9 relative — for each reference kind.
-// Open data: penguins from the `vega-datasets` npm package, sharded by island.
+// Open data: penguins from the `vega-datasets` npm package, sharded by island (classification), and
+// scikit-learn's diabetes data through /usr/bin/python3 (regression: its least-squares fit asks
+// the clients for Σx̃x̃ᵀ; its label skew comes from the 4096-cell histogram, methods.md §9's stated
+// exception, so those keys are compared loosely).
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { POST as createFederated } from "@/app/api/v1/federated/route";
+import { GET as getStatus } from "@/app/api/v1/federated/[analysisId]/route";
+import { POST as cancelRoute } from "@/app/api/v1/federated/[analysisId]/cancel/route";
 import { POST as issueKey } from "@/app/api/v1/federated/[analysisId]/keys/route";
 import { GET as getReport } from "@/app/api/v1/reports/[reportId]/route";
 import { closeDb } from "@/db/client";
@@ -16,7 +21,12 @@ import type { ReferenceWeights } from "@/lib/validation/analysis-options";
 import { Readable } from "node:stream";
 import { compareSummaries } from "@/tests/lib/analysis/digests/support";
 import { analyzeText } from "@/tests/lib/analysis/support/analyze-text";
-import { PENGUIN_COLUMNS, createPenguinClients } from "@/tests/lib/federated/support";
+import { splitAmongClients } from "@/tests/lib/analysis/digests/support";
+import {
+  PENGUIN_COLUMNS,
+  createPenguinClients,
+  loadDiabetesWithShards,
+} from "@/tests/lib/federated/support";
 import { createTeam } from "@/tests/support/accounts";
 import { apiRequest, issueTestToken } from "@/tests/support/api-tokens";
 import { createDigestRoutesClient } from "@/tests/support/digest-routes";
@@ -26,25 +36,38 @@ afterAll(async () => {
   await closeDb();
 });
 
+type Columns = { labelColumn: string; shardColumn: string; idColumn?: string };
+type Dataset = { name: string; csv: string; columns: Columns; texts: Record<Client, string> };
+type Client = "north" | "south";
+
 let token: string;
-let texts: { north: string; south: string };
-let pooledCsv: string;
+let penguins: Dataset;
 
 beforeAll(async () => {
   const team = await createTeam();
   token = (await issueTestToken(team.analyst.id, team.workspaceId)).token;
   const clients = await createPenguinClients();
-  texts = clients.texts;
-  pooledCsv = clients.csv;
   await Promise.all([clients.north.close(), clients.south.close()]);
+  penguins = { name: "penguins", csv: clients.csv, columns: PENGUIN_COLUMNS, texts: clients.texts };
 });
 
+function loadDiabetes(): Dataset {
+  const csv = loadDiabetesWithShards();
+  const [north, south] = splitAmongClients(csv, "shard", 2, 21);
+  return {
+    name: "diabetes",
+    csv,
+    columns: { labelColumn: "target", shardColumn: "shard" },
+    texts: { north, south },
+  };
+}
+
 /** A federated analysis over the API with a key per client. */
-async function createWithKeys(reference: "optimum" | "zero" | ReferenceWeights) {
+async function createWithKeys(dataset: Dataset, reference: "optimum" | "zero" | ReferenceWeights) {
   const created = await createFederated(
     apiRequest("/api/v1/federated", token, {
-      title: "Penguins by island, federated",
-      labelColumn: "Species",
+      title: `${dataset.name}, federated`,
+      labelColumn: dataset.columns.labelColumn,
       reference,
       clients: ["north", "south"],
     }),
@@ -64,22 +87,28 @@ async function createWithKeys(reference: "optimum" | "zero" | ReferenceWeights) 
 
 /** One client's run of the online loop over its own rows (the CLI's readRows, from text). */
 function runClient(
-  name: "north" | "south",
+  dataset: Dataset,
+  name: Client,
   key: string,
-  dropWhen?: Parameters<typeof createDigestRoutesClient>[1],
-  reconnectLimitMs?: number,
+  options: {
+    dropWhen?: Parameters<typeof createDigestRoutesClient>[1];
+    reconnectLimitMs?: number;
+    dryRun?: boolean;
+    print?: (json: string) => void;
+  } = {},
 ) {
   return runOnlineClient({
-    api: createDigestRoutesClient(key, dropWhen),
-    print: () => {},
+    api: createDigestRoutesClient(key, options.dropWhen),
+    print: options.print ?? (() => {}),
     log: () => {},
+    dryRun: options.dryRun,
     waitSeconds: 5,
-    reconnectLimitMs,
+    reconnectLimitMs: options.reconnectLimitMs,
     readRows: (assignment) =>
       readClientRows({
-        data: Readable.from([Buffer.from(texts[name], "utf8")]),
+        data: Readable.from([Buffer.from(dataset.texts[name], "utf8")]),
         dataName: `${name}.csv`,
-        columns: { ...PENGUIN_COLUMNS, labelColumn: assignment.labelColumn },
+        columns: { ...dataset.columns, labelColumn: assignment.labelColumn },
       }),
   });
 }
@@ -92,53 +121,104 @@ async function readSummary(reportId: string): Promise<PartitionSummary> {
   return (await response.json()) as PartitionSummary;
 }
 
-function expectEqualToCentral(central: PartitionSummary, merged: PartitionSummary) {
-  expect(compareSummaries(central, merged, false)).toEqual([]);
+function expectEqualToCentral(
+  central: PartitionSummary,
+  merged: PartitionSummary,
+  reference: "optimum" | "zero" | ReferenceWeights,
+) {
+  const regression = merged.dataset.task === "regression";
+  const differences = compareSummaries(central, merged, regression).filter(
+    // ‖∇F(W*)‖ at the optimum is the optimizer's residual: compared with its tolerance below.
+    (line) => !(reference === "optimum" && line.startsWith(".model.gradNorm")),
+  );
+  expect(differences).toEqual([]);
+  if (reference === "optimum") {
+    expect(merged.model.gradNorm).toBeLessThanOrEqual(merged.model.optimizer.tolerance);
+  }
+  if (regression) {
+    // The histogram's bins move only rows of the 4096 cells that hold a cut point.
+    expect(Math.abs(merged.labelSkew.tv - central.labelSkew.tv)).toBeLessThan(0.02);
+  }
   expect(merged.digests?.clients.map((client) => client.client)).toEqual(["north", "south"]);
   expect(merged.digests?.missingClients).toEqual([]);
+  expect(merged.digests?.fitted).toBe(true);
   expect(merged.preprocessing.warnings).toContain(DIGEST_CAUTION);
 }
 
 describe("a federated analysis through the server equals the central analysis", () => {
-  it("for zero, supplied weights and the pooled optimum", async () => {
-    const optimum = await analyzeText(pooledCsv, PENGUIN_COLUMNS);
-    const supplied: ReferenceWeights = {
-      ...optimum.model.optimum,
-      weights: optimum.model.optimum.weights.map((row) => row.map((v, j) => 0.5 * v + 0.01 * j)),
-    };
-    for (const reference of ["zero", supplied, "optimum"] as const) {
-      const central =
-        reference === "optimum"
-          ? optimum
-          : await analyzeText(pooledCsv, { ...PENGUIN_COLUMNS, reference });
-      const { keys } = await createWithKeys(reference);
-      const [northReport, southReport] = await Promise.all([
-        runClient("north", keys.north),
-        runClient("south", keys.south),
-      ]);
-      expect(northReport).toBe(southReport);
-      expectEqualToCentral(central, await readSummary(northReport!));
-    }
-  }, 300_000);
+  for (const load of [() => penguins, loadDiabetes]) {
+    it(`of ${load === loadDiabetes ? "diabetes (regression)" : "penguins (classification)"}, for zero, supplied weights and the pooled optimum`, async () => {
+      const dataset = load();
+      const optimum = await analyzeText(dataset.csv, dataset.columns);
+      const supplied: ReferenceWeights = {
+        ...optimum.model.optimum,
+        weights: optimum.model.optimum.weights.map((row) => row.map((v, j) => 0.5 * v + 0.01 * j)),
+      };
+      for (const reference of ["zero", supplied, "optimum"] as const) {
+        const central =
+          reference === "optimum"
+            ? optimum
+            : await analyzeText(dataset.csv, { ...dataset.columns, reference });
+        const { keys } = await createWithKeys(dataset, reference);
+        const [northReport, southReport] = await Promise.all([
+          runClient(dataset, "north", keys.north),
+          runClient(dataset, "south", keys.south),
+        ]);
+        expect(northReport).toBe(southReport);
+        expectEqualToCentral(central, await readSummary(northReport!), reference);
+      }
+    }, 300_000);
+  }
 
   it("takes back a client that lost its connection during the fit", async () => {
-    const { keys } = await createWithKeys("optimum");
+    const { keys } = await createWithKeys(penguins, "optimum");
     let answers = 0;
     // South's first run drops its third answer to the fit and gives up at once.
-    const firstRun = runClient(
-      "south",
-      keys.south,
-      (method, path) => method === "POST" && path.includes("/exchanges/") && ++answers === 3,
-      0,
-    );
-    const north = runClient("north", keys.north);
+    const firstRun = runClient(penguins, "south", keys.south, {
+      dropWhen: (method, path) =>
+        method === "POST" && path.includes("/exchanges/") && ++answers === 3,
+      reconnectLimitMs: 0,
+    });
+    const north = runClient(penguins, "north", keys.north);
     await expect(firstRun).rejects.toThrow(/connection dropped/);
     // It rejoins with the same key: round 1 is already accepted, the open question waits for it.
-    const [northReport, southReport] = await Promise.all([north, runClient("south", keys.south)]);
+    const [northReport, southReport] = await Promise.all([
+      north,
+      runClient(penguins, "south", keys.south),
+    ]);
     expect(southReport).toBe(northReport);
     expectEqualToCentral(
-      await analyzeText(pooledCsv, PENGUIN_COLUMNS),
+      await analyzeText(penguins.csv, penguins.columns),
       await readSummary(northReport!),
+      "optimum",
     );
   }, 300_000);
+});
+
+describe("the online client's dry run", () => {
+  it("prints exactly the round-1 digest it would send, and sends nothing", async () => {
+    const { analysisId, keys } = await createWithKeys(penguins, "zero");
+    let printed = "";
+    const result = await runClient(penguins, "north", keys.north, {
+      dryRun: true,
+      print: (json) => (printed += json),
+    });
+    expect(result).toBeNull();
+    // What the client would send: the engine's schema digest of the same rows, as JSON.
+    const clients = await createPenguinClients();
+    try {
+      expect(JSON.parse(printed)).toEqual(await clients.north.schema());
+    } finally {
+      await Promise.all([clients.north.close(), clients.south.close()]);
+    }
+    const status = (await (
+      await getStatus(apiRequest(`/api/v1/federated/${analysisId}`, token), {
+        params: Promise.resolve({ analysisId }),
+      })
+    ).json()) as { roster: { client: string; round: string }[] };
+    expect(status.roster.map((entry) => entry.round)).toEqual(["none", "none"]);
+    await cancelRoute(apiRequest(`/api/v1/federated/${analysisId}/cancel`, token, {}), {
+      params: Promise.resolve({ analysisId }),
+    });
+  });
 });
