@@ -1,6 +1,9 @@
 "use client";
 
+import { useState } from "react";
+import { deleteDataFile } from "@/app/(workspace)/w/[workspaceId]/analyses/new/actions";
 import { FileDrop } from "@/components/uploads/file-drop";
+import { ConfirmActionButton } from "@/components/ui/confirm-action-button";
 import type { DataFileSummary } from "@/db/queries/data-files";
 import { formatBytes, type DataFileKind } from "@/lib/uploads/file-rules";
 
@@ -13,7 +16,8 @@ const dateFormat = new Intl.DateTimeFormat("en", {
 
 /**
  * One input file of an analysis: upload a new one, or pick one already uploaded to this workspace
- * (newest first). A new upload is chosen as soon as it is registered.
+ * (newest first). A new upload is chosen as soon as it is registered. A file no analysis reads can
+ * be deleted from the list.
  */
 export function FileChoice({
   workspaceId,
@@ -41,6 +45,8 @@ export function FileChoice({
   error?: string;
 }) {
   const errorId = `${kind}-choice-error`;
+  const [deletedIds, setDeletedIds] = useState<string[]>([]);
+  const shown = files.filter((file) => !deletedIds.includes(file.id));
   return (
     <div className="grid gap-4 md:grid-cols-2">
       <FileDrop
@@ -56,15 +62,15 @@ export function FileChoice({
         aria-describedby={error ? errorId : undefined}
       >
         <legend className="text-sm font-medium">{groupLabel}</legend>
-        {files.length === 0 ? (
+        {shown.length === 0 ? (
           <p className="rounded-md border border-dashed border-ink/15 px-4 py-3 text-sm text-ink-soft">
             None yet: the first one you upload appears here.
           </p>
         ) : (
           <ul className="max-h-56 space-y-1 overflow-auto pr-1">
-            {files.map((file) => (
-              <li key={file.id}>
-                <label className="flex cursor-pointer items-start gap-3 rounded-md border border-ink/10 bg-white px-3 py-2 text-sm has-checked:border-indigo has-checked:bg-indigo-soft/40">
+            {shown.map((file) => (
+              <li key={file.id} className="flex items-start gap-1">
+                <label className="flex min-w-0 flex-1 cursor-pointer items-start gap-3 rounded-md border border-ink/10 bg-white px-3 py-2 text-sm has-checked:border-indigo has-checked:bg-indigo-soft/40">
                   <input
                     type="radio"
                     name={`${kind}-choice`}
@@ -78,9 +84,23 @@ export function FileChoice({
                     <span className="block text-xs text-ink-soft">
                       {formatBytes(file.sizeBytes)} · {file.preview?.columns.length ?? 0} columns ·
                       uploaded {dateFormat.format(new Date(file.createdAt))} UTC
+                      {file.analysisCount > 0
+                        ? ` · read by ${file.analysisCount === 1 ? "1 analysis" : `${file.analysisCount} analyses`}`
+                        : ""}
                     </span>
                   </span>
                 </label>
+                {file.analysisCount === 0 ? (
+                  <ConfirmActionButton
+                    label="Delete"
+                    confirmation={`Delete "${file.name}"? No analysis reads it; it is removed from storage too.`}
+                    action={() => deleteDataFile(workspaceId, file.id)}
+                    onDone={() => {
+                      setDeletedIds((ids) => [...ids, file.id]);
+                      if (selectedId === file.id) onSelect("");
+                    }}
+                  />
+                ) : null}
               </li>
             ))}
           </ul>

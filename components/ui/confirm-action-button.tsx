@@ -11,10 +11,13 @@ export function ConfirmActionButton({
   label,
   confirmation,
   action,
+  onDone,
 }: {
   label: string;
   confirmation: string;
   action: () => Promise<ActionResult>;
+  /** Called once the action succeeded, for state the page keeps in the browser. */
+  onDone?: () => void;
 }) {
   const [error, setError] = useState<string>();
   const [pending, startTransition] = useTransition();
@@ -29,6 +32,7 @@ export function ConfirmActionButton({
           startTransition(async () => {
             const result = await action();
             setError(result.ok ? undefined : result.message);
+            if (result.ok) onDone?.();
           });
         }}
         className="rounded px-2 py-1 text-sm text-cadmium hover:bg-cadmium-soft"

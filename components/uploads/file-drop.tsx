@@ -54,6 +54,7 @@ export function FileDrop({
   onRegistered(file: DataFileSummary): void;
 }) {
   const [state, setState] = useState<UploadState>({ phase: "idle" });
+  const [reused, setReused] = useState<string>();
   const cancelRef = useRef<AbortController | null>(null);
   const busy = state.phase === "uploading" || state.phase === "checking";
 
@@ -95,6 +96,11 @@ export function FileDrop({
         return;
       }
       setState({ phase: "idle" });
+      setReused(
+        result.data.reused
+          ? `"${file.name}" has the same contents as "${result.data.name}", already uploaded here: that file is chosen instead of a second copy.`
+          : undefined,
+      );
       onRegistered(result.data);
     } catch (error) {
       const cancelled = controller.signal.aborted;
@@ -141,6 +147,11 @@ export function FileDrop({
           {rule.description}; up to {formatBytes(maxBytes)}
         </p>
       </div>
+      {reused && state.phase === "idle" ? (
+        <p role="status" className="rounded-md border border-ink/10 bg-white px-4 py-3 text-sm">
+          {reused}
+        </p>
+      ) : null}
       <UploadStatus
         state={state}
         onCancel={() => cancelRef.current?.abort()}

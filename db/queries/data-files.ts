@@ -1,7 +1,8 @@
 import "server-only";
-import { and, desc, eq } from "drizzle-orm";
+import { and, desc, eq, ne, or, sql } from "drizzle-orm";
 import { db } from "@/db/client";
-import { dataFiles, type DataFilePreview } from "@/db/schema";
+import { analyses, dataFiles, type DataFilePreview } from "@/db/schema";
+import { RuleError } from "@/lib/errors";
 import type { DataFileKind } from "@/lib/uploads/file-rules";
 
 /** What the product shows of a registered file: never its object key, which stays on the server. */
@@ -12,7 +13,22 @@ export type DataFileSummary = {
   sizeBytes: number;
   createdAt: Date;
   preview: DataFilePreview | null;
+  /** SHA-256 of the stored bytes; null for files registered before it was recorded. */
+  sha256: string | null;
+  /** Analyses that read it; a file none reads may be deleted. */
+  analysisCount: number;
 };
+
+/**
+ * Analyses of the file's workspace that name the file as one of their inputs. Written out with
+ * qualified names: in a one-table select drizzle leaves its columns unqualified, which inside
+ * this subquery would name the analyses' own columns.
+ */
+const analysisCount = sql<number>`(
+  select count(*)::int from analyses as reader
+  where reader.workspace_id = data_files.workspace_id
+    and data_files.id in (reader.dataset_file_id, reader.layout_file_id, reader.weights_file_id)
+)`;
 
 const summaryColumns = {
   id: dataFiles.id,
@@ -21,6 +37,8 @@ const summaryColumns = {
   sizeBytes: dataFiles.sizeBytes,
   createdAt: dataFiles.createdAt,
   preview: dataFiles.preview,
+  sha256: dataFiles.sha256,
+  analysisCount,
 };
 
 /**
@@ -36,6 +54,7 @@ export async function insertDataFile(
     sizeBytes: number;
     contentType: string | null;
     preview: DataFilePreview;
+    sha256: string;
     uploadedBy: string;
   },
 ): Promise<DataFileSummary> {
@@ -74,6 +93,71 @@ export async function findDataFile(
     .from(dataFiles)
     .where(and(eq(dataFiles.workspaceId, workspaceId), eq(dataFiles.id, fileId)));
   return row;
+}
+
+/**
+ * A file of this workspace and kind holding exactly these bytes under another object key (the
+ * oldest, if several do), or undefined: an upload of bytes already here reuses it.
+ */
+export async function findSameContents(
+  workspaceId: string,
+  values: { kind: DataFileKind; sha256: string; objectKey: string },
+): Promise<DataFileSummary | undefined> {
+  const [row] = await db()
+    .select(summaryColumns)
+    .from(dataFiles)
+    .where(
+      and(
+        eq(dataFiles.workspaceId, workspaceId),
+        eq(dataFiles.kind, values.kind),
+        eq(dataFiles.sha256, values.sha256),
+        ne(dataFiles.objectKey, values.objectKey),
+      ),
+    )
+    .orderBy(dataFiles.createdAt)
+    .limit(1);
+  return row;
+}
+
+/**
+ * Deletes a file of this workspace that no analysis reads, and returns its object key for the
+ * caller to remove from storage. 404 when there is no such file, 409 when an analysis reads it
+ * (its reports name it as an input, so it stays while they do).
+ */
+export async function deleteUnusedDataFile(
+  workspaceId: string,
+  fileId: string,
+): Promise<{ objectKey: string; name: string }> {
+  const usedBy = db()
+    .select({ id: analyses.id })
+    .from(analyses)
+    .where(
+      and(
+        eq(analyses.workspaceId, workspaceId),
+        or(
+          eq(analyses.datasetFileId, fileId),
+          eq(analyses.layoutFileId, fileId),
+          eq(analyses.weightsFileId, fileId),
+        ),
+      ),
+    );
+  const [deleted] = await db()
+    .delete(dataFiles)
+    .where(
+      and(
+        eq(dataFiles.workspaceId, workspaceId),
+        eq(dataFiles.id, fileId),
+        sql`not exists (${usedBy})`,
+      ),
+    )
+    .returning({ objectKey: dataFiles.objectKey, name: dataFiles.name });
+  if (deleted) return deleted;
+  const file = await findDataFile(workspaceId, fileId);
+  if (!file) throw new RuleError(404, "That file is not in this workspace.");
+  throw new RuleError(
+    409,
+    `"${file.name}" is an input of ${file.analysisCount === 1 ? "an analysis" : `${file.analysisCount} analyses`}; it stays while their reports do.`,
+  );
 }
 
 /** The registration of an object key in this workspace, or undefined. */

@@ -45,6 +45,11 @@ export const dataFiles = pgTable(
     sizeBytes: bigint("size_bytes", { mode: "number" }).notNull(),
     contentType: text("content_type"),
     preview: jsonb("preview").$type<DataFilePreview>(),
+    /**
+     * SHA-256 of the stored bytes, read back when the file was registered, so uploading the same
+     * bytes again reuses this file. Null for files registered before it was recorded.
+     */
+    sha256: text("sha256"),
     uploadedBy: text("uploaded_by")
       .notNull()
       .references(() => users.id),
@@ -53,6 +58,7 @@ export const dataFiles = pgTable(
   (table) => [
     uniqueIndex("data_files_object_key_idx").on(table.objectKey),
     index("data_files_workspace_idx").on(table.workspaceId, table.kind),
+    index("data_files_contents_idx").on(table.workspaceId, table.sha256),
   ],
 );
 

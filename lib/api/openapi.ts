@@ -16,10 +16,10 @@ import {
   apiErrorSchema,
   callerSchema,
   completedUploadSchema,
-  dataFileSchema,
   listReportsQuerySchema,
   partitionSummarySchema,
   queuedAnalysisSchema,
+  registeredFileSchema,
   reportListSchema,
   reportPathSchema,
   signedPartsSchema,
@@ -145,9 +145,11 @@ export function createApiDocument() {
         post: operation({
           operationId: "registerFile",
           summary: "Register an uploaded object as a dataset, layout or weights file",
-          description: "The server reads the object back and previews it; bad files answer 422.",
+          description:
+            "The server reads the object back, previews it and hashes it; bad files answer 422. " +
+            "Bytes already registered as a file of the same kind answer 200 with that file.",
           requestBody: json(registerDataFileSchema),
-          success: ["201", "The registered file.", dataFileSchema],
+          success: ["201", "The registered file.", registeredFileSchema],
           failures: ["403", "404", "422"],
         }),
       },

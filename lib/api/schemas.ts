@@ -110,8 +110,24 @@ export const dataFileSchema = z
         truncated: z.boolean(),
       })
       .nullable(),
+    sha256: z.string().nullable().meta({
+      description: "SHA-256 of the stored bytes (null for files registered before it was kept).",
+    }),
+    analysisCount: z
+      .number()
+      .int()
+      .meta({ description: "Analyses that read the file; one that none reads may be deleted." }),
   })
   .meta({ id: "DataFile" });
+
+export const registeredFileSchema = dataFileSchema
+  .extend({
+    reused: z.boolean().meta({
+      description:
+        "True when the same bytes were already a file of this kind in the workspace: that file is returned (200) and the new upload is removed.",
+    }),
+  })
+  .meta({ id: "RegisteredFile" });
 
 export const queuedAnalysisSchema = z
   .object({

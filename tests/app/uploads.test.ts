@@ -8,12 +8,17 @@ import { afterAll, describe, expect, it, vi } from "vitest";
 
 vi.mock("@/lib/auth/session", () => import("@/tests/support/fake-session"));
 
-import { registerDataFile } from "@/app/(workspace)/w/[workspaceId]/analyses/new/actions";
+import { createHash } from "node:crypto";
+import {
+  deleteDataFile,
+  registerDataFile,
+} from "@/app/(workspace)/w/[workspaceId]/analyses/new/actions";
 import { POST as createUpload } from "@/app/api/workspaces/[workspaceId]/uploads/route";
 import { POST as abortUpload } from "@/app/api/workspaces/[workspaceId]/uploads/multipart/abort/route";
 import { POST as completeUpload } from "@/app/api/workspaces/[workspaceId]/uploads/multipart/complete/route";
 import { POST as signParts } from "@/app/api/workspaces/[workspaceId]/uploads/multipart/parts/route";
 import { closeDb } from "@/db/client";
+import { insertAnalysis } from "@/db/queries/analyses";
 import { findDataFile, listDataFiles } from "@/db/queries/data-files";
 import { headObject, putObject } from "@/lib/storage";
 import {
@@ -21,10 +26,12 @@ import {
   MULTIPART_PART_BYTES,
   SINGLE_PUT_MAX_BYTES,
 } from "@/lib/uploads/file-rules";
+import { startAnalysisSchema } from "@/lib/validation/start-analysis";
 import type { UploadTicket } from "@/lib/validation/upload";
 import { loadPenguinsCsv } from "@/tests/lib/analysis/support/open-data";
 import { createAccount, createTeam } from "@/tests/support/accounts";
 import { actAs } from "@/tests/support/fake-session";
+import { PENGUIN_OPTIONS, storePenguins } from "@/tests/lib/reports/support/stored-inputs";
 
 afterAll(closeDb);
 
@@ -145,6 +152,83 @@ describe("a presigned PUT, then registration", () => {
       kind: "weights",
     });
     expect(weights.ok && weights.data.preview?.rows).toEqual([["(target)", "0.5", "-1"]]);
+  });
+});
+
+describe("the same bytes again, and deleting what no analysis reads", () => {
+  const putAndRegister = async (workspaceId: string, name: string, body: string) => {
+    const key = newKey(workspaceId, name);
+    await putObject({ key, body, contentType: "text/csv" });
+    const result = await registerDataFile(workspaceId, { key, name, kind: "dataset" });
+    if (!result.ok) throw new Error(result.message);
+    return { key, file: result.data };
+  };
+
+  it("reuses the file already holding the same bytes and removes the new copy", async () => {
+    const team = await createTeam();
+    actAs(team.analyst);
+    const first = await putAndRegister(team.workspaceId, "penguins.csv", penguinsCsv);
+    // The SHA-256 of the bytes, by Node's own hash (an outside computation of the same digest).
+    expect(first.file).toMatchObject({
+      reused: false,
+      analysisCount: 0,
+      sha256: createHash("sha256").update(penguinsCsv).digest("hex"),
+    });
+    const names = ["penguins (1).csv", "penguins copy.csv", "penguins.csv"];
+    for (const name of names) {
+      const again = await putAndRegister(team.workspaceId, name, penguinsCsv);
+      expect(again.file).toMatchObject({ id: first.file.id, name: "penguins.csv", reused: true });
+      expect(await headObject(again.key)).toBeUndefined();
+    }
+    // One byte more is another file.
+    const other = await putAndRegister(team.workspaceId, "penguins.csv", `${penguinsCsv}\n`);
+    expect(other.file).toMatchObject({ reused: false });
+    expect(other.file.id).not.toBe(first.file.id);
+    expect((await listDataFiles(team.workspaceId, "dataset")).map((file) => file.id)).toEqual([
+      other.file.id,
+      first.file.id,
+    ]);
+    // Another workspace with the same bytes gets its own file: nothing is shared across them.
+    const stranger = await createAccount("stranger");
+    actAs(stranger);
+    const theirs = await putAndRegister(stranger.workspaceId, "penguins.csv", penguinsCsv);
+    expect(theirs.file).toMatchObject({ reused: false });
+    expect(theirs.file.id).not.toBe(first.file.id);
+  });
+
+  it("deletes an upload no analysis reads, from storage too, and keeps one an analysis reads", async () => {
+    const team = await createTeam();
+    actAs(team.analyst);
+    const unused = await putAndRegister(team.workspaceId, "draft.csv", "a,b\n1,2\n3,4\n");
+    const files = await storePenguins({
+      workspaceId: team.workspaceId,
+      uploadedBy: team.analyst.id,
+    });
+    // An analysis as starting one records it (the queue is not needed to read its inputs).
+    const request = startAnalysisSchema.parse({
+      datasetFileId: files.dataset.id,
+      layoutFileId: files.layout.id,
+      options: PENGUIN_OPTIONS,
+    });
+    await insertAnalysis(team.workspaceId, team.analyst.id, { ...request, title: "Penguins" });
+    expect((await findDataFile(team.workspaceId, files.dataset.id))?.analysisCount).toBe(1);
+
+    actAs(team.reviewer);
+    expect(await deleteDataFile(team.workspaceId, unused.file.id)).toMatchObject({ status: 403 });
+    actAs(team.analyst);
+    expect(await deleteDataFile(team.workspaceId, files.layout.id)).toMatchObject({
+      ok: false,
+      status: 409,
+      message: '"islands.csv" is an input of an analysis; it stays while their reports do.',
+    });
+    expect(await findDataFile(team.workspaceId, files.layout.id)).toBeDefined();
+    expect(await deleteDataFile(team.workspaceId, unused.file.id)).toEqual({
+      ok: true,
+      data: undefined,
+    });
+    expect(await findDataFile(team.workspaceId, unused.file.id)).toBeUndefined();
+    expect(await headObject(unused.key)).toBeUndefined();
+    expect(await deleteDataFile(team.workspaceId, unused.file.id)).toMatchObject({ status: 404 });
   });
 });
 

@@ -7,12 +7,14 @@ import { registerDataFileSchema } from "@/lib/validation/upload";
 /**
  * Registers an uploaded object as a dataset, layout (partition map) or reference weights file,
  * after the server has read it back from storage; the answer's id goes into POST /api/v1/analyses.
+ * Bytes already registered as a file of the same kind give that file back (200, `reused`).
  */
 export async function POST(request: Request): Promise<Response> {
   return answerApiRequest("register-file", async () => {
     const { user, workspace } = await requireToken(request, "uploadData");
     const input = registerDataFileSchema.parse(await readJsonBody(request));
     const file = await registerUpload(workspace.id, user.id, input);
-    return respondWithJson(file, 201);
+    // The same bytes are already a file here: that one is the answer, and nothing new was made.
+    return respondWithJson(file, file.reused ? 200 : 201);
   });
 }

@@ -18,8 +18,8 @@ async function withFile(
   if (!fileId || files.some((file) => file.id === fileId)) return files;
   const found = await findDataFile(workspaceId, fileId);
   if (!found) return files;
-  const { id, kind, name, sizeBytes, createdAt, preview } = found;
-  return [...files, { id, kind, name, sizeBytes, createdAt, preview }];
+  const { id, kind, name, sizeBytes, createdAt, preview, sha256, analysisCount } = found;
+  return [...files, { id, kind, name, sizeBytes, createdAt, preview, sha256, analysisCount }];
 }
 
 export default async function NewAnalysisPage({
