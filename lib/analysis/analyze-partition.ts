@@ -1,4 +1,3 @@
-import { PATH_POINTS } from "./path-points";
 import { z } from "zod";
 import {
   analysisOptionsSchema,
@@ -16,7 +15,6 @@ import {
   computeSmoothness,
   findNoiseCentres,
   measureAtPoint,
-  measureGradientAgreement,
   type PointMeasurement,
 } from "./measure-heterogeneity";
 import { measureFeatureShift } from "./measure-feature-shift";
@@ -36,7 +34,8 @@ import {
   type SimulationProgress,
 } from "./simulation/simulate-plan";
 import type { AnalysisProgress, PartitionSummary } from "./summary";
-import { ENGINE_VERSION } from "./version";
+import { assembleSummary } from "./assemble-summary";
+import { PATH_POINTS } from "./path-points";
 
 export interface PartitionInput {
   /** The dataset: CSV, gzip CSV or Parquet, as a stream (an S3 object body, …) or a local file. */
@@ -76,11 +75,6 @@ export interface PartitionInput {
 const PARALLEL_MIN_BYTES = 16 * 2 ** 20;
 /** Without a file size: rows × width × weight rows from which worker threads pay for their start. */
 export const PARALLEL_MIN_WORK = 2 ** 26;
-
-// Its own module, so a server bundle can check digests against it without the engine's threads.
-export { PATH_POINTS } from "./path-points";
-/** The gradient-agreement matrix is reported up to this many shards (methods.md §3). */
-export const MAX_AGREEMENT_SHARDS = 200;
 
 /**
  * Runs the whole analysis of methods.md on one dataset and partition: read and validate (§1),
@@ -322,46 +316,24 @@ export async function analyzeDesign(
         )
       : undefined;
 
-  const width = design.x.cols;
-  return {
-    engineVersion: ENGINE_VERSION,
-    dataset: {
-      rows: design.x.rows,
-      features: width - 1,
-      classes: design.classes === null ? null : design.classes.length,
-      task: design.task,
-      classNames: design.classes,
-    },
+  const summary = assembleSummary({
+    rows: design.x.rows,
+    width: design.x.cols,
+    task: design.task,
+    classNames: design.classes,
     shards: design.shardIds.map((id, m) => ({
       id,
       rows: atReference.shards[m].rows,
-      tv: labelSkew.shards[m].tv,
-      hellinger: labelSkew.shards[m].hellinger,
-      js: labelSkew.shards[m].js,
-      kl: labelSkew.shards[m].kl,
-      gradNorm2: atReference.shards[m].gradNorm2,
-      sigma2: atReference.shards[m].sigma2,
-      loss: atReference.shards[m].loss,
-      classesPresent: labelSkew.shards[m].classesPresent,
-      effectiveClasses: labelSkew.shards[m].effectiveClasses,
       featureShift: featureShift[m],
-      labelCounts: labelSkew.shards[m].counts,
     })),
-    labelSkew: {
-      tv: labelSkew.tv,
-      hellinger: labelSkew.hellinger,
-      js: labelSkew.js,
-      kl: labelSkew.kl,
-      dirichletAlpha: labelSkew.dirichletAlpha,
-      max: labelSkew.max,
-      categories: design.classes ?? labelSkew.pooled.map((_, bin) => `decile bin ${bin + 1}`),
-      pooled: labelSkew.pooled,
-    },
+    labelSkew,
     quantitySkew,
+    atReference,
+    path,
+    smoothness,
+    advice,
     model: {
       lambda: options.lambda,
-      loss: atReference.loss,
-      gradNorm: atReference.gradientNorm,
       distance,
       reference: reference.kind,
       optimum: describeWeights(design, fitted.weights),
@@ -373,27 +345,6 @@ export async function analyzeDesign(
         tolerance: fitted.tolerance,
       },
     },
-    heterogeneity: {
-      zeta2: atReference.zeta2,
-      zeta2Uniform: atReference.zeta2Uniform,
-      zeta2Max,
-      zeta2Star: atOptimum.zeta2,
-      sigma2: atReference.sigma2,
-      sigma2Pooled: atReference.sigma2Pooled,
-      smoothness,
-      dissimilarity: atReference.dissimilarity,
-      path: path.map((point, index) => ({
-        t: PATH_POINTS[index],
-        zeta2: point.zeta2,
-        dissimilarity: point.dissimilarity,
-        loss: point.loss,
-      })),
-      gradientAgreement:
-        shardCount <= MAX_AGREEMENT_SHARDS
-          ? measureGradientAgreement(path[0].shards.map((shard) => shard.gradient))
-          : null,
-    },
-    advice,
     preprocessing: {
       totalRows: context.totalRows,
       droppedRowsMissingLabel: design.droppedRowsMissingLabel,
@@ -404,8 +355,8 @@ export async function analyzeDesign(
       omittedColumns: design.omittedColumns,
       warnings: design.warnings,
     },
-    ...(simulation && { simulation }),
-  };
+  });
+  return simulation ? { ...summary, simulation } : summary;
 }
 
 export function parseOptions(options: AnalysisOptionsInput): AnalysisOptions {

@@ -1,4 +1,4 @@
-import { PATH_POINTS } from "../analyze-partition";
+import { PATH_POINTS } from "../path-points";
 import { AnalysisInputError } from "../errors";
 import { sumFeaturesPerShard } from "../measure-feature-shift";
 import { readTotals, type PassTotals } from "../objective-pass";

@@ -1,21 +1,16 @@
 import { norm } from "../../math/summation";
 import { advisePlan } from "../advise-plan";
-import { MAX_AGREEMENT_SHARDS, PATH_POINTS } from "../analyze-partition";
+import { assembleSummary } from "../assemble-summary";
+import { PATH_POINTS } from "../path-points";
 import { compareCodePoints } from "../code-point-order";
 import { AnalysisInputError } from "../errors";
 import { OPTIMUM_RELATIVE_TOLERANCE } from "../fit-reference-model";
 import { measureFeatureShiftFromSums } from "../measure-feature-shift";
-import {
-  computeSmoothness,
-  measureAtPoint,
-  measureGradientAgreement,
-  type PointMeasurement,
-} from "../measure-heterogeneity";
+import { computeSmoothness, measureAtPoint, type PointMeasurement } from "../measure-heterogeneity";
 import { measureLabelSkew } from "../measure-label-skew";
 import { measureQuantitySkew } from "../measure-quantity-skew";
 import { createTotals, type PassTotals } from "../objective-pass";
 import type { PartitionSummary } from "../summary";
-import { ENGINE_VERSION } from "../version";
 import {
   hashDocument,
   type DigestEncoding,
@@ -152,45 +147,24 @@ export function mergeGradientDigests(
     shards: digest.shards.map((shard) => shard.id).sort(compareCodePoints),
     rows: digest.shards.reduce((total, shard) => total + shard.rows, 0),
   }));
-  return {
-    engineVersion: ENGINE_VERSION,
-    dataset: {
-      rows,
-      features: width - 1,
-      classes: encoding.classes === null ? null : encoding.classes.length,
-      task: encoding.task,
-      classNames: encoding.classes,
-    },
-    shards: shards.map((shard, m) => ({
+  const summary = assembleSummary({
+    rows,
+    width,
+    task: encoding.task,
+    classNames: encoding.classes,
+    shards: shards.map((shard) => ({
       id: shard.id,
       rows: shard.rows,
-      tv: labelSkew.shards[m].tv,
-      hellinger: labelSkew.shards[m].hellinger,
-      js: labelSkew.shards[m].js,
-      kl: labelSkew.shards[m].kl,
-      gradNorm2: atReference.shards[m].gradNorm2,
-      sigma2: atReference.shards[m].sigma2,
-      loss: atReference.shards[m].loss,
-      classesPresent: labelSkew.shards[m].classesPresent,
-      effectiveClasses: labelSkew.shards[m].effectiveClasses,
       featureShift: measureFeatureShiftFromSums(shard.featureSums, shard.rows),
-      labelCounts: labelSkew.shards[m].counts,
     })),
-    labelSkew: {
-      tv: labelSkew.tv,
-      hellinger: labelSkew.hellinger,
-      js: labelSkew.js,
-      kl: labelSkew.kl,
-      dirichletAlpha: labelSkew.dirichletAlpha,
-      max: labelSkew.max,
-      categories: encoding.classes ?? labelSkew.pooled.map((_, bin) => `decile bin ${bin + 1}`),
-      pooled: labelSkew.pooled,
-    },
+    labelSkew,
     quantitySkew,
+    atReference,
+    path,
+    smoothness,
+    advice,
     model: {
       lambda,
-      loss: atReference.loss,
-      gradNorm: atReference.gradientNorm,
       distance,
       reference: request.reference,
       optimum: {
@@ -206,27 +180,6 @@ export function mergeGradientDigests(
         tolerance,
       },
     },
-    heterogeneity: {
-      zeta2: atReference.zeta2,
-      zeta2Uniform: atReference.zeta2Uniform,
-      zeta2Max,
-      zeta2Star: atOptimum.zeta2,
-      sigma2: atReference.sigma2,
-      sigma2Pooled: atReference.sigma2Pooled,
-      smoothness,
-      dissimilarity: atReference.dissimilarity,
-      path: path.map((point, index) => ({
-        t: PATH_POINTS[index],
-        zeta2: point.zeta2,
-        dissimilarity: point.dissimilarity,
-        loss: point.loss,
-      })),
-      gradientAgreement:
-        shards.length <= MAX_AGREEMENT_SHARDS
-          ? measureGradientAgreement(path[atZero].shards.map((shard) => shard.gradient))
-          : null,
-    },
-    advice,
     preprocessing: {
       totalRows: digests.reduce((total, digest) => total + digest.totalRows, 0),
       droppedRowsMissingLabel: digests.reduce((n, digest) => n + digest.droppedRowsMissingLabel, 0),
@@ -238,6 +191,9 @@ export function mergeGradientDigests(
       omittedColumns: encoding.omittedColumns,
       warnings,
     },
+  });
+  return {
+    ...summary,
     digests: {
       encodingHash: encoding.hash,
       clients: clientsInOrder,
