@@ -1,8 +1,9 @@
 import "server-only";
-import { and, eq, inArray, or, sql } from "drizzle-orm";
+import { and, desc, eq, inArray, or, sql } from "drizzle-orm";
 import { db } from "@/db/client";
 import { analyses, dataFiles, reports } from "@/db/schema";
 import type { AnalysisProgress, SimulationProgress } from "@/lib/analysis";
+import { encodeListCursor, type ListCursor } from "@/lib/api/list-cursor";
 import { RuleError } from "@/lib/errors";
 import type { StartAnalysisRequest } from "@/lib/validation/start-analysis";
 
@@ -378,4 +379,53 @@ export async function endRunUnsuccessfully(
         eq(analyses.status, "running"),
       ),
     );
+}
+
+/** What the API's analyses list shows of one analysis. */
+export type AnalysisListItem = Pick<
+  Analysis,
+  "id" | "title" | "status" | "stage" | "createdAt" | "finishedAt"
+>;
+
+/**
+ * One page of the workspace's analyses, newest first (ties by id), starting after `after`;
+ * `nextCursor` is null on the last page.
+ */
+export async function listAnalysisPage(
+  workspaceId: string,
+  limit: number,
+  after?: ListCursor,
+): Promise<{ analyses: AnalysisListItem[]; nextCursor: string | null }> {
+  // One more than shown tells whether a next page exists without counting the whole list.
+  const rows = await db()
+    .select({
+      analysis: {
+        id: analyses.id,
+        title: analyses.title,
+        status: analyses.status,
+        stage: analyses.stage,
+        createdAt: analyses.createdAt,
+        finishedAt: analyses.finishedAt,
+      },
+      createdAtText: sql<string>`${analyses.createdAt}::text`,
+    })
+    .from(analyses)
+    .where(
+      and(
+        eq(analyses.workspaceId, workspaceId),
+        after
+          ? sql`(${analyses.createdAt}, ${analyses.id}) < (${after.createdAt}::timestamptz, ${after.id})`
+          : undefined,
+      ),
+    )
+    .orderBy(desc(analyses.createdAt), desc(analyses.id))
+    .limit(limit + 1);
+  const last = rows[limit - 1];
+  return {
+    analyses: rows.slice(0, limit).map((row) => row.analysis),
+    nextCursor:
+      rows.length > limit
+        ? encodeListCursor({ createdAt: last.createdAtText, id: last.analysis.id })
+        : null,
+  };
 }

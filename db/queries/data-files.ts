@@ -2,6 +2,7 @@ import "server-only";
 import { and, desc, eq, ne, or, sql } from "drizzle-orm";
 import { db } from "@/db/client";
 import { analyses, dataFiles, type DataFilePreview } from "@/db/schema";
+import { encodeListCursor, type ListCursor } from "@/lib/api/list-cursor";
 import { RuleError } from "@/lib/errors";
 import type { DataFileKind } from "@/lib/uploads/file-rules";
 
@@ -81,6 +82,39 @@ export async function listDataFiles(
     .where(and(eq(dataFiles.workspaceId, workspaceId), eq(dataFiles.kind, kind)))
     .orderBy(desc(dataFiles.createdAt))
     .limit(limit);
+}
+
+/**
+ * One page of the workspace's files of every kind, newest first (ties by id), starting after
+ * `after`; `nextCursor` is null on the last page.
+ */
+export async function listDataFilePage(
+  workspaceId: string,
+  limit: number,
+  after?: ListCursor,
+): Promise<{ files: DataFileSummary[]; nextCursor: string | null }> {
+  // One more than shown tells whether a next page exists without counting the whole list.
+  const rows = await db()
+    .select({ file: summaryColumns, createdAtText: sql<string>`${dataFiles.createdAt}::text` })
+    .from(dataFiles)
+    .where(
+      and(
+        eq(dataFiles.workspaceId, workspaceId),
+        after
+          ? sql`(${dataFiles.createdAt}, ${dataFiles.id}) < (${after.createdAt}::timestamptz, ${after.id})`
+          : undefined,
+      ),
+    )
+    .orderBy(desc(dataFiles.createdAt), desc(dataFiles.id))
+    .limit(limit + 1);
+  const last = rows[limit - 1];
+  return {
+    files: rows.slice(0, limit).map((row) => row.file),
+    nextCursor:
+      rows.length > limit
+        ? encodeListCursor({ createdAt: last.createdAtText, id: last.file.id })
+        : null,
+  };
 }
 
 /** One file of this workspace (with its object key, for server code), or undefined. */

@@ -11,11 +11,14 @@ import { API_TOKEN_PREFIX } from "@/lib/auth/api-token-secret";
 import { API_REQUESTS_PER_MINUTE } from "./rate-limit";
 import { clientKeyScheme, federatedPaths } from "./openapi-federated";
 import {
+  analysisListSchema,
   analysisPathSchema,
   analysisStatusSchema,
   apiErrorSchema,
   callerSchema,
   completedUploadSchema,
+  dataFileListSchema,
+  listPageQuerySchema,
   listReportsQuerySchema,
   partitionSummarySchema,
   queuedAnalysisSchema,
@@ -142,6 +145,13 @@ export function createApiDocument() {
         }),
       },
       "/api/v1/files": {
+        get: operation({
+          operationId: "listFiles",
+          summary: "The workspace's registered files, newest first, a page at a time",
+          requestParams: { query: listPageQuerySchema },
+          success: ["200", "A page of files.", dataFileListSchema],
+          failures: ["422"],
+        }),
         post: operation({
           operationId: "registerFile",
           summary: "Register an uploaded object as a dataset, layout or weights file",
@@ -154,6 +164,13 @@ export function createApiDocument() {
         }),
       },
       "/api/v1/analyses": {
+        get: operation({
+          operationId: "listAnalyses",
+          summary: "The workspace's analyses, newest first, a page at a time",
+          requestParams: { query: listPageQuerySchema },
+          success: ["200", "A page of analyses.", analysisListSchema],
+          failures: ["422"],
+        }),
         post: operation({
           operationId: "startAnalysis",
           summary: "Queue an analysis of registered files with the plan's parameters",

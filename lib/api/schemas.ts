@@ -38,6 +38,24 @@ export const listReportsQuerySchema = z.object({
   }),
 });
 
+/** A page of a newest-first list: how many, and where the previous page ended. */
+export const listPageQuerySchema = z.object({
+  limit: z.coerce
+    .number()
+    .int()
+    .min(1)
+    .max(100)
+    .default(50)
+    .meta({ description: "How many, newest first (1–100)." }),
+  cursor: z.string().max(300).optional().meta({
+    description: "Start after the ones already listed: the nextCursor of the previous page.",
+  }),
+});
+
+const nextCursorSchema = z.string().nullable().meta({
+  description: "Pass as cursor for the next page; null when this page is the last.",
+});
+
 export const apiErrorSchema = z
   .object({
     error: z.object({
@@ -222,3 +240,23 @@ export const partitionSummarySchema = z
       "The report's JSON summary, byte for byte what `npm run analyze` prints for the same input " +
       "and parameters and what the report page's JSON export downloads.",
   });
+
+export const dataFileListSchema = z
+  .object({ files: z.array(dataFileSchema), nextCursor: nextCursorSchema })
+  .meta({ id: "DataFileList" });
+
+export const analysisListSchema = z
+  .object({
+    analyses: z.array(
+      z.object({
+        id: z.string(),
+        title: z.string(),
+        status: z.enum(["queued", "running", "succeeded", "failed", "cancelled"]),
+        stage: z.string().nullable().meta({ description: "The engine's stage while running." }),
+        createdAt: z.iso.datetime(),
+        finishedAt: z.iso.datetime().nullable(),
+      }),
+    ),
+    nextCursor: nextCursorSchema,
+  })
+  .meta({ id: "AnalysisList" });

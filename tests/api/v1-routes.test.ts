@@ -6,9 +6,9 @@
 import { randomUUID } from "node:crypto";
 import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { POST as startAnalysis } from "@/app/api/v1/analyses/route";
+import { GET as listAnalyses, POST as startAnalysis } from "@/app/api/v1/analyses/route";
 import { GET as getAnalysis } from "@/app/api/v1/analyses/[analysisId]/route";
-import { POST as registerFile } from "@/app/api/v1/files/route";
+import { GET as listFiles, POST as registerFile } from "@/app/api/v1/files/route";
 import { GET as listReports } from "@/app/api/v1/reports/route";
 import { GET as getReport } from "@/app/api/v1/reports/[reportId]/route";
 import { POST as abortUpload } from "@/app/api/v1/uploads/abort/route";
@@ -19,7 +19,13 @@ import { GET as getCaller } from "@/app/api/v1/workspace/route";
 import { closeDb, db } from "@/db/client";
 import { apiTokens } from "@/db/schema";
 import { API_REQUESTS_PER_MINUTE } from "@/lib/api/rate-limit";
-import { analysisStatusSchema, reportListSchema, uploadTicketSchema } from "@/lib/api/schemas";
+import {
+  analysisListSchema,
+  analysisStatusSchema,
+  dataFileListSchema,
+  reportListSchema,
+  uploadTicketSchema,
+} from "@/lib/api/schemas";
 import { createMultipartUpload, presignUploadPart, putObject } from "@/lib/storage";
 import { buildUploadKey } from "@/lib/uploads/file-rules";
 import { registerUpload } from "@/lib/uploads/register-upload";
@@ -312,6 +318,68 @@ describe("/api/v1 answers", () => {
     const forged = await listReports(apiRequest("/api/v1/reports?cursor=not-a-cursor", token));
     expect(forged.status).toBe(422);
     expect(await forged.json()).toMatchObject({ error: { code: "invalid" } });
+  });
+
+  it("pages the files and analyses lists the same way, newest first, in the documented shapes", async () => {
+    const team = await createTeam();
+    const fileIds: string[] = [];
+    for (const name of ["a.csv", "b.csv", "c.csv"]) {
+      const key = buildUploadKey(team.workspaceId, name, randomUUID());
+      // Different bytes each, so none is taken for a repeat of another.
+      await putObject({ key, body: `x,y\n1,${name}\n2,z\n`, contentType: "text/csv" });
+      fileIds.push(
+        (await registerUpload(team.workspaceId, team.owner.id, { key, name, kind: "dataset" })).id,
+      );
+      await insertReport({
+        workspaceId: team.workspaceId,
+        authorId: team.analyst.id,
+        summary: JSON.parse(fixtures.cliOutput),
+        title: name,
+      });
+    }
+    const { token } = await issueTestToken(team.reviewer.id, team.workspaceId);
+    const files = async (query: string) =>
+      dataFileListSchema.parse(
+        await (await listFiles(apiRequest(`/api/v1/files?${query}`, token))).json(),
+      );
+    const analyses = async (query: string) =>
+      analysisListSchema.parse(
+        await (await listAnalyses(apiRequest(`/api/v1/analyses?${query}`, token))).json(),
+      );
+    const allFiles = await files("limit=100");
+    // insertReport stores each report's penguins files too: the three uploads are among them.
+    expect(allFiles.files.map((file) => file.id)).toEqual(expect.arrayContaining(fileIds));
+    expect(allFiles.nextCursor).toBeNull();
+    const newestFirst = (dates: string[]) => [...dates].sort().reverse();
+    const fileDates = allFiles.files.map((file) => file.createdAt);
+    expect(fileDates).toEqual(newestFirst(fileDates));
+    const firstFiles = await files("limit=2");
+    const restFiles = await files(`limit=100&cursor=${firstFiles.nextCursor}`);
+    expect([...firstFiles.files, ...restFiles.files]).toEqual(allFiles.files);
+
+    const allAnalyses = await analyses("limit=100");
+    expect(allAnalyses.analyses.map((analysis) => analysis.status)).toEqual([
+      "succeeded",
+      "succeeded",
+      "succeeded",
+    ]);
+    const one = await analyses("limit=1");
+    const two = await analyses(`limit=1&cursor=${one.nextCursor}`);
+    const three = await analyses(`limit=1&cursor=${two.nextCursor}`);
+    expect([...one.analyses, ...two.analyses, ...three.analyses]).toEqual(allAnalyses.analyses);
+    expect(three.nextCursor).toBeNull();
+
+    for (const forged of [
+      await listFiles(apiRequest("/api/v1/files?cursor=not-a-cursor", token)),
+      await listAnalyses(apiRequest("/api/v1/analyses?cursor=not-a-cursor", token)),
+    ]) {
+      expect(forged.status).toBe(422);
+    }
+    // Another workspace's token sees none of them.
+    const stranger = await createAccount("stranger");
+    const theirs = await issueTestToken(stranger.id, stranger.workspaceId);
+    const seen = await listFiles(apiRequest("/api/v1/files", theirs.token));
+    expect(dataFileListSchema.parse(await seen.json()).files).toEqual([]);
   });
 
   it("lists reports and analysis status in the documented shapes", async () => {

@@ -1,3 +1,5 @@
+import { listDataFilePage } from "@/db/queries/data-files";
+import { readListPage } from "@/lib/api/list-page";
 import { answerApiRequest, respondWithJson } from "@/lib/api/respond";
 import { requireToken } from "@/lib/auth/api-token-guard";
 import { registerUpload } from "@/lib/uploads/register-upload";
@@ -16,5 +18,18 @@ export async function POST(request: Request): Promise<Response> {
     const file = await registerUpload(workspace.id, user.id, input);
     // The same bytes are already a file here: that one is the answer, and nothing new was made.
     return respondWithJson(file, file.reused ? 200 : 201);
+  });
+}
+
+/** The workspace's registered files, newest first, a page at a time (cursor paging). */
+export async function GET(request: Request): Promise<Response> {
+  return answerApiRequest("list-files", async () => {
+    const { workspace } = await requireToken(request, "readWorkspace");
+    const { limit, after } = readListPage(request);
+    const { files, nextCursor } = await listDataFilePage(workspace.id, limit, after);
+    return respondWithJson({
+      files: files.map((file) => ({ ...file, createdAt: file.createdAt.toISOString() })),
+      nextCursor,
+    });
   });
 }
