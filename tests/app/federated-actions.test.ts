@@ -9,6 +9,7 @@ vi.mock("@/lib/auth/session", () => import("@/tests/support/fake-session"));
 vi.mock("next/cache", () => ({ revalidatePath: () => undefined }));
 
 import {
+  cancelFederated,
   closeFederatedRoster,
   createFederatedFromForm,
   issueFederatedClientKey,
@@ -281,5 +282,13 @@ describe("digest files uploaded on a client's behalf", () => {
         `west-schema.json: client "west": round 1 is over (the roster was closed without it)`,
       ),
     });
+
+    // The coordinator now waits for north and south; cancelling ends it (a reviewer cannot).
+    actAs(team.reviewer);
+    expect(statusOf(await cancelFederated(team.workspaceId, analysisId))).toBe(403);
+    actAs(team.analyst);
+    expect(statusOf(await cancelFederated(team.workspaceId, analysisId))).toBe(200);
+    expect((await getFederatedStatus(team.workspaceId, analysisId)).state).toBe("failed");
+    expect(statusOf(await cancelFederated(team.workspaceId, analysisId))).toBe(409);
   });
 });

@@ -98,6 +98,7 @@ describe.each([
       ["Overview", /\/w\/[\w-]+$/],
       ["Reports", /\/reports$/],
       ["New analysis", /\/analyses\/new$/],
+      ["Federated", /\/federated$/],
       ["Members", /\/members$/],
       ["Audit log", /\/audit$/],
       ["API tokens", /\/tokens$/],

@@ -8,6 +8,7 @@ import { RuleError } from "@/lib/errors";
 import {
   acceptGradientDigest,
   acceptSchemaDigest,
+  cancelFederatedAnalysis,
   closeRoster,
   createFederatedAnalysis,
   findRosterSender,
@@ -97,6 +98,21 @@ export async function closeFederatedRoster(
     return succeed({ missing });
   } catch (error) {
     return failWith(error, "close-roster");
+  }
+}
+
+/** Stops the analysis for good: its clients are told it ended, and no report is made. */
+export async function cancelFederated(
+  workspaceId: string,
+  analysisId: string,
+): Promise<ActionResult> {
+  try {
+    await requireRole(workspaceId, "runAnalysis");
+    await cancelFederatedAnalysis(workspaceId, analysisId);
+    revalidatePath(rosterPage(workspaceId, analysisId));
+    return succeed();
+  } catch (error) {
+    return failWith(error, "cancel-federated-analysis");
   }
 }
 

@@ -1,6 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
+import { cancelFederated } from "@/app/(workspace)/w/[workspaceId]/federated/actions";
 import { AutoRefresh } from "@/components/federated/auto-refresh";
 import { IssueKeyForm } from "@/components/federated/client-keys-panel";
 import { ClientKeyTable } from "@/components/federated/client-key-table";
@@ -11,6 +12,7 @@ import { isWaiting, stateLabel } from "@/components/federated/federated-states";
 import { RosterTable } from "@/components/federated/roster-table";
 import { StateStepper } from "@/components/federated/state-stepper";
 import { buttonClasses } from "@/components/ui/button";
+import { ConfirmActionButton } from "@/components/ui/confirm-action-button";
 import { Notice } from "@/components/ui/notice";
 import { guardPage } from "@/lib/auth/page-guard";
 import { roleAllows } from "@/lib/auth/roles";
@@ -94,6 +96,13 @@ export default async function FederatedAnalysisPage({
           <p className="text-sm text-ink-soft">
             Waiting for round 1 from {waitingFor.map((name) => `“${name}”`).join(", ")}.
           </p>
+        ) : null}
+        {canRun && waiting ? (
+          <ConfirmActionButton
+            label="Cancel the analysis"
+            confirmation="Cancel this federated analysis? Its clients are told it ended and no report is made."
+            action={cancelFederated.bind(null, workspace.id, status.id)}
+          />
         ) : null}
         {status.state === "failed" ? (
           <Notice tone="error">
