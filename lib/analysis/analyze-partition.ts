@@ -3,11 +3,11 @@ import {
   analysisOptionsSchema,
   type AnalysisOptions,
   type AnalysisOptionsInput,
-  type ReferenceWeights,
 } from "../validation/analysis-options";
 import { norm } from "../math/summation";
 import { advisePlan } from "./advise-plan";
-import { BIAS_NAME, isDesignOnDisk, type EncodedDesign } from "./design";
+import { isDesignOnDisk, type EncodedDesign } from "./design";
+import { readGivenWeights } from "./reference-weights";
 import { encodeDesign } from "./encode-design";
 import { AnalysisInputError } from "./errors";
 import { fitReferenceModel } from "./fit-reference-model";
@@ -446,41 +446,10 @@ function chooseReference(
 ): { kind: "optimum" | "zero" | "given"; weights: Float64Array } {
   if (reference === "optimum") return { kind: "optimum", weights: optimum };
   if (reference === "zero") return { kind: "zero", weights: new Float64Array(optimum.length) };
-  return { kind: "given", weights: readGivenWeights(reference, design, referenceName) };
-}
-
-function readGivenWeights(
-  given: ReferenceWeights,
-  design: EncodedDesign,
-  file: string,
-): Float64Array {
-  const width = design.x.cols;
-  const rows = countWeightRows(design);
-  const sameList = (a: string[] | null, b: string[] | null) =>
-    a === b ||
-    (a !== null && b !== null && a.length === b.length && a.every((value, i) => value === b[i]));
-  if (!sameList(given.features, design.featureNames)) {
-    throw new AnalysisInputError("the reference weights are for other features", {
-      file,
-      column: "features",
-      expected: `the encoded features in order: ${design.featureNames.join(", ")} (the bias ${BIAS_NAME} is the last weight)`,
-    });
-  }
-  if (!sameList(given.classes, design.classes)) {
-    throw new AnalysisInputError("the reference weights are for other classes", {
-      file,
-      column: "classes",
-      expected: design.classes
-        ? `classes ${design.classes.join(", ")}`
-        : "classes null (regression)",
-    });
-  }
-  if (given.weights.length !== rows || given.weights.some((row) => row.length !== width)) {
-    throw new AnalysisInputError("the reference weights have the wrong shape", {
-      file,
-      column: "weights",
-      expected: `${rows} rows of ${width} numbers (features, then the bias)`,
-    });
-  }
-  return Float64Array.from(given.weights.flat());
+  const shape = {
+    featureNames: design.featureNames,
+    classes: design.classes,
+    width: design.x.cols,
+  };
+  return { kind: "given", weights: readGivenWeights(reference, shape, referenceName) };
 }

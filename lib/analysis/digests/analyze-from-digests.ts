@@ -1,6 +1,7 @@
 import type { ReferenceWeights } from "../../validation/analysis-options";
 import type { Task } from "../design";
 import { AnalysisInputError } from "../errors";
+import { readGivenWeights } from "../reference-weights";
 import type { PartitionSummary } from "../summary";
 import type { DigestEncoding, MeasurementRequest } from "./digest-format";
 import { fitPooledOptimum, mergeEvaluationSums } from "./fit-pooled-optimum";
@@ -98,7 +99,11 @@ export function createMeasurementRequest(
   } else if (reference === "zero") {
     referenceWeights = asRows(new Float64Array(weightRows * width));
   } else {
-    checkReferenceWeights(reference, encoding, weightRows, width);
+    readGivenWeights(reference, {
+      featureNames: encoding.featureNames,
+      classes: encoding.classes,
+      width,
+    });
     referenceWeights = reference.weights;
   }
   return {
@@ -107,28 +112,6 @@ export function createMeasurementRequest(
     referenceWeights,
     pathEnd: optimum === null ? referenceWeights : asRows(optimum),
   };
-}
-
-function checkReferenceWeights(
-  given: ReferenceWeights,
-  encoding: DigestEncoding,
-  weightRows: number,
-  width: number,
-): void {
-  const same = (a: string[] | null, b: string[] | null) =>
-    a === b || (a !== null && b !== null && a.length === b.length && a.every((v, i) => v === b[i]));
-  if (!same(given.features, encoding.featureNames) || !same(given.classes, encoding.classes)) {
-    throw new AnalysisInputError("the reference weights are for other features or classes", {
-      column: "features",
-      expected: `features ${encoding.featureNames.join(", ")} and classes ${encoding.classes?.join(", ") ?? "null (regression)"}`,
-    });
-  }
-  if (given.weights.length !== weightRows || given.weights.some((row) => row.length !== width)) {
-    throw new AnalysisInputError("the reference weights have the wrong shape", {
-      column: "weights",
-      expected: `${weightRows} rows of ${width} numbers (features, then the bias)`,
-    });
-  }
 }
 
 /** One client's answer, asked again after each failure the host says to retry. */
