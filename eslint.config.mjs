@@ -10,6 +10,8 @@ const config = [
       ".data/**",
       ".test-data/**",
       "drizzle/**",
+      ".stryker-tmp/**",
+      "reports/**",
       "next-env.d.ts",
     ],
   },
