@@ -1,7 +1,7 @@
 import "server-only";
 import { and, eq, isNotNull } from "drizzle-orm";
 import { db } from "@/db/client";
-import { analyses, reports } from "@/db/schema";
+import { analyses, layoutCandidates, layoutPlans, reports } from "@/db/schema";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
 
 /** What the new-analysis form needs of an earlier analysis to fill itself in. */
@@ -59,4 +59,40 @@ export async function findReportAnalysisForForm(
       ),
     );
   return row && { ...row, datasetFileId: row.datasetFileId as string };
+}
+
+/**
+ * A layout plan's candidate whose map was registered as a layout file ("Analyse this layout"): the
+ * plan's dataset and options with the map as the partition.
+ */
+export async function findLayoutCandidateForForm(
+  workspaceId: string,
+  planId: string,
+  ordinal: number,
+): Promise<AnalysisForForm | undefined> {
+  const [row] = await db()
+    .select({
+      title: layoutPlans.title,
+      name: layoutCandidates.name,
+      datasetFileId: layoutPlans.datasetFileId,
+      layoutFileId: layoutCandidates.mapFileId,
+      parameters: layoutPlans.options,
+    })
+    .from(layoutCandidates)
+    .innerJoin(layoutPlans, eq(layoutPlans.id, layoutCandidates.planId))
+    .where(
+      and(
+        eq(layoutPlans.workspaceId, workspaceId),
+        eq(layoutPlans.id, planId),
+        eq(layoutCandidates.ordinal, ordinal),
+      ),
+    );
+  if (!row?.layoutFileId) return undefined;
+  return {
+    title: `${row.title} · ${row.name}`,
+    datasetFileId: row.datasetFileId,
+    layoutFileId: row.layoutFileId,
+    weightsFileId: null,
+    parameters: row.parameters,
+  };
 }

@@ -10,6 +10,7 @@ export {
   type LayoutSpec,
 } from "./generators";
 export { writeLayoutMap } from "./layout-map";
+export { rankLayouts } from "./rank-layouts";
 export {
   DEFAULT_LAYOUT_SEED,
   planLayouts,

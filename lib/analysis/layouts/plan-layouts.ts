@@ -19,6 +19,7 @@ import {
   type LayoutSpec,
 } from "./generators";
 import type { LayoutRows, ShardAssignment } from "./layout-rows";
+import { rankLayouts } from "./rank-layouts";
 import { regroupDesign } from "./regroup-design";
 
 export interface LayoutPlanInput {
@@ -204,14 +205,6 @@ function scoreLayout(
       signal: input.signal,
     },
     (analysis) => report("running", analysis),
-  );
-}
-
-/** Ranks by ρ = local / minibatch bound (null last), then by weighted JS. */
-export function rankLayouts(layouts: LayoutCandidate[]): LayoutCandidate[] {
-  const ratio = (layout: LayoutCandidate) => layout.summary.advice.ratio ?? Infinity;
-  return [...layouts].sort(
-    (a, b) => ratio(a) - ratio(b) || a.summary.labelSkew.js - b.summary.labelSkew.js,
   );
 }
 

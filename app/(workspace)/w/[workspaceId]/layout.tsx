@@ -41,6 +41,7 @@ export default async function WorkspaceLayout({
             {roleAllows(workspace.role, "uploadData") ? (
               <NavLink href={`${base}/analyses/new`}>New analysis</NavLink>
             ) : null}
+            <NavLink href={`${base}/layouts`}>Plan layouts</NavLink>
             <NavLink href={`${base}/federated`}>Federated</NavLink>
             <NavLink href={`${base}/members`}>Members</NavLink>
             {roleAllows(workspace.role, "readAuditLog") ? (

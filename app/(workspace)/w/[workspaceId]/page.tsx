@@ -61,6 +61,9 @@ export default async function WorkspaceOverviewPage({
               </Link>
               {canUpload ? (
                 <>
+                  <Link href={`${base}/layouts/new`} className={buttonClasses("quiet")}>
+                    Plan layouts
+                  </Link>
                   <Link href={`${base}/federated/new`} className={buttonClasses("quiet")}>
                     New federated analysis
                   </Link>

@@ -2,7 +2,11 @@ import type { Metadata } from "next";
 import { AnalysisForm } from "@/components/analyses/analysis-form";
 import { EMPTY_FORM, formValuesFrom } from "@/components/analyses/analysis-form-schema";
 import { Notice } from "@/components/ui/notice";
-import { findAnalysisForForm, findReportAnalysisForForm } from "@/db/queries/analysis-prefill";
+import {
+  findAnalysisForForm,
+  findLayoutCandidateForForm,
+  findReportAnalysisForForm,
+} from "@/db/queries/analysis-prefill";
 import { findDataFile, listDataFiles, type DataFileSummary } from "@/db/queries/data-files";
 import { guardPage } from "@/lib/auth/page-guard";
 import { env } from "@/lib/env";
@@ -27,18 +31,29 @@ export default async function NewAnalysisPage({
   searchParams,
 }: {
   params: Promise<{ workspaceId: string }>;
-  searchParams: Promise<{ from?: string | string[]; revise?: string | string[] }>;
+  searchParams: Promise<{
+    from?: string | string[];
+    revise?: string | string[];
+    layoutPlan?: string | string[];
+    candidate?: string | string[];
+  }>;
 }) {
   const { workspaceId } = await params;
   const query = await searchParams;
   const from = typeof query.from === "string" ? query.from : undefined;
   const revise = typeof query.revise === "string" ? query.revise : undefined;
+  // "Analyse this layout" on a plan's comparison: the candidate's registered map.
+  const layoutPlan = typeof query.layoutPlan === "string" ? query.layoutPlan : undefined;
+  const candidate = typeof query.candidate === "string" ? Number(query.candidate) : NaN;
+  const fromLayout = layoutPlan !== undefined && Number.isInteger(candidate);
   const returnTo = `/w/${workspaceId}/analyses/new${
     revise
       ? `?revise=${encodeURIComponent(revise)}`
       : from
         ? `?from=${encodeURIComponent(from)}`
-        : ""
+        : fromLayout
+          ? `?layoutPlan=${encodeURIComponent(layoutPlan)}&candidate=${candidate}`
+          : ""
   }`;
   await guardPage(workspaceId, "uploadData", returnTo);
 
@@ -46,7 +61,9 @@ export default async function NewAnalysisPage({
     ? await findReportAnalysisForForm(workspaceId, revise)
     : from
       ? await findAnalysisForForm(workspaceId, from)
-      : undefined;
+      : fromLayout
+        ? await findLayoutCandidateForForm(workspaceId, layoutPlan, candidate)
+        : undefined;
   const [datasets, layouts, weights] = await Promise.all([
     listDataFiles(workspaceId, "dataset").then((files) =>
       withFile(workspaceId, files, saved?.datasetFileId),
@@ -59,24 +76,32 @@ export default async function NewAnalysisPage({
     ),
   ]);
   const initialValues = saved ? formValuesFrom(saved, revise) : EMPTY_FORM;
-  const missing = (revise || from) && !saved;
+  const missing = (revise || from || fromLayout) && !saved;
 
   return (
     <div className="space-y-6">
       <header className="space-y-1">
         <h1 className="text-2xl font-semibold">
-          {revise ? "Revise a report" : from ? "Run again" : "New analysis"}
+          {revise
+            ? "Revise a report"
+            : from
+              ? "Run again"
+              : fromLayout
+                ? "Analyse a planned layout"
+                : "New analysis"}
         </h1>
         <p className="max-w-prose text-ink-soft">
-          {saved
-            ? "The choices of the earlier run are filled in; change what you need and run it again."
-            : "Upload a labelled dataset and say how it is split into shards; Partita measures the shards' heterogeneity and advises local updates or large minibatches for your plan."}
+          {saved && fromLayout
+            ? "The dataset, the chosen layout's partition map and the plan's options are filled in; start the analysis to make the layout a versioned report others can review."
+            : saved
+              ? "The choices of the earlier run are filled in; change what you need and run it again."
+              : "Upload a labelled dataset and say how it is split into shards; Partita measures the shards' heterogeneity and advises local updates or large minibatches for your plan."}
         </p>
       </header>
       {missing ? (
         <Notice tone="error">
-          The {revise ? "report" : "analysis"} to start from is not in this workspace; the form
-          starts empty.
+          The {revise ? "report" : fromLayout ? "layout" : "analysis"} to start from is not in this
+          workspace; the form starts empty.
         </Notice>
       ) : null}
       <AnalysisForm
