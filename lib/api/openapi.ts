@@ -6,6 +6,7 @@ import {
   completeMultipartSchema,
 } from "@/lib/validation/upload";
 import { registerDataFileSchema, signPartsSchema } from "@/lib/validation/upload";
+import { layoutPlanSchema } from "@/lib/validation/layout-plan";
 import { startAnalysisSchema } from "@/lib/validation/start-analysis";
 import { API_TOKEN_PREFIX } from "@/lib/auth/api-token-secret";
 import { API_REQUESTS_PER_MINUTE } from "./rate-limit";
@@ -19,9 +20,13 @@ import {
   completedUploadSchema,
   dataFileListSchema,
   listPageQuerySchema,
+  layoutComparisonSchema,
+  layoutPlanPathSchema,
+  layoutPlanStatusSchema,
   listReportsQuerySchema,
   partitionSummarySchema,
   queuedAnalysisSchema,
+  queuedLayoutPlanSchema,
   registeredFileSchema,
   reportListSchema,
   reportPathSchema,
@@ -36,6 +41,7 @@ const ERROR_DESCRIPTIONS = {
     "No token, or a token that is unknown, expired, revoked or whose owner left the workspace.",
   "403": "The token's user does not hold the role this needs in the workspace.",
   "404": "Nothing with that id in the token's workspace.",
+  "409": "Not yet: the plan is still running.",
   "422": "The input is malformed or breaks a rule; `fieldErrors` says where.",
   "429": `More than ${API_REQUESTS_PER_MINUTE} requests a minute with this token; see Retry-After.`,
 } as const;
@@ -80,7 +86,8 @@ export function createApiDocument() {
       version: "1.0.0",
       description:
         "Run partition analyses from a pipeline: upload a dataset and a layout, start an analysis, " +
-        "follow it, and read the report's JSON summary. Authenticate with a personal API token " +
+        "follow it, and read the report's JSON summary; or plan candidate layouts of a dataset " +
+        "and read their comparison. Authenticate with a personal API token " +
         `(\`Authorization: Bearer ${API_TOKEN_PREFIX}…\`) made on a workspace's API tokens page; ` +
         "it acts with its owner's current role in that workspace.",
     },
@@ -186,6 +193,42 @@ export function createApiDocument() {
           requestParams: { path: analysisPathSchema },
           success: ["200", "The analysis's state.", analysisStatusSchema],
           failures: ["404", "422"],
+        }),
+      },
+      "/api/v1/layout-plans": {
+        post: operation({
+          operationId: "startLayoutPlan",
+          summary:
+            "Queue a layout plan: candidate splits of a registered dataset, scored and compared",
+          description:
+            "The worker reads and encodes the dataset once and scores every generator's candidate " +
+            "with the full analysis under the same options (methods.md §8). No shard column, no " +
+            "simulation; a group column keeps each group's rows in one shard.",
+          requestBody: json(layoutPlanSchema),
+          success: ["202", "Queued; poll statusUrl.", queuedLayoutPlanSchema],
+          failures: ["403", "422"],
+        }),
+      },
+      "/api/v1/layout-plans/{planId}": {
+        get: operation({
+          operationId: "getLayoutPlanStatus",
+          summary: "State of a layout plan and of each candidate",
+          requestParams: { path: layoutPlanPathSchema },
+          success: ["200", "The plan's state.", layoutPlanStatusSchema],
+          failures: ["404", "422"],
+        }),
+      },
+      "/api/v1/layout-plans/{planId}/result": {
+        get: operation({
+          operationId: "getLayoutComparison",
+          summary: "The comparison of an ended plan (the CLI's layouts.json)",
+          requestParams: { path: layoutPlanPathSchema },
+          success: [
+            "200",
+            "Scored candidates ranked, and the failed ones.",
+            layoutComparisonSchema,
+          ],
+          failures: ["404", "409", "422"],
         }),
       },
       "/api/v1/reports": {

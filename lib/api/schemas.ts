@@ -260,3 +260,70 @@ export const analysisListSchema = z
     nextCursor: nextCursorSchema,
   })
   .meta({ id: "AnalysisList" });
+
+export const layoutPlanPathSchema = z.object({
+  planId: resourceId.meta({ description: "The id returned by POST /api/v1/layout-plans." }),
+});
+
+export const queuedLayoutPlanSchema = z
+  .object({
+    planId: z.string(),
+    statusUrl: z.string().meta({ description: "Poll this for the plan's and candidates' state." }),
+    resultUrl: z.string().meta({ description: "The comparison, once the plan has ended." }),
+  })
+  .meta({ id: "QueuedLayoutPlan" });
+
+const RUN_STATES = ["queued", "running", "succeeded", "failed", "cancelled"] as const;
+
+export const layoutPlanStatusSchema = z
+  .object({
+    title: z.string(),
+    status: z.enum(RUN_STATES),
+    stage: z.enum(["reading", "encoding", "fitting"]).nullable().meta({
+      description: "The shared stage before the candidates: read, encode and fit once.",
+    }),
+    fraction: z.number().meta({ description: "Progress within the shared stage, 0 to 1." }),
+    failureMessage: z.string().nullable(),
+    candidates: z.array(
+      z.object({
+        ordinal: z.number().int(),
+        name: z.string().meta({ description: "Generator with its parameter, e.g. dirichlet-0.5." }),
+        status: z.enum(RUN_STATES),
+        fraction: z.number(),
+        failureMessage: z.string().nullable(),
+      }),
+    ),
+  })
+  .meta({ id: "LayoutPlanStatus" });
+
+export const layoutComparisonSchema = z
+  .object({
+    layouts: z.array(
+      z.object({
+        name: z.string(),
+        generator: z.string(),
+        parameters: z.record(z.string(), z.number()),
+        seed: z.number().int(),
+        shards: z.number().int(),
+        summary: partitionSummarySchema,
+      }),
+    ),
+    failures: z.array(
+      z.object({
+        name: z.string(),
+        generator: z.string(),
+        parameters: z.record(z.string(), z.number()),
+        seed: z.number().int(),
+        message: z.string(),
+        badInput: z.boolean(),
+      }),
+    ),
+    shardCount: z.number().int(),
+    groupColumn: z.string().nullable(),
+  })
+  .meta({
+    id: "LayoutComparison",
+    description:
+      "methods.md §8's comparison, as `npm run layouts` writes layouts.json: candidates ranked by " +
+      "ρ, then weighted JS, each with its §6 summary; the candidates that could not be made.",
+  });
