@@ -11,6 +11,7 @@ import { AgreementHeatmap } from "./charts/agreement-heatmap";
 import { BoundCurvesChart } from "./charts/bound-curves-chart";
 import { DivergenceChart } from "./charts/divergence-chart";
 import { LabelMixChart } from "./charts/label-mix-chart";
+import { LabelBinTable } from "./label-bin-table";
 import { PathChart } from "./charts/path-chart";
 import { RegimeMapChart } from "./charts/regime-map-chart";
 import { ChartEmptyState, EvidenceSection } from "./evidence-section";
@@ -60,12 +61,21 @@ export function ReportEvidence({
               This report has no shards or no label categories to show.
             </ChartEmptyState>
           ) : (
-            <LabelMixChart
-              bars={labelMix.bars}
-              categories={labelMix.categories}
-              ordered={summary.dataset.task === "regression"}
-              label={`Stacked bars: the label mix of ${labelMix.shownShards} shards beside the pooled mix.`}
-            />
+            <>
+              <LabelMixChart
+                bars={labelMix.bars}
+                categories={labelMix.categories}
+                ordered={summary.dataset.task === "regression"}
+                label={`Stacked bars: the label mix of ${labelMix.shownShards} shards beside the pooled mix.`}
+              />
+              {summary.labelSkew.binRanges ? (
+                <LabelBinTable
+                  categories={summary.labelSkew.categories}
+                  ranges={summary.labelSkew.binRanges}
+                  pooled={summary.labelSkew.pooled}
+                />
+              ) : null}
+            </>
           )}
         </EvidenceSection>
 

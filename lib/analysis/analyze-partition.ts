@@ -321,6 +321,7 @@ export async function analyzeDesign(
     width: design.x.cols,
     task: design.task,
     classNames: design.classes,
+    binRanges: design.skewCategoryRanges,
     shards: design.shardIds.map((id, m) => ({
       id,
       rows: atReference.shards[m].rows,

@@ -17,6 +17,8 @@ export interface SummaryParts {
   width: number;
   task: Task;
   classNames: string[] | null;
+  /** Regression read from the rows: each decile bin's label range (absent otherwise). */
+  binRanges?: [number, number][];
   /** The shards in order (methods.md §1), with their kept rows and feature shift. */
   shards: { id: string; rows: number; featureShift: number }[];
   labelSkew: LabelSkew;
@@ -71,6 +73,7 @@ export function assembleSummary(parts: SummaryParts): PartitionSummary {
       max: labelSkew.max,
       categories: parts.classNames ?? labelSkew.pooled.map((_, bin) => `decile bin ${bin + 1}`),
       pooled: labelSkew.pooled,
+      ...(parts.binRanges ? { binRanges: parts.binRanges } : {}),
     },
     quantitySkew: parts.quantitySkew,
     model: {

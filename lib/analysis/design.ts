@@ -26,6 +26,8 @@ export interface Design {
   /** Per row, the category used for label skew: the class, or the decile bin for regression. */
   skewCategories: Int32Array;
   skewCategoryCount: number;
+  /** Regression: each decile bin's smallest and largest label value, in the label's units. */
+  skewCategoryRanges?: [number, number][];
   shardIds: string[];
   /** shardOffsets[m] … shardOffsets[m + 1] are shard m's rows; length M + 1. */
   shardOffsets: Int32Array;

@@ -128,6 +128,7 @@ function encodeBlocks(
     targets: target.targets,
     skewCategories: target.skewCategories,
     skewCategoryCount: target.skewCategoryCount,
+    ...(target.skewCategoryRanges ? { skewCategoryRanges: target.skewCategoryRanges } : {}),
     shardIds,
     shardOffsets,
     featureNames: columns.kept.map((column) => column.name),
@@ -178,6 +179,7 @@ interface EncodedTarget {
   targets: Float64Array | null;
   skewCategories: Int32Array;
   skewCategoryCount: number;
+  skewCategoryRanges?: [number, number][];
 }
 
 function encodeTarget(
@@ -250,7 +252,29 @@ function encodeTarget(
     targets,
     skewCategories: categories,
     skewCategoryCount: count,
+    skewCategoryRanges: measureBinRanges(values, position, categories, count),
   };
+}
+
+/**
+ * Each decile bin's smallest and largest label value, in the label's own units, so a reader sees
+ * what the bins hold. `values` are in file order; `categories` are indexed by position.
+ *
+ * Example: labels 1…10 give ten bins [1, 1], [2, 2], …, [10, 10].
+ */
+function measureBinRanges(
+  values: Float64Array,
+  position: Int32Array,
+  categories: Int32Array,
+  count: number,
+): [number, number][] {
+  const ranges: [number, number][] = Array.from({ length: count }, () => [Infinity, -Infinity]);
+  for (let row = 0; row < values.length; row++) {
+    const range = ranges[categories[position[row]]];
+    if (values[row] < range[0]) range[0] = values[row];
+    if (values[row] > range[1]) range[1] = values[row];
+  }
+  return ranges;
 }
 
 /**

@@ -32,6 +32,12 @@ export interface PartitionSummary {
     categories: string[];
     /** Pooled proportions p over `categories`. */
     pooled: number[];
+    /**
+     * Regression read from the rows: each decile bin's smallest and largest label value, in the
+     * label's units, in the order of `categories`. Absent for classification, and for regression
+     * from client digests, whose bins come from a histogram.
+     */
+    binRanges?: [number, number][];
   };
   quantitySkew: { gini: number; cv: number; min: number; max: number };
   model: {
