@@ -138,7 +138,11 @@ describe("from upload to report in the browser", () => {
         .locator("xpath=following-sibling::dd[1]/span[1]");
       expect((await chip.textContent())?.trim()).toBe(verdict);
     }
-    expect(await section.getByRole("note").textContent()).toMatch(
+    // The section's other note, when present, names step sizes at the grid's edge (methods.md §7).
+    const comparison = section
+      .getByRole("note")
+      .filter({ hasText: /^The simulation on your shards/ });
+    expect(await comparison.textContent()).toMatch(
       /^The simulation on your shards does not back the bounds' verdict: the bounds see no clear winner, but local SGD ended at 0\.09\d* times/,
     );
     await section.getByRole("img", { name: /suboptimality against rounds/ }).waitFor();
