@@ -13,6 +13,7 @@ export default defineConfig({
   test: {
     environment: "node",
     include: ["tests/e2e/**/*.test.ts"],
+    setupFiles: ["tests/e2e/support/fresh-client-budgets.ts"],
     fileParallelism: false,
     testTimeout: 120_000,
     hookTimeout: 120_000,

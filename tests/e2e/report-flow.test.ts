@@ -124,8 +124,7 @@ describe("from upload to report in the browser", () => {
       expect(await table.getByRole("rowheader", { name, exact: true }).count()).toBe(1);
     }
     // The verdicts side by side, and the sentence that compares them. This split and plan give no
-    // clear winner from the bounds, and local updates from the seeded simulation (ρ_sim ≈ 0.0985 once
-    // the step-size grid grows past its end, methods.md §7):
+    // clear winner from the bounds, and local updates from the seeded simulation (ρ_sim ≈ 0.40):
     // `npm run analyze -- --data penguins.csv --label Species --id-column row --shard-column Island
     // --rounds 20 --simulate --seeds 2` prints the same.
     const expected = {
@@ -143,7 +142,7 @@ describe("from upload to report in the browser", () => {
       .getByRole("note")
       .filter({ hasText: /^The simulation on your shards/ });
     expect(await comparison.textContent()).toMatch(
-      /^The simulation on your shards does not back the bounds' verdict: the bounds see no clear winner, but local SGD ended at 0\.09\d* times/,
+      /^The simulation on your shards does not back the bounds' verdict: the bounds see no clear winner, but local SGD ended at 0\.4\d* times/,
     );
     await section.getByRole("img", { name: /suboptimality against rounds/ }).waitFor();
     await section.getByText("A convex proxy, not your network.").waitFor();
