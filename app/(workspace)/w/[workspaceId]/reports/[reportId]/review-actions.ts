@@ -104,10 +104,7 @@ export async function postComment(
     const { user, workspace } = await requireRole(workspaceId, "commentOnReport");
     const values = commentSchema.parse(input);
     const report = await requireReportInWorkspace(workspace.id, reportId);
-    const members = await listWorkspacePeople(workspace.id);
-    const mentioned = findMentionedMembers(values.body, members).filter(
-      (member) => member.userId !== user.id,
-    );
+    const mentioned = await findMentionedOthers(workspace.id, values.body, user.id);
     const { id } = await addComment({
       report,
       authorId: user.id,
@@ -117,21 +114,12 @@ export async function postComment(
       anchor: values.anchor,
       mentions: mentioned.map((member) => member.userId),
     });
-    await Promise.all(
-      mentioned.map((member) =>
-        deliverNotification({
-          workspaceId: workspace.id,
-          recipient: member,
-          kind: "mentioned",
-          message: mentionedMessage({
-            report: reportRef(report),
-            authorName: user.name ?? user.email,
-            body: values.body,
-            settingsUrl: settingsUrl(workspace.id),
-          }),
-        }),
-      ),
-    );
+    await notifyMentioned(mentioned, {
+      workspaceId: workspace.id,
+      report,
+      authorName: user.name ?? user.email,
+      body: values.body,
+    });
     revalidatePath(reportPath(workspace.id, report.id));
     return succeed({ commentId: id, mentioned: mentioned.length });
   } catch (error) {
@@ -152,10 +140,7 @@ export async function reviseComment(
     const { user, workspace } = await requireRole(workspaceId, "commentOnReport");
     const values = commentEditSchema.parse(input);
     const report = await requireReportInWorkspace(workspace.id, reportId);
-    const members = await listWorkspacePeople(workspace.id);
-    const mentioned = findMentionedMembers(values.body, members).filter(
-      (member) => member.userId !== user.id,
-    );
+    const mentioned = await findMentionedOthers(workspace.id, values.body, user.id);
     const { earlierBody, earlierMentions } = await editComment({
       report,
       commentId: values.commentId,
@@ -172,21 +157,12 @@ export async function reviseComment(
       details: { title: report.title, version: report.version, before: earlierBody },
     });
     const newlyMentioned = mentioned.filter((member) => !earlierMentions.includes(member.userId));
-    await Promise.all(
-      newlyMentioned.map((member) =>
-        deliverNotification({
-          workspaceId: workspace.id,
-          recipient: member,
-          kind: "mentioned",
-          message: mentionedMessage({
-            report: reportRef(report),
-            authorName: user.name ?? user.email,
-            body: values.body,
-            settingsUrl: settingsUrl(workspace.id),
-          }),
-        }),
-      ),
-    );
+    await notifyMentioned(newlyMentioned, {
+      workspaceId: workspace.id,
+      report,
+      authorName: user.name ?? user.email,
+      body: values.body,
+    });
     revalidatePath(reportPath(workspace.id, report.id));
     return succeed({ mentioned: newlyMentioned.length });
   } catch (error) {
@@ -275,4 +251,37 @@ export async function decideReview(
   } catch (error) {
     return failWith(error, "decide-review");
   }
+}
+
+/** Members a comment's text mentions, leaving out its author. */
+async function findMentionedOthers(workspaceId: string, body: string, authorId: string) {
+  const members = await listWorkspacePeople(workspaceId);
+  return findMentionedMembers(body, members).filter((member) => member.userId !== authorId);
+}
+
+/** E-mails each mentioned member (as their preferences allow) that a comment names them. */
+async function notifyMentioned(
+  members: Awaited<ReturnType<typeof findMentionedOthers>>,
+  comment: {
+    workspaceId: string;
+    report: Parameters<typeof reportRef>[0];
+    authorName: string;
+    body: string;
+  },
+): Promise<void> {
+  await Promise.all(
+    members.map((member) =>
+      deliverNotification({
+        workspaceId: comment.workspaceId,
+        recipient: member,
+        kind: "mentioned",
+        message: mentionedMessage({
+          report: reportRef(comment.report),
+          authorName: comment.authorName,
+          body: comment.body,
+          settingsUrl: settingsUrl(comment.workspaceId),
+        }),
+      }),
+    ),
+  );
 }
