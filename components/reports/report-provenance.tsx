@@ -1,5 +1,6 @@
 import type { ReportDetail } from "@/db/queries/reports";
-import { formatBytes, formatFigure } from "@/lib/reports/report-view";
+import { formatFigure } from "@/lib/reports/report-view";
+import { formatBytes } from "@/lib/uploads/file-rules";
 
 const INPUT_KINDS = { dataset: "Dataset", layout: "Partition map", weights: "Reference weights" };
 const LISTED_FEATURES = 8;

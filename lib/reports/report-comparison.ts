@@ -1,6 +1,7 @@
 import type { PartitionSummary } from "@/lib/analysis/summary";
 import type { ReportInput } from "@/db/schema/analyses";
-import { formatBytes, formatFigure, VERDICT_LABELS } from "./report-view";
+import { formatBytes } from "@/lib/uploads/file-rules";
+import { formatFigure, VERDICT_LABELS } from "./report-view";
 
 export type ComparedReport = {
   summary: PartitionSummary;

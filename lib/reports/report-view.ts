@@ -44,17 +44,6 @@ function toSuperscript(exponent: number): string {
   return exponent < 0 ? `⁻${digits}` : digits;
 }
 
-export function formatBytes(bytes: number): string {
-  const units = ["bytes", "KB", "MB", "GB", "TB"];
-  let value = bytes;
-  let unit = 0;
-  while (value >= 1000 && unit < units.length - 1) {
-    value /= 1000;
-    unit += 1;
-  }
-  return unit === 0 ? `${bytes} bytes` : `${value.toPrecision(3)} ${units[unit]}`;
-}
-
 /** Dates in reports are shown in UTC so every reader of a shared report sees the same day. */
 export function formatReportDate(date: Date): string {
   return `${date.toISOString().slice(0, 16).replace("T", " ")} UTC`;
