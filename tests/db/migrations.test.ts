@@ -24,6 +24,40 @@ async function onServer<T>(work: (client: pg.Client) => Promise<T>): Promise<T> 
   }
 }
 
+/**
+ * Runs `work` on a fresh database migrated up to (not including) the migration whose tag ends with
+ * `tagSuffix`, so a test can store rows the old way and then apply the rest; dropped afterwards.
+ */
+async function withDatabaseBefore(
+  tagSuffix: string,
+  work: (pool: pg.Pool) => Promise<void>,
+): Promise<void> {
+  const oldName = `${databaseName}_${tagSuffix.slice(0, 20)}`;
+  const oldUrl = Object.assign(new URL(serverUrl), { pathname: `/${oldName}` }).toString();
+  const partialFolder = mkdtempSync(path.join(tmpdir(), "partita-migrations-"));
+  await onServer((client) => client.query(`CREATE DATABASE ${pg.escapeIdentifier(oldName)}`));
+  const pool = new pg.Pool({ connectionString: oldUrl, max: 1 });
+  try {
+    cpSync(migrationsFolder, partialFolder, { recursive: true });
+    const journalPath = path.join(partialFolder, "meta", "_journal.json");
+    const journal = JSON.parse(readFileSync(journalPath, "utf8")) as { entries: { tag: string }[] };
+    const cut = journal.entries.findIndex((entry) => entry.tag.endsWith(tagSuffix));
+    expect(cut).toBeGreaterThan(0);
+    writeFileSync(
+      journalPath,
+      JSON.stringify({ ...journal, entries: journal.entries.slice(0, cut) }),
+    );
+    await migrate(drizzle(pool), { migrationsFolder: partialFolder });
+    await work(pool);
+  } finally {
+    await pool.end();
+    rmSync(partialFolder, { recursive: true, force: true });
+    await onServer((client) =>
+      client.query(`DROP DATABASE IF EXISTS ${pg.escapeIdentifier(oldName)} WITH (FORCE)`),
+    );
+  }
+}
+
 describe("migrations", () => {
   beforeAll(() =>
     onServer((client) => client.query(`CREATE DATABASE ${pg.escapeIdentifier(databaseName)}`)),
@@ -65,26 +99,7 @@ describe("migrations", () => {
   it("convert stored review words: decisions, preferences and audit entries", async () => {
     // A second database, migrated only up to the migration before the vocabulary change, holds
     // rows in the old words; the full set of migrations must convert them.
-    const oldName = `${databaseName}_words`;
-    const oldUrl = Object.assign(new URL(serverUrl), { pathname: `/${oldName}` }).toString();
-    const partialFolder = mkdtempSync(path.join(tmpdir(), "partita-migrations-"));
-    await onServer((client) => client.query(`CREATE DATABASE ${pg.escapeIdentifier(oldName)}`));
-    const pool = new pg.Pool({ connectionString: oldUrl, max: 1 });
-    try {
-      cpSync(migrationsFolder, partialFolder, { recursive: true });
-      const journalPath = path.join(partialFolder, "meta", "_journal.json");
-      const journal = JSON.parse(readFileSync(journalPath, "utf8")) as {
-        entries: { tag: string }[];
-      };
-      const cut = journal.entries.findIndex((entry) =>
-        entry.tag.endsWith("review_words_of_our_own"),
-      );
-      expect(cut).toBeGreaterThan(0);
-      writeFileSync(
-        journalPath,
-        JSON.stringify({ ...journal, entries: journal.entries.slice(0, cut) }),
-      );
-      await migrate(drizzle(pool), { migrationsFolder: partialFolder });
+    await withDatabaseBefore("review_words_of_our_own", async (pool) => {
       await pool.query(
         `INSERT INTO audit_log (id, workspace_id, actor_id, actor_email, action, target_type, target_id, details)
          VALUES ('a1', 'w', 'u', 'u@example.test', 'review.requested', 'report', 'r', '{"version": 1}'),
@@ -118,37 +133,12 @@ describe("migrations", () => {
       ]);
       // The append-only guard is back after the conversion.
       await expect(pool.query("DELETE FROM audit_log WHERE id = 'a4'")).rejects.toThrow();
-    } finally {
-      await pool.end();
-      rmSync(partialFolder, { recursive: true, force: true });
-      await onServer((client) =>
-        client.query(`DROP DATABASE IF EXISTS ${pg.escapeIdentifier(oldName)} WITH (FORCE)`),
-      );
-    }
+    });
   });
 
   it("give stored reports their summary header and each shard its label counts", async () => {
     // A database migrated up to the migration before, holding a report stored the old way.
-    const oldName = `${databaseName}_header`;
-    const oldUrl = Object.assign(new URL(serverUrl), { pathname: `/${oldName}` }).toString();
-    const partialFolder = mkdtempSync(path.join(tmpdir(), "partita-migrations-"));
-    await onServer((client) => client.query(`CREATE DATABASE ${pg.escapeIdentifier(oldName)}`));
-    const pool = new pg.Pool({ connectionString: oldUrl, max: 1 });
-    try {
-      cpSync(migrationsFolder, partialFolder, { recursive: true });
-      const journalPath = path.join(partialFolder, "meta", "_journal.json");
-      const journal = JSON.parse(readFileSync(journalPath, "utf8")) as {
-        entries: { tag: string }[];
-      };
-      const cut = journal.entries.findIndex((entry) =>
-        entry.tag.endsWith("report_summary_header_and_shard_label_counts"),
-      );
-      expect(cut).toBeGreaterThan(0);
-      writeFileSync(
-        journalPath,
-        JSON.stringify({ ...journal, entries: journal.entries.slice(0, cut) }),
-      );
-      await migrate(drizzle(pool), { migrationsFolder: partialFolder });
+    await withDatabaseBefore("report_summary_header_and_shard_label_counts", async (pool) => {
       // The summary's text as stored (json keeps it byte for byte), two shards in stored order.
       const shards = [
         { id: "a", rows: 3, labelCounts: [2, 1, 0] },
@@ -188,12 +178,6 @@ describe("migrations", () => {
       expect(counts.rows).toEqual(
         shards.map((shard) => ({ shard_id: shard.id, label_counts: shard.labelCounts })),
       );
-    } finally {
-      await pool.end();
-      rmSync(partialFolder, { recursive: true, force: true });
-      await onServer((client) =>
-        client.query(`DROP DATABASE IF EXISTS ${pg.escapeIdentifier(oldName)} WITH (FORCE)`),
-      );
-    }
+    });
   });
 });
