@@ -18,8 +18,7 @@ import { AnalysisInputError } from "@/lib/analysis/errors";
 import { PATH_POINTS } from "@/lib/analysis/path-points";
 import type { ClientCaller } from "@/lib/auth/client-key-guard";
 import { RuleError } from "@/lib/errors";
-import { hashBody } from "./accept-schema-digest";
-import { asRefusal, ENDED_STATES } from "./federated-rules";
+import { ENDED_STATES, recordRefusal } from "./federated-rules";
 
 type Sender = Pick<ClientCaller, "analysisId" | "client">;
 
@@ -36,11 +35,15 @@ export async function acceptGradientDigest(
 ): Promise<{ repeated: boolean }> {
   const analysis = await findFederatedAnalysisById(sender.analysisId);
   if (!analysis) throw new RuleError(404, "There is no such federated analysis.");
-  const sha256 = hashBody(document);
+  const sha256 = hashDocument(document);
   const stored = await findFederatedDigest(sender.client.id, "gradients");
-  if (stored?.sha256 === sha256) return { repeated: true };
+  if (stored?.sha256 === sha256) {
+    // Stored, but the answer may not have been recorded before the first reply failed.
+    await answerOpenGradientsRequest(sender.client.id, sha256);
+    return { repeated: true };
+  }
   const name = sender.client.name;
-  try {
+  return recordRefusal(sender.client.id, async () => {
     if (stored) {
       throw new RuleError(409, `client "${name}" already sent its gradient digest`);
     }
@@ -74,16 +77,16 @@ export async function acceptGradientDigest(
       document,
       sha256,
     });
-    await answerExchange(sender.client.id, open.id, { sha256 });
-    await updateFederatedClient(sender.client.id, { roundReached: "gradients", lastRefusal: null });
+    await answerOpenGradientsRequest(sender.client.id, sha256);
     return { repeated: false };
-  } catch (error) {
-    const refusal = asRefusal(error);
-    if (refusal instanceof RuleError) {
-      await updateFederatedClient(sender.client.id, { lastRefusal: refusal.message });
-    }
-    throw refusal;
-  }
+  });
+}
+
+/** Marks the coordinator's round-2 request answered by the stored digest (safe to repeat). */
+async function answerOpenGradientsRequest(clientId: string, sha256: string): Promise<void> {
+  const open = await findOpenExchange(clientId);
+  if (open?.kind === "gradients") await answerExchange(clientId, open.id, { sha256 });
+  await updateFederatedClient(clientId, { roundReached: "gradients", lastRefusal: null });
 }
 
 function checkEncoding(digest: GradientDigest, client: string, encoding: DigestEncoding): void {

@@ -1,19 +1,22 @@
 import "server-only";
-import { createHash } from "node:crypto";
 import { findFederatedAnalysisById, updateFederatedClient } from "@/db/queries/federated-analyses";
 import {
   findFederatedDigest,
   insertFederatedDigest,
   listFederatedDigests,
 } from "@/db/queries/federated-digests";
-import { schemaDigestSchema, type SchemaDigest } from "@/lib/analysis/digests/digest-format";
+import {
+  hashDocument,
+  schemaDigestSchema,
+  type SchemaDigest,
+} from "@/lib/analysis/digests/digest-format";
 import { checkSchemaAgreement } from "@/lib/analysis/digests/merge-schemas";
 import { parseDigest } from "@/lib/analysis/digests/parse-digest";
 import { AnalysisInputError } from "@/lib/analysis/errors";
 import type { ClientCaller } from "@/lib/auth/client-key-guard";
 import { RuleError } from "@/lib/errors";
 import { buildEncodingWhenReady } from "./build-encoding";
-import { asRefusal } from "./federated-rules";
+import { recordRefusal } from "./federated-rules";
 
 type Sender = Pick<ClientCaller, "analysisId" | "client">;
 
@@ -31,26 +34,25 @@ export async function acceptSchemaDigest(
 ): Promise<{ state: string; repeated: boolean }> {
   const analysis = await findFederatedAnalysisById(sender.analysisId);
   if (!analysis) throw new RuleError(404, "There is no such federated analysis.");
-  const sha256 = hashBody(document);
+  const sha256 = hashDocument(document);
   const stored = await findFederatedDigest(sender.client.id, "schema");
   if (stored?.sha256 === sha256) return { state: analysis.state, repeated: true };
-  if (stored) {
-    throw refuse(
-      sender,
-      409,
-      `client "${sender.client.name}" already sent a different schema digest; round 1 keeps the first`,
-    );
-  }
-  if (analysis.state !== "collecting-schemas") {
-    throw refuse(
-      sender,
-      409,
-      `client "${sender.client.name}": round 1 is over (the roster was closed without it)`,
-    );
-  }
-  try {
+  const name = sender.client.name;
+  await recordRefusal(sender.client.id, async () => {
+    if (stored) {
+      throw new RuleError(
+        409,
+        `client "${name}" already sent a different schema digest; round 1 keeps the first`,
+      );
+    }
+    if (analysis.state !== "collecting-schemas") {
+      throw new RuleError(
+        409,
+        `client "${name}": round 1 is over (the roster was closed without it)`,
+      );
+    }
     const digest = parseDigest(document, schemaDigestSchema, "schema digest");
-    checkBelongs(digest, sender.client.name, analysis);
+    checkBelongs(digest, name, analysis);
     const others = await listFederatedDigests(analysis.id, "schema");
     checkSchemaAgreement(
       [...[...others.values()].map((other) => other as SchemaDigest), digest],
@@ -68,13 +70,7 @@ export async function acceptSchemaDigest(
       roundReached: "schema",
       lastRefusal: null,
     });
-  } catch (error) {
-    const refusal = asRefusal(error);
-    if (refusal instanceof RuleError) {
-      await updateFederatedClient(sender.client.id, { lastRefusal: refusal.message });
-    }
-    throw refusal;
-  }
+  });
   const state = await buildEncodingWhenReady(analysis.id);
   return { state, repeated: false };
 }
@@ -108,14 +104,4 @@ function checkBelongs(
       });
     }
   }
-}
-
-function refuse(sender: Sender, status: 409 | 422, message: string): RuleError {
-  void updateFederatedClient(sender.client.id, { lastRefusal: message });
-  return new RuleError(status, message);
-}
-
-/** SHA-256 of the document as received (its JSON text), to tell a repeat from another digest. */
-export function hashBody(document: unknown): string {
-  return createHash("sha256").update(JSON.stringify(document)).digest("hex");
 }

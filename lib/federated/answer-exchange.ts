@@ -10,7 +10,7 @@ import { parseDigest } from "@/lib/analysis/digests/parse-digest";
 import { AnalysisInputError } from "@/lib/analysis/errors";
 import type { ClientCaller } from "@/lib/auth/client-key-guard";
 import { RuleError } from "@/lib/errors";
-import { asRefusal } from "./federated-rules";
+import { recordRefusal } from "./federated-rules";
 
 type Sender = Pick<ClientCaller, "analysisId" | "client">;
 
@@ -32,7 +32,7 @@ export async function answerExchange(
   }
   if (exchange.answeredAt !== null) return { repeated: true };
   const name = sender.client.name;
-  try {
+  await recordRefusal(sender.client.id, async () => {
     if (exchange.kind === "gradients") {
       throw new RuleError(
         422,
@@ -62,13 +62,7 @@ export async function answerExchange(
         );
       }
     }
-  } catch (error) {
-    const refusal = asRefusal(error);
-    if (refusal instanceof RuleError) {
-      await updateFederatedClient(sender.client.id, { lastRefusal: refusal.message });
-    }
-    throw refusal;
-  }
+  });
   const stored = await storeAnswer(sender.client.id, exchange.id, body);
   if (exchange.kind === "evaluate") {
     await updateFederatedClient(sender.client.id, { roundReached: "fit", lastRefusal: null });

@@ -1,6 +1,7 @@
 import "server-only";
 import {
   findFederatedAnalysis,
+  updateFederatedClient,
   type FederatedAnalysisRow,
   type FederatedClientRow,
 } from "@/db/queries/federated-analyses";
@@ -31,6 +32,22 @@ export function orderRoster<Client extends Pick<FederatedClientRow, "name">>(
 }
 
 /** An engine input error as the refusal the API answers (422), its message unchanged. */
-export function asRefusal(error: unknown): unknown {
+function asRefusal(error: unknown): unknown {
   return error instanceof AnalysisInputError ? new RuleError(422, error.message) : error;
+}
+
+/**
+ * Runs a client's check-and-store; a refusal (an engine input error becomes a 422) is recorded
+ * on the roster as the client's last refusal, so the analyst sees why, and thrown on.
+ */
+export async function recordRefusal<T>(clientId: string, work: () => Promise<T>): Promise<T> {
+  try {
+    return await work();
+  } catch (error) {
+    const refusal = asRefusal(error);
+    if (refusal instanceof RuleError) {
+      await updateFederatedClient(clientId, { lastRefusal: refusal.message });
+    }
+    throw refusal;
+  }
 }
