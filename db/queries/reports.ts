@@ -348,7 +348,7 @@ export async function findReportShardTable(
     .select({
       title: reports.title,
       version: reports.version,
-      task: sql<PartitionSummary["dataset"]["task"]>`${reports.summary}->'dataset'->>'task'`,
+      task: sql<PartitionSummary["dataset"]["task"]>`${reports.summaryHeader}->'dataset'->>'task'`,
     })
     .from(reports)
     .where(and(eq(reports.workspaceId, workspaceId), eq(reports.id, reportId)));

@@ -1,7 +1,9 @@
+import { MAX_AGREEMENT_SHARDS } from "@/lib/analysis/assemble-summary";
+
 /**
- * How many shards a report page's charts need. Up to ALL_CHART_SHARDS (the engine computes the
- * gradient-agreement matrix up to 200 shards) they get every shard; above it only the
+ * How many shards a report page's charts need. Up to ALL_CHART_SHARDS (as many as the engine
+ * computes the gradient-agreement matrix for) they get every shard; above it only the
  * TOP_CHART_SHARDS most divergent by TV and by JS, since no chart draws more shards than that.
  */
-export const ALL_CHART_SHARDS = 200;
+export const ALL_CHART_SHARDS = MAX_AGREEMENT_SHARDS;
 export const TOP_CHART_SHARDS = 40;
