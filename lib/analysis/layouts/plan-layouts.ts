@@ -152,14 +152,11 @@ export async function planLayouts(input: LayoutPlanInput): Promise<LayoutPlanRes
       const report = (status: "running" | "done" | "failed", analysis?: AnalysisProgress) =>
         onProgress({ stage: "candidate", name, index, count: specs.length, status, analysis });
       report("running");
+      let scored: { candidate: LayoutCandidate; assignment: ShardAssignment } | undefined;
       try {
         const assignment = generateLayout(spec, rows, input.shardCount, seed);
         const summary = await scoreLayout(design, assignment, raw, input, options, pool, report);
-        assignments.set(name, assignment);
-        const candidate = { ...record, shards: summary.shards.length, summary };
-        layouts.push(candidate);
-        await input.onCandidate?.({ index, candidate, rowIds, assignment });
-        report("done");
+        scored = { candidate: { ...record, shards: summary.shards.length, summary }, assignment };
       } catch (error) {
         if (input.signal?.aborted) throw error;
         const badInput = error instanceof AnalysisInputError;
@@ -167,7 +164,14 @@ export async function planLayouts(input: LayoutPlanInput): Promise<LayoutPlanRes
         failures.push(failure);
         await input.onCandidate?.({ index, failure });
         report("failed");
+        continue;
       }
+      // Outside the candidate's try: a failure to store a scored candidate (storage down) is the
+      // plan's failure, not this candidate's.
+      assignments.set(name, scored.assignment);
+      layouts.push(scored.candidate);
+      await input.onCandidate?.({ index, ...scored, rowIds });
+      report("done");
     }
     return {
       comparison: {

@@ -172,6 +172,19 @@ describe("planLayouts input checks", () => {
     ]);
   });
 
+  it("fails the plan, not the candidate, when a scored candidate cannot be stored", async () => {
+    const stored: string[] = [];
+    const outcome = plan({
+      specs: [{ generator: "iid" }, { generator: "stratified" }],
+      onCandidate: async (candidateOutcome) => {
+        if ("failure" in candidateOutcome) stored.push(`failed ${candidateOutcome.failure.name}`);
+        else throw new Error("storage is unreachable");
+      },
+    });
+    await expect(outcome).rejects.toThrow(/storage is unreachable/);
+    expect(stored).toEqual([]);
+  });
+
   it("stops at once when cancelled", async () => {
     const controller = new AbortController();
     controller.abort(new Error("cancelled by the user"));
