@@ -279,8 +279,9 @@ export const layoutPlanStatusSchema = z
   .object({
     title: z.string(),
     status: z.enum(RUN_STATES),
-    stage: z.enum(["reading", "encoding", "fitting"]).nullable().meta({
-      description: "The shared stage before the candidates: read, encode and fit once.",
+    stage: z.enum(["reading", "encoding"]).nullable().meta({
+      description:
+        "The shared stage before the candidates: read and encode once (each candidate fits its own reference).",
     }),
     fraction: z.number().meta({ description: "Progress within the shared stage, 0 to 1." }),
     failureMessage: z.string().nullable(),
