@@ -18,6 +18,8 @@ import { GET as readEncoding } from "@/app/api/v1/digests/encoding/route";
 import { POST as sendSchema } from "@/app/api/v1/digests/schema/route";
 import { POST as sendGradients } from "@/app/api/v1/digests/gradients/route";
 import { closeDb } from "@/db/client";
+import { findFederatedClientByName } from "@/db/queries/federated-analyses";
+import { openExchange } from "@/db/queries/federated-digests";
 import { createMeasurementRequest, type DigestEncoding, type SchemaDigest } from "@/lib/analysis";
 import { stopSendingBoss } from "@/lib/jobs";
 import { analyzeText } from "@/tests/lib/analysis/support/analyze-text";
@@ -177,12 +179,22 @@ describe("a client key", () => {
   it("reaches its own analysis's digest routes and nothing else of the API", async () => {
     const { analysisId, north } = await createWithKeys();
     const other = await createWithKeys();
-    // The ids it could try: its own analysis, another one, a report and its own key.
+    // A real open question of the other analysis's coordinator to its client "north".
+    const otherNorth = await findFederatedClientByName(other.analysisId, "north");
+    const otherExchange = await openExchange({
+      federatedAnalysisId: other.analysisId,
+      clientId: otherNorth!.id,
+      kind: "evaluate",
+      requestKey: "another analysis's question",
+      request: {},
+    });
+    // The ids it could try: its own analysis, another one, a report, its own key and the other
+    // analysis's open question.
     const ids: Record<string, string> = {
       analysisId,
       reportId,
       keyId: north.keyId,
-      exchangeId: other.analysisId,
+      exchangeId: otherExchange.id,
     };
     const routes = await listRoutes();
     expect(routes.length).toBeGreaterThan(15);
