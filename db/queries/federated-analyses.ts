@@ -1,5 +1,5 @@
 import "server-only";
-import { and, desc, eq, inArray, sql } from "drizzle-orm";
+import { and, desc, eq, inArray, isNull, lt, or, sql } from "drizzle-orm";
 import { db } from "@/db/client";
 import { federatedAnalyses, federatedClients, reports } from "@/db/schema";
 import type { DigestEncoding } from "@/lib/analysis/digests/digest-format";
@@ -95,12 +95,24 @@ export async function updateFederatedClient(
   await db().update(federatedClients).set(values).where(eq(federatedClients.id, clientId));
 }
 
-/** A client was heard from (any request with its key). */
+/** How fresh the roster's "last seen" is: finer than the key's last use, the fit's pace is seconds. */
+const CLIENT_SEEN_RESOLUTION_MS = 5_000;
+
+/**
+ * A client was heard from (any request with its key); written only when the recorded time is
+ * older than CLIENT_SEEN_RESOLUTION_MS, since a connected client polls several times a second.
+ */
 export async function markClientSeen(clientId: string, now = new Date()): Promise<void> {
+  const recentEnough = new Date(now.getTime() - CLIENT_SEEN_RESOLUTION_MS);
   await db()
     .update(federatedClients)
     .set({ lastSeenAt: now })
-    .where(eq(federatedClients.id, clientId));
+    .where(
+      and(
+        eq(federatedClients.id, clientId),
+        or(isNull(federatedClients.lastSeenAt), lt(federatedClients.lastSeenAt, recentEnough)),
+      ),
+    );
 }
 
 /**

@@ -1,7 +1,8 @@
 import "server-only";
-import { and, desc, eq, isNull } from "drizzle-orm";
+import { and, desc, eq, isNull, lt, or } from "drizzle-orm";
 import { db } from "@/db/client";
 import { federatedAnalyses, federatedClientKeys, federatedClients } from "@/db/schema";
+import { TOKEN_USE_RESOLUTION_MS } from "./api-tokens";
 
 /** What the roster shows of a key: never its hash. */
 export type ClientKeyListItem = {
@@ -110,8 +111,18 @@ export async function findClientKeyGrant(keyHash: string): Promise<ClientKeyGran
 }
 
 export async function recordClientKeyUse(keyId: string, now = new Date()): Promise<void> {
+  // As for API tokens: a client's long polls would otherwise write on every request.
+  const recentEnough = new Date(now.getTime() - TOKEN_USE_RESOLUTION_MS);
   await db()
     .update(federatedClientKeys)
     .set({ lastUsedAt: now })
-    .where(eq(federatedClientKeys.id, keyId));
+    .where(
+      and(
+        eq(federatedClientKeys.id, keyId),
+        or(
+          isNull(federatedClientKeys.lastUsedAt),
+          lt(federatedClientKeys.lastUsedAt, recentEnough),
+        ),
+      ),
+    );
 }

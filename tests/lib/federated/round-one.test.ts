@@ -15,7 +15,7 @@ import {
   issueClientKey,
   revokeClientKey,
 } from "@/lib/federated";
-import { findFederatedClientByName } from "@/db/queries/federated-analyses";
+import { findFederatedClientByName, markClientSeen } from "@/db/queries/federated-analyses";
 import { createTeam } from "@/tests/support/accounts";
 import { createPenguinClients } from "./support";
 
@@ -150,5 +150,18 @@ describe("round 1 of a federated analysis", () => {
     await expect(getFederatedStatus(other.workspaceId, analysisId)).rejects.toThrow(
       /no such federated analysis/,
     );
+  });
+
+  it("writes a client's last seen at most every 5 s, however often it polls", async () => {
+    const { analysisId } = await createAnalysis();
+    const lastSeen = async () => (await findFederatedClientByName(analysisId, "north"))!.lastSeenAt;
+    const north = (await findFederatedClientByName(analysisId, "north"))!;
+    const start = new Date("2026-12-05T10:00:00.000Z");
+    await markClientSeen(north.id, start);
+    await markClientSeen(north.id, new Date(start.getTime() + 4_000));
+    expect(await lastSeen()).toEqual(start);
+    const later = new Date(start.getTime() + 6_000);
+    await markClientSeen(north.id, later);
+    expect(await lastSeen()).toEqual(later);
   });
 });
