@@ -2,6 +2,7 @@
 
 import { useRouter } from "next/navigation";
 import { useState, useTransition, type FormEvent } from "react";
+import { PLAN_DEFAULTS } from "@/components/analyses/analysis-form-schema";
 import { startLayoutPlan } from "@/app/(workspace)/w/[workspaceId]/layouts/actions";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
@@ -55,10 +56,10 @@ export function PlanForm({
   const [shardCount, setShardCount] = useState(String(defaultShards));
   const [seed, setSeed] = useState("1");
   const [participants, setParticipants] = useState("");
-  const [localSteps, setLocalSteps] = useState("10");
-  const [rounds, setRounds] = useState("100");
-  const [batchSize, setBatchSize] = useState("32");
-  const [lambda, setLambda] = useState("0.001");
+  const [localSteps, setLocalSteps] = useState(String(PLAN_DEFAULTS.localSteps));
+  const [rounds, setRounds] = useState(String(PLAN_DEFAULTS.rounds));
+  const [batchSize, setBatchSize] = useState(String(PLAN_DEFAULTS.batchSize));
+  const [lambda, setLambda] = useState(String(PLAN_DEFAULTS.lambda));
   const [reference, setReference] = useState<"optimum" | "zero">("optimum");
   const [generators, setGenerators] = useState<Record<string, GeneratorState>>(() =>
     Object.fromEntries(

@@ -8,7 +8,8 @@ import { ProgressBar } from "@/components/analyses/progress-bar";
 import { Button, buttonClasses } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import { PLAN_STAGE_LABELS } from "@/lib/layout-plans/plan-progress";
-import { hasEnded, type PlanStatusJson } from "@/lib/layout-plans/plan-status";
+import type { PlanStatusJson } from "@/lib/layout-plans/plan-status";
+import { isFinished } from "@/lib/reports/analysis-status";
 
 const POLL_MS = 1000;
 
@@ -48,7 +49,7 @@ export function PlanProgressPanel({
     queryFn: () => fetchStatus(`/api/workspaces/${workspaceId}/layout-plans/${planId}`),
     initialData: initial,
     refetchInterval: (query) =>
-      query.state.data && hasEnded(query.state.data.status) ? false : POLL_MS,
+      query.state.data && isFinished(query.state.data.status) ? false : POLL_MS,
   });
   const [cancelError, setCancelError] = useState<string>();
   const [cancelling, startCancelling] = useTransition();
@@ -61,7 +62,7 @@ export function PlanProgressPanel({
     });
   };
 
-  const ended = hasEnded(data.status);
+  const ended = isFinished(data.status);
   const scored = data.candidates.filter((candidate) => candidate.status === "succeeded").length;
   const sharedDone = data.candidates.some((candidate) => candidate.status !== "queued");
   const headline = {

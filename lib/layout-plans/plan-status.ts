@@ -32,8 +32,3 @@ export function toPlanStatusJson(plan: LayoutPlanView): PlanStatusJson {
     })),
   };
 }
-
-/** True once a plan or candidate will change no more. */
-export function hasEnded(status: PlanStatusJson["status"]): boolean {
-  return status === "succeeded" || status === "failed" || status === "cancelled";
-}

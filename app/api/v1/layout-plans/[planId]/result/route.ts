@@ -4,7 +4,7 @@ import { layoutPlanPathSchema } from "@/lib/api/schemas";
 import { requireToken } from "@/lib/auth/api-token-guard";
 import { RuleError } from "@/lib/errors";
 import { buildComparisonJson } from "@/lib/layout-plans/comparison-view";
-import { hasEnded } from "@/lib/layout-plans/plan-status";
+import { isFinished } from "@/lib/reports/analysis-status";
 
 type Context = { params: Promise<{ planId: string }> };
 
@@ -15,7 +15,7 @@ export async function GET(request: Request, { params }: Context): Promise<Respon
     const { planId } = layoutPlanPathSchema.parse(await params);
     const plan = await findLayoutPlan(workspace.id, planId);
     if (!plan) throw new RuleError(404, "There is no such layout plan in this workspace.");
-    if (!hasEnded(plan.status)) {
+    if (!isFinished(plan.status)) {
       throw new RuleError(409, "The plan is still running; poll its statusUrl until it ends.");
     }
     return respondWithJson(buildComparisonJson(plan));
