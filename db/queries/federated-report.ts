@@ -1,10 +1,10 @@
 import "server-only";
 import { and, eq, sql } from "drizzle-orm";
 import { db } from "@/db/client";
-import { analyses, federatedAnalyses, reports } from "@/db/schema";
+import { analyses, federatedAnalyses } from "@/db/schema";
 import type { PartitionSummary } from "@/lib/analysis";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
-import { insertShardRows, listFiguresOf, nextVersionOf, summaryHeaderOf } from "./report-store";
+import { insertReportWithShards, nextVersionOf } from "./report-store";
 
 export interface FinishedFederatedRun {
   federatedAnalysisId: string;
@@ -51,7 +51,7 @@ export async function storeFederatedReport(
     const lineage = federated.previousReportId
       ? await nextVersionOf(tx, federated.workspaceId, federated.previousReportId)
       : { lineageId: reportId, version: 1 };
-    await tx.insert(reports).values({
+    await insertReportWithShards(tx, {
       id: reportId,
       workspaceId: federated.workspaceId,
       analysisId: analysis.id,
@@ -59,17 +59,13 @@ export async function storeFederatedReport(
       version: lineage.version,
       previousReportId: federated.previousReportId,
       title: federated.title,
-      ...listFiguresOf(run.summary),
       summary: run.summary,
-      summaryHeader: summaryHeaderOf(run.summary),
       parameters: run.parameters,
       // No file was read: what each client sent is in the summary's `digests`.
       inputs: [],
-      engineVersion: run.summary.engineVersion,
       timings: run.timings,
       authorId: federated.createdBy,
     });
-    await insertShardRows(tx, reportId, run.summary.shards);
     await tx
       .update(federatedAnalyses)
       .set({ state: "done", analysisId: analysis.id, reportId, finishedAt: sql`now()` })

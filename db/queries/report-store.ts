@@ -40,30 +40,22 @@ export async function storeReport(run: FinishedRun): Promise<StoreOutcome> {
     const lineage = analysis.previousReportId
       ? await nextVersionOf(tx, run.workspaceId, analysis.previousReportId)
       : { lineageId: reportId, version: 1 };
-    const [report] = await tx
-      .insert(reports)
-      .values({
-        id: reportId,
-        workspaceId: run.workspaceId,
-        analysisId: analysis.id,
-        lineageId: lineage.lineageId,
-        version: lineage.version,
-        previousReportId: analysis.previousReportId,
-        title: analysis.title,
-        ...listFiguresOf(run.summary),
-        summary: run.summary,
-        summaryHeader: summaryHeaderOf(run.summary),
-        parameters: analysis.parameters,
-        inputs: run.inputs,
-        engineVersion: run.summary.engineVersion,
-        timings: run.timings,
-        authorId: analysis.createdBy,
-      })
-      .onConflictDoNothing({ target: reports.analysisId })
-      .returning({ id: reports.id });
-    if (!report) return { stored: false, status: "succeeded" };
+    const stored = await insertReportWithShards(tx, {
+      id: reportId,
+      workspaceId: run.workspaceId,
+      analysisId: analysis.id,
+      lineageId: lineage.lineageId,
+      version: lineage.version,
+      previousReportId: analysis.previousReportId,
+      title: analysis.title,
+      summary: run.summary,
+      parameters: analysis.parameters,
+      inputs: run.inputs,
+      timings: run.timings,
+      authorId: analysis.createdBy,
+    });
+    if (!stored) return { stored: false, status: "succeeded" };
 
-    await insertShardRows(tx, reportId, run.summary.shards);
     await tx
       .update(analyses)
       .set({
@@ -78,8 +70,38 @@ export async function storeReport(run: FinishedRun): Promise<StoreOutcome> {
   });
 }
 
+/** A report as its writers give it: what the list and the page read is derived from `summary`. */
+export type NewReport = Omit<
+  typeof reports.$inferInsert,
+  "summaryHeader" | "engineVersion" | keyof ReturnType<typeof listFiguresOf>
+> & { id: string; summary: PartitionSummary };
+
+/**
+ * Inserts a report with its list figures, its page header and its per-shard rows, all derived
+ * from the summary here so no writer can store one without the others. False when the analysis
+ * already has its report (a retried run that finished second).
+ */
+export async function insertReportWithShards(
+  tx: Pick<Database, "insert" | "execute">,
+  report: NewReport,
+): Promise<boolean> {
+  const [row] = await tx
+    .insert(reports)
+    .values({
+      ...report,
+      ...listFiguresOf(report.summary),
+      summaryHeader: summaryHeaderOf(report.summary),
+      engineVersion: report.summary.engineVersion,
+    })
+    .onConflictDoNothing({ target: reports.analysisId })
+    .returning({ id: reports.id });
+  if (!row) return false;
+  await insertShardRows(tx, report.id, report.summary.shards);
+  return true;
+}
+
 /** The columns the reports list shows from a summary: its verdict and figures. */
-export function listFiguresOf(summary: PartitionSummary) {
+function listFiguresOf(summary: PartitionSummary) {
   return {
     verdict: summary.advice.verdict,
     ratio: summary.advice.ratio,
@@ -89,7 +111,7 @@ export function listFiguresOf(summary: PartitionSummary) {
 }
 
 /** The summary as the report page reads it: without the per-shard array (report_shards holds it). */
-export function summaryHeaderOf(summary: PartitionSummary): PartitionSummary {
+function summaryHeaderOf(summary: PartitionSummary): PartitionSummary {
   return { ...summary, shards: [] };
 }
 
@@ -134,7 +156,7 @@ const SHARD_ROWS_PER_INSERT = 10_000;
  * has far more clients: each column goes as one array parameter and `unnest` turns the arrays
  * back into rows. pg sends numbers in their shortest round-trip form, so doubles arrive exactly.
  */
-export async function insertShardRows(
+async function insertShardRows(
   tx: Pick<Database, "execute">,
   reportId: string,
   shards: PartitionSummary["shards"],

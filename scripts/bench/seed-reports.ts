@@ -12,10 +12,10 @@ import { readFileSync } from "node:fs";
 import { encode } from "next-auth/jwt";
 import { closeDb, db } from "@/db/client";
 import { insertApiToken } from "@/db/queries/api-tokens";
-import { insertShardRows, listFiguresOf, summaryHeaderOf } from "@/db/queries/report-store";
+import { insertReportWithShards } from "@/db/queries/report-store";
 import { openSession } from "@/db/queries/sessions";
 import { createAccountWithWorkspace } from "@/db/queries/workspaces";
-import { analyses, dataFiles, reports } from "@/db/schema";
+import { analyses, dataFiles } from "@/db/schema";
 import type { PartitionSummary } from "@/lib/analysis";
 import { createApiTokenSecret } from "@/lib/auth/api-token-secret";
 import { SESSION_MAX_AGE_SECONDS } from "@/lib/auth/options";
@@ -55,25 +55,19 @@ async function seed(summary: PartitionSummary, count: number, tokenCount: number
       })
       .returning({ id: analyses.id });
     reportId = crypto.randomUUID();
-    await db()
-      .insert(reports)
-      .values({
-        id: reportId,
-        workspaceId,
-        analysisId: analysis.id,
-        lineageId: reportId,
-        version: 1,
-        title: `Bench report ${index + 1}`,
-        ...listFiguresOf(summary),
-        summary,
-        summaryHeader: summaryHeaderOf(summary),
-        parameters,
-        inputs: [],
-        engineVersion: summary.engineVersion,
-        timings: { total: 0 },
-        authorId: userId,
-      });
-    await insertShardRows(db(), reportId, summary.shards);
+    await insertReportWithShards(db(), {
+      id: reportId,
+      workspaceId,
+      analysisId: analysis.id,
+      lineageId: reportId,
+      version: 1,
+      title: `Bench report ${index + 1}`,
+      summary,
+      parameters,
+      inputs: [],
+      timings: { total: 0 },
+      authorId: userId,
+    });
   }
   const tokens: string[] = [];
   for (let index = 0; index < tokenCount; index++) {

@@ -5,7 +5,7 @@ import path from "node:path";
 import { promisify } from "node:util";
 import { eq } from "drizzle-orm";
 import { db } from "@/db/client";
-import { insertShardRows, listFiguresOf, summaryHeaderOf } from "@/db/queries/report-store";
+import { insertReportWithShards } from "@/db/queries/report-store";
 import { analyses, dataFiles, reports } from "@/db/schema";
 import type { PartitionSummary } from "@/lib/analysis";
 import { loadPenguinsCsv } from "@/tests/lib/analysis/support/open-data";
@@ -127,36 +127,28 @@ export async function insertReport(input: {
       )[0]
     : undefined;
   const reportId = crypto.randomUUID();
-  await db()
-    .insert(reports)
-    .values({
-      id: reportId,
-      workspaceId,
-      analysisId: analysis.id,
-      lineageId: previous?.lineageId ?? reportId,
-      version: (previous?.version ?? 0) + 1,
-      previousReportId: input.previousReportId,
-      title,
-      ...listFiguresOf(summary),
-      summary,
-      summaryHeader: summaryHeaderOf(summary),
-      parameters,
-      inputs: [
-        {
-          kind: "dataset",
-          name: "penguins.csv",
-          objectKey: `workspaces/${workspaceId}/files/fixture/penguins.csv`,
-          sizeBytes: 15_000,
-          sha256: "0".repeat(64),
-        },
-      ],
-      engineVersion: summary.engineVersion,
-      timings: { total: 1 },
-      authorId,
-      createdAt: input.createdAt,
-    });
-  if (summary.shards.length > 0) {
-    await insertShardRows(db(), reportId, summary.shards);
-  }
+  await insertReportWithShards(db(), {
+    id: reportId,
+    workspaceId,
+    analysisId: analysis.id,
+    lineageId: previous?.lineageId ?? reportId,
+    version: (previous?.version ?? 0) + 1,
+    previousReportId: input.previousReportId,
+    title,
+    summary,
+    parameters,
+    inputs: [
+      {
+        kind: "dataset",
+        name: "penguins.csv",
+        objectKey: `workspaces/${workspaceId}/files/fixture/penguins.csv`,
+        sizeBytes: 15_000,
+        sha256: "0".repeat(64),
+      },
+    ],
+    timings: { total: 1 },
+    authorId,
+    createdAt: input.createdAt,
+  });
   return { reportId, analysisId: analysis.id };
 }
