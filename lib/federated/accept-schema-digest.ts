@@ -36,7 +36,10 @@ export async function acceptSchemaDigest(
   if (!analysis) throw new RuleError(404, "There is no such federated analysis.");
   const sha256 = hashDocument(document);
   const stored = await findFederatedDigest(sender.client.id, "schema");
-  if (stored?.sha256 === sha256) return { state: analysis.state, repeated: true };
+  if (stored?.sha256 === sha256) {
+    // A client resending after a failed reply: finish what that reply may have left undone.
+    return { state: await buildEncodingWhenReady(analysis.id), repeated: true };
+  }
   const name = sender.client.name;
   await recordRefusal(sender.client.id, async () => {
     if (stored) {

@@ -17,11 +17,15 @@ import { orderRoster } from "./federated-rules";
  * roster is closed and at least one has: the clients that sent, in code-point order of their names
  * (the coordinator merges them in the same order, so it arrives at the same hash). Then the
  * coordinator's job is queued. A merge the engine refuses (e.g. a regression asked of a label
- * that is not numeric) fails the analysis with the engine's message. Returns the state after.
+ * that is not numeric) fails the analysis with the engine's message. An encoding stored without
+ * its job (the queueing failed) is queued on the next call. Returns the state after.
  */
 export async function buildEncodingWhenReady(analysisId: string): Promise<string> {
   const analysis = await findFederatedAnalysisById(analysisId);
   if (!analysis) throw new Error(`federated analysis ${analysisId} is gone`);
+  if (analysis.state === "encoding-ready" && analysis.jobId === null) {
+    return queueCoordinator(analysisId);
+  }
   if (analysis.state !== "collecting-schemas") return analysis.state;
   const roster = orderRoster(await listFederatedClients(analysisId));
   const digests = await listFederatedDigests(analysisId, "schema");
@@ -45,7 +49,12 @@ export async function buildEncodingWhenReady(analysisId: string): Promise<string
     });
     return "failed";
   }
+  return queueCoordinator(analysisId);
+}
+
+/** Queues the coordinator's job; one already queued for the analysis (its singleton key) serves. */
+async function queueCoordinator(analysisId: string): Promise<string> {
   const jobId = await enqueueFederatedAnalysis({ federatedAnalysisId: analysisId });
-  await moveFederatedState(analysisId, ["encoding-ready"], { jobId });
+  if (jobId !== null) await moveFederatedState(analysisId, ["encoding-ready"], { jobId });
   return "encoding-ready";
 }

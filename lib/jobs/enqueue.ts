@@ -37,16 +37,14 @@ export async function enqueueAnalysis(job: AnalysisJob): Promise<string> {
 
 /**
  * Queues the coordinator of a federated analysis whose encoding is ready; the analysis id is the
- * singleton key, so one coordinator at a time works on it.
+ * singleton key, so one coordinator at a time works on it: null when one is already queued.
  */
-export async function enqueueFederatedAnalysis(job: FederatedJob): Promise<string> {
+export async function enqueueFederatedAnalysis(job: FederatedJob): Promise<string | null> {
   const boss = await sendingBoss();
-  const jobId = await boss.send(FEDERATED_QUEUE, job, {
+  return boss.send(FEDERATED_QUEUE, job, {
     ...FEDERATED_JOB_POLICY,
     singletonKey: job.federatedAnalysisId,
   });
-  if (!jobId) throw new Error(`federated analysis ${job.federatedAnalysisId} already has a job`);
-  return jobId;
 }
 
 /** Queues a layout plan for the workers and returns the job id (the plan id is the singleton key). */
