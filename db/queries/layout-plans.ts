@@ -115,6 +115,52 @@ export async function findLayoutPlan(
   return { ...plan.plan, datasetName: plan.datasetName, candidates };
 }
 
+/** What a plan's progress is read from: the plan's and its candidates' states, no summaries. */
+export interface LayoutPlanProgressView {
+  title: string;
+  status: LayoutPlan["status"];
+  stage: string | null;
+  fraction: number;
+  failureMessage: string | null;
+  candidates: Pick<
+    LayoutPlanView["candidates"][number],
+    "ordinal" | "name" | "status" | "fraction" | "failureMessage"
+  >[];
+}
+
+/**
+ * One plan's progress, polled every second while it runs: only the state columns, since the
+ * candidates' stored summaries (up to 1,000 shards each) are what findLayoutPlan spends its time on.
+ */
+export async function findLayoutPlanProgress(
+  workspaceId: string,
+  planId: string,
+): Promise<LayoutPlanProgressView | undefined> {
+  const [plan] = await db()
+    .select({
+      title: layoutPlans.title,
+      status: layoutPlans.status,
+      stage: layoutPlans.stage,
+      fraction: layoutPlans.fraction,
+      failureMessage: layoutPlans.failureMessage,
+    })
+    .from(layoutPlans)
+    .where(and(eq(layoutPlans.workspaceId, workspaceId), eq(layoutPlans.id, planId)));
+  if (!plan) return undefined;
+  const candidates = await db()
+    .select({
+      ordinal: layoutCandidates.ordinal,
+      name: layoutCandidates.name,
+      status: layoutCandidates.status,
+      fraction: layoutCandidates.fraction,
+      failureMessage: layoutCandidates.failureMessage,
+    })
+    .from(layoutCandidates)
+    .where(eq(layoutCandidates.planId, planId))
+    .orderBy(asc(layoutCandidates.ordinal));
+  return { ...plan, candidates };
+}
+
 /** A claimed plan and the dataset it reads. */
 export type ClaimedLayoutPlan = LayoutPlan & { dataset: AnalysisInputFile };
 

@@ -1,22 +1,22 @@
-import type { LayoutPlanView } from "@/db/queries/layout-plans";
+import type { LayoutPlanProgressView } from "@/db/queries/layout-plans";
 
 /** What the progress page polls: the plan's shared stage and every candidate's state. */
 export interface PlanStatusJson {
   title: string;
-  status: LayoutPlanView["status"];
+  status: LayoutPlanProgressView["status"];
   stage: string | null;
   fraction: number;
   failureMessage: string | null;
   candidates: {
     ordinal: number;
     name: string;
-    status: LayoutPlanView["status"];
+    status: LayoutPlanProgressView["status"];
     fraction: number;
     failureMessage: string | null;
   }[];
 }
 
-export function toPlanStatusJson(plan: LayoutPlanView): PlanStatusJson {
+export function toPlanStatusJson(plan: LayoutPlanProgressView): PlanStatusJson {
   return {
     title: plan.title,
     status: plan.status,

@@ -1,4 +1,4 @@
-import { findLayoutPlan } from "@/db/queries/layout-plans";
+import { findLayoutPlanProgress } from "@/db/queries/layout-plans";
 import { answerApiRequest, respondWithJson } from "@/lib/api/respond";
 import { layoutPlanPathSchema } from "@/lib/api/schemas";
 import { requireToken } from "@/lib/auth/api-token-guard";
@@ -12,7 +12,7 @@ export async function GET(request: Request, { params }: Context): Promise<Respon
   return answerApiRequest("layout-plan-status", async () => {
     const { workspace } = await requireToken(request, "readWorkspace");
     const { planId } = layoutPlanPathSchema.parse(await params);
-    const plan = await findLayoutPlan(workspace.id, planId);
+    const plan = await findLayoutPlanProgress(workspace.id, planId);
     if (!plan) throw new RuleError(404, "There is no such layout plan in this workspace.");
     return respondWithJson(toPlanStatusJson(plan));
   });

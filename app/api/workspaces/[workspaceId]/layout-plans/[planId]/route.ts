@@ -1,4 +1,4 @@
-import { findLayoutPlan } from "@/db/queries/layout-plans";
+import { findLayoutPlanProgress } from "@/db/queries/layout-plans";
 import { AccessError } from "@/lib/auth/errors";
 import { requireRole } from "@/lib/auth/guards";
 import { respondWithError } from "@/lib/http/handler-errors";
@@ -11,7 +11,7 @@ export async function GET(_request: Request, context: RouteContext): Promise<Res
   try {
     const { workspaceId, planId } = await context.params;
     const { workspace } = await requireRole(workspaceId, "readWorkspace");
-    const plan = await findLayoutPlan(workspace.id, planId);
+    const plan = await findLayoutPlanProgress(workspace.id, planId);
     if (!plan) throw new AccessError(404, "That layout plan does not exist in this workspace.");
     return Response.json(toPlanStatusJson(plan), { headers: { "Cache-Control": "no-store" } });
   } catch (error) {
