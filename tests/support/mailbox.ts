@@ -2,11 +2,12 @@ import { findMessagesTo, type InboxMessage } from "@/lib/mail/dev-inbox";
 
 /**
  * Waits until a message to `address` whose subject matches arrives at the SMTP fake, and returns
- * it. The fake writes each message to disk after accepting it, so a message may land a moment after
- * sendMail resolved; this polls (a bounded wait for an event, not a timing assertion).
+ * it. Mail queued by the app leaves through the outbox, which the worker empties about once a
+ * second, and the fake writes each message to disk after accepting it; this polls for up to 30 s
+ * (a bounded wait for an event on a loaded machine, not a timing assertion).
  */
 export async function waitForMessage(address: string, subject: RegExp): Promise<InboxMessage> {
-  for (let attempt = 0; attempt < 100; attempt += 1) {
+  for (let attempt = 0; attempt < 300; attempt += 1) {
     const match = (await findMessagesTo(address)).find((message) => subject.test(message.subject));
     if (match) return match;
     await new Promise((resolve) => setTimeout(resolve, 100));
