@@ -81,14 +81,21 @@ export async function findExchange(exchangeId: string): Promise<FederatedExchang
   return row;
 }
 
-/** The client's oldest unanswered question, if any. */
+/** The client's oldest unanswered question (of this kind, when given), if any. */
 export async function findOpenExchange(
   clientId: string,
+  kind?: ExchangeKind,
 ): Promise<FederatedExchangeRow | undefined> {
   const [row] = await db()
     .select()
     .from(federatedExchanges)
-    .where(and(eq(federatedExchanges.clientId, clientId), isNull(federatedExchanges.answeredAt)))
+    .where(
+      and(
+        eq(federatedExchanges.clientId, clientId),
+        isNull(federatedExchanges.answeredAt),
+        kind === undefined ? undefined : eq(federatedExchanges.kind, kind),
+      ),
+    )
     .orderBy(asc(federatedExchanges.createdAt))
     .limit(1);
   return row;

@@ -1,10 +1,15 @@
 import "server-only";
-import { findFederatedAnalysisById, updateFederatedClient } from "@/db/queries/federated-analyses";
+import {
+  findFederatedAnalysisById,
+  updateFederatedClient,
+  type FederatedAnalysisRow,
+} from "@/db/queries/federated-analyses";
 import {
   answerExchange,
   findFederatedDigest,
   findOpenExchange,
   insertFederatedDigest,
+  type FederatedExchangeRow,
 } from "@/db/queries/federated-digests";
 import {
   gradientDigestSchema,
@@ -19,15 +24,18 @@ import { PATH_POINTS } from "@/lib/analysis/path-points";
 import type { ClientCaller } from "@/lib/auth/client-key-guard";
 import { RuleError } from "@/lib/errors";
 import { ENDED_STATES, recordRefusal } from "./federated-rules";
+import { filesRequestOf, queueMergeWhenFilesAreIn } from "./files-round";
 
 type Sender = Pick<ClientCaller, "analysisId" | "client">;
 
 /**
- * Round 2 from one client, the answer to the coordinator's open request: checked on arrival — its
- * form (finite numbers), the encoding hash it quotes, the points it was measured at, and its
+ * Round 2 from one client — the answer to the coordinator's open request, or for a reference that
+ * needs no fit a file measured at that reference, sent before any request — checked on arrival:
+ * its form (finite numbers), the encoding hash it quotes, the points it was measured at, and its
  * shards against the client's round 1 (each once, with the same rows, none under the minimum) and
- * the sums' shapes — then stored and the coordinator's request marked answered. A refusal names
- * the client and shard and changes nothing stored; the same digest sent again is harmless.
+ * the sums' shapes; then stored, the coordinator's request marked answered, and once every
+ * participant's file is in, the merge queued. A refusal names the client and shard and changes
+ * nothing stored; the same digest sent again is harmless.
  */
 export async function acceptGradientDigest(
   sender: Sender,
@@ -40,10 +48,11 @@ export async function acceptGradientDigest(
   if (stored?.sha256 === sha256) {
     // Stored, but the answer may not have been recorded before the first reply failed.
     await answerOpenGradientsRequest(sender.client.id, sha256);
+    await queueMergeWhenFilesAreIn(analysis);
     return { repeated: true };
   }
   const name = sender.client.name;
-  return recordRefusal(sender.client.id, async () => {
+  const accepted = await recordRefusal(sender.client.id, async () => {
     if (stored) {
       throw new RuleError(409, `client "${name}" already sent its gradient digest`);
     }
@@ -52,19 +61,7 @@ export async function acceptGradientDigest(
     }
     const digest = parseDigest(document, gradientDigestSchema, "gradient digest");
     checkEncoding(digest, name, analysis.encoding);
-    const open = await findOpenExchange(sender.client.id);
-    if (!open || open.kind !== "gradients") {
-      throw new RuleError(
-        409,
-        `client "${name}": the coordinator has not asked for round 2 yet; wait for its request`,
-      );
-    }
-    if (hashDocument(digest.request) !== open.requestKey) {
-      throw new AnalysisInputError(
-        `client "${name}" measured at other points than the coordinator asked`,
-        { expected: "the digest of the request the server sent" },
-      );
-    }
+    checkRequest(digest, name, await findOpenExchange(sender.client.id, "gradients"), analysis);
     const round1 = await findFederatedDigest(sender.client.id, "schema");
     if (!round1) throw new RuleError(409, `client "${name}" sent no schema digest in round 1`);
     const shardRows = new Map(
@@ -80,13 +77,53 @@ export async function acceptGradientDigest(
     await answerOpenGradientsRequest(sender.client.id, sha256);
     return { repeated: false };
   });
+  await queueMergeWhenFilesAreIn(analysis);
+  return accepted;
 }
 
 /** Marks the coordinator's round-2 request answered by the stored digest (safe to repeat). */
 async function answerOpenGradientsRequest(clientId: string, sha256: string): Promise<void> {
-  const open = await findOpenExchange(clientId);
-  if (open?.kind === "gradients") await answerExchange(clientId, open.id, { sha256 });
+  const open = await findOpenExchange(clientId, "gradients");
+  if (open) await answerExchange(clientId, open.id, { sha256 });
   await updateFederatedClient(clientId, { roundReached: "gradients", lastRefusal: null });
+}
+
+/**
+ * The points the digest was measured at: those of the coordinator's open round-2 request, or
+ * without one, for a reference that needs no fit, the reference itself (a file made offline).
+ */
+function checkRequest(
+  digest: GradientDigest,
+  client: string,
+  open: FederatedExchangeRow | undefined,
+  analysis: FederatedAnalysisRow,
+): void {
+  const measuredAt = hashDocument(digest.request);
+  if (open) {
+    if (measuredAt === open.requestKey) return;
+    throw new AnalysisInputError(
+      `client "${client}" measured at other points than the coordinator asked`,
+      { expected: "the digest of the request the server sent" },
+    );
+  }
+  const files = filesRequestOf(analysis);
+  if (files === null) {
+    throw new RuleError(
+      409,
+      `client "${client}": the coordinator has not asked for round 2 yet; the pooled optimum needs the online command (wait for its request)`,
+    );
+  }
+  if (measuredAt !== files.key) {
+    throw new AnalysisInputError(
+      `client "${client}" measured round 2 at another point than this analysis's reference`,
+      {
+        expected:
+          analysis.reference === "zero"
+            ? "a gradient digest made with --at zero"
+            : "a gradient digest made with --at and this analysis's reference weights",
+      },
+    );
+  }
 }
 
 function checkEncoding(digest: GradientDigest, client: string, encoding: DigestEncoding): void {

@@ -4,21 +4,25 @@ import {
   listFederatedClients,
   moveFederatedState,
   type FederatedAnalysisRow,
+  type FederatedClientRow,
 } from "@/db/queries/federated-analyses";
-import { listFederatedDigests } from "@/db/queries/federated-digests";
+import { listFederatedDigests, openExchange } from "@/db/queries/federated-digests";
 import { storeFederatedReport } from "@/db/queries/federated-report";
 import {
   AnalysisInputError,
   analyzeFromDigests,
+  mergeGradientDigests,
   schemaDigestSchema,
   type PartitionSummary,
 } from "@/lib/analysis";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
 import { DIGEST_CAUTION } from "./digest-caution";
 import { orderRoster } from "./federated-rules";
+import { collectFileDigests, filesRequestOf } from "./files-round";
 import {
   AnalysisEndedError,
   ClientSilentError,
+  FitSetAsideError,
   StoredClientConnection,
 } from "./stored-client-connection";
 
@@ -34,6 +38,8 @@ export interface CoordinatorSettings {
 export type CoordinatorOutcome =
   | { outcome: "succeeded"; reportId: string }
   | { outcome: "failed"; message: string }
+  /** Round-2 files are still missing: the last one to arrive queues the coordinator again. */
+  | { outcome: "waiting" }
   | { outcome: "skipped" };
 
 const ACTIVE_STATES: FederatedAnalysisRow["state"][] = [
@@ -47,8 +53,9 @@ const ACTIVE_STATES: FederatedAnalysisRow["state"][] = [
  * The coordinator of one federated analysis, run by the worker once round 1 is merged: the
  * engine's own analyzeFromDigests over the clients that sent round 1 (in name order, the order the
  * encoding was merged in) — the fit of W* from their evaluations, round 2 at the reference point
- * and along t·W*, the merge into the §6 summary — and the summary stored as a normal report whose
- * `digests` say how many clients sent what and who was missing. A refusal of the engine ends the
+ * and along t·W*, the merge into the §6 summary — or, for a reference that needs no fit, the merge
+ * of round-2 files measured at it; and the summary stored as a normal report whose `digests` say
+ * how many clients sent what and who was missing. A refusal of the engine ends the
  * analysis with its message; other errors are retried while pg-boss retries.
  */
 export async function runFederatedCoordinator(
@@ -62,6 +69,7 @@ export async function runFederatedCoordinator(
   const started = performance.now();
   try {
     const summary = await coordinate(analysis, settings);
+    if (summary === null) return { outcome: "waiting" };
     const stored = await storeFederatedReport({
       federatedAnalysisId,
       summary,
@@ -91,14 +99,55 @@ export async function runFederatedCoordinator(
   }
 }
 
+/**
+ * For a reference that needs no fit, round-2 files (made offline at that point) are taken as they
+ * come: once one has arrived — before or during the fit — or a client stays silent through a
+ * question of the fit, the fit is set aside and the files are merged (null while some are missing).
+ */
 async function coordinate(
   analysis: FederatedAnalysisRow,
   settings: CoordinatorSettings,
-): Promise<PartitionSummary> {
-  const encoding = analysis.encoding!;
+): Promise<PartitionSummary | null> {
   const roster = orderRoster(await listFederatedClients(analysis.id));
   const schemas = await listFederatedDigests(analysis.id, "schema");
   const participants = roster.filter((client) => schemas.has(client.id));
+  const clients = {
+    participants,
+    schemas,
+    missing: roster.filter((client) => !schemas.has(client.id)).map((client) => client.name),
+  };
+  const files = filesRequestOf(analysis);
+  if (files === null) return fitAndMerge(analysis, clients, settings);
+  const filesIn = async () =>
+    (await collectFileDigests(analysis.id, participants, files.key)).digests.length > 0;
+  if (await filesIn()) return mergeFiles(analysis, clients, files);
+  try {
+    return await fitAndMerge(analysis, clients, settings, filesIn);
+  } catch (error) {
+    if (!(error instanceof FitSetAsideError)) throw error;
+    return mergeFiles(analysis, clients, files);
+  }
+}
+
+interface Participants {
+  /** The clients that sent round 1, in the order the encoding was merged in. */
+  participants: FederatedClientRow[];
+  schemas: Map<string, unknown>;
+  /** Clients left out when the roster was closed. */
+  missing: string[];
+}
+
+/** Every client online: the fit of W*, round 2 at the reference and along t·W*, the merge. */
+async function fitAndMerge(
+  analysis: FederatedAnalysisRow,
+  { participants, schemas, missing }: Participants,
+  settings: CoordinatorSettings,
+  filesArrived?: () => Promise<boolean>,
+): Promise<PartitionSummary> {
+  const encoding = analysis.encoding!;
+  // Ends the other clients' waits once one of them sets the fit aside or fails it.
+  const ended = new AbortController();
+  const signal = AbortSignal.any([settings.signal, ended.signal]);
   const connections = participants.map(
     (client) =>
       new StoredClientConnection({
@@ -106,9 +155,10 @@ async function coordinate(
         client: { id: client.id, name: client.name },
         schema: schemaDigestSchema.parse(schemas.get(client.id)),
         encodingHash: encoding.hash,
-        signal: settings.signal,
+        signal,
         pollMs: settings.pollMs ?? 50,
         silenceLimitMs: settings.silenceLimitMs ?? 30 * 60_000,
+        filesArrived,
       }),
   );
   // Progress writes go one after another, so a late one never moves the state back.
@@ -121,20 +171,58 @@ async function coordinate(
       });
     });
   };
-  const summary = await analyzeFromDigests(connections, {
-    task: analysis.task ?? undefined,
+  try {
+    const summary = await analyzeFromDigests(connections, {
+      task: analysis.task ?? undefined,
+      lambda: analysis.lambda,
+      reference: analysis.reference,
+      plan: analysis.plan,
+      minimumShardRows: analysis.minimumShardRows,
+      missingClients: missing,
+      onRound: (round, evaluations) => {
+        if (round === "fit") move("fitting", evaluations);
+        else if (round === "gradients") move("collecting-gradients");
+        else if (round === "merge") move("merging");
+      },
+    });
+    summary.preprocessing.warnings.push(DIGEST_CAUTION);
+    return summary;
+  } finally {
+    ended.abort();
+    await progress;
+  }
+}
+
+/**
+ * Round 2 as files at the reference point, no fit: the participants' files merged once all are
+ * in. A participant without one is asked for it (an online client answers the request; a file
+ * sent later answers it too), and the coordinator lets go until the last file queues it again.
+ */
+async function mergeFiles(
+  analysis: FederatedAnalysisRow,
+  { participants, missing }: Participants,
+  files: NonNullable<ReturnType<typeof filesRequestOf>>,
+): Promise<PartitionSummary | null> {
+  const collected = await collectFileDigests(analysis.id, participants, files.key);
+  for (const client of collected.missing) {
+    await openExchange({
+      federatedAnalysisId: analysis.id,
+      clientId: client.id,
+      kind: "gradients",
+      requestKey: files.key,
+      request: files.request,
+    });
+  }
+  if (collected.missing.length > 0) {
+    await moveFederatedState(analysis.id, ACTIVE_STATES, { state: "collecting-gradients" });
+    return null;
+  }
+  await moveFederatedState(analysis.id, ACTIVE_STATES, { state: "merging" });
+  const summary = mergeGradientDigests(analysis.encoding!, collected.digests, {
     lambda: analysis.lambda,
-    reference: analysis.reference,
     plan: analysis.plan,
-    minimumShardRows: analysis.minimumShardRows,
-    missingClients: roster.filter((client) => !schemas.has(client.id)).map((client) => client.name),
-    onRound: (round, evaluations) => {
-      if (round === "fit") move("fitting", evaluations);
-      else if (round === "gradients") move("collecting-gradients");
-      else if (round === "merge") move("merging");
-    },
+    missingClients: missing,
   });
-  await progress;
   summary.preprocessing.warnings.push(DIGEST_CAUTION);
   return summary;
 }

@@ -30,6 +30,11 @@ export interface StoredClientOptions {
   pollMs: number;
   /** How long a client may leave a question unanswered before the analysis fails. */
   silenceLimitMs: number;
+  /**
+   * For a reference that needs no fit: whether round-2 files have arrived. The fit is then set
+   * aside (FitSetAsideError), as it is when a client stays silent through one of its questions.
+   */
+  filesArrived?: () => Promise<boolean>;
 }
 
 /** A client that stayed away longer than the analysis waits for it. */
@@ -39,6 +44,14 @@ export class ClientSilentError extends Error {
       `client "${client}" did not answer the coordinator for ${minutes} minutes; start the analysis again when it can stay connected`,
     );
     this.name = "ClientSilentError";
+  }
+}
+
+/** The fit was set aside: the analysis goes on with round 2 as files at its reference point. */
+export class FitSetAsideError extends Error {
+  constructor(client: string) {
+    super(`the fit was set aside while waiting for client "${client}"`);
+    this.name = "FitSetAsideError";
   }
 }
 
@@ -88,6 +101,7 @@ export class StoredClientConnection implements DigestClientConnection {
 
   private async ask(encoding: DigestEncoding, kind: ExchangeKind, request: unknown) {
     const { analysisId, client, signal, pollMs, silenceLimitMs } = this.options;
+    const filesArrived = kind === "gradients" ? undefined : this.options.filesArrived;
     if (encoding.hash !== this.options.encodingHash) {
       throw new Error("the coordinator's encoding differs from the one the clients were sent");
     }
@@ -107,10 +121,14 @@ export class StoredClientConnection implements DigestClientConnection {
         if (state === undefined || state === "done" || state === "failed") {
           throw new AnalysisEndedError();
         }
+        if (filesArrived && (await filesArrived())) throw new FitSetAsideError(client.name);
       }
       const answers = await findAnsweredExchanges([exchange.id]);
       if (answers.has(exchange.id)) return answers.get(exchange.id);
-      if (Date.now() > giveUpAt) throw new ClientSilentError(client.name, silenceLimitMs / 60_000);
+      if (Date.now() > giveUpAt) {
+        if (filesArrived) throw new FitSetAsideError(client.name);
+        throw new ClientSilentError(client.name, silenceLimitMs / 60_000);
+      }
       await pause(pollMs, signal);
     }
   }
