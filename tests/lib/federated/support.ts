@@ -23,17 +23,21 @@ export async function createPenguinClients(minimumShardRows?: number) {
 
 /**
  * scikit-learn's bundled diabetes data (442 rows, 10 features, numeric target; through Debian's
- * /usr/bin/python3) with 4 shards cut along a noisy target order (seeded), as CSV text.
+ * /usr/bin/python3) with `shards` shards cut along a noisy target order (seeded), as CSV text.
  */
-export function loadDiabetesWithShards(): string {
-  return runPythonJson<string>(`import json,io
+export function loadDiabetesWithShards(shards = 4): string {
+  return runPythonJson<string>(
+    `import json,io,sys
 import numpy as np
 from sklearn.datasets import load_diabetes
 frame=load_diabetes(as_frame=True,scaled=False).frame
 rng=np.random.default_rng(5)
 order=np.argsort(frame["target"].to_numpy()+rng.normal(0,40,len(frame)))
-shard=np.empty(len(frame),dtype=int); shard[order]=np.arange(len(frame))*4//len(frame)
+shards=json.load(sys.stdin)
+shard=np.empty(len(frame),dtype=int); shard[order]=np.arange(len(frame))*shards//len(frame)
 frame["shard"]=["d"+str(m) for m in shard]
 out=io.StringIO(); frame.to_csv(out,index=False)
-print(json.dumps(out.getvalue()))`);
+print(json.dumps(out.getvalue()))`,
+    shards,
+  );
 }
