@@ -44,6 +44,16 @@ function describeEntry(entry: AuditEntry): string {
       return `"${details.name}" for ${details.owner}, expires ${details.expiresOn}`;
     case "api-token.revoked":
       return `"${details.name}" of ${details.owner} revoked`;
+    case "client-key.issued":
+      return `"${details.analysis}": a key for client ${details.client}, expires ${details.expiresOn}`;
+    case "client-key.revoked":
+      return `"${details.analysis}": a key of client ${details.client} revoked`;
+    case "federated.roster-closed": {
+      const missing = Array.isArray(details.missing) ? details.missing : [];
+      return `"${details.analysis}": round 1 closed${missing.length > 0 ? ` without ${missing.join(", ")}` : ""}`;
+    }
+    case "federated.cancelled":
+      return `"${details.analysis}" stopped`;
   }
 }
 

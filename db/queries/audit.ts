@@ -6,11 +6,21 @@ import type { AuditFilters } from "@/lib/reviews/audit-filters";
 
 export type AuditEntry = typeof auditLog.$inferSelect;
 
+/** Who did it: the signed-in person or the holder of the API token used. */
+export type AuditActor = { id: string; email: string };
+
 export interface NewAuditEntry {
   workspaceId: string;
-  actor: { id: string; email: string };
+  actor: AuditActor;
   action: AuditAction;
-  targetType: "member" | "invitation" | "report" | "comment" | "api-token";
+  targetType:
+    | "member"
+    | "invitation"
+    | "report"
+    | "comment"
+    | "api-token"
+    | "client-key"
+    | "federated-analysis";
   targetId: string;
   details?: Record<string, unknown>;
 }

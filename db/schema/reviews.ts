@@ -107,6 +107,10 @@ export const AUDIT_ACTIONS = [
   "comment.deleted",
   "api-token.created",
   "api-token.revoked",
+  "client-key.issued",
+  "client-key.revoked",
+  "federated.roster-closed",
+  "federated.cancelled",
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 

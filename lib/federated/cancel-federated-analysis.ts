@@ -1,4 +1,5 @@
 import "server-only";
+import { recordAudit, type AuditActor } from "@/db/queries/audit";
 import { moveFederatedState } from "@/db/queries/federated-analyses";
 import { RuleError } from "@/lib/errors";
 import { ENDED_STATES, requireFederatedAnalysis } from "./federated-rules";
@@ -9,10 +10,11 @@ export const CANCELLED_MESSAGE = "The analyst stopped this analysis.";
 /**
  * Stops a federated analysis that has not ended: it fails with CANCELLED_MESSAGE, its
  * coordinator lets go of it within a second, and its clients hear that it ended. Their accepted
- * digests stay stored.
+ * digests stay stored. Written to the audit log.
  */
 export async function cancelFederatedAnalysis(
   workspaceId: string,
+  actor: AuditActor,
   analysisId: string,
 ): Promise<void> {
   const analysis = await requireFederatedAnalysis(workspaceId, analysisId);
@@ -31,4 +33,12 @@ export async function cancelFederatedAnalysis(
       finishedAt: new Date(),
     }));
   if (!moved) throw new RuleError(409, "This analysis has already ended.");
+  await recordAudit({
+    workspaceId,
+    actor,
+    action: "federated.cancelled",
+    targetType: "federated-analysis",
+    targetId: analysisId,
+    details: { analysis: analysis.title },
+  });
 }

@@ -1,4 +1,5 @@
 import "server-only";
+import { recordAudit, type AuditActor } from "@/db/queries/audit";
 import { closeFederatedRoster, listFederatedClients } from "@/db/queries/federated-analyses";
 import { RuleError } from "@/lib/errors";
 import { buildEncodingWhenReady } from "./build-encoding";
@@ -7,9 +8,11 @@ import { requireFederatedAnalysis } from "./federated-rules";
 /**
  * The analyst goes on without the clients still missing: round 1 ends with those that sent their
  * schema digest, the encoding is built from them, and the report will list the others as missing.
+ * Written to the audit log.
  */
 export async function closeRoster(
   workspaceId: string,
+  actor: AuditActor,
   analysisId: string,
 ): Promise<{ state: string; missing: string[] }> {
   const analysis = await requireFederatedAnalysis(workspaceId, analysisId);
@@ -26,7 +29,17 @@ export async function closeRoster(
   if (!(await closeFederatedRoster(workspaceId, analysisId))) {
     throw new RuleError(409, "Round 1 is already over; the roster cannot change any more.");
   }
+  const missing = roster
+    .filter((client) => client.roundReached === "none")
+    .map((client) => client.name);
+  await recordAudit({
+    workspaceId,
+    actor,
+    action: "federated.roster-closed",
+    targetType: "federated-analysis",
+    targetId: analysisId,
+    details: { analysis: analysis.title, missing },
+  });
   const state = await buildEncodingWhenReady(analysisId);
-  const missing = roster.filter((client) => client.roundReached === "none");
-  return { state, missing: missing.map((client) => client.name) };
+  return { state, missing };
 }

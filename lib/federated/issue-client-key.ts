@@ -1,4 +1,5 @@
 import "server-only";
+import { recordAudit, type AuditActor } from "@/db/queries/audit";
 import { findFederatedClientByName } from "@/db/queries/federated-analyses";
 import { insertClientKey } from "@/db/queries/federated-client-keys";
 import { createClientKeySecret } from "@/lib/auth/client-key-secret";
@@ -12,10 +13,11 @@ const DAY_MS = 24 * 60 * 60 * 1000;
  * Issues a key for one client of the roster: it can send that client's digests to this analysis
  * and read its encoding, nothing else. The key is returned once and only its hash is stored.
  * Issuing another for the same client (a lost key) leaves the earlier ones valid until revoked.
+ * Written to the workspace's audit log.
  */
 export async function issueClientKey(
   workspaceId: string,
-  userId: string,
+  actor: AuditActor,
   analysisId: string,
   input: unknown,
   now = new Date(),
@@ -34,7 +36,20 @@ export async function issueClientKey(
     clientId: row.id,
     keyHash,
     expiresAt: new Date(now.getTime() + lifetimeDays * DAY_MS),
-    createdBy: userId,
+    createdBy: actor.id,
+  });
+  // Owners see in the log who can send digests into the workspace, and until when.
+  await recordAudit({
+    workspaceId,
+    actor,
+    action: "client-key.issued",
+    targetType: "client-key",
+    targetId: inserted.id,
+    details: {
+      analysis: analysis.title,
+      client,
+      expiresOn: inserted.expiresAt.toISOString().slice(0, 10),
+    },
   });
   return { key, keyId: inserted.id, client, expiresAt: inserted.expiresAt };
 }

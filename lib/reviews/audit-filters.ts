@@ -20,6 +20,10 @@ export const AUDIT_ACTION_LABELS: Record<AuditAction, string> = {
   "comment.deleted": "Comment deleted",
   "api-token.created": "API token created",
   "api-token.revoked": "API token revoked",
+  "client-key.issued": "Client key issued",
+  "client-key.revoked": "Client key revoked",
+  "federated.roster-closed": "Roster closed",
+  "federated.cancelled": "Federated analysis stopped",
 };
 
 const fields = {

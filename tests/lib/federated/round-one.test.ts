@@ -15,6 +15,7 @@ import {
   issueClientKey,
   revokeClientKey,
 } from "@/lib/federated";
+import { listAuditEntries } from "@/db/queries/audit";
 import { findFederatedClientByName, markClientSeen } from "@/db/queries/federated-analyses";
 import { createTeam } from "@/tests/support/accounts";
 import { createPenguinClients } from "./support";
@@ -24,7 +25,9 @@ const started: string[] = [];
 afterAll(async () => {
   // Analyses left open would keep the worker's coordinators waiting for clients.
   for (const analysisId of started) {
-    await cancelFederatedAnalysis(team.workspaceId, analysisId).catch(() => undefined);
+    await cancelFederatedAnalysis(team.workspaceId, team.analyst, analysisId).catch(
+      () => undefined,
+    );
   }
   await stopSendingBoss();
   await closeDb();
@@ -113,13 +116,15 @@ describe("round 1 of a federated analysis", () => {
 
   it("goes on without a missing client once the analyst closes the roster", async () => {
     const { analysisId, sender } = await createAnalysis(["north", "south", "west"]);
-    await expect(closeRoster(team.workspaceId, analysisId)).rejects.toThrow(/nothing to go on/);
+    await expect(closeRoster(team.workspaceId, team.analyst, analysisId)).rejects.toThrow(
+      /nothing to go on/,
+    );
     await acceptSchemaDigest(await sender("north"), digests.north);
     await acceptSchemaDigest(await sender("south"), digests.south);
     expect((await getFederatedStatus(team.workspaceId, analysisId)).state).toBe(
       "collecting-schemas",
     );
-    const closed = await closeRoster(team.workspaceId, analysisId);
+    const closed = await closeRoster(team.workspaceId, team.analyst, analysisId);
     expect(closed).toEqual({ state: "encoding-ready", missing: ["west"] });
     const status = await getFederatedStatus(team.workspaceId, analysisId);
     expect(status.missing).toEqual(["west"]);
@@ -130,26 +135,84 @@ describe("round 1 of a federated analysis", () => {
 
   it("issues client keys once, for roster clients only, and revokes them", async () => {
     const { analysisId } = await createAnalysis();
-    const issued = await issueClientKey(team.workspaceId, team.analyst.id, analysisId, {
+    const issued = await issueClientKey(team.workspaceId, team.analyst, analysisId, {
       client: "north",
       lifetimeDays: 7,
     });
     expect(issued.key).toMatch(/^prck_[A-Za-z0-9_-]{43}$/);
     await expect(
-      issueClientKey(team.workspaceId, team.analyst.id, analysisId, { client: "east" }),
+      issueClientKey(team.workspaceId, team.analyst, analysisId, { client: "east" }),
     ).rejects.toThrow(/not on this analysis's roster/);
     const status = await getFederatedStatus(team.workspaceId, analysisId);
     expect(status.keys).toHaveLength(1);
     expect(JSON.stringify(status)).not.toContain(issued.key);
-    await revokeClientKey(team.workspaceId, analysisId, issued.keyId);
-    await expect(revokeClientKey(team.workspaceId, analysisId, issued.keyId)).rejects.toThrow(
-      /no such live client key/,
-    );
+    await revokeClientKey(team.workspaceId, team.analyst, analysisId, issued.keyId);
+    await expect(
+      revokeClientKey(team.workspaceId, team.analyst, analysisId, issued.keyId),
+    ).rejects.toThrow(/no such live client key/);
     // Another workspace sees no such analysis.
     const other = await createTeam();
     await expect(getFederatedStatus(other.workspaceId, analysisId)).rejects.toThrow(
       /no such federated analysis/,
     );
+  });
+
+  it("writes key issue and revocation, roster close and stop to the workspace's audit log", async () => {
+    const { analysisId, sender } = await createAnalysis(["north", "south", "west"]);
+    const issued = await issueClientKey(team.workspaceId, team.analyst, analysisId, {
+      client: "north",
+      lifetimeDays: 7,
+    });
+    await revokeClientKey(team.workspaceId, team.analyst, analysisId, issued.keyId);
+    await acceptSchemaDigest(await sender("north"), digests.north);
+    await closeRoster(team.workspaceId, team.analyst, analysisId);
+    await cancelFederatedAnalysis(team.workspaceId, team.owner, analysisId);
+    // A refused action (the analysis has ended) writes nothing.
+    await expect(cancelFederatedAnalysis(team.workspaceId, team.owner, analysisId)).rejects.toThrow(
+      /already ended/,
+    );
+
+    const entries = (await listAuditEntries(team.workspaceId))
+      .filter((entry) => [issued.keyId, analysisId].includes(entry.targetId))
+      .reverse();
+    const title = "Penguins by island, federated";
+    expect(
+      entries.map(({ action, actorEmail, targetType, details }) => ({
+        action,
+        actorEmail,
+        targetType,
+        details,
+      })),
+    ).toEqual([
+      {
+        action: "client-key.issued",
+        actorEmail: team.analyst.email,
+        targetType: "client-key",
+        details: {
+          analysis: title,
+          client: "north",
+          expiresOn: issued.expiresAt.toISOString().slice(0, 10),
+        },
+      },
+      {
+        action: "client-key.revoked",
+        actorEmail: team.analyst.email,
+        targetType: "client-key",
+        details: { analysis: title, client: "north" },
+      },
+      {
+        action: "federated.roster-closed",
+        actorEmail: team.analyst.email,
+        targetType: "federated-analysis",
+        details: { analysis: title, missing: ["south", "west"] },
+      },
+      {
+        action: "federated.cancelled",
+        actorEmail: team.owner.email,
+        targetType: "federated-analysis",
+        details: { analysis: title },
+      },
+    ]);
   });
 
   it("writes a client's last seen at most every 5 s, however often it polls", async () => {

@@ -41,7 +41,9 @@ beforeAll(async () => {
 
 afterAll(async () => {
   for (const analysisId of started) {
-    await cancelFederatedAnalysis(team.workspaceId, analysisId).catch(() => undefined);
+    await cancelFederatedAnalysis(team.workspaceId, team.analyst, analysisId).catch(
+      () => undefined,
+    );
   }
   await Promise.all([clients.north.close(), clients.south.close()]);
   await stopSendingBoss();

@@ -62,7 +62,7 @@ export async function issueFederatedClientKey(
 ): Promise<ActionResult<{ key: string; keyId: string; client: string; expiresAt: Date }>> {
   try {
     const { user } = await requireRole(workspaceId, "runAnalysis");
-    const issued = await issueClientKey(workspaceId, user.id, analysisId, input);
+    const issued = await issueClientKey(workspaceId, user, analysisId, input);
     revalidatePath(rosterPage(workspaceId, analysisId));
     return succeed(issued);
   } catch (error) {
@@ -77,8 +77,8 @@ export async function revokeFederatedClientKey(
   keyId: string,
 ): Promise<ActionResult> {
   try {
-    await requireRole(workspaceId, "runAnalysis");
-    await revokeClientKey(workspaceId, analysisId, keyId);
+    const { user } = await requireRole(workspaceId, "runAnalysis");
+    await revokeClientKey(workspaceId, user, analysisId, keyId);
     revalidatePath(rosterPage(workspaceId, analysisId));
     return succeed();
   } catch (error) {
@@ -92,8 +92,8 @@ export async function closeFederatedRoster(
   analysisId: string,
 ): Promise<ActionResult<{ missing: string[] }>> {
   try {
-    await requireRole(workspaceId, "runAnalysis");
-    const { missing } = await closeRoster(workspaceId, analysisId);
+    const { user } = await requireRole(workspaceId, "runAnalysis");
+    const { missing } = await closeRoster(workspaceId, user, analysisId);
     revalidatePath(rosterPage(workspaceId, analysisId));
     return succeed({ missing });
   } catch (error) {
@@ -107,8 +107,8 @@ export async function cancelFederated(
   analysisId: string,
 ): Promise<ActionResult> {
   try {
-    await requireRole(workspaceId, "runAnalysis");
-    await cancelFederatedAnalysis(workspaceId, analysisId);
+    const { user } = await requireRole(workspaceId, "runAnalysis");
+    await cancelFederatedAnalysis(workspaceId, user, analysisId);
     revalidatePath(rosterPage(workspaceId, analysisId));
     return succeed();
   } catch (error) {

@@ -8,9 +8,9 @@ type Context = { params: Promise<{ analysisId: string }> };
 /** Stops a federated analysis that has not ended; accepted digests stay stored. */
 export async function POST(request: Request, { params }: Context): Promise<Response> {
   return answerApiRequest("cancel-federated", async () => {
-    const { workspace } = await requireToken(request, "runAnalysis");
+    const { user, workspace } = await requireToken(request, "runAnalysis");
     const { analysisId } = federatedPathSchema.parse(await params);
-    await cancelFederatedAnalysis(workspace.id, analysisId);
+    await cancelFederatedAnalysis(workspace.id, user, analysisId);
     return new Response(null, { status: 204, headers: { "Cache-Control": "no-store" } });
   });
 }

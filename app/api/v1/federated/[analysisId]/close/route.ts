@@ -8,8 +8,8 @@ type Context = { params: Promise<{ analysisId: string }> };
 /** Ends round 1 without the clients still missing; the report will list them. */
 export async function POST(request: Request, { params }: Context): Promise<Response> {
   return answerApiRequest("close-roster", async () => {
-    const { workspace } = await requireToken(request, "runAnalysis");
+    const { user, workspace } = await requireToken(request, "runAnalysis");
     const { analysisId } = federatedPathSchema.parse(await params);
-    return respondWithJson(await closeRoster(workspace.id, analysisId));
+    return respondWithJson(await closeRoster(workspace.id, user, analysisId));
   });
 }

@@ -13,7 +13,7 @@ export async function POST(request: Request, { params }: Context): Promise<Respo
     const { analysisId } = federatedPathSchema.parse(await params);
     const issued = await issueClientKey(
       workspace.id,
-      user.id,
+      user,
       analysisId,
       await readJsonBody(request),
     );

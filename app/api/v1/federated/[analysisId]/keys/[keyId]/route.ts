@@ -8,9 +8,9 @@ type Context = { params: Promise<{ analysisId: string; keyId: string }> };
 /** Revokes a client key at once. */
 export async function DELETE(request: Request, { params }: Context): Promise<Response> {
   return answerApiRequest("revoke-client-key", async () => {
-    const { workspace } = await requireToken(request, "runAnalysis");
+    const { user, workspace } = await requireToken(request, "runAnalysis");
     const { analysisId, keyId } = clientKeyPathSchema.parse(await params);
-    await revokeClientKey(workspace.id, analysisId, keyId);
+    await revokeClientKey(workspace.id, user, analysisId, keyId);
     return new Response(null, { status: 204, headers: { "Cache-Control": "no-store" } });
   });
 }
