@@ -1,10 +1,9 @@
 import type { DigestProvenance as Provenance } from "@/lib/analysis/summary";
-import { DIGEST_CAUTION } from "@/lib/federated/digest-caution";
 
 /**
  * For a report built from client digests (methods.md §9): how many clients sent what (shards and
- * rows, never a row), who was expected but missing, how the reference point was reached, and the
- * caution that digests are aggregates, not a privacy guarantee.
+ * rows, never a row), who was expected but missing, and how the reference point was reached. The
+ * caution that digests are aggregates, not a privacy guarantee, is among the page's cautions.
  */
 export function DigestProvenance({ digests }: { digests: Provenance }) {
   const { clients, missingClients } = digests;
@@ -66,7 +65,6 @@ export function DigestProvenance({ digests }: { digests: Provenance }) {
       ) : (
         <p>Every expected client sent its digests.</p>
       )}
-      <p className="text-ink-soft">{DIGEST_CAUTION}</p>
       <p className="font-mono text-[11px] break-all text-ink-soft">
         Encoding SHA-256 {digests.encodingHash}
       </p>

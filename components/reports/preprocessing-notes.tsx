@@ -1,4 +1,5 @@
 import type { PartitionSummary } from "@/lib/analysis/summary";
+import { DIGEST_CAUTION } from "@/lib/federated/digest-caution";
 
 const OMISSION_REASONS = {
   constant: "constant after standardizing",
@@ -9,6 +10,9 @@ const OMISSION_REASONS = {
 /** What happened to the data before the model saw it: dropped rows, left-out columns, warnings. */
 export function PreprocessingNotes({ summary }: { summary: PartitionSummary }) {
   const { preprocessing, dataset } = summary;
+  // The summary carries the digests' caution for readers of its JSON; the page shows it among
+  // its cautions, so not again here.
+  const warnings = preprocessing.warnings.filter((warning) => warning !== DIGEST_CAUTION);
   return (
     <section
       aria-labelledby="preprocessing-heading"
@@ -44,11 +48,11 @@ export function PreprocessingNotes({ summary }: { summary: PartitionSummary }) {
           <li>No column was left out.</li>
         )}
       </ul>
-      {preprocessing.warnings.length > 0 ? (
+      {warnings.length > 0 ? (
         <div className="rounded-md border border-cadmium/40 bg-cadmium-soft px-4 py-3">
           <h3 className="font-semibold text-ink">Warnings</h3>
           <ul className="mt-1 list-disc space-y-0.5 pl-5">
-            {preprocessing.warnings.map((warning) => (
+            {warnings.map((warning) => (
               <li key={warning}>{warning}</li>
             ))}
           </ul>

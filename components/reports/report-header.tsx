@@ -98,7 +98,13 @@ export function ReportHeader({
         ) : null}
         {canRunAnalysis ? (
           <Link
-            href={`/w/${workspaceId}/analyses/new?revise=${report.id}`}
+            href={
+              // A report built from client digests has no dataset file to read again: its clients
+              // run the same federated plan again.
+              report.summary.digests
+                ? `/w/${workspaceId}/federated/new?revise=${report.id}`
+                : `/w/${workspaceId}/analyses/new?revise=${report.id}`
+            }
             className={buttonClasses("primary")}
           >
             Run again with other parameters

@@ -1,5 +1,16 @@
-/** The cautions from the product brief; shown wherever reports are read. */
-export function Cautions({ sharing = false }: { sharing?: boolean }) {
+import { DIGEST_CAUTION } from "@/lib/federated/digest-caution";
+
+/**
+ * The cautions from the product brief; shown wherever reports are read. For a report built from
+ * client digests the sharing caution is the digests' own (what they disclose), said once.
+ */
+export function Cautions({
+  sharing = false,
+  digests = false,
+}: {
+  sharing?: boolean;
+  digests?: boolean;
+}) {
   return (
     <aside
       aria-label="Cautions"
@@ -12,7 +23,9 @@ export function Cautions({ sharing = false }: { sharing?: boolean }) {
       </p>
       {sharing ? (
         <p className="mt-2">
-          Per-shard gradients and label counts can reveal information about a client&apos;s data.
+          {digests
+            ? DIGEST_CAUTION
+            : "Per-shard gradients and label counts can reveal information about a client's data."}{" "}
           Think before sharing a report outside this workspace.
         </p>
       ) : null}

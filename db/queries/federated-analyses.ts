@@ -65,6 +65,20 @@ export async function listFederatedAnalyses(workspaceId: string) {
     .orderBy(desc(federatedAnalyses.createdAt));
 }
 
+/** The federated analysis that made this report of the workspace ("run again"), or undefined. */
+export async function findFederatedAnalysisOfReport(
+  workspaceId: string,
+  reportId: string,
+): Promise<FederatedAnalysisRow | undefined> {
+  const [row] = await db()
+    .select()
+    .from(federatedAnalyses)
+    .where(
+      and(eq(federatedAnalyses.workspaceId, workspaceId), eq(federatedAnalyses.reportId, reportId)),
+    );
+  return row;
+}
+
 /** The roster (unordered: the service orders it by code point, as every merge does). */
 export async function listFederatedClients(analysisId: string): Promise<FederatedClientRow[]> {
   return db()

@@ -2,7 +2,7 @@
  * Federated analyses on the server (methods.md §9): what the API's routes and the web's server
  * actions call. Analyst side (the caller has checked the capability): createFederatedAnalysis,
  * issueClientKey, revokeClientKey, closeRoster, cancelFederatedAnalysis, getFederatedStatus,
- * listFederatedAnalysesOf.
+ * listFederatedAnalysesOf, findPlanToRevise.
  * Client side (a client key's caller, or `findRosterSender` for the analyst uploading a client's
  * file): describeClient, acceptSchemaDigest, readClientEncoding, waitForClientWork,
  * answerExchange, acceptGradientDigest.
@@ -21,6 +21,7 @@ export type { FederatedStatus, RosterEntry } from "./federated-status";
 export { issueClientKey } from "./issue-client-key";
 export { readClientEncoding } from "./read-client-encoding";
 export { revokeClientKey } from "./revoke-client-key";
+export { findPlanToRevise } from "./plan-to-revise";
 export { findRosterSender } from "./roster-sender";
 export { waitForClientWork } from "./wait-for-client-work";
 export type { ClientWork } from "./wait-for-client-work";

@@ -1,5 +1,9 @@
 import { z } from "zod";
-import { analysisOptionsSchema, referenceWeightsSchema } from "./analysis-options";
+import {
+  analysisOptionsSchema,
+  referenceWeightsSchema,
+  type ReferenceWeights,
+} from "./analysis-options";
 
 // The web form of a new federated analysis (methods.md §9). The browser and the server action
 // check the same values with this schema, then the server checks the request it stands for
@@ -30,6 +34,8 @@ export const federatedFormSchema = z
     weightsFileName: z.string(),
     participantsMode: z.enum(["all", "sample"]),
     minimumShardRows: wholeNumber("minimum rows per shard"),
+    /** The report this analysis revises (its next version), or "" for a new report. */
+    previousReportId: z.string(),
     options: z.object({
       labelColumn: z.string().trim().min(1, "Name the column that holds the label."),
       /** Feature columns separated by commas or new lines; empty: all but label, id and shard. */
@@ -117,6 +123,7 @@ export function toFederatedRequest(values: FederatedFormValues) {
     batchSize: options.batchSize,
     clients: splitClients(values.clientsText),
     minimumShardRows: values.minimumShardRows,
+    previousReportId: values.previousReportId || undefined,
   };
 }
 
@@ -151,6 +158,7 @@ export function emptyFederatedForm(minimumShardRows: number): FederatedFormValue
     weightsFileName: "",
     participantsMode: "all",
     minimumShardRows,
+    previousReportId: "",
     options: {
       labelColumn: "",
       featuresText: "",
@@ -160,6 +168,52 @@ export function emptyFederatedForm(minimumShardRows: number): FederatedFormValue
       localSteps: ANALYSIS_DEFAULTS.localSteps,
       rounds: ANALYSIS_DEFAULTS.rounds,
       batchSize: ANALYSIS_DEFAULTS.batchSize,
+    },
+  };
+}
+
+/** What "run again" takes over from the analysis that made a report. */
+export type FederatedPlanToRevise = {
+  title: string;
+  labelColumn: string;
+  features: string[] | null;
+  task: "classification" | "regression" | null;
+  lambda: number;
+  reference: "optimum" | "zero" | ReferenceWeights;
+  plan: { participants?: number; localSteps: number; rounds: number; batchSize: number };
+  minimumShardRows: number;
+  clients: string[];
+};
+
+/**
+ * The form filled in from the federated analysis behind a report: the same options, reference,
+ * plan and roster, as the report's next version. Clients send their digests again (nothing of
+ * the earlier rounds is reused: the data may have changed).
+ */
+export function federatedFormFrom(
+  earlier: FederatedPlanToRevise,
+  previousReportId: string,
+): FederatedFormValues {
+  const { reference, plan } = earlier;
+  return {
+    title: earlier.title,
+    clientsText: earlier.clients.join("\n"),
+    referenceSource: reference === "optimum" || reference === "zero" ? reference : "weights",
+    weights: reference === "optimum" || reference === "zero" ? null : reference,
+    weightsFileName:
+      reference === "optimum" || reference === "zero" ? "" : "the earlier analysis's weights",
+    participantsMode: plan.participants === undefined ? "all" : "sample",
+    minimumShardRows: earlier.minimumShardRows,
+    previousReportId,
+    options: {
+      labelColumn: earlier.labelColumn,
+      featuresText: earlier.features?.join(", ") ?? "",
+      task: earlier.task ?? "auto",
+      lambda: earlier.lambda,
+      participants: plan.participants,
+      localSteps: plan.localSteps,
+      rounds: plan.rounds,
+      batchSize: plan.batchSize,
     },
   };
 }

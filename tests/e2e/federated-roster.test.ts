@@ -179,6 +179,12 @@ describe("a federated analysis in the browser", () => {
     const sent = built.getByRole("table", { name: "What each client sent" });
     expect(await sent.getByRole("rowheader").allTextContents()).toEqual(["north", "south"]);
     await built.getByText("Missing: “west”", { exact: false }).waitFor();
-    await built.getByText("not a differential-privacy guarantee", { exact: false }).waitFor();
+    // The digests' caution is among the page's cautions, once.
+    const caution = page.getByText("not a differential-privacy guarantee", { exact: false });
+    expect(await caution.count()).toBe(1);
+    await page
+      .getByRole("complementary", { name: "Cautions" })
+      .getByText("not a differential-privacy guarantee", { exact: false })
+      .waitFor();
   }, 300_000);
 });

@@ -5,6 +5,7 @@
 // split between two clients. The supplied W is the pooled optimum W* of the central analysis at the
 // same λ, so the central analysis's path t·W* is the merge's t·W, and the report equals
 // `analyze --reference W` of the pooled rows — every summary key to 1e-9 relative (§9's equality).
+// "Run again" on that report starts the same plan as a new analysis, whose report is version 2.
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { closeDb } from "@/db/client";
 import { findFederatedClientByName } from "@/db/queries/federated-analyses";
@@ -20,10 +21,16 @@ import {
   cancelFederatedAnalysis,
   createFederatedAnalysis,
   DIGEST_CAUTION,
+  findPlanToRevise,
   getFederatedStatus,
   readClientEncoding,
 } from "@/lib/federated";
 import { stopSendingBoss } from "@/lib/jobs";
+import {
+  federatedFormFrom,
+  federatedFormSchema,
+  toFederatedRequest,
+} from "@/lib/validation/federated-form";
 import type { ReferenceWeights } from "@/lib/validation/analysis-options";
 import { compareSummaries } from "@/tests/lib/analysis/digests/support";
 import { analyzeText } from "@/tests/lib/analysis/support/analyze-text";
@@ -122,6 +129,49 @@ describe("round 2 as files on the server", () => {
     expect(merged.digests?.fitted).toBe(false);
     expect(merged.digests?.clients.map((client) => client.client)).toEqual(["north", "south"]);
     expect(merged.preprocessing.warnings).toContain(DIGEST_CAUTION);
+
+    // "Run again" on the report: the same plan, reference and roster as a new federated analysis,
+    // whose report is the earlier one's next version.
+    const plan = await findPlanToRevise(team.workspaceId, done.reportId!);
+    const request = toFederatedRequest(
+      federatedFormSchema.parse(federatedFormFrom(plan!, done.reportId!)),
+    );
+    const again = await createFederatedAnalysis(team.workspaceId, team.analyst.id, request);
+    started.push(again.analysisId);
+    const before = await getFederatedStatus(team.workspaceId, analysisId);
+    const after = await getFederatedStatus(team.workspaceId, again.analysisId);
+    const options = (status: typeof before) => {
+      const { title, labelColumn, features, task, lambda, reference, referenceWeights } = status;
+      const { plan: advised, minimumShardRows, roster } = status;
+      return {
+        title,
+        labelColumn,
+        features,
+        task,
+        lambda,
+        reference,
+        referenceWeights,
+        advised,
+        minimumShardRows,
+        clients: roster.map((entry) => entry.client),
+      };
+    };
+    expect(options(after)).toEqual(options(before));
+    const senders = {
+      north: { analysisId: again.analysisId, client: { id: "", name: "north" } },
+      south: { analysisId: again.analysisId, client: { id: "", name: "south" } },
+    };
+    for (const name of ["north", "south"] as const) {
+      senders[name].client.id = (await findFederatedClientByName(again.analysisId, name))!.id;
+      await acceptSchemaDigest(senders[name], await clients[name].schema());
+    }
+    const againEncoding = await readClientEncoding({ analysisId: again.analysisId });
+    for (const name of ["north", "south"] as const) {
+      await acceptGradientDigest(senders[name], await gradientFile(name, againEncoding, supplied));
+    }
+    const revised = await waitForState(again.analysisId, ["done", "failed"]);
+    expect(revised.failureMessage).toBeNull();
+    expect((await findReportSummary(team.workspaceId, revised.reportId!))!.version).toBe(2);
   }, 300_000);
 
   it("refuses a file for an analysis at the pooled optimum, which needs its clients online", async () => {

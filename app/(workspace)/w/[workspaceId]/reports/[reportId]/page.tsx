@@ -81,7 +81,7 @@ export default async function ReportPage({ params, searchParams }: PageProps) {
       <KeyFigures summary={summary} shardCount={report.shardCount} />
       {summary.digests ? <DigestProvenance digests={summary.digests} /> : null}
       <ReportProvenance report={report} />
-      <Cautions sharing />
+      <Cautions sharing digests={summary.digests !== undefined} />
       <ReportEvidence summary={summary} shardCount={report.shardCount} />
       <SimulationSection summary={summary} />
       <section aria-labelledby="shards-heading" className="space-y-3 print:break-before-page">
