@@ -86,6 +86,24 @@ const environmentSchema = z.object({
         return z.NEVER;
       }
     }),
+  /**
+   * Parts one analysis is split into, each a job any worker may take (methods.md §9's digests,
+   * merged by the analysis's own job): set it to the number of workers sharing the queue. 1 (the
+   * default) keeps every analysis in one process.
+   */
+  PARTITA_ANALYSIS_PARTS: z.coerce.number().int().min(1).max(64).default(1),
+  /** Smallest dataset (a size such as 64M) split into parts; smaller ones are not worth the rounds. */
+  PARTITA_PARTS_MIN_BYTES: z
+    .string()
+    .default("64M")
+    .transform((value, context) => {
+      try {
+        return parseMemorySize(value, "PARTITA_PARTS_MIN_BYTES");
+      } catch {
+        context.addIssue("PARTITA_PARTS_MIN_BYTES must be a size such as 64M, 1G or bytes");
+        return z.NEVER;
+      }
+    }),
   /** Folder for an analysis's scratch files (the system's temporary folder by default). */
   PARTITA_SCRATCH_DIR: z.string().optional(),
   /** Set only when the local SMTP fake is in use: the folder it writes messages to. Enables the dev inbox. */

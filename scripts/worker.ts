@@ -1,8 +1,10 @@
 // The analysis worker: takes analysis jobs from the pg-boss queue in PostgreSQL and runs them, one
 // at a time (the engine keeps a core busy; with two cores the web app keeps the other), runs layout
-// plans from their own queue (one at a time, beside the analyses), and sends
-// the e-mail waiting in the outbox. Start as many as you like, on one machine or several, with the same DATABASE_URL and S3_* configuration:
-// pg-boss hands each job to exactly one of them, and any of them retries a crashed worker's job.
+// plans from their own queue (one at a time, beside the analyses), holds one part of an analysis
+// shared by several workers (PARTITA_ANALYSIS_PARTS), and sends the e-mail waiting in the outbox.
+// Start as many as you like, on one machine or several, with the same DATABASE_URL and S3_*
+// configuration: pg-boss hands each job to exactly one of them, and any of them retries a crashed
+// worker's job.
 //
 //   node --conditions=react-server --import tsx scripts/worker.ts
 //
@@ -11,14 +13,18 @@
 import type PgBoss from "pg-boss";
 import { closeDb } from "@/db/client";
 import {
+  ANALYSIS_PART_JOB_POLICY,
+  ANALYSIS_PART_QUEUE,
   ANALYSIS_QUEUE,
   analysisJobSchema,
+  analysisPartJobSchema,
   FEDERATED_QUEUE,
   federatedJobSchema,
   LAYOUT_PLAN_QUEUE,
   layoutPlanJobSchema,
   startBoss,
   type AnalysisJob,
+  type AnalysisPartJob,
   type FederatedJob,
   type LayoutPlanJob,
 } from "@/lib/jobs";
@@ -28,6 +34,7 @@ import { runMailSender } from "@/lib/mail";
 import { env } from "@/lib/env";
 import { sweepLostRuns } from "@/lib/reports/lost-runs";
 import { runAnalysis } from "@/lib/reports/run-analysis";
+import { runAnalysisPart } from "@/lib/reports/run-analysis-part";
 
 const shutdown = new AbortController();
 
@@ -57,6 +64,18 @@ async function handleJob(boss: PgBoss, job: PgBoss.JobWithMetadata<AnalysisJob>)
           () => true,
         ),
       signal: shutdown.signal,
+      parts: {
+        parts: env().PARTITA_ANALYSIS_PARTS,
+        minBytes: env().PARTITA_PARTS_MIN_BYTES,
+        sendPart: (part) =>
+          boss.send(ANALYSIS_PART_QUEUE, part, {
+            ...ANALYSIS_PART_JOB_POLICY,
+            singletonKey: `${part.runId}:${part.partIndex}`,
+          }),
+        heartbeatMs: env().WORKER_HEARTBEAT_MS,
+        staleAfterMs: env().WORKER_STALE_AFTER_MS,
+        log,
+      },
     });
     const detail = result.outcome === "succeeded" ? ` (report ${result.reportId})` : "";
     log(`analysis ${analysisId}, ${attempt}: ${result.outcome}${detail} in ${elapsed()}`);
@@ -65,6 +84,27 @@ async function handleJob(boss: PgBoss, job: PgBoss.JobWithMetadata<AnalysisJob>)
     log(`analysis ${analysisId}, ${attempt}: stopped after ${elapsed()}, ${next}`);
     throw error;
   }
+}
+
+/**
+ * One part of an analysis shared by several workers. A worker holds one part at a time, so the
+ * parts of one analysis spread over the workers; a part nobody is free to take is run by its
+ * analysis's coordinator (lib/reports/analysis-in-parts.ts).
+ */
+async function handlePartJob(job: PgBoss.JobWithMetadata<AnalysisPartJob>): Promise<void> {
+  const parsed = analysisPartJobSchema.safeParse(job.data);
+  if (!parsed.success) {
+    log(`job ${job.id}: not an analysis part job, skipped`);
+    return;
+  }
+  await runAnalysisPart(parsed.data, {
+    jobId: job.id,
+    signal: shutdown.signal,
+    heartbeatMs: env().WORKER_HEARTBEAT_MS,
+    staleAfterMs: env().WORKER_STALE_AFTER_MS,
+    willRetry: job.retryCount < job.retryLimit,
+    log,
+  });
 }
 
 /**
@@ -157,13 +197,18 @@ async function main() {
       async ([job]) => handleFederatedJob(job),
     );
   }
+  await boss.work<AnalysisPartJob>(
+    ANALYSIS_PART_QUEUE,
+    { includeMetadata: true, batchSize: 1, pollingIntervalSeconds: 1 },
+    async ([job]) => handlePartJob(job),
+  );
   await boss.work<LayoutPlanJob>(
     LAYOUT_PLAN_QUEUE,
     { includeMetadata: true, batchSize: 1, pollingIntervalSeconds: 1 },
     async ([job]) => handlePlanJob(job),
   );
   log(
-    `ready: taking jobs from queues "${ANALYSIS_QUEUE}", "${FEDERATED_QUEUE}" and "${LAYOUT_PLAN_QUEUE}"`,
+    `ready: taking jobs from queues "${ANALYSIS_QUEUE}", "${ANALYSIS_PART_QUEUE}", "${FEDERATED_QUEUE}" and "${LAYOUT_PLAN_QUEUE}"`,
   );
 }
 

@@ -15,7 +15,10 @@ export type AnalysisStatus = Analysis["status"];
 type DataFile = typeof dataFiles.$inferSelect;
 
 /** A registered file as an analysis reads it. */
-export type AnalysisInputFile = Pick<DataFile, "id" | "kind" | "name" | "objectKey" | "sizeBytes">;
+export type AnalysisInputFile = Pick<
+  DataFile,
+  "id" | "kind" | "name" | "objectKey" | "sizeBytes" | "sha256"
+>;
 
 /** What the progress page and its route handler show of one analysis. */
 export type AnalysisStatusView = Pick<
@@ -47,6 +50,7 @@ const inputFileColumns = {
   name: dataFiles.name,
   objectKey: dataFiles.objectKey,
   sizeBytes: dataFiles.sizeBytes,
+  sha256: dataFiles.sha256,
 };
 
 /** The registered files among `fileIds` that belong to this workspace. */

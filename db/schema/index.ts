@@ -6,3 +6,4 @@ export * from "./reviews";
 export * from "./mail-outbox";
 export * from "./federated";
 export * from "./layout-plans";
+export * from "./analysis-parts";

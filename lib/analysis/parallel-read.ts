@@ -112,6 +112,13 @@ export interface PartLayout {
   parts: { start: number; end: number }[];
 }
 
+/** Random access to a file's bytes: a local file, or an object in storage read by ranges. */
+export interface ByteSource {
+  size: number;
+  /** Up to `length` bytes from `position` (fewer only at the end). */
+  read(position: number, length: number): Promise<Uint8Array>;
+}
+
 /**
  * The header, the delimiter, and up to `count` parts of whole lines covering the data rows; null
  * when the file cannot be cut safely (see `readCsvInParallel`).
@@ -124,42 +131,56 @@ export async function cutIntoParts(
   const file = await open(path);
   try {
     const { size } = await file.stat();
-    const head = await readAt(file, 0, Math.min(size, HEAD_BYTES));
-    const headerEnd = head.indexOf(LINE_FEED);
-    if (headerEnd < 0 || head.includes(QUOTE)) return null;
-    const text = new TextDecoder("utf-8").decode(head.subarray(0, head.lastIndexOf(LINE_FEED)));
-    const parsed = Papa.parse<string[]>(text, {
-      header: false,
-      skipEmptyLines: true,
-      preview: 20,
-      delimitersToGuess: [...DELIMITERS],
-    });
-    if (parsed.data.length === 0) return null;
-    const header = readHeader(parsed.data[0], fileName);
-    const dataStart = headerEnd + 1;
-    const cuts = [dataStart];
-    for (let part = 1; part < count; part++) {
-      const nominal = dataStart + Math.floor(((size - dataStart) * part) / count);
-      if (nominal <= cuts[cuts.length - 1]) continue;
-      const window = await readAt(file, nominal, Math.min(CUT_WINDOW, size - nominal));
-      const lineEnd = window.indexOf(LINE_FEED);
-      if (lineEnd < 0) break;
-      const cut = nominal + lineEnd + 1;
-      if (cut < size && cut > cuts[cuts.length - 1]) cuts.push(cut);
-    }
-    cuts.push(size);
-    const parts = cuts.slice(1).map((end, index) => ({ start: cuts[index], end }));
-    const delimiter = parsed.meta.delimiter as Delimiter;
-    return {
-      header,
-      delimiter,
-      decimalMark: detectDecimalMark(delimiter, parsed.data.slice(1)),
-      headerBytes: dataStart,
-      parts,
-    };
+    return await cutSourceIntoParts(
+      { size, read: (position, length) => readAt(file, position, length) },
+      fileName,
+      count,
+    );
   } finally {
     await file.close();
   }
+}
+
+/** `cutIntoParts` over any byte source: reads the head and a window at each nominal cut. */
+export async function cutSourceIntoParts(
+  source: ByteSource,
+  fileName: string,
+  count: number,
+): Promise<PartLayout | null> {
+  const { size } = source;
+  const head = await source.read(0, Math.min(size, HEAD_BYTES));
+  const headerEnd = head.indexOf(LINE_FEED);
+  if (headerEnd < 0 || head.includes(QUOTE)) return null;
+  const text = new TextDecoder("utf-8").decode(head.subarray(0, head.lastIndexOf(LINE_FEED)));
+  const parsed = Papa.parse<string[]>(text, {
+    header: false,
+    skipEmptyLines: true,
+    preview: 20,
+    delimitersToGuess: [...DELIMITERS],
+  });
+  if (parsed.data.length === 0) return null;
+  const header = readHeader(parsed.data[0], fileName);
+  const dataStart = headerEnd + 1;
+  const cuts = [dataStart];
+  for (let part = 1; part < count; part++) {
+    const nominal = dataStart + Math.floor(((size - dataStart) * part) / count);
+    if (nominal <= cuts[cuts.length - 1]) continue;
+    const window = await source.read(nominal, Math.min(CUT_WINDOW, size - nominal));
+    const lineEnd = window.indexOf(LINE_FEED);
+    if (lineEnd < 0) break;
+    const cut = nominal + lineEnd + 1;
+    if (cut < size && cut > cuts[cuts.length - 1]) cuts.push(cut);
+  }
+  cuts.push(size);
+  const parts = cuts.slice(1).map((end, index) => ({ start: cuts[index], end }));
+  const delimiter = parsed.meta.delimiter as Delimiter;
+  return {
+    header,
+    delimiter,
+    decimalMark: detectDecimalMark(delimiter, parsed.data.slice(1)),
+    headerBytes: dataStart,
+    parts,
+  };
 }
 
 async function readAt(

@@ -1,5 +1,6 @@
 import PgBoss from "pg-boss";
 import { env } from "@/lib/env";
+import { ANALYSIS_PART_JOB_POLICY, ANALYSIS_PART_QUEUE } from "./analysis-part-queue";
 import { ANALYSIS_JOB_POLICY, ANALYSIS_QUEUE } from "./analysis-queue";
 import { FEDERATED_JOB_POLICY, FEDERATED_QUEUE } from "./federated-queue";
 import { LAYOUT_PLAN_JOB_POLICY, LAYOUT_PLAN_QUEUE } from "./layout-plan-queue";
@@ -18,9 +19,9 @@ export interface BossOptions {
 
 /**
  * A started pg-boss on DATABASE_URL, with its tables in its own `pgboss` schema (created or
- * migrated on first start) and the analysis, federated and layout plan queues in place. All are
- * "stately": at most one queued and one active job per singleton key, and every job's key is its
- * analysis's or plan's id.
+ * migrated on first start) and the analysis, analysis part, federated and layout plan queues in
+ * place. All are "stately": at most one queued and one active job per singleton key, and every
+ * job's key is its analysis's or plan's id (a part's: its run and index).
  */
 export async function startBoss(options: BossOptions): Promise<PgBoss> {
   const boss = new PgBoss({
@@ -38,6 +39,11 @@ export async function startBoss(options: BossOptions): Promise<PgBoss> {
     name: ANALYSIS_QUEUE,
     policy: "stately",
     ...ANALYSIS_JOB_POLICY,
+  });
+  await boss.createQueue(ANALYSIS_PART_QUEUE, {
+    name: ANALYSIS_PART_QUEUE,
+    policy: "stately",
+    ...ANALYSIS_PART_JOB_POLICY,
   });
   await boss.createQueue(FEDERATED_QUEUE, {
     name: FEDERATED_QUEUE,

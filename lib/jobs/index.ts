@@ -5,6 +5,12 @@ export {
   analysisJobSchema,
   type AnalysisJob,
 } from "./analysis-queue";
+export {
+  ANALYSIS_PART_JOB_POLICY,
+  ANALYSIS_PART_QUEUE,
+  analysisPartJobSchema,
+  type AnalysisPartJob,
+} from "./analysis-part-queue";
 export { startBoss, type BossOptions } from "./boss";
 export {
   enqueueAnalysis,

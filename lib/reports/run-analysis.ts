@@ -8,6 +8,7 @@ import { storeReport } from "@/db/queries/report-store";
 import { env } from "@/lib/env";
 import { ANALYSIS_JOB_POLICY, type AnalysisJob } from "@/lib/jobs";
 import { notifyAnalysisEnded, type EndedRun } from "@/lib/notifications/analysis-ended";
+import { partCountFor, runAnalysisInParts, type PartsSettings } from "./analysis-in-parts";
 import { runEngineInThread } from "./engine-thread";
 import type { StoredFile } from "./hashed-object";
 import { createProgressWriter } from "./progress-writer";
@@ -35,6 +36,8 @@ export interface RunOptions {
   signal?: AbortSignal;
   /** At least this long between progress writes; 500 ms keeps it to two writes a second. */
   progressIntervalMs?: number;
+  /** Sharing a large analysis among workers (analysis-in-parts.ts); absent: one process. */
+  parts?: PartsSettings;
 }
 
 const INTERNAL_FAILURE =
@@ -91,7 +94,16 @@ export async function runAnalysis(job: AnalysisJob, options: RunOptions): Promis
     onStopped: () => stoppedFromOutside.abort(),
   });
   const stopHeartbeat = startHeartbeat(job, settings.WORKER_HEARTBEAT_MS);
-  const runEngine = () =>
+  const partCount = options.parts ? partCountFor(analysis, options.parts) : 1;
+  const runInParts = () =>
+    partCount > 1
+      ? runAnalysisInParts(analysis, partCount, options.parts!, {
+          signal,
+          onProgress: (value) => progress.report(value),
+        })
+      : Promise.resolve(null);
+  const runEngine = async () =>
+    (await runInParts()) ??
     runEngineInThread(
       {
         dataset: storedFile(analysis.dataset),

@@ -4,6 +4,7 @@ export { createStorageTarget, storage, type StorageTarget } from "./client";
 export {
   deleteObject,
   getObjectRange,
+  getObjectRangeStream,
   getObjectStream,
   headObject,
   putObject,

@@ -77,6 +77,26 @@ export async function getObjectRange(
   return Buffer.from(await result.Body.transformToByteArray());
 }
 
+/**
+ * Bytes [start, end) of an object as a Node stream (one part of a dataset read by one worker);
+ * the caller must consume or destroy it.
+ */
+export async function getObjectRangeStream(
+  key: string,
+  start: number,
+  end: number,
+): Promise<Readable> {
+  if (!Number.isInteger(start) || !Number.isInteger(end) || start < 0 || end <= start) {
+    throw new RangeError(`invalid byte range [${start}, ${end})`);
+  }
+  const { client, bucket } = storage();
+  const result = await client.send(
+    new GetObjectCommand({ Bucket: bucket, Key: key, Range: `bytes=${start}-${end - 1}` }),
+  );
+  if (!result.Body) throw new Error(`object ${key} has no body`);
+  return result.Body as Readable;
+}
+
 /** Size, type and ETag of an object, or undefined when there is no such object. */
 export async function headObject(key: string): Promise<ObjectDetails | undefined> {
   const { client, bucket } = storage();

@@ -40,8 +40,13 @@ export {
   combineGradientDigests,
   combineSchemaDigests,
 } from "./combine-parts";
-export { openDatasetPart, planDatasetParts, readDatasetPart } from "./dataset-parts";
-export type { DatasetPart, DatasetPartPlan } from "./dataset-parts";
+export {
+  localDatasetBytes,
+  openDatasetPart,
+  planDatasetParts,
+  readDatasetPart,
+} from "./dataset-parts";
+export type { DatasetBytes, DatasetPart, DatasetPartPlan } from "./dataset-parts";
 export { PartsConnection } from "./parts-connection";
 export { computeGradientDigest } from "./gradient-digest";
 export { LocalDigestClient } from "./local-client";

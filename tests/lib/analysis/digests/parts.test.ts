@@ -12,6 +12,7 @@ import {
   analyzeFromDigests,
   analyzePartition,
   LocalDigestClient,
+  localDatasetBytes,
   planDatasetParts,
   PartsConnection,
   readDatasetPart,
@@ -33,14 +34,15 @@ describe("one analysis in parts", () => {
   it("gives the one-process summary to 1e-9 with 4 parts whose shards span parts", async () => {
     const file = path.join(mkdtempSync(path.join(tmpdir(), "partita-parts-")), "digits.csv");
     writeFileSync(file, loadStackedDigitsCsv(23));
-    const plan = await planDatasetParts(file, "digits.csv", 4);
+    const bytes = await localDatasetBytes(file);
+    const plan = await planDatasetParts(bytes, "digits.csv", 4);
     expect(plan.parts).toHaveLength(4);
     const parts = await Promise.all(
       plan.parts.map(
         async (_, index) =>
           new LocalDigestClient(
             `part-${index + 1}`,
-            await readDatasetPart(file, "digits.csv", plan, index, COLUMNS),
+            await readDatasetPart(bytes, "digits.csv", plan, index, COLUMNS),
             { minimumShardRows: 1, threads: 1 },
           ),
       ),

@@ -1,0 +1,286 @@
+import { createHash, randomUUID } from "node:crypto";
+import {
+  listRunParts,
+  recordPartJob,
+  removePartExchanges,
+  removePartRun,
+  startPartRun,
+} from "@/db/queries/analysis-parts";
+import type { ClaimedAnalysis } from "@/db/queries/analyses";
+import {
+  analyzeFromDigests,
+  mergeSchemaDigests,
+  PartsConnection,
+  planDatasetParts,
+  type AnalysisProgress,
+  type AnalysisStage,
+} from "@/lib/analysis";
+import type { AnalysisPartJob } from "@/lib/jobs";
+import { getObjectStream, isStorageUnreachable } from "@/lib/storage";
+import { StorageUnreachableError, type EngineOutcome } from "./engine-thread";
+import { runAnalysisPart } from "./run-analysis-part";
+import { storedDatasetBytes } from "./stored-dataset-bytes";
+import { PartFailedError, StoredPartConnection } from "./stored-part-connection";
+
+export interface PartsSettings {
+  /** Parts a large analysis is split into; 1 keeps every analysis in one process. */
+  parts: number;
+  /** Smallest dataset, in bytes, worth splitting. */
+  minBytes: number;
+  /** Sends a part's job to the queue; its id, or null when the part already has a queued job. */
+  sendPart(job: AnalysisPartJob): Promise<string | null>;
+  heartbeatMs: number;
+  staleAfterMs: number;
+  /**
+   * How long a part may wait for a worker before the coordinator's own process runs it: a part
+   * nobody took (more parts than free workers) or one whose worker stopped while the others are
+   * busy with theirs. 10 s by default, a few of the workers' 1 s polls.
+   */
+  takeOverAfterMs?: number;
+  pollMs?: number;
+  log?: (line: string) => void;
+}
+
+/**
+ * How many parts the analysis is shared among; 1 when it runs in one process. Split only what
+ * the parts give exactly as one process does (methods.md §9's equality): a dataset of at least
+ * `minBytes` whose rows carry their shard (a shard column), no partition map (it is keyed by rows
+ * a part cannot see), no uploaded weights, no simulation (it needs every row in one place), no
+ * regression (label skew would come from a histogram), and the text rules at their defaults.
+ */
+export function partCountFor(analysis: ClaimedAnalysis, settings: PartsSettings): number {
+  const options = analysis.parameters;
+  const splittable =
+    settings.parts > 1 &&
+    analysis.dataset.sizeBytes >= settings.minBytes &&
+    analysis.layout === null &&
+    analysis.weights === null &&
+    options.shardColumn !== undefined &&
+    options.simulate === undefined &&
+    options.task !== "regression" &&
+    (options.encoding ?? "utf-8") === "utf-8" &&
+    options.delimiter === undefined &&
+    options.decimalMark === undefined &&
+    !options.badNumbersAsMissing &&
+    !options.dropUnassignedRows;
+  return splittable ? settings.parts : 1;
+}
+
+const STAGE_OF_ROUND: Record<"schema" | "fit" | "gradients" | "merge", AnalysisStage> = {
+  schema: "reading",
+  fit: "fitting",
+  gradients: "measuring",
+  merge: "advising",
+};
+
+/**
+ * The coordinating side of one analysis shared by several workers: cuts the stored CSV into `count`
+ * parts at line ends, sends each part's job (any worker takes it, lib/reports/run-analysis-part.ts),
+ * and runs the federated coordinator's own analyzeFromDigests over the parts seen as one client
+ * (PartsConnection), so the summary is the one-process summary (methods.md §9's equality).
+ * Resolves null when the file cannot be cut (quoted fields, say) or the label turns out numeric:
+ * the caller then runs the analysis in one process.
+ */
+export async function runAnalysisInParts(
+  analysis: ClaimedAnalysis,
+  count: number,
+  settings: PartsSettings,
+  hooks: { signal: AbortSignal; onProgress(progress: AnalysisProgress): void },
+): Promise<EngineOutcome | null> {
+  try {
+    return await coordinateParts(analysis, count, settings, hooks);
+  } catch (error) {
+    if (isStorageUnreachable(error)) {
+      throw new StorageUnreachableError(error instanceof Error ? error.message : String(error));
+    }
+    throw error;
+  }
+}
+
+async function coordinateParts(
+  analysis: ClaimedAnalysis,
+  count: number,
+  settings: PartsSettings,
+  hooks: { signal: AbortSignal; onProgress(progress: AnalysisProgress): void },
+): Promise<EngineOutcome | null> {
+  const { dataset } = analysis;
+  const plan = await planDatasetParts(storedDatasetBytes(dataset), dataset.name, count);
+  if (plan.parts.length < 2) return null;
+  const runId = randomUUID();
+  await startPartRun(
+    analysis.id,
+    runId,
+    plan.parts.map((part) => ({
+      headerBytes: plan.headerBytes,
+      startByte: part.start,
+      endByte: part.end,
+    })),
+  );
+  const jobOf = (partIndex: number): AnalysisPartJob => ({
+    analysisId: analysis.id,
+    workspaceId: analysis.workspaceId,
+    runId,
+    partIndex,
+  });
+  for (let partIndex = 0; partIndex < plan.parts.length; partIndex++) {
+    const jobId = await settings.sendPart(jobOf(partIndex));
+    if (jobId) await recordPartJob(analysis.id, runId, partIndex, jobId);
+  }
+  settings.log?.(`analysis ${analysis.id}: shared among ${plan.parts.length} parts`);
+  const sha256 = dataset.sha256 ? Promise.resolve(dataset.sha256) : hashObject(dataset.objectKey);
+  // Awaited once the summary is ready; a failure before then is the run's failure, not a crash.
+  sha256.catch(() => undefined);
+  const takeOver = takeOverWaitingParts(analysis.id, runId, jobOf, settings, hooks.signal);
+  const clock = createStageClock();
+  const connections = plan.parts.map(
+    (_, partIndex) =>
+      new StoredPartConnection({
+        analysisId: analysis.id,
+        runId,
+        partIndex,
+        partCount: plan.parts.length,
+        signal: hooks.signal,
+        pollMs: settings.pollMs ?? 20,
+      }),
+  );
+  const whole = new PartsConnection(dataset.name, connections, analysis.parameters.task);
+  try {
+    clock.enter("reading");
+    hooks.onProgress({ stage: "reading", fraction: 0 });
+    const encoding = mergeSchemaDigests([await whole.schema()], {
+      task: analysis.parameters.task,
+      minimumShardRows: 1,
+    });
+    if (encoding.task === "regression") {
+      await removePartRun(analysis.id);
+      return null;
+    }
+    const { localSteps, rounds, batchSize, participants } = analysis.parameters;
+    const summary = await analyzeFromDigests([whole], {
+      task: analysis.parameters.task,
+      lambda: analysis.parameters.lambda ?? 1e-3,
+      reference: analysis.parameters.reference ?? "optimum",
+      plan: {
+        participants,
+        localSteps: localSteps ?? 10,
+        rounds: rounds ?? 100,
+        batchSize: batchSize ?? 32,
+      },
+      minimumShardRows: 1,
+      onRound: (round, evaluations) => {
+        clock.enter(STAGE_OF_ROUND[round]);
+        // The fit's evaluations are not known in advance: a fraction that approaches 1.
+        const fraction = evaluations === undefined ? 0 : evaluations / (evaluations + 20);
+        hooks.onProgress({ stage: STAGE_OF_ROUND[round], fraction });
+      },
+    });
+    // The parts are one dataset read by this analysis, not clients' digests: the summary states
+    // what a one-process read states.
+    delete summary.digests;
+    return {
+      type: "finished",
+      summary,
+      inputs: [
+        {
+          kind: dataset.kind,
+          name: dataset.name,
+          objectKey: dataset.objectKey,
+          sizeBytes: dataset.sizeBytes,
+          sha256: await sha256,
+        },
+      ],
+      stageSeconds: clock.finish(),
+    };
+  } catch (error) {
+    if (error instanceof PartFailedError) return { type: "input-error", message: error.message };
+    throw error;
+  } finally {
+    await takeOver.stop();
+    await removePartExchanges(analysis.id);
+  }
+}
+
+/**
+ * Runs in this process every part that waited `takeOverAfterMs` without a worker — none took its
+ * job, or its worker stopped (lib/reports/lost-runs.ts cleared its heartbeat) while the others
+ * hold parts of their own. Claiming is atomic, so a worker taking the part at the same moment
+ * leaves one of the two with nothing to do.
+ */
+function takeOverWaitingParts(
+  analysisId: string,
+  runId: string,
+  jobOf: (partIndex: number) => AnalysisPartJob,
+  settings: PartsSettings,
+  signal: AbortSignal,
+) {
+  const stopped = new AbortController();
+  const partSignal = AbortSignal.any([signal, stopped.signal]);
+  const running = new Map<number, Promise<unknown>>();
+  const waitMs = settings.takeOverAfterMs ?? 10_000;
+  const look = async () => {
+    for (const part of await listRunParts(analysisId, runId)) {
+      const waiting = part.heartbeatAt === null && Date.now() - part.createdAt.getTime() >= waitMs;
+      if (!waiting || running.has(part.partIndex) || part.failureMessage !== null) continue;
+      const run = runAnalysisPart(jobOf(part.partIndex), {
+        jobId: null,
+        signal: partSignal,
+        heartbeatMs: settings.heartbeatMs,
+        staleAfterMs: settings.staleAfterMs,
+        willRetry: true,
+        log: settings.log,
+      })
+        .catch((error: unknown) => {
+          if (!partSignal.aborted) {
+            settings.log?.(
+              `analysis ${analysisId}: part ${part.partIndex + 1} failed here: ${error instanceof Error ? error.message : error}`,
+            );
+          }
+        })
+        .finally(() => running.delete(part.partIndex));
+      running.set(part.partIndex, run);
+    }
+  };
+  const timer = setInterval(() => {
+    look().catch(() => {
+      // The next look tries again; a database outage fails the coordinator's own waits anyway.
+    });
+  }, 1000);
+  return {
+    async stop() {
+      clearInterval(timer);
+      stopped.abort();
+      await Promise.all(running.values());
+    },
+  };
+}
+
+/** SHA-256 of a stored object, for a dataset registered before its hash was recorded. */
+async function hashObject(objectKey: string): Promise<string> {
+  const hash = createHash("sha256");
+  const object = await getObjectStream(objectKey);
+  for await (const chunk of object.body as AsyncIterable<Buffer>) hash.update(chunk);
+  return hash.digest("hex");
+}
+
+/** Seconds per stage, from each stage's first report to the next stage's. */
+function createStageClock() {
+  const seconds: Record<string, number> = {};
+  let current: { stage: string; since: number } | undefined;
+  const close = (now: number) => {
+    if (current) {
+      seconds[current.stage] = (seconds[current.stage] ?? 0) + (now - current.since) / 1000;
+    }
+  };
+  return {
+    enter(stage: string) {
+      if (current?.stage === stage) return;
+      const now = performance.now();
+      close(now);
+      current = { stage, since: now };
+    },
+    finish() {
+      close(performance.now());
+      return seconds;
+    },
+  };
+}

@@ -1,0 +1,202 @@
+// One analysis shared by several workers, end to end: the analysis's job (run here, as the worker
+// runs it) cuts the stored CSV into parts, each part a pg-boss job taken by a worker process
+// (scripts/worker.ts, spawned here; under `npm test` the suite's own worker may take one too), and
+// merges the parts' digests (methods.md §9). The outside check: the report's summary equals the
+// engine's one-process analysis of the same bytes to 1e-9 relative — §9's defining identity, the
+// one-process analysis being checked against scikit-learn elsewhere. The data is scikit-learn's
+// bundled digits stacked 23 times (41 331 rows, more than the fit's 2 × 20 000-row subsample, so
+// the subsample spans parts), with a seeded label-skewed shard column.
+import { spawn, type ChildProcess } from "node:child_process";
+import path from "node:path";
+import { Readable } from "node:stream";
+import { eq } from "drizzle-orm";
+import PgBoss from "pg-boss";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { closeDb, db } from "@/db/client";
+import { findRedoneParts } from "@/db/queries/analysis-parts";
+import { analyses, reports } from "@/db/schema";
+import { analyzePartition, type PartitionSummary } from "@/lib/analysis";
+import { ANALYSIS_PART_JOB_POLICY, ANALYSIS_PART_QUEUE, startBoss } from "@/lib/jobs";
+import type { PartsSettings } from "@/lib/reports/analysis-in-parts";
+import { runAnalysis } from "@/lib/reports/run-analysis";
+import { createTeam } from "@/tests/support/accounts";
+import { loadStackedDigitsCsv } from "../analysis/support/open-data";
+import { compareSummaries } from "../analysis/digests/support";
+import { storeInput } from "./support/stored-inputs";
+
+const projectRoot = path.resolve(import.meta.dirname, "../../..");
+
+/** A dozen pixels (one blanked every 97th row, so imputed) and the ink category. */
+const FEATURES = [
+  ...["2_3", "2_4", "3_2", "3_5", "4_2", "4_5", "5_3", "5_4", "6_3", "1_4", "6_5"].map(
+    (cell) => `pixel_${cell}`,
+  ),
+  "ink",
+];
+const OPTIONS = { labelColumn: "digit", shardColumn: "shard", features: FEATURES };
+const CSV = loadStackedDigitsCsv(23);
+
+/** A worker process as deployed, its output kept to wait on. */
+class WorkerProcess {
+  readonly process: ChildProcess;
+  output = "";
+
+  constructor(extraEnv: Record<string, string>) {
+    this.process = spawn(
+      process.execPath,
+      ["--conditions=react-server", "--import", "tsx", "scripts/worker.ts"],
+      {
+        cwd: projectRoot,
+        env: { ...process.env, ...extraEnv },
+        stdio: ["ignore", "pipe", "pipe"],
+      },
+    );
+    for (const stream of [this.process.stdout, this.process.stderr]) {
+      stream?.setEncoding("utf8").on("data", (chunk: string) => (this.output += chunk));
+    }
+  }
+
+  /** Resolves with the first match of `pattern` in the output, as soon as it is printed. */
+  waitFor(pattern: RegExp, timeoutMs = 120_000): Promise<RegExpExecArray> {
+    return new Promise((resolve, reject) => {
+      const timer = setTimeout(
+        () => reject(new Error(`worker never printed ${pattern}:\n${this.output}`)),
+        timeoutMs,
+      );
+      const check = () => {
+        const match = pattern.exec(this.output);
+        if (!match) return;
+        clearTimeout(timer);
+        this.process.stdout?.off("data", check);
+        resolve(match);
+      };
+      this.process.stdout?.on("data", check);
+      check();
+    });
+  }
+
+  kill(): Promise<void> {
+    if (this.process.exitCode !== null || this.process.signalCode !== null) {
+      return Promise.resolve();
+    }
+    const exited = new Promise<void>((resolve) => this.process.once("exit", () => resolve()));
+    this.process.kill("SIGKILL");
+    return exited;
+  }
+}
+
+// Heartbeats every second; a part silent for 20 s counts as lost — longer than the 10 s between
+// the heartbeats of the suite's own worker, whose runs must never count as lost.
+const WORKER_ENV = { WORKER_HEARTBEAT_MS: "1000", WORKER_STALE_AFTER_MS: "20000" };
+let workers: WorkerProcess[] = [];
+let boss: PgBoss;
+
+beforeAll(async () => {
+  boss = await startBoss({ applicationName: "partita-test", supervise: false, maxConnections: 2 });
+  workers = [new WorkerProcess(WORKER_ENV), new WorkerProcess(WORKER_ENV)];
+  await Promise.all(workers.map((worker) => worker.waitFor(/\[worker\] ready/)));
+});
+
+afterAll(async () => {
+  await Promise.all(workers.map((worker) => worker.kill()));
+  await boss.stop({ graceful: false });
+  await closeDb();
+});
+
+function partsSettings(parts: number): PartsSettings {
+  return {
+    parts,
+    minBytes: 1,
+    sendPart: (job) =>
+      boss.send(ANALYSIS_PART_QUEUE, job, {
+        ...ANALYSIS_PART_JOB_POLICY,
+        singletonKey: `${job.runId}:${job.partIndex}`,
+      }),
+    heartbeatMs: 1000,
+    staleAfterMs: 20_000,
+    // Parts go to the worker processes; this process takes one only when none is free.
+    takeOverAfterMs: 10_000,
+  };
+}
+
+/** A queued analysis of the stored digits, as the start action leaves it. */
+async function queueDigitsAnalysis() {
+  const team = await createTeam();
+  const workspace = { workspaceId: team.workspaceId, uploadedBy: team.owner.id };
+  const dataset = await storeInput(workspace, "dataset", "digits.csv", CSV);
+  const [analysis] = await db()
+    .insert(analyses)
+    .values({
+      workspaceId: team.workspaceId,
+      title: "Digits in parts",
+      datasetFileId: dataset.id,
+      parameters: OPTIONS,
+      createdBy: team.owner.id,
+    })
+    .returning({ id: analyses.id });
+  return { analysisId: analysis.id, workspaceId: team.workspaceId };
+}
+
+async function storedSummary(analysisId: string): Promise<PartitionSummary> {
+  const stored = await db().select().from(reports).where(eq(reports.analysisId, analysisId));
+  expect(stored).toHaveLength(1);
+  return stored[0].summary;
+}
+
+let oneProcess: Promise<PartitionSummary> | undefined;
+/** The engine's analysis of the same bytes in this process, on one thread. */
+function analyzeInOneProcess(): Promise<PartitionSummary> {
+  oneProcess ??= analyzePartition({
+    data: Readable.from([Buffer.from(CSV, "utf8")]),
+    dataName: "digits.csv",
+    options: OPTIONS,
+    threads: 1,
+  });
+  return oneProcess;
+}
+
+function expectOneProcessSummary(actual: PartitionSummary, expected: PartitionSummary) {
+  const differences = compareSummaries(expected, actual, false).filter(
+    // ‖∇F(W*)‖ is the optimizer's residual: compared with its tolerance below.
+    (line) => !line.startsWith(".model.gradNorm"),
+  );
+  expect(differences).toEqual([]);
+  expect(actual.model.gradNorm).toBeLessThanOrEqual(actual.model.optimizer.tolerance);
+  expect(actual.preprocessing.warnings).toEqual(expected.preprocessing.warnings);
+  expect(actual.digests).toBeUndefined();
+}
+
+describe("one analysis shared by several workers", () => {
+  it("gives the one-process summary to 1e-9, with each part a job a worker took", async () => {
+    const job = await queueDigitsAnalysis();
+    const run = await runAnalysis(job, { willRetry: true, parts: partsSettings(3) });
+    expect(run.outcome).toBe("succeeded");
+    expectOneProcessSummary(await storedSummary(job.analysisId), await analyzeInOneProcess());
+    // Each worker process held one part (a worker holds one at a time).
+    for (const worker of workers) {
+      expect(worker.output).toMatch(new RegExp(`analysis ${job.analysisId}, part \\d of 3: read`));
+    }
+    expect(await findRedoneParts(job.analysisId)).toEqual([]);
+  }, 600_000);
+
+  it("redoes the part of a worker killed in the middle, and ends with one report", async () => {
+    const job = await queueDigitsAnalysis();
+    const run = runAnalysis(job, { willRetry: true, parts: partsSettings(3) });
+    // The first worker's part has answered the fit's first evaluation: its rows are read and
+    // encoded, and the fit waits on its next answers.
+    const [victim, survivor] = workers;
+    const [, part] = await victim.waitFor(
+      new RegExp(`analysis ${job.analysisId}, part (\\d) of 3: answered evaluate`),
+    );
+    await victim.kill();
+    expect((await run).outcome).toBe("succeeded");
+    expect(survivor.output).toMatch(
+      new RegExp(`the worker holding part ${part} of 3 stopped; the part goes to another worker`),
+    );
+    expectOneProcessSummary(await storedSummary(job.analysisId), await analyzeInOneProcess());
+    expect(await findRedoneParts(job.analysisId)).toEqual([
+      expect.objectContaining({ partIndex: Number(part) - 1, partCount: 3, workerLosses: 1 }),
+    ]);
+  }, 600_000);
+});
+
