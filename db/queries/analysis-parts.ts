@@ -1,5 +1,5 @@
 import "server-only";
-import { and, asc, eq, isNull, ne, or, sql } from "drizzle-orm";
+import { and, asc, eq, isNull, or, sql } from "drizzle-orm";
 import { db } from "@/db/client";
 import { analyses, analysisPartExchanges, analysisParts, dataFiles } from "@/db/schema";
 
@@ -285,24 +285,19 @@ export async function handBackLostParts(staleAfterMs: number): Promise<LostPart[
   return rows;
 }
 
-/** What happened to the parts of the analysis's last run, for the report page: parts redone. */
-export async function findRedoneParts(
+/** The parts of the analysis's last run in parts, in file order; empty when it ran in one process. */
+export async function listAnalysisParts(
   analysisId: string,
-): Promise<{ partIndex: number; partCount: number; workerLosses: number; attempts: number }[]> {
+): Promise<Pick<AnalysisPartRow, "partIndex" | "partCount" | "attempts" | "workerLosses">[]> {
   return db()
     .select({
       partIndex: analysisParts.partIndex,
       partCount: analysisParts.partCount,
-      workerLosses: analysisParts.workerLosses,
       attempts: analysisParts.attempts,
+      workerLosses: analysisParts.workerLosses,
     })
     .from(analysisParts)
-    .where(
-      and(
-        eq(analysisParts.analysisId, analysisId),
-        or(ne(analysisParts.workerLosses, 0), sql`${analysisParts.attempts} > 1`),
-      ),
-    )
+    .where(eq(analysisParts.analysisId, analysisId))
     .orderBy(asc(analysisParts.partIndex));
 }
 

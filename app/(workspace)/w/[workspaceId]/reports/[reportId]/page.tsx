@@ -5,6 +5,7 @@ import { DeleteReportControl } from "@/components/reports/delete-report-control"
 import { DigestProvenance } from "@/components/reports/digest-provenance";
 import { KeyFigures } from "@/components/reports/key-figures";
 import { MethodsSection } from "@/components/reports/methods-section";
+import { PartRunNotes } from "@/components/reports/part-run-notes";
 import { PreprocessingNotes } from "@/components/reports/preprocessing-notes";
 import { ReportEvidence } from "@/components/reports/report-evidence";
 import { ReportHeader } from "@/components/reports/report-header";
@@ -15,10 +16,12 @@ import { ReviewPanel } from "@/components/reviews/review-panel";
 import { ReviewStateChip } from "@/components/reviews/review-state-chip";
 import { VerdictPanel } from "@/components/reports/verdict-panel";
 import { Cautions } from "@/components/workspace/cautions";
+import { listAnalysisParts } from "@/db/queries/analysis-parts";
 import { findReport, findShardPage, listShardIds } from "@/db/queries/reports";
 import { findReviewOverview, listReviewerCandidates } from "@/db/queries/reviews";
 import { guardPage } from "@/lib/auth/page-guard";
 import { roleAllows } from "@/lib/auth/roles";
+import { describePartRun } from "@/lib/reports/part-run-notes";
 import { readShardTableView, SHARD_PAGE_SIZE } from "@/lib/reports/shard-table-view";
 import type { SearchParams } from "@/lib/validation/url-filters";
 
@@ -56,11 +59,12 @@ export default async function ReportPage({ params, searchParams }: PageProps) {
   const { user, workspace, report } = await loadReport(workspaceId, reportId);
   const { summary } = report;
   const shardView = readShardTableView(await searchParams);
-  const [review, reviewerCandidates, shardPage, shardIds] = await Promise.all([
+  const [review, reviewerCandidates, shardPage, shardIds, parts] = await Promise.all([
     findReviewOverview(workspace.id, report.id),
     listReviewerCandidates(workspace.id),
     findShardPage(report.id, shardView),
     listShardIds(report.id, PICKABLE_SHARDS),
+    listAnalysisParts(report.analysisId),
   ]);
   return (
     <article
@@ -81,6 +85,7 @@ export default async function ReportPage({ params, searchParams }: PageProps) {
       <KeyFigures summary={summary} shardCount={report.shardCount} />
       {summary.digests ? <DigestProvenance digests={summary.digests} /> : null}
       <ReportProvenance report={report} />
+      <PartRunNotes notes={describePartRun(parts)} />
       <Cautions sharing digests={summary.digests !== undefined} />
       <ReportEvidence summary={summary} shardCount={report.shardCount} />
       <SimulationSection summary={summary} />
