@@ -161,16 +161,25 @@ export async function findLayoutPlanProgress(
   return { ...plan, candidates };
 }
 
-/** A claimed plan and the dataset it reads. */
-export type ClaimedLayoutPlan = LayoutPlan & { dataset: AnalysisInputFile };
+/**
+ * A claimed plan, the dataset it reads, and the ordinals of candidates an earlier run of its job
+ * already finished (scored or failed), which are not run again.
+ */
+export type ClaimedLayoutPlan = LayoutPlan & {
+  dataset: AnalysisInputFile;
+  finishedOrdinals: number[];
+};
 
 /**
- * Marks a queued plan running (a retried job finds it queued again) and returns it with its
- * dataset; undefined when it was cancelled or already taken.
+ * Marks a queued plan running and returns it with its dataset; undefined when it was cancelled or
+ * already taken. A retried job (`retried`) also takes a plan left running: pg-boss retries a job
+ * once its worker failed it or stopped answering, so a plan still running then has no worker left
+ * (it died before it could hand the plan back).
  */
 export async function claimLayoutPlan(
   workspaceId: string,
   planId: string,
+  { retried }: { retried: boolean },
 ): Promise<ClaimedLayoutPlan | undefined> {
   const [claimed] = await db()
     .update(layoutPlans)
@@ -179,19 +188,29 @@ export async function claimLayoutPlan(
       and(
         eq(layoutPlans.workspaceId, workspaceId),
         eq(layoutPlans.id, planId),
-        eq(layoutPlans.status, "queued"),
+        inArray(layoutPlans.status, retried ? ["queued", "running"] : ["queued"]),
       ),
     )
     .returning();
   if (!claimed) return undefined;
   const [dataset] = await findInputFiles(workspaceId, [claimed.datasetFileId]);
   if (!dataset) throw new Error(`layout plan ${planId}: its dataset file is missing`);
-  // A retried job starts the candidates over.
+  // The candidate an earlier run was scoring starts over; the finished ones stay as they are.
   await db()
     .update(layoutCandidates)
     .set({ status: "queued", stage: null, fraction: 0, failureMessage: null, finishedAt: null })
     .where(and(eq(layoutCandidates.planId, planId), inArray(layoutCandidates.status, ["running"])));
-  return { ...claimed, dataset };
+  const finished = await db()
+    .select({ ordinal: layoutCandidates.ordinal })
+    .from(layoutCandidates)
+    .where(
+      and(
+        eq(layoutCandidates.planId, planId),
+        inArray(layoutCandidates.status, ["succeeded", "failed"]),
+      ),
+    )
+    .orderBy(asc(layoutCandidates.ordinal));
+  return { ...claimed, dataset, finishedOrdinals: finished.map((row) => row.ordinal) };
 }
 
 const planIs = (workspaceId: string, planId: string) =>

@@ -17,6 +17,8 @@ export interface PlanThreadInput {
   shardCount: number;
   specs: LayoutSpec[];
   seed: number;
+  /** Candidates (by index) an earlier run of the job finished: not generated or scored again. */
+  finishedIndexes: number[];
 }
 
 /** Everything the planner thread tells its parent. */

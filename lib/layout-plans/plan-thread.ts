@@ -27,6 +27,7 @@ async function run(input: PlanThreadInput) {
     shardCount: input.shardCount,
     specs: input.specs,
     seed: input.seed,
+    skipIndexes: new Set(input.finishedIndexes),
     onProgress(progress) {
       if (progress.stage === "candidate") {
         if (progress.status === "running") {

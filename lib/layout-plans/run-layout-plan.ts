@@ -7,6 +7,7 @@ import {
   updateLayoutCandidate,
 } from "@/db/queries/layout-plans";
 import type { LayoutPlanJob } from "@/lib/jobs";
+import { createCoalescedWrites } from "./coalesced-writes";
 import type { PlanThreadInput, PlanThreadMessage } from "./plan-thread-protocol";
 import { candidateFraction } from "./plan-progress";
 
@@ -21,6 +22,8 @@ export type PlanOutcome =
 export interface PlanRunOptions {
   /** Whether the job will be tried again if this run throws. */
   willRetry: boolean;
+  /** Whether this is a retry of the job (an earlier run failed or its worker died). */
+  retried?: boolean;
   /** Aborted when the worker shuts down: the run stops and its job is handed back to the queue. */
   signal?: AbortSignal;
   /** How often a cancellation is looked for while nothing else is written. */
@@ -42,14 +45,22 @@ const INTERNAL_RETRY =
  * progress, each candidate's progress and each candidate's result or failure as they come. A
  * failed candidate is recorded and the others go on; a cancelled plan stops the thread at once and
  * keeps the candidates already scored. An internal error hands the plan back to the queue (or fails
- * it on the last attempt) and rethrows so the queue retries.
+ * it on the last attempt) and rethrows so the queue retries; the retry runs only the candidates
+ * that had not finished. `scored` and `failed` count this run's candidates.
  */
 export async function runLayoutPlan(
   job: LayoutPlanJob,
   options: PlanRunOptions,
 ): Promise<PlanOutcome> {
-  const plan = await claimLayoutPlan(job.workspaceId, job.planId);
+  const plan = await claimLayoutPlan(job.workspaceId, job.planId, {
+    retried: options.retried ?? false,
+  });
   if (!plan) return { outcome: "skipped" };
+  if (plan.finishedOrdinals.length === plan.generators.length) {
+    // An earlier run finished every candidate and stopped before it could end the plan.
+    await endLayoutPlan(job.workspaceId, job.planId, { status: "succeeded" });
+    return { outcome: "succeeded", scored: 0, failed: 0 };
+  }
   const input: PlanThreadInput = {
     workspaceId: job.workspaceId,
     dataset: {
@@ -63,6 +74,7 @@ export async function runLayoutPlan(
     shardCount: plan.shardCount,
     specs: plan.generators,
     seed: plan.seed,
+    finishedIndexes: plan.finishedOrdinals,
   };
   const writes = createWriteQueue(job, options.progressIntervalMs ?? 500);
   const cancelled = new AbortController();
@@ -152,42 +164,32 @@ export async function runLayoutPlan(
 type CandidateValues = Parameters<typeof updateLayoutCandidate>[3];
 
 /**
- * Database writes of one run, one at a time and in order. Progress is coalesced: per candidate and
- * for the plan only the latest value is kept, written at most every `intervalMs`; a candidate's
- * end is always written.
+ * Database writes of one run, one at a time and in order: per candidate and for the plan, progress
+ * is written at most every `intervalMs` and its latest value always; a candidate's end at once.
  */
 function createWriteQueue(job: LayoutPlanJob, intervalMs: number) {
-  let chain: Promise<void> = Promise.resolve();
-  const lastWriteAt = new Map<string, number>();
-  const enqueue = (key: string, write: () => Promise<unknown>, always: boolean) => {
-    const now = performance.now();
-    if (!always && now - (lastWriteAt.get(key) ?? -Infinity) < intervalMs) return;
-    lastWriteAt.set(key, now);
-    chain = chain.then(write).then(
-      () => {},
-      (error: unknown) =>
-        console.error(
-          `[layout plan ${job.planId}] could not store progress:`,
-          error instanceof Error ? error.message : error,
-        ),
-    );
-  };
+  const writes = createCoalescedWrites(intervalMs, (error) =>
+    console.error(
+      `[layout plan ${job.planId}] could not store progress:`,
+      error instanceof Error ? error.message : error,
+    ),
+  );
   return {
     plan(stage: string, fraction: number) {
-      enqueue(
+      writes.enqueue(
         "plan",
         () => recordLayoutPlanProgress(job.workspaceId, job.planId, { stage, fraction }),
         fraction === 1,
       );
     },
     candidate(index: number, values: CandidateValues, always = false) {
-      enqueue(
+      writes.enqueue(
         `candidate ${index}`,
         () => updateLayoutCandidate(job.workspaceId, job.planId, index, values),
         always || values.fraction === 0,
       );
     },
-    flush: () => chain,
+    flush: () => writes.flush(),
   };
 }
 

@@ -37,6 +37,11 @@ export interface LayoutPlanInput {
   specs?: LayoutSpec[];
   /** Seed of every generator (default 1). */
   seed?: number;
+  /**
+   * Candidates (by index in `specs`) finished earlier, by a run that was interrupted: neither
+   * generated nor scored, and absent from the result.
+   */
+  skipIndexes?: ReadonlySet<number>;
   /** Threads for the passes over the rows (default every core, at most 8). */
   threads?: number;
   /** Cancels between candidates (and within a candidate's simulation). */
@@ -142,6 +147,7 @@ export async function planLayouts(input: LayoutPlanInput): Promise<LayoutPlanRes
     const assignments = new Map<string, ShardAssignment>();
     for (const [index, spec] of specs.entries()) {
       input.signal?.throwIfAborted();
+      if (input.skipIndexes?.has(index)) continue;
       const name = nameLayout(spec);
       const record = {
         name,

@@ -21,13 +21,17 @@ vi.mock("@/lib/jobs", async (importOriginal) => ({
 
 const candidateHook = vi.hoisted(() => ({
   afterEnd: undefined as ((planId: string, ordinal: number) => Promise<void>) | undefined,
+  /** Every candidate write: plan and ordinal. */
+  writes: [] as { planId: string; ordinal: number }[],
 }));
-// Lets a test act (cancel) right after a candidate's end was stored.
+// Lets a test act (cancel) right after a candidate's end was stored, and see which candidates a
+// run writes.
 vi.mock("@/db/queries/layout-plans", async (importOriginal) => {
   const actual = await importOriginal<typeof import("@/db/queries/layout-plans")>();
   return {
     ...actual,
     updateLayoutCandidate: async (...args: Parameters<typeof actual.updateLayoutCandidate>) => {
+      candidateHook.writes.push({ planId: args[1], ordinal: args[2] });
       await actual.updateLayoutCandidate(...args);
       if (args[3].finished) await candidateHook.afterEnd?.(args[1], args[2]);
     },
@@ -39,7 +43,9 @@ import {
   cancelPlan,
   startLayoutPlan,
 } from "@/app/(workspace)/w/[workspaceId]/layouts/actions";
-import { closeDb } from "@/db/client";
+import { eq } from "drizzle-orm";
+import { closeDb, db } from "@/db/client";
+import { layoutPlans } from "@/db/schema";
 import { findInputFiles } from "@/db/queries/analyses";
 import { findLayoutPlan } from "@/db/queries/layout-plans";
 import { analyzePartition, type PartitionSummary } from "@/lib/analysis";
@@ -54,6 +60,7 @@ afterAll(closeDb);
 beforeEach(() => {
   queue.jobs.length = 0;
   candidateHook.afterEnd = undefined;
+  candidateHook.writes.length = 0;
 });
 
 /** β = 10⁻⁴ over 3 shards leaves a shard empty in every one of the 100 draws (methods.md §8). */
@@ -163,6 +170,53 @@ describe("running a layout plan job", () => {
       "cancelled",
       "cancelled",
     ]);
+  }, 120_000);
+
+  it("a retried job after its worker died scores only the candidates that had not finished", async () => {
+    const { team, planId, job } = await planPenguins({
+      generators: [
+        { generator: "iid" },
+        { generator: "stratified" },
+        { generator: "classes", k: 2 },
+      ],
+    });
+    // The worker dies right after the first candidate's end was stored: the plan stays running,
+    // nobody hands it back to the queue.
+    const died = new AbortController();
+    candidateHook.afterEnd = async (id, ordinal) => {
+      if (id === planId && ordinal === 0) died.abort(new Error("worker died"));
+    };
+    await expect(runLayoutPlan(job, { willRetry: true, signal: died.signal })).rejects.toThrow(
+      "worker died",
+    );
+    await db().update(layoutPlans).set({ status: "running" }).where(eq(layoutPlans.id, planId));
+    const before = (await findLayoutPlan(team.workspaceId, planId))!;
+    expect(before.candidates[0].status).toBe("succeeded");
+    for (const candidate of before.candidates.slice(1)) {
+      expect(["queued", "running"]).toContain(candidate.status);
+    }
+    candidateHook.afterEnd = undefined;
+
+    // A second delivery of the job while the first run could still be alive does not take it.
+    expect(await runLayoutPlan(job, { willRetry: true })).toEqual({ outcome: "skipped" });
+
+    candidateHook.writes.length = 0;
+    const outcome = await runLayoutPlan(job, { willRetry: false, retried: true });
+    expect(outcome).toEqual({ outcome: "succeeded", scored: 2, failed: 0 });
+    const written = candidateHook.writes.filter((write) => write.planId === planId);
+    expect(written.map((write) => write.ordinal)).not.toContain(0);
+    expect(new Set(written.map((write) => write.ordinal))).toEqual(new Set([1, 2]));
+    const after = (await findLayoutPlan(team.workspaceId, planId))!;
+    expect(after.status).toBe("succeeded");
+    expect(after.candidates.map((candidate) => candidate.status)).toEqual([
+      "succeeded",
+      "succeeded",
+      "succeeded",
+    ]);
+    // The first candidate is the one the first run stored: same map object, same finish time.
+    expect(after.candidates[0].mapObjectKey).toBe(before.candidates[0].mapObjectKey);
+    expect(after.candidates[0].finishedAt).toEqual(before.candidates[0].finishedAt);
+    expect(after.candidates[0].summary).toEqual(before.candidates[0].summary);
   }, 120_000);
 
   it("fails the whole plan with the engine's message when the group column does not exist", async () => {
