@@ -83,7 +83,8 @@ export const pendingSignUps = pgTable("pending_sign_ups", {
 /**
  * Counters of every rate limit (sign-in, sign-up, e-mail links, API, notification mail), shared by
  * all app processes and the worker. The shape is the one rate-limiter-flexible's PostgreSQL store
- * reads and writes: key, points used, expiry in epoch milliseconds.
+ * reads and writes: key, points used, expiry in epoch milliseconds. Unlogged (migration 0016, by
+ * hand: drizzle-kit cannot declare it), so the write every API request makes waits for no WAL flush.
  */
 export const rateLimits = pgTable("rate_limits", {
   key: varchar("key", { length: 255 }).primaryKey(),

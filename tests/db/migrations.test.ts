@@ -96,6 +96,21 @@ describe("migrations", () => {
     expect((await publicTables()).sort()).toEqual(before);
   });
 
+  it("keep rate-limit counters out of the write-ahead log, and only them", async () => {
+    // relpersistence 'u' is PostgreSQL's mark of an unlogged table (pg_class, PostgreSQL docs).
+    const client = new pg.Client({ connectionString: databaseUrl });
+    await client.connect();
+    try {
+      const unlogged = await client.query<{ relname: string }>(
+        `SELECT c.relname FROM pg_class c JOIN pg_namespace n ON n.oid = c.relnamespace
+         WHERE n.nspname = 'public' AND c.relkind = 'r' AND c.relpersistence = 'u'`,
+      );
+      expect(unlogged.rows.map((row) => row.relname)).toEqual(["rate_limits"]);
+    } finally {
+      await client.end();
+    }
+  });
+
   it("convert stored review words: decisions, preferences and audit entries", async () => {
     // A second database, migrated only up to the migration before the vocabulary change, holds
     // rows in the old words; the full set of migrations must convert them.
