@@ -1,4 +1,4 @@
-import type { z } from "zod";
+import { z } from "zod";
 import { createDocument, type ZodOpenApiOperationObject } from "zod-openapi";
 import {
   createUploadSchema,
@@ -20,6 +20,7 @@ import {
   completedUploadSchema,
   dataFileListSchema,
   listPageQuerySchema,
+  layoutCandidatePathSchema,
   layoutComparisonSchema,
   layoutPlanPathSchema,
   layoutPlanStatusSchema,
@@ -60,15 +61,20 @@ function errors(...statuses: ErrorStatus[]) {
 function operation(
   spec: Omit<ZodOpenApiOperationObject, "responses"> & {
     success: [status: string, description: string, schema?: z.ZodType];
+    /** The success's media type when it is not JSON. */
+    successMediaType?: "text/csv";
     failures: ErrorStatus[];
   },
 ): ZodOpenApiOperationObject {
-  const { success, failures, ...rest } = spec;
+  const { success, successMediaType, failures, ...rest } = spec;
   const [status, description, schema] = success;
+  const content = successMediaType
+    ? { content: { [successMediaType]: { schema: schema ?? z.string() } } }
+    : schema && json(schema);
   return {
     ...rest,
     responses: {
-      [status]: schema ? { description, ...json(schema) } : { description },
+      [status]: { description, ...content },
       ...errors(...failures),
     },
   };
@@ -228,6 +234,19 @@ export function createApiDocument() {
             "Scored candidates ranked, and the failed ones.",
             layoutComparisonSchema,
           ],
+          failures: ["404", "409", "422"],
+        }),
+      },
+      "/api/v1/layout-plans/{planId}/candidates/{candidate}/map": {
+        get: operation({
+          operationId: "getLayoutCandidateMap",
+          summary: "A scored candidate's partition map as CSV (the CLI's <name>.csv)",
+          description:
+            "`row_id,shard`, or the 0-based data row index without an id column (methods.md §8): " +
+            "upload it as a layout and the analysis reads it back to the candidate's summary.",
+          requestParams: { path: layoutCandidatePathSchema },
+          success: ["200", "The partition map."],
+          successMediaType: "text/csv",
           failures: ["404", "409", "422"],
         }),
       },

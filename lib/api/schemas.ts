@@ -265,6 +265,12 @@ export const layoutPlanPathSchema = z.object({
   planId: resourceId.meta({ description: "The id returned by POST /api/v1/layout-plans." }),
 });
 
+export const layoutCandidatePathSchema = layoutPlanPathSchema.extend({
+  candidate: resourceId.meta({
+    description: "The candidate's name: its generator with its parameter, e.g. dirichlet-0.5.",
+  }),
+});
+
 export const queuedLayoutPlanSchema = z
   .object({
     planId: z.string(),

@@ -3,6 +3,7 @@
 // this process. Expected statuses are written out by hand from product.md (reviewers read but
 // never analyse; nobody sees another workspace). Open data: penguins from the `vega-datasets` npm
 // package (BSD-3). The outside check of the result: methods.md §8's keys and ranking rule.
+import { Readable } from "node:stream";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import type { LayoutPlanJob } from "@/lib/jobs";
 
@@ -19,13 +20,19 @@ vi.mock("@/lib/jobs", async (importOriginal) => ({
 import { POST as startPlan } from "@/app/api/v1/layout-plans/route";
 import { GET as getPlan } from "@/app/api/v1/layout-plans/[planId]/route";
 import { GET as getResult } from "@/app/api/v1/layout-plans/[planId]/result/route";
+import { GET as getMap } from "@/app/api/v1/layout-plans/[planId]/candidates/[candidate]/map/route";
 import { closeDb } from "@/db/client";
 import { createApiDocument } from "@/lib/api/openapi";
 import { layoutComparisonSchema, layoutPlanStatusSchema } from "@/lib/api/schemas";
 import { runLayoutPlan } from "@/lib/layout-plans/run-layout-plan";
 import { createAccount, createTeam } from "@/tests/support/accounts";
 import { apiRequest, issueTestToken } from "@/tests/support/api-tokens";
-import { PENGUIN_OPTIONS, storePenguins } from "@/tests/lib/reports/support/stored-inputs";
+import { analyzePartition } from "@/lib/analysis";
+import {
+  PENGUIN_OPTIONS,
+  PENGUINS,
+  storePenguins,
+} from "@/tests/lib/reports/support/stored-inputs";
 
 afterAll(closeDb);
 
@@ -58,6 +65,10 @@ const post = (token: string | undefined, body: unknown) =>
   startPlan(apiRequest("/api/v1/layout-plans", token, body));
 const get = (handler: typeof getPlan, path: string, planId: string, token?: string) =>
   handler(apiRequest(path, token), { params: Promise.resolve({ planId }) });
+const getCandidateMap = (planId: string, candidate: string, token?: string) =>
+  getMap(apiRequest(`/api/v1/layout-plans/${planId}/candidates/${candidate}/map`, token), {
+    params: Promise.resolve({ planId, candidate }),
+  });
 
 describe("/api/v1/layout-plans", () => {
   it("lets owners and analysts queue a plan, and refuses reviewers, no token and bad input", async () => {
@@ -96,6 +107,7 @@ describe("/api/v1/layout-plans", () => {
     expect((await get(getResult, resultPath, planId, tokens.reviewer)).status).toBe(409);
     expect((await get(getPlan, statusPath, planId, tokens.stranger)).status).toBe(404);
     expect((await get(getPlan, statusPath, planId)).status).toBe(401);
+    expect((await getCandidateMap(planId, "stratified", tokens.reviewer)).status).toBe(409);
 
     await runLayoutPlan(queue.jobs[0], { willRetry: false });
     const result = await get(getResult, resultPath, planId, tokens.reviewer);
@@ -122,6 +134,29 @@ describe("/api/v1/layout-plans", () => {
       [3, 3],
     ]);
     expect((await get(getResult, resultPath, planId, tokens.stranger)).status).toBe(404);
+
+    // Each candidate's map, to every member; methods.md §8: the analysis given the map reaches the
+    // summary in the comparison.
+    for (const layout of comparison.layouts) {
+      const response = await getCandidateMap(planId, layout.name, tokens.reviewer);
+      expect(response.status, layout.name).toBe(200);
+      expect(response.headers.get("content-type")).toMatch(/^text\/csv/);
+      expect(response.headers.get("content-disposition")).toContain(`${layout.name}.csv`);
+      const map = await response.text();
+      expect(map.startsWith("row_id,shard\n")).toBe(true);
+      const direct = await analyzePartition({
+        data: Readable.from([PENGUINS.csv]),
+        partition: Readable.from([map]),
+        options: PENGUIN_OPTIONS,
+        threads: 1,
+      });
+      expect(layout.summary, layout.name).toEqual(JSON.parse(JSON.stringify(direct)));
+    }
+    expect((await getCandidateMap(planId, "stratified", tokens.stranger)).status).toBe(404);
+    expect((await getCandidateMap(planId, "stratified")).status).toBe(401);
+    const unknown = await getCandidateMap(planId, "iid", tokens.owner);
+    expect(unknown.status).toBe(404);
+    expect((await unknown.json()).error.message).toMatch(/stratified, dirichlet-0\.5/);
   }, 120_000);
 
   it("is in the OpenAPI document", () => {
@@ -131,5 +166,8 @@ describe("/api/v1/layout-plans", () => {
     expect(paths["/api/v1/layout-plans/{planId}/result"]?.get?.operationId).toBe(
       "getLayoutComparison",
     );
+    const map = paths["/api/v1/layout-plans/{planId}/candidates/{candidate}/map"]?.get;
+    expect(map?.operationId).toBe("getLayoutCandidateMap");
+    expect(Object.keys(map?.responses?.["200"]?.content ?? {})).toEqual(["text/csv"]);
   });
 });
