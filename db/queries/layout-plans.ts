@@ -1,5 +1,5 @@
 import "server-only";
-import { and, asc, desc, eq, inArray, sql } from "drizzle-orm";
+import { and, asc, desc, eq, inArray, isNull, sql } from "drizzle-orm";
 import { db } from "@/db/client";
 import { dataFiles, layoutCandidates, layoutPlans } from "@/db/schema";
 import type { PartitionSummary } from "@/lib/analysis";
@@ -330,47 +330,57 @@ export async function cancelLayoutPlan(workspaceId: string, planId: string): Pro
   });
 }
 
-/**
- * Registers a scored candidate's stored map as a layout file of the workspace (once; later calls
- * return the same file), so an analysis reads it like an uploaded partition map.
- */
-export async function registerCandidateMap(
+/** A scored candidate of a plan in this workspace: its stored map and the file it became, if any. */
+export async function findScoredCandidate(
   workspaceId: string,
   planId: string,
   ordinal: number,
-  uploadedBy: string,
-): Promise<string | undefined> {
-  return db().transaction(async (tx) => {
-    const [row] = await tx
-      .select({ candidate: layoutCandidates })
-      .from(layoutCandidates)
-      .innerJoin(layoutPlans, eq(layoutPlans.id, layoutCandidates.planId))
-      .where(
-        and(
-          planIs(workspaceId, planId),
-          eq(layoutCandidates.ordinal, ordinal),
-          eq(layoutCandidates.status, "succeeded"),
-        ),
-      )
-      .for("update", { of: layoutCandidates });
-    if (!row || row.candidate.mapObjectKey === null) return undefined;
-    if (row.candidate.mapFileId !== null) return row.candidate.mapFileId;
-    const [file] = await tx
-      .insert(dataFiles)
-      .values({
-        workspaceId,
-        kind: "layout",
-        name: `${row.candidate.name}.csv`,
-        objectKey: row.candidate.mapObjectKey,
-        sizeBytes: row.candidate.mapSizeBytes ?? 0,
-        contentType: "text/csv",
-        uploadedBy,
-      })
-      .returning({ id: dataFiles.id });
-    await tx
-      .update(layoutCandidates)
-      .set({ mapFileId: file.id })
-      .where(and(eq(layoutCandidates.planId, planId), eq(layoutCandidates.ordinal, ordinal)));
-    return file.id;
-  });
+): Promise<{ name: string; mapObjectKey: string; mapFileId: string | null } | undefined> {
+  const [row] = await db()
+    .select({
+      name: layoutCandidates.name,
+      mapObjectKey: layoutCandidates.mapObjectKey,
+      mapFileId: layoutCandidates.mapFileId,
+    })
+    .from(layoutCandidates)
+    .innerJoin(layoutPlans, eq(layoutPlans.id, layoutCandidates.planId))
+    .where(
+      and(
+        planIs(workspaceId, planId),
+        eq(layoutCandidates.ordinal, ordinal),
+        eq(layoutCandidates.status, "succeeded"),
+      ),
+    );
+  if (!row || row.mapObjectKey === null) return undefined;
+  return { ...row, mapObjectKey: row.mapObjectKey };
+}
+
+/**
+ * Records the layout file a candidate's map was registered as; the first one recorded stays (two
+ * at once: the later is told the earlier's). Returns the candidate's file.
+ */
+export async function linkCandidateMapFile(
+  workspaceId: string,
+  planId: string,
+  ordinal: number,
+  fileId: string,
+): Promise<string> {
+  const where = and(
+    inArray(
+      layoutCandidates.planId,
+      db().select({ id: layoutPlans.id }).from(layoutPlans).where(planIs(workspaceId, planId)),
+    ),
+    eq(layoutCandidates.ordinal, ordinal),
+  );
+  const [linked] = await db()
+    .update(layoutCandidates)
+    .set({ mapFileId: fileId })
+    .where(and(where, isNull(layoutCandidates.mapFileId)))
+    .returning({ mapFileId: layoutCandidates.mapFileId });
+  if (linked?.mapFileId) return linked.mapFileId;
+  const [existing] = await db()
+    .select({ mapFileId: layoutCandidates.mapFileId })
+    .from(layoutCandidates)
+    .where(where);
+  return existing?.mapFileId ?? fileId;
 }

@@ -46,7 +46,9 @@ import {
 import { eq } from "drizzle-orm";
 import { closeDb, db } from "@/db/client";
 import { layoutPlans } from "@/db/schema";
+import { createHash } from "node:crypto";
 import { findInputFiles } from "@/db/queries/analyses";
+import { listDataFiles } from "@/db/queries/data-files";
 import { findLayoutPlan } from "@/db/queries/layout-plans";
 import { analyzePartition, type PartitionSummary } from "@/lib/analysis";
 import { runLayoutPlan } from "@/lib/layout-plans/run-layout-plan";
@@ -131,17 +133,43 @@ describe("running a layout plan job", () => {
     }
   }, 120_000);
 
-  it("registers a candidate's map once as a layout file, for analysts only and in its workspace", async () => {
+  it("registers a candidate's map once as a layout file, as an upload is, for analysts only and in its workspace", async () => {
     const { team, planId, job } = await planPenguins({ generators: [{ generator: "iid" }] });
     await runLayoutPlan(job, { willRetry: false });
 
     const first = await analyseCandidate(team.workspaceId, planId, 0);
     const again = await analyseCandidate(team.workspaceId, planId, 0);
     expect(first.ok && again.ok && first.data.layoutFileId === again.data.layoutFileId).toBe(true);
-    const [file] = await findInputFiles(team.workspaceId, [
-      (first as { data: { layoutFileId: string } }).data.layoutFileId,
-    ]);
+    const fileId = (first as { data: { layoutFileId: string } }).data.layoutFileId;
+    const [file] = await findInputFiles(team.workspaceId, [fileId]);
     expect(file).toMatchObject({ kind: "layout", name: "iid.csv" });
+    // Registered as an upload: its own object, the SHA-256 of its bytes (node:crypto), a preview.
+    const candidate = (await findLayoutPlan(team.workspaceId, planId))!.candidates[0];
+    expect(file.objectKey).not.toBe(candidate.mapObjectKey);
+    const map = await readObject(candidate.mapObjectKey!);
+    expect(await readObject(file.objectKey)).toBe(map);
+    expect(file.sha256).toBe(createHash("sha256").update(map).digest("hex"));
+    const [listed] = await listDataFiles(team.workspaceId, "layout");
+    expect(listed.id).toBe(fileId);
+    expect(listed.preview?.columns.map((column) => column.name)).toEqual(["row_id", "shard"]);
+
+    // The same layout from a second plan (same generator and seed: the same bytes) is the same
+    // file, as a repeated upload is, and that plan's own map stays downloadable.
+    const started = await startLayoutPlan(team.workspaceId, {
+      title: "Penguin layouts again",
+      datasetFileId: (await findLayoutPlan(team.workspaceId, planId))!.datasetFileId,
+      options: PENGUIN_OPTIONS,
+      shardCount: 3,
+      generators: [{ generator: "iid" }],
+      seed: 7,
+    });
+    if (!started.ok) throw new Error(`startLayoutPlan failed: ${started.message}`);
+    await runLayoutPlan(queue.jobs.at(-1)!, { willRetry: false });
+    const repeated = await analyseCandidate(team.workspaceId, started.data.planId, 0);
+    expect(repeated).toEqual(first);
+    const secondMapKey = (await findLayoutPlan(team.workspaceId, started.data.planId))!
+      .candidates[0].mapObjectKey!;
+    expect(await readObject(secondMapKey)).toBe(map);
 
     actAs(team.reviewer);
     expect(await analyseCandidate(team.workspaceId, planId, 0)).toMatchObject({ status: 403 });

@@ -1,10 +1,11 @@
 "use server";
 
-import { cancelLayoutPlan, registerCandidateMap } from "@/db/queries/layout-plans";
+import { cancelLayoutPlan } from "@/db/queries/layout-plans";
 import { failWith, succeed, type ActionResult } from "@/lib/actions/result";
 import { requireRole } from "@/lib/auth/guards";
 import { RuleError } from "@/lib/errors";
 import { queueLayoutPlan } from "@/lib/layout-plans/queue-layout-plan";
+import { registerCandidateMap } from "@/lib/layout-plans/register-candidate-map";
 import type { LayoutPlanInput } from "@/lib/validation/layout-plan";
 
 /** Queues a layout plan; the browser then follows it at /w/[workspaceId]/layouts/[planId]. */
