@@ -28,6 +28,7 @@ import {
   type FederatedJob,
   type LayoutPlanJob,
 } from "@/lib/jobs";
+import { sweepLostCoordinators } from "@/lib/federated/lost-coordinators";
 import { runFederatedCoordinator } from "@/lib/federated/run-coordinator";
 import { runLayoutPlan } from "@/lib/layout-plans/run-layout-plan";
 import { runMailSender } from "@/lib/mail";
@@ -123,6 +124,8 @@ async function handleFederatedJob(job: PgBoss.JobWithMetadata<FederatedJob>): Pr
   const result = await runFederatedCoordinator(federatedAnalysisId, {
     signal: shutdown.signal,
     willRetry: job.retryCount < job.retryLimit,
+    jobId: job.id,
+    heartbeatMs: env().WORKER_HEARTBEAT_MS,
   });
   const detail = result.outcome === "succeeded" ? ` (report ${result.reportId})` : "";
   log(`federated analysis ${federatedAnalysisId}: ${result.outcome}${detail}`);
@@ -164,12 +167,17 @@ async function main() {
     signal: shutdown.signal,
     log: (line) => console.log(`[mail] ${line}`),
   });
-  // Every worker looks for runs whose worker died (no heartbeat), so one survivor is enough.
-  const sweep = () =>
-    sweepLostRuns(boss, { staleAfterMs: env().WORKER_STALE_AFTER_MS, log }).catch(
-      (error: unknown) =>
-        log(`could not look for lost runs: ${error instanceof Error ? error.message : error}`),
+  // Every worker looks for runs and coordinators whose worker died (no heartbeat), so one
+  // survivor is enough.
+  const sweep = () => {
+    const settings = { staleAfterMs: env().WORKER_STALE_AFTER_MS, log };
+    return Promise.all([
+      sweepLostRuns(boss, settings),
+      sweepLostCoordinators(boss, settings),
+    ]).catch((error: unknown) =>
+      log(`could not look for lost runs: ${error instanceof Error ? error.message : error}`),
     );
+  };
   const sweeper = setInterval(() => void sweep(), env().WORKER_HEARTBEAT_MS);
   void sweep();
   let stopping = false;

@@ -1,5 +1,5 @@
 import "server-only";
-import { and, desc, eq, inArray, isNull, lt, or, sql } from "drizzle-orm";
+import { and, desc, eq, inArray, isNotNull, isNull, lt, or, sql } from "drizzle-orm";
 import { db } from "@/db/client";
 import { federatedAnalyses, federatedClients, reports } from "@/db/schema";
 import type { DigestEncoding } from "@/lib/analysis/digests/digest-format";
@@ -149,6 +149,71 @@ export async function moveFederatedState(
     .where(and(eq(federatedAnalyses.id, analysisId), inArray(federatedAnalyses.state, from)))
     .returning({ id: federatedAnalyses.id });
   return moved.length === 1;
+}
+
+/** The states in which a coordinator's job works on the analysis. */
+const COORDINATED_STATES: FederatedState[] = [
+  "encoding-ready",
+  "fitting",
+  "collecting-gradients",
+  "merging",
+];
+
+/**
+ * A coordinator's job takes the analysis: its first heartbeat, and the job that now holds it (a
+ * retry or a later job), so that a sweep can hand that job back. False once the analysis ended.
+ */
+export async function claimFederatedCoordinator(
+  analysisId: string,
+  jobId: string,
+): Promise<boolean> {
+  const claimed = await db()
+    .update(federatedAnalyses)
+    .set({ heartbeatAt: sql`now()`, jobId })
+    .where(
+      and(
+        eq(federatedAnalyses.id, analysisId),
+        inArray(federatedAnalyses.state, COORDINATED_STATES),
+      ),
+    )
+    .returning({ id: federatedAnalyses.id });
+  return claimed.length === 1;
+}
+
+/** The coordinator still works on the analysis (only while it holds it). */
+export async function recordCoordinatorHeartbeat(analysisId: string): Promise<void> {
+  await db()
+    .update(federatedAnalyses)
+    .set({ heartbeatAt: sql`now()` })
+    .where(and(eq(federatedAnalyses.id, analysisId), isNotNull(federatedAnalyses.heartbeatAt)));
+}
+
+/** The coordinator let go of the analysis (done, failed, waiting for files, or handed back). */
+export async function releaseFederatedCoordinator(analysisId: string): Promise<void> {
+  await db()
+    .update(federatedAnalyses)
+    .set({ heartbeatAt: null })
+    .where(eq(federatedAnalyses.id, analysisId));
+}
+
+/**
+ * Every analysis still being coordinated whose coordinator's last heartbeat is older than
+ * `staleAfterMs` (its worker died), released at once so only one sweep hands back its job. Across
+ * all workspaces: the workers' housekeeping, not a user's request.
+ */
+export async function handBackLostCoordinators(
+  staleAfterMs: number,
+): Promise<{ federatedAnalysisId: string; jobId: string | null }[]> {
+  return db()
+    .update(federatedAnalyses)
+    .set({ heartbeatAt: null })
+    .where(
+      and(
+        inArray(federatedAnalyses.state, COORDINATED_STATES),
+        sql`${federatedAnalyses.heartbeatAt} < now() - make_interval(secs => ${staleAfterMs / 1000})`,
+      ),
+    )
+    .returning({ federatedAnalysisId: federatedAnalyses.id, jobId: federatedAnalyses.jobId });
 }
 
 /** Closes the roster of an analysis still collecting schemas; false if it had moved on. */

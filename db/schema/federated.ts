@@ -71,6 +71,11 @@ export const federatedAnalyses = pgTable(
     analysisId: text("analysis_id").references(() => analyses.id, { onDelete: "set null" }),
     reportId: text("report_id").references(() => reports.id, { onDelete: "set null" }),
     jobId: text("job_id"),
+    /**
+     * Set every heartbeat interval while a coordinator works on the analysis, cleared when it lets
+     * go: a stale one means its worker died, and the sweeper hands the job back (lost-coordinators).
+     */
+    heartbeatAt: instant("heartbeat_at"),
     createdBy: text("created_by")
       .notNull()
       .references(() => users.id),

@@ -1,8 +1,11 @@
 import "server-only";
 import {
+  claimFederatedCoordinator,
   findFederatedAnalysisById,
   listFederatedClients,
   moveFederatedState,
+  recordCoordinatorHeartbeat,
+  releaseFederatedCoordinator,
   type FederatedAnalysisRow,
   type FederatedClientRow,
 } from "@/db/queries/federated-analyses";
@@ -31,6 +34,10 @@ export interface CoordinatorSettings {
   signal: AbortSignal;
   /** Whether pg-boss will run the job again after an unexpected error. */
   willRetry: boolean;
+  /** The pg-boss job this run is, recorded so that a sweep can hand it back if the worker dies. */
+  jobId: string;
+  /** How often the coordinator records that it still works (lost-coordinators.ts). */
+  heartbeatMs: number;
   pollMs?: number;
   silenceLimitMs?: number;
 }
@@ -56,7 +63,8 @@ const ACTIVE_STATES: FederatedAnalysisRow["state"][] = [
  * and along t·W*, the merge into the §6 summary — or, for a reference that needs no fit, the merge
  * of round-2 files measured at it; and the summary stored as a normal report whose `digests` say
  * how many clients sent what and who was missing. A refusal of the engine ends the
- * analysis with its message; other errors are retried while pg-boss retries.
+ * analysis with its message; other errors are retried while pg-boss retries. While it works it
+ * records a heartbeat, so that a sweep hands back the job of a worker that died.
  */
 export async function runFederatedCoordinator(
   federatedAnalysisId: string,
@@ -66,6 +74,38 @@ export async function runFederatedCoordinator(
   if (!analysis || !ACTIVE_STATES.includes(analysis.state) || analysis.encoding === null) {
     return { outcome: "skipped" };
   }
+  if (!(await claimFederatedCoordinator(federatedAnalysisId, settings.jobId))) {
+    return { outcome: "skipped" };
+  }
+  const heartbeat = setInterval(() => {
+    recordCoordinatorHeartbeat(federatedAnalysisId).catch((error: unknown) =>
+      // One missed beat is harmless; a coordinator counts as lost only after several.
+      console.error(
+        `[federated ${federatedAnalysisId}] could not record a heartbeat:`,
+        error instanceof Error ? error.message : error,
+      ),
+    );
+  }, settings.heartbeatMs);
+  try {
+    return await coordinateAndStore(analysis, settings);
+  } finally {
+    clearInterval(heartbeat);
+    await releaseFederatedCoordinator(federatedAnalysisId).catch((error: unknown) =>
+      // Left set, the heartbeat goes stale and a sweep queues the analysis again: harmless.
+      console.error(
+        `[federated ${federatedAnalysisId}] could not release the analysis:`,
+        error instanceof Error ? error.message : error,
+      ),
+    );
+  }
+}
+
+/** The coordination, its report stored, or its end recorded (a refusal, or the last attempt). */
+async function coordinateAndStore(
+  analysis: FederatedAnalysisRow,
+  settings: CoordinatorSettings,
+): Promise<CoordinatorOutcome> {
+  const federatedAnalysisId = analysis.id;
   const started = performance.now();
   try {
     const summary = await coordinate(analysis, settings);

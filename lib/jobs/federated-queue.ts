@@ -5,8 +5,9 @@ export const FEDERATED_QUEUE = "federated-analysis";
 
 /**
  * Retries and expiry of a coordinator job. The coordinator waits on its clients (the fit asks each
- * one evaluation after another), so a healthy run can last hours; a crashed worker's job is taken
- * again after that long, and the new coordinator replays the fit from the stored answers.
+ * one evaluation after another), so a healthy run can last hours. A crashed worker's job is handed
+ * back by the heartbeat sweep (lib/federated/lost-coordinators.ts) long before this expiry, its
+ * backstop, and the new coordinator replays the fit from the stored answers.
  */
 export const FEDERATED_JOB_POLICY = {
   retryLimit: 2,
