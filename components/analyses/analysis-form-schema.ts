@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { DECIMAL_MARKS, DELIMITERS, TEXT_ENCODINGS } from "@/lib/analysis/text-format";
 import {
   DEFAULT_SIMULATION_SEEDS,
   MAX_SIMULATION_SEEDS,
@@ -19,6 +20,10 @@ const wholeNumber = (what: string) =>
     .number({ message: `Enter the ${what} as a whole number.` })
     .int(`Enter the ${what} as a whole number.`)
     .min(1, `The ${what} must be at least 1.`);
+
+/** A delimiter or decimal mark the user chose, or "" for the one detected in the file. */
+const detectedOr = <T extends readonly [string, ...string[]]>(values: T) =>
+  z.union([z.literal(""), z.enum(values)]);
 
 /** S of methods.md §7, checked only when the simulation is asked for. */
 const simulationSeeds = wholeNumber("number of seeds").max(
@@ -52,6 +57,12 @@ export const analysisFormSchema = z
       rounds: wholeNumber("number of rounds"),
       batchSize: wholeNumber("batch size"),
       dropUnassignedRows: z.boolean(),
+      // How the CSV is read (methods.md §1): the encoding set from the upload's detection, the
+      // delimiter and decimal mark "" while the detected ones apply.
+      encoding: z.enum(TEXT_ENCODINGS),
+      delimiter: detectedOr(DELIMITERS),
+      decimalMark: detectedOr(DECIMAL_MARKS),
+      badNumbersAsMissing: z.boolean(),
       // "Also simulate" (methods.md §7); NaN is an emptied seeds field.
       simulate: z.object({ enabled: z.boolean(), seeds: z.number().or(z.nan()) }),
     }),
@@ -126,6 +137,11 @@ export function toStartAnalysisInput(values: AnalysisFormValues): StartAnalysisI
       rounds: options.rounds,
       batchSize: options.batchSize,
       dropUnassignedRows: byColumn ? false : options.dropUnassignedRows,
+      encoding: options.encoding,
+      // Left out when detected: the engine detects them as the preview did (and reads in parallel).
+      delimiter: options.delimiter || undefined,
+      decimalMark: options.decimalMark || undefined,
+      badNumbersAsMissing: options.badNumbersAsMissing,
       // The server's default budget and grid seed apply.
       simulate: options.simulate.enabled ? { seeds: options.simulate.seeds } : undefined,
     },
@@ -154,6 +170,10 @@ export const EMPTY_FORM: AnalysisFormValues = {
     rounds: PLAN_DEFAULTS.rounds,
     batchSize: PLAN_DEFAULTS.batchSize,
     dropUnassignedRows: false,
+    encoding: "utf-8",
+    delimiter: "",
+    decimalMark: "",
+    badNumbersAsMissing: false,
     simulate: { enabled: false, seeds: DEFAULT_SIMULATION_SEEDS },
   },
 };
@@ -202,6 +222,10 @@ export function formValuesFrom(
       rounds: options.rounds ?? PLAN_DEFAULTS.rounds,
       batchSize: options.batchSize ?? PLAN_DEFAULTS.batchSize,
       dropUnassignedRows: options.dropUnassignedRows ?? false,
+      encoding: options.encoding ?? "utf-8",
+      delimiter: options.delimiter ?? "",
+      decimalMark: options.decimalMark ?? "",
+      badNumbersAsMissing: options.badNumbersAsMissing ?? false,
       simulate: {
         enabled: options.simulate !== undefined,
         seeds: options.simulate?.seeds ?? DEFAULT_SIMULATION_SEEDS,

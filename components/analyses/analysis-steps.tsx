@@ -1,6 +1,6 @@
 "use client";
 
-import { useState } from "react";
+import { useEffect, useRef, useState } from "react";
 import { useFormContext, useWatch } from "react-hook-form";
 import { useSetChoice } from "@/components/analyses/analysis-form-hooks";
 import {
@@ -14,9 +14,12 @@ import { LayoutStep } from "@/components/analyses/layout-step";
 import { PlanStep } from "@/components/analyses/plan-step";
 import { ReferenceStep } from "@/components/analyses/reference-step";
 import { StartSection } from "@/components/analyses/start-section";
+import { useDatasetPreview } from "@/components/analyses/use-dataset-preview";
 import { useFeatureChoice } from "@/components/analyses/use-feature-choice";
 import type { DataFileSummary } from "@/db/queries/data-files";
+import type { DataFilePreview } from "@/db/schema/analyses";
 import { guessColumns } from "@/lib/uploads/guess-columns";
+import { previewedShards } from "@/lib/validation/shard-count";
 
 export interface WorkspaceFiles {
   datasets: DataFileSummary[];
@@ -47,7 +50,8 @@ export function AnalysisSteps({
   const [files, setFiles] = useState(initialFiles);
 
   const dataset = files.datasets.find((file) => file.id === values.datasetFileId);
-  const columns = dataset?.preview?.columns ?? [];
+  const reading = useDatasetPreview(workspaceId, dataset, options);
+  const columns = reading.preview?.columns ?? [];
   const columnNames = columns.map((column) => column.name);
   const usable = usableFeatures(columnNames, reservedColumns(values));
   const refreshFeatures = () => featureChoice.refreshFeatures(columnNames);
@@ -58,25 +62,56 @@ export function AnalysisSteps({
       [kind]: [file, ...current[kind].filter((other) => other.id !== file.id)],
     }));
 
-  function chooseDataset(file: DataFileSummary) {
-    setChoice("datasetFileId", file.id);
-    const names = (file.preview?.columns ?? []).map((column) => column.name);
-    // A first dataset gets guessed roles (a re-run or an earlier choice keeps its own); the layout
-    // follows what the file holds: its shard column, or a partition map when it has none.
-    if (file.preview && !getValues("options.labelColumn")) {
-      const guess = guessColumns(file.preview);
+  /**
+   * Column roles for a preview's columns: a first dataset (or a re-read that loses the label) gets
+   * guessed roles (a re-run or an earlier choice keeps its own); the layout follows what the file
+   * holds: its shard column, or a partition map when it has none.
+   */
+  function followColumns(preview: DataFilePreview | null) {
+    const names = (preview?.columns ?? []).map((column) => column.name);
+    if (preview && !names.includes(getValues("options.labelColumn"))) {
+      const guess = guessColumns(preview);
       setValue("options.labelColumn", guess.labelColumn);
-      if (!getValues("options.idColumn")) setValue("options.idColumn", guess.idColumn);
+      if (!names.includes(getValues("options.idColumn"))) {
+        setValue("options.idColumn", guess.idColumn);
+      }
       setValue("options.shardColumn", guess.shardColumn);
       setValue("layoutSource", guess.shardColumn ? "column" : "file");
     }
     featureChoice.followDataset(names);
   }
 
+  function chooseDataset(file: DataFileSummary) {
+    setChoice("datasetFileId", file.id);
+    // A new file is read as detected at its upload until the user says otherwise.
+    setValue("options.encoding", file.preview?.format?.encoding ?? "utf-8");
+    setValue("options.delimiter", "");
+    setValue("options.decimalMark", "");
+    followColumns(file.preview);
+  }
+
+  // A re-read in other reading options can change the columns: their roles follow.
+  const columnsKey = `${dataset?.id}:${columnNames.join("\u0000")}`;
+  const followedKey = useRef(columnsKey);
+  useEffect(() => {
+    const sameDataset = followedKey.current.startsWith(`${dataset?.id}:`);
+    if (followedKey.current !== columnsKey && sameDataset) followColumns(reading.preview);
+    followedKey.current = columnsKey;
+    // followColumns reads the form's current values itself; only a change of columns matters.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [columnsKey]);
+
+  const layoutFile = files.layouts.find((file) => file.id === values.layoutFileId);
   const layoutName =
     values.layoutSource === "column"
       ? options.shardColumn || "shard column"
-      : (files.layouts.find((file) => file.id === values.layoutFileId)?.name ?? "partition map");
+      : (layoutFile?.name ?? "partition map");
+  const shards =
+    values.layoutSource === "column"
+      ? options.shardColumn && dataset
+        ? previewedShards(reading.preview, options.shardColumn, dataset.name)
+        : undefined
+      : layoutFile && previewedShards(layoutFile.preview, "shard", layoutFile.name);
 
   return (
     <>
@@ -85,6 +120,9 @@ export function AnalysisSteps({
         maxBytes={maxBytes}
         datasets={files.datasets}
         dataset={dataset}
+        preview={reading.preview}
+        options={options}
+        reading={reading}
         onChoose={chooseDataset}
         onUploaded={addFile("datasets")}
       />
@@ -116,7 +154,7 @@ export function AnalysisSteps({
             weights={files.weights}
             onUploaded={addFile("weights")}
           />
-          <PlanStep workspaceId={workspaceId} values={values} />
+          <PlanStep workspaceId={workspaceId} values={values} shards={shards} />
           <StartSection defaultTitle={`${dataset.name} · ${layoutName}`} />
         </>
       ) : (

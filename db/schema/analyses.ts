@@ -14,6 +14,7 @@ import {
 import { cascadingReference, createdAt, instant, uuidPrimaryKey } from "./columns";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
 import type { PartitionSummary } from "@/lib/analysis/summary";
+import type { CsvFormat } from "@/lib/analysis/text-format";
 import type { SimulationProgress } from "@/lib/analysis/simulation/simulate-plan";
 import { users } from "./auth";
 import { workspaces } from "./workspaces";
@@ -27,6 +28,11 @@ export type DataFilePreview = {
   rows: string[][];
   /** True when the preview read stopped before the end of the file. */
   truncated: boolean;
+  /**
+   * How a CSV's text was read for the preview (detected at upload): the form offers these as the
+   * choices. Absent for Parquet and weights, and for previews stored before it was recorded.
+   */
+  format?: CsvFormat;
 };
 
 /**

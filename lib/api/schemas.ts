@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { DECIMAL_MARKS, DELIMITERS, TEXT_ENCODINGS } from "@/lib/analysis/text-format";
 import { VERDICTS } from "@/lib/reports/report-filters";
 import { DATA_FILE_KINDS } from "@/lib/uploads/file-rules";
 
@@ -126,6 +127,17 @@ export const dataFileSchema = z
         ),
         rows: z.array(z.array(z.string())),
         truncated: z.boolean(),
+        format: z
+          .object({
+            encoding: z.enum(TEXT_ENCODINGS),
+            delimiter: z.enum(DELIMITERS),
+            decimalMark: z.enum(DECIMAL_MARKS),
+          })
+          .optional()
+          .meta({
+            description:
+              "How a CSV's text was read for the preview (detected): the values to pass as options.encoding, options.delimiter and options.decimalMark. Absent for Parquet.",
+          }),
       })
       .nullable(),
     sha256: z.string().nullable().meta({

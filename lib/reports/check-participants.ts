@@ -4,9 +4,9 @@ import type { DataFilePreview } from "@/db/schema/analyses";
 // server bundle cannot hold.
 import { countShardsUpTo } from "@/lib/analysis/count-shards";
 import { AnalysisInputError } from "@/lib/analysis/errors";
-import { quoteValue } from "@/lib/analysis/quote-value";
 import { RuleError } from "@/lib/errors";
 import { getObjectStream } from "@/lib/storage";
+import { describeShardSource, describeTooFewShards } from "@/lib/validation/shard-count";
 
 /**
  * Files at most this large are read (as far as needed) to count their shards before queueing; a
@@ -22,19 +22,6 @@ export interface ShardSource {
   sizeBytes: number;
   preview: DataFilePreview | null;
   column: string;
-}
-
-/**
- * The form's and the API's sentence when a plan asks for more shards per round than there are.
- *
- * Example: 25, 20, 'column "part" of "digits.csv"' → 'Shards per round (M) is 25, but column
- * "part" of "digits.csv" names 20 shards: choose at most 20, or let every shard take part.'
- */
-export function describeTooFewShards(participants: number, shards: number, where: string): string {
-  return (
-    `Shards per round (M) is ${participants}, but ${where} names ${shards} ` +
-    `${shards === 1 ? "shard" : "shards"}: choose at most ${shards}, or let every shard take part.`
-  );
 }
 
 /**
@@ -64,10 +51,9 @@ export async function checkParticipants(participants: number, source: ShardSourc
     return;
   }
   if (shards >= participants) return;
-  const where = `column ${quoteValue(source.column)} of ${quoteValue(source.fileName)}`;
   throw new RuleError(
     422,
-    describeTooFewShards(participants, shards, where),
+    describeTooFewShards(participants, shards, describeShardSource(source.column, source.fileName)),
     "options.participants",
   );
 }

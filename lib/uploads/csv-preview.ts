@@ -3,7 +3,14 @@ import type { DataFilePreview } from "@/db/schema/analyses";
 import { DECIMAL_MARK_SAMPLE_ROWS, detectDecimalMark, readHeader } from "@/lib/analysis/csv-reader";
 import { describeNonText } from "@/lib/analysis/decode-text";
 import { AnalysisInputError } from "@/lib/analysis/errors";
-import { DELIMITERS, type DecimalMark } from "@/lib/analysis/text-format";
+import {
+  DELIMITERS,
+  type CsvFormat,
+  type CsvFormatChoice,
+  type DecimalMark,
+  type Delimiter,
+  type TextEncodingName,
+} from "@/lib/analysis/text-format";
 import { isMissingToken, parseNumberToken, trimToken } from "@/lib/analysis/tokens";
 
 /** How much of a file's beginning the server reads for a preview. */
@@ -71,42 +78,105 @@ export interface CsvHead {
   rows: string[][];
   /** True when the bytes are not the whole file. */
   truncated: boolean;
-  /** The decimal mark, detected from the rows read as the engine detects it (methods.md §1). */
-  decimalMark: DecimalMark;
+  /**
+   * How the text was read: the chosen encoding, delimiter and decimal mark, or what was detected
+   * (the delimiter and decimal mark as the engine detects them, methods.md §1).
+   */
+  format: CsvFormat;
+}
+
+const UTF16_BOMS = [
+  [0xff, 0xfe],
+  [0xfe, 0xff],
+];
+
+/**
+ * The encoding a file's first bytes are in: UTF-16 when they start with its byte-order mark, UTF-8
+ * when they decode as UTF-8, Windows-1252 otherwise (every byte sequence is Windows-1252 text, and
+ * it is what a spreadsheet on Windows saves as "CSV"). The engine itself reads UTF-8 unless told
+ * otherwise, so the form offers this guess as the choice.
+ */
+export function detectEncoding(bytes: Uint8Array, truncated: boolean): TextEncodingName {
+  if (UTF16_BOMS.some(([first, second]) => bytes[0] === first && bytes[1] === second)) {
+    return "utf-16";
+  }
+  try {
+    // Streaming holds back a character cut by the end of the bytes read instead of refusing it.
+    new TextDecoder("utf-8", { fatal: true }).decode(bytes, { stream: truncated });
+    return "utf-8";
+  } catch {
+    return "windows-1252";
+  }
+}
+
+/**
+ * The text of a file's complete lines among its first bytes, decoded in `encoding`. Cut bytes end
+ * at the last line feed (for UTF-8 and Windows-1252 a line feed byte is never part of another
+ * character); UTF-16 is decoded as a stream, which holds back a cut character, and then cut at its
+ * last line break. Returns null when the bytes hold no line break at all.
+ */
+function decodeCompleteLines(
+  bytes: Uint8Array,
+  truncated: boolean,
+  encoding: TextEncodingName,
+  fileName: string,
+): string | null {
+  if (encoding === "utf-16") {
+    const label = bytes[0] === 0xfe && bytes[1] === 0xff ? "utf-16be" : "utf-16le";
+    const text = new TextDecoder(label).decode(bytes, { stream: truncated });
+    if (!truncated) return text;
+    const lastLineEnd = text.lastIndexOf("\n");
+    return lastLineEnd < 0 ? null : text.slice(0, lastLineEnd + 1);
+  }
+  let complete = bytes;
+  if (truncated) {
+    const lastLineEnd = bytes.lastIndexOf(10);
+    if (lastLineEnd < 0) return null;
+    complete = bytes.subarray(0, lastLineEnd + 1);
+  }
+  try {
+    return new TextDecoder(encoding, { fatal: true }).decode(complete);
+  } catch {
+    throw new AnalysisInputError("the text is not valid UTF-8", {
+      file: fileName,
+      expected: "UTF-8 text, or the file's encoding chosen (windows-1252, utf-16)",
+    });
+  }
 }
 
 /**
  * Parses the beginning of a CSV the way the engine will parse the whole file (papaparse with
  * delimiter detection, blank lines skipped, trimmed unique header names), keeping complete lines
- * only. Problems the engine would also reject are AnalysisInputErrors naming the file, row and
+ * only. The encoding, delimiter and decimal mark are the user's choice where given, detected
+ * otherwise. Problems the engine would also reject are AnalysisInputErrors naming the file, row and
  * what was expected: binary content, no header, empty or repeated column names, unclosed quotes,
  * rows with the wrong number of fields, a header without data rows.
  */
-export function readCsvHead({ bytes, totalBytes, fileName }: CsvPreviewSource): CsvHead {
+export function readCsvHead(
+  { bytes, totalBytes, fileName }: CsvPreviewSource,
+  choice: CsvFormatChoice = {},
+): CsvHead {
   const truncated = totalBytes > bytes.length;
+  const encoding = choice.encoding ?? detectEncoding(bytes, truncated);
   const nonText =
-    describeNonText(bytes, "utf-8") ?? (hasManyControlCharacters(bytes) ? "binary data" : null);
+    describeNonText(bytes, encoding) ??
+    (encoding !== "utf-16" && hasManyControlCharacters(bytes) ? "binary data" : null);
   if (nonText !== null) {
     throw new AnalysisInputError(`not a text CSV: ${nonText}`, {
       file: fileName,
-      expected: "a CSV file saved as UTF-8 text, e.g. exported with “Save as CSV”",
+      expected: "a CSV file saved as text, e.g. exported with “Save as CSV”",
     });
   }
-  let complete = bytes;
-  if (truncated) {
-    // A line feed is never part of a multi-byte UTF-8 character, so cutting after one is safe.
-    const lastLineEnd = bytes.lastIndexOf(10);
-    if (lastLineEnd < 0) {
-      throw new AnalysisInputError(
-        `the first line is longer than ${Math.round(bytes.length / 1024)} KB`,
-        { file: fileName, expected: "a CSV file whose lines end with line breaks" },
-      );
-    }
-    complete = bytes.subarray(0, lastLineEnd + 1);
+  const text = decodeCompleteLines(bytes, truncated, encoding, fileName);
+  if (text === null) {
+    throw new AnalysisInputError(
+      `the first line is longer than ${Math.round(bytes.length / 1024)} KB`,
+      { file: fileName, expected: "a CSV file whose lines end with line breaks" },
+    );
   }
-  const text = new TextDecoder("utf-8").decode(complete);
   const parsed = Papa.parse<string[]>(text, {
     header: false,
+    delimiter: choice.delimiter,
     skipEmptyLines: true,
     delimitersToGuess: [...DELIMITERS],
   });
@@ -147,11 +217,10 @@ export function readCsvHead({ bytes, totalBytes, fileName }: CsvPreviewSource): 
       expected: "at least one data row below the header",
     });
   }
-  const decimalMark = detectDecimalMark(
-    parsed.meta.delimiter,
-    rows.slice(0, DECIMAL_MARK_SAMPLE_ROWS),
-  );
-  return { header, rows, truncated, decimalMark };
+  const delimiter = parsed.meta.delimiter as Delimiter;
+  const decimalMark =
+    choice.decimalMark ?? detectDecimalMark(delimiter, rows.slice(0, DECIMAL_MARK_SAMPLE_ROWS));
+  return { header, rows, truncated, format: { encoding, delimiter, decimalMark } };
 }
 
 /** A preview of a parsed CSV head: detected columns over every row read, and the first rows. */
@@ -159,11 +228,12 @@ export function summarizeCsvHead({
   header,
   rows,
   truncated,
-  decimalMark,
-}: CsvHead): DataFilePreview {
+  format,
+}: Omit<CsvHead, "format"> & { format: CsvFormat | null }): DataFilePreview {
   return {
-    columns: describeColumns(header, rows, decimalMark),
+    columns: describeColumns(header, rows, format?.decimalMark ?? "."),
     rows: rows.slice(0, PREVIEW_ROWS).map((row) => row.map(cutPreviewValue)),
     truncated,
+    ...(format ? { format } : {}),
   };
 }

@@ -3,6 +3,7 @@ import type { DataFilePreview } from "@/db/schema/analyses";
 import { AnalysisInputError } from "@/lib/analysis/errors";
 import { quoteValue } from "@/lib/analysis/quote-value";
 import { RuleError } from "@/lib/errors";
+import type { CsvFormatChoice } from "@/lib/analysis/text-format";
 import { deleteObject, getObjectRange, headObject } from "@/lib/storage";
 import { findUploadProblem, formatBytes, type DataFileKind } from "./file-rules";
 import {
@@ -87,4 +88,31 @@ async function readPreview(
   if (kind === "dataset") checkDatasetHeader(head.header, name);
   else checkLayoutHeader(head.header, name);
   return summarizeTableHead(head);
+}
+
+/**
+ * A stored dataset's preview read again in the format the user chose (encoding, delimiter, decimal
+ * mark) instead of the detected one, so the form's columns are those the analysis will see. Not
+ * stored: the upload's detected preview stays the file's. A format the file cannot be read in is a
+ * RuleError with the engine's message naming the file.
+ */
+export async function previewStoredDataset(
+  file: { objectKey: string; name: string; sizeBytes: number },
+  choice: CsvFormatChoice,
+): Promise<DataFilePreview> {
+  try {
+    const head = await readTableHead(
+      (start, end) => getObjectRange(file.objectKey, start, end - 1),
+      file.sizeBytes,
+      file.name,
+      choice,
+    );
+    checkDatasetHeader(head.header, file.name);
+    return summarizeTableHead(head);
+  } catch (error) {
+    if (error instanceof AnalysisInputError) {
+      throw new RuleError(422, error.message);
+    }
+    throw error;
+  }
 }

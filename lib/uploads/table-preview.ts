@@ -7,6 +7,7 @@ import {
   type AsyncBuffer,
 } from "@/lib/analysis/parquet-reader";
 import { detectTableFormat } from "@/lib/analysis/table-reader";
+import type { CsvFormat, CsvFormatChoice } from "@/lib/analysis/text-format";
 import {
   PREVIEW_BYTES,
   PREVIEW_ROWS,
@@ -19,7 +20,9 @@ import {
 export type ReadRange = (start: number, end: number) => Promise<Uint8Array>;
 
 /** A table's first rows in any supported format, with column types when the format states them. */
-export interface TableHead extends CsvHead {
+export interface TableHead extends Omit<CsvHead, "format"> {
+  /** How a CSV's text was read; null for Parquet, whose values are typed. */
+  format: CsvFormat | null;
   /** Per column, numeric or not as the file's schema says (Parquet); null to infer from the rows. */
   numeric: boolean[] | null;
 }
@@ -27,25 +30,32 @@ export interface TableHead extends CsvHead {
 /**
  * The beginning of a stored dataset or partition map, whatever its format, read with ranged reads
  * only: a CSV's first bytes; a gzip CSV's first compressed bytes, decompressed as far as they go;
- * a Parquet file's footer and the pages holding its first rows.
+ * a Parquet file's footer and the pages holding its first rows. A CSV is read in the chosen format,
+ * or the detected one.
  */
 export async function readTableHead(
   readRange: ReadRange,
   totalBytes: number,
   fileName: string,
+  choice: CsvFormatChoice = {},
 ): Promise<TableHead> {
   const bytes = await readRange(0, Math.min(totalBytes, PREVIEW_BYTES));
   const format = detectTableFormat(bytes);
-  if (format === "csv") return { ...readCsvHead({ bytes, totalBytes, fileName }), numeric: null };
+  if (format === "csv") {
+    return { ...readCsvHead({ bytes, totalBytes, fileName }, choice), numeric: null };
+  }
   if (format === "csv.gz") {
     const text = decompressBeginning(bytes, fileName);
     const whole = bytes.length === totalBytes && text.length <= PREVIEW_BYTES;
-    const head = readCsvHead({
-      bytes: text.subarray(0, PREVIEW_BYTES),
-      // Only "is this all of it" matters here: any larger size marks the text as cut.
-      totalBytes: whole ? text.length : PREVIEW_BYTES + 1,
-      fileName,
-    });
+    const head = readCsvHead(
+      {
+        bytes: text.subarray(0, PREVIEW_BYTES),
+        // Only "is this all of it" matters here: any larger size marks the text as cut.
+        totalBytes: whole ? text.length : PREVIEW_BYTES + 1,
+        fileName,
+      },
+      choice,
+    );
     return { ...head, numeric: null };
   }
   const file: AsyncBuffer = {
@@ -65,8 +75,7 @@ export async function readTableHead(
     header: layout.columns,
     rows,
     truncated: totalRows > rows.length,
-    // Parquet values arrive as numbers, written with a point.
-    decimalMark: ".",
+    format: null,
     numeric: layout.numeric,
   };
 }

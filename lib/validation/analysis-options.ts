@@ -40,6 +40,13 @@ export const simulateOptionsSchema = z.object({
   budget: z.number().finite().positive().default(DEFAULT_SIMULATION_BUDGET),
 });
 
+/** A CSV's reading options as the user chose them; what is absent is detected (methods.md §1). */
+export const csvFormatChoiceSchema = z.object({
+  encoding: z.enum(TEXT_ENCODINGS).optional(),
+  delimiter: z.enum(DELIMITERS).optional(),
+  decimalMark: z.enum(DECIMAL_MARKS).optional(),
+});
+
 const columnName = z.string().trim().min(1, "a column name cannot be empty");
 
 /**

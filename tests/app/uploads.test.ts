@@ -11,6 +11,7 @@ vi.mock("@/lib/auth/session", () => import("@/tests/support/fake-session"));
 import { createHash } from "node:crypto";
 import {
   deleteDataFile,
+  previewDatasetAs,
   registerDataFile,
 } from "@/app/(workspace)/w/[workspaceId]/analyses/new/actions";
 import { POST as createUpload } from "@/app/api/workspaces/[workspaceId]/uploads/route";
@@ -152,6 +153,54 @@ describe("a presigned PUT, then registration", () => {
       kind: "weights",
     });
     expect(weights.ok && weights.data.preview?.rows).toEqual([["(target)", "0.5", "-1"]]);
+  });
+});
+
+describe("reading options: detected at registration, chosen on the form (methods.md §1)", () => {
+  it("stores the detected encoding, delimiter and decimal mark, and re-reads in the chosen ones", async () => {
+    const team = await createTeam();
+    actAs(team.analyst);
+    // A spreadsheet's Windows "CSV": Windows-1252 bytes, semicolons, decimal commas.
+    const text = "city;x;label\nZürich;1,5;a\nGenève;2,25;b\nMünchen;0,5;a\n";
+    const key = newKey(team.workspaceId, "cities.csv");
+    await putObject({ key, body: Buffer.from(text, "latin1"), contentType: "text/csv" });
+    const registered = await registerDataFile(team.workspaceId, {
+      key,
+      name: "cities.csv",
+      kind: "dataset",
+    });
+    if (!registered.ok) throw new Error(registered.message);
+    expect(registered.data.preview?.format).toEqual({
+      encoding: "windows-1252",
+      delimiter: ";",
+      decimalMark: ",",
+    });
+    expect(registered.data.preview?.rows[0]).toEqual(["Zürich", "1,5", "a"]);
+    const fileId = registered.data.id;
+
+    // A decimal point chosen: "1,5" is no number, so x is a text column in the re-read preview.
+    const byPoint = await previewDatasetAs(team.workspaceId, fileId, {
+      encoding: "windows-1252",
+      decimalMark: ".",
+    });
+    expect(byPoint.ok && byPoint.data.columns.map((column) => column.type)).toEqual([
+      "categorical",
+      "categorical",
+      "categorical",
+    ]);
+    // UTF-8 chosen: refused with the engine's words, the stored preview untouched.
+    const asUtf8 = await previewDatasetAs(team.workspaceId, fileId, { encoding: "utf-8" });
+    expect(!asUtf8.ok && asUtf8.message).toBe(
+      "cities.csv: the text is not valid UTF-8 (expected UTF-8 text, or the file's encoding chosen (windows-1252, utf-16))",
+    );
+    expect((await findDataFile(team.workspaceId, fileId))?.preview?.columns[1].type).toBe(
+      "numeric",
+    );
+    // A value outside the choices is a field error, not a read.
+    const odd = await previewDatasetAs(team.workspaceId, fileId, {
+      delimiter: "|" as ";",
+    });
+    expect(!odd.ok && odd.status).toBe(422);
   });
 });
 
@@ -476,6 +525,13 @@ describe("who may upload", () => {
       [
         "abort",
         async () => (await call(abortUpload, team.workspaceId, { key, uploadId: "u" })).status,
+      ],
+      [
+        "preview as",
+        async () => {
+          const result = await previewDatasetAs(team.workspaceId, randomUUID(), {});
+          return result.ok ? 200 : result.status;
+        },
       ],
       [
         "register",

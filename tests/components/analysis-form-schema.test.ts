@@ -63,6 +63,10 @@ describe("the new-analysis form's values", () => {
         rounds: 100,
         batchSize: 32,
         dropUnassignedRows: false,
+        encoding: "utf-8",
+        delimiter: undefined,
+        decimalMark: undefined,
+        badNumbersAsMissing: false,
       },
     });
     expect(startAnalysisSchema.safeParse(input).success).toBe(true);
@@ -170,5 +174,47 @@ describe("the new-analysis form's values", () => {
       parameters: { labelColumn: "Species", simulate: { seeds: 5, seed: 1, budget: 1e11 } },
     });
     expect(values.options.simulate).toEqual({ enabled: true, seeds: 5 });
+  });
+
+  it("send the reading options: the detected delimiter and decimal mark are left to the engine", () => {
+    const chosen: AnalysisFormValues = {
+      ...filled,
+      options: {
+        ...filled.options,
+        encoding: "windows-1252",
+        delimiter: ";",
+        decimalMark: ",",
+        badNumbersAsMissing: true,
+      },
+    };
+    expect(errorsOf(chosen)).toEqual({});
+    const options = startAnalysisSchema.parse(toStartAnalysisInput(chosen)).options;
+    expect(options).toMatchObject({
+      encoding: "windows-1252",
+      delimiter: ";",
+      decimalMark: ",",
+      badNumbersAsMissing: true,
+    });
+    // "" is the detected choice: absent from the request, so the engine detects it again.
+    const detected = toStartAnalysisInput({
+      ...chosen,
+      options: { ...chosen.options, delimiter: "", decimalMark: "" },
+    }).options;
+    expect(detected.delimiter).toBeUndefined();
+    expect(detected.decimalMark).toBeUndefined();
+    // A run again keeps what the earlier run was told.
+    const again = formValuesFrom({
+      title: "Cities",
+      datasetFileId: "d1",
+      layoutFileId: null,
+      weightsFileId: null,
+      parameters: { labelColumn: "label", encoding: "utf-16", decimalMark: "," },
+    });
+    expect(again.options).toMatchObject({
+      encoding: "utf-16",
+      delimiter: "",
+      decimalMark: ",",
+      badNumbersAsMissing: false,
+    });
   });
 });

@@ -17,7 +17,7 @@ import { openBrowser, type BrowserSession } from "./support/browser";
 
 const folder = mkdtempSync(path.join(os.tmpdir(), "partita-e2e-uploads-"));
 const { csv, islandMap } = loadPenguinsCsv();
-function writeFile(name: string, content: string): string {
+function writeFile(name: string, content: string | Buffer): string {
   const file = path.join(folder, name);
   writeFileSync(file, content);
   return file;
@@ -115,6 +115,75 @@ describe("starting an analysis in the browser", () => {
       .toBe("row");
     expect(await page.getByLabel("Rounds (R)").inputValue()).toBe("50");
     expect(await page.getByRole("checkbox", { name: /^Island/ }).isChecked()).toBe(false);
+  });
+
+  it("reads a spreadsheet's semicolon CSV as detected, re-reads it as chosen, and checks M live", async () => {
+    // What a spreadsheet on Windows saves as "CSV": Windows-1252 bytes, semicolons, decimal commas.
+    const sites = ["north", "south", "east"];
+    const cities = ["Zürich", "Genève", "München", "Malmö"];
+    const lines = ["city;price;weight;label;site"];
+    for (let row = 0; row < 12; row++) {
+      const price = `${10 + row},${(row * 7) % 10}9`;
+      lines.push(
+        `${cities[row % 4]};${price};${row % 5},5;${row % 3 ? "yes" : "no"};${sites[row % 3]}`,
+      );
+    }
+    const file = writeFile("prices.csv", Buffer.from(`${lines.join("\r\n")}\r\n`, "latin1"));
+
+    browser = await openBrowser();
+    const { page } = browser;
+    const workspaceId = await signUp(browser, "reading");
+    await page.goto(`/w/${workspaceId}/analyses/new`);
+    await page.getByLabel("Dataset file").setInputFiles(file);
+    await page.getByRole("table").waitFor();
+
+    // The detected reading options lead, preselected.
+    const selected = (label: string) =>
+      page.getByLabel(label, { exact: true }).locator("option:checked").textContent();
+    expect(await selected("Text encoding")).toBe("Windows-1252 (Latin-1) — detected");
+    expect(await selected("Delimiter")).toBe("Semicolon (;) — detected");
+    expect(await selected("Decimal mark")).toBe("Comma (17,99) — detected");
+    const price = page.getByRole("columnheader", { name: /^price/ });
+    expect(await price.textContent()).toContain("numeric");
+    await page.getByRole("cell", { name: "Zürich" }).first().waitFor();
+
+    // A decimal point chosen: the server reads the file again, and "17,09" is no number.
+    await page.getByLabel("Decimal mark", { exact: true }).selectOption(".");
+    await expect.poll(() => price.textContent(), { timeout: 30_000 }).toContain("categorical");
+    // UTF-8 chosen: the file cannot be read so, said beside the choices.
+    await page.getByLabel("Text encoding", { exact: true }).selectOption("utf-8");
+    await page.getByText(/prices\.csv: the text is not valid UTF-8/).waitFor();
+    await page.getByLabel("Text encoding", { exact: true }).selectOption("windows-1252");
+    await page.getByLabel("Decimal mark", { exact: true }).selectOption("");
+    await expect.poll(() => price.textContent(), { timeout: 30_000 }).toContain("numeric");
+    await page.getByRole("checkbox", { name: /Count values that are not numbers/ }).check();
+
+    // The shard column is guessed from its name; M above its 3 shards is flagged as it is typed.
+    expect(await page.getByLabel("Shard column", { exact: true }).inputValue()).toBe("site");
+    await page.getByRole("radio", { name: /A sample of shards/ }).check();
+    await page.getByLabel("Shards per round (M)").fill("5");
+    await page
+      .getByText('Shards per round (M) is 5, but column "site" of "prices.csv" names 3 shards')
+      .waitFor();
+    await page.getByLabel("Shards per round (M)").fill("2");
+    await page.getByText('The column "site" of "prices.csv" names 3 shards.').waitFor();
+
+    await page.getByRole("checkbox", { name: /^city/ }).uncheck();
+    await page.getByRole("button", { name: "Run analysis" }).click();
+    await page.waitForURL(/\/analyses\/(?!new)[\w-]+$/);
+    const analysisId = new URL(page.url()).pathname.split("/").at(-1)!;
+    const saved = await findAnalysisForForm(workspaceId, analysisId);
+    expect(saved?.parameters).toMatchObject({
+      labelColumn: "label",
+      shardColumn: "site",
+      participants: 2,
+      encoding: "windows-1252",
+      badNumbersAsMissing: true,
+      features: ["price", "weight"],
+    });
+    // The detected delimiter and decimal mark are left for the engine to detect again.
+    expect(saved?.parameters.delimiter).toBeUndefined();
+    expect(saved?.parameters.decimalMark).toBeUndefined();
   });
 
   it("sends a large file in parts with a progress bar and previews its beginning", async () => {

@@ -4,7 +4,12 @@
 // BSD-3: 3 species, 3 islands, four body measurements, sex).
 import { describe, expect, it } from "vitest";
 import { AnalysisInputError } from "@/lib/analysis/errors";
-import { PREVIEW_BYTES, PREVIEW_ROWS, readCsvHead } from "@/lib/uploads/csv-preview";
+import {
+  PREVIEW_BYTES,
+  PREVIEW_ROWS,
+  readCsvHead,
+  summarizeCsvHead,
+} from "@/lib/uploads/csv-preview";
 import { inspectDataset, inspectLayout, inspectWeights } from "@/lib/uploads/inspect-upload";
 import { analyzeText } from "@/tests/lib/analysis/support/analyze-text";
 import { loadPenguinsCsv } from "@/tests/lib/analysis/support/open-data";
@@ -149,6 +154,62 @@ describe("methods.md §1 token rules in the preview", () => {
     const summary = await analyzeText(csv, { labelColumn: "label", shardColumn: "part" });
     expect(summary.preprocessing.format).toMatchObject({ delimiter: ";", decimalMark: "," });
     expect(summary.preprocessing.featureNames).toEqual(["x", "y"]);
+    // The preview states the format the engine will detect, for the form to preselect.
+    expect(preview.format).toEqual(summary.preprocessing.format);
+  });
+});
+
+describe("reading options: detected at upload, chosen on the form (methods.md §1)", () => {
+  const semicolonCsv = "city;x;label\nZürich;1,5;a\nGenève;2,25;b\nMünchen;0,5;a\n";
+
+  it("detects Windows-1252 where the bytes are not UTF-8, decoding as Python's cp1252 does", () => {
+    const bytes = new Uint8Array(Buffer.from(semicolonCsv, "latin1"));
+    const head = readCsvHead({ bytes, totalBytes: bytes.length, fileName: "cities.csv" });
+    expect(head.format).toEqual({ encoding: "windows-1252", delimiter: ";", decimalMark: "," });
+    // Outside reference: Python's cp1252 codec on the same bytes, split at ';'.
+    const python = runPythonJson<string[][]>(
+      `import json, sys
+data = bytes(json.load(sys.stdin)).decode("cp1252")
+print(json.dumps([line.split(";") for line in data.splitlines()[1:]]))`,
+      [...bytes],
+    );
+    expect(head.rows).toEqual(python);
+    // Told it is UTF-8, the preview refuses it as the engine would, instead of showing U+FFFD.
+    expect(() =>
+      readCsvHead(
+        { bytes, totalBytes: bytes.length, fileName: "cities.csv" },
+        { encoding: "utf-8" },
+      ),
+    ).toThrow("cities.csv: the text is not valid UTF-8");
+  });
+
+  it("reads UTF-16 with a byte-order mark as the same table as its UTF-8 text", () => {
+    const utf16 = new Uint8Array(
+      Buffer.concat([Buffer.from([0xff, 0xfe]), Buffer.from(semicolonCsv, "utf16le")]),
+    );
+    const head = readCsvHead({ bytes: utf16, totalBytes: utf16.length, fileName: "cities.csv" });
+    const utf8 = readCsvHead(source(semicolonCsv, "cities.csv"));
+    expect(head.format).toEqual({ ...utf8.format, encoding: "utf-16" });
+    expect(head.rows).toEqual(utf8.rows);
+    // Cut inside a character and a line: only the complete lines before the cut count.
+    const cut = readCsvHead({
+      bytes: utf16.subarray(0, 59),
+      totalBytes: utf16.length,
+      fileName: "c",
+    });
+    expect(cut.rows).toEqual(utf8.rows.slice(0, 1));
+  });
+
+  it("reads in the user's delimiter and decimal mark instead of the detected ones", () => {
+    // Split at commas, the header is one column and the decimal commas split the rows: the
+    // error the form shows beside the delimiter.
+    expect(() => readCsvHead(source(semicolonCsv), { delimiter: "," })).toThrow(
+      "the row has 2 fields (expected 1 fields, like the header)",
+    );
+    // With a decimal point chosen, "1,5" is not a number: x is no longer numeric.
+    const pointPreview = summarizeCsvHead(readCsvHead(source(semicolonCsv), { decimalMark: "." }));
+    expect(pointPreview.columns.find((column) => column.name === "x")?.type).toBe("categorical");
+    expect(pointPreview.format).toEqual({ encoding: "utf-8", delimiter: ";", decimalMark: "." });
   });
 });
 
