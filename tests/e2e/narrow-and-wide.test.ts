@@ -9,7 +9,11 @@ import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, db } from "@/db/client";
 import { users } from "@/db/schema";
 import { uniqueEmail } from "@/tests/support/accounts";
-import { analyzePenguinsWithCli, insertReport } from "@/tests/support/report-fixtures";
+import {
+  analyzePenguinColoniesWithCli,
+  analyzePenguinsWithCli,
+  insertReport,
+} from "@/tests/support/report-fixtures";
 import { openBrowser, type BrowserSession } from "./support/browser";
 import { signUpThroughForm } from "./support/sign-up";
 
@@ -24,6 +28,8 @@ const email = uniqueEmail("widths");
 const password = "a phone and desk password";
 let workspacePath = "";
 let reportId = "";
+/** A report of 24 shards: as many as the agreement heat map names beside its cells. */
+let coloniesReportId = "";
 
 /**
  * Page width beyond the viewport (0 when nothing scrolls sideways), with the innermost elements
@@ -52,6 +58,31 @@ function sidewaysOverflow(page: Page): Promise<{ overflow: number; offenders: st
   });
 }
 
+/**
+ * Pairs of texts in a chart's drawing whose boxes overlap (by more than half a pixel each way),
+ * named by their texts, so a failure says which labels smear into each other.
+ */
+function overlappingLabels(page: Page, chart: string): Promise<string[]> {
+  return page
+    .getByRole("region", { name: chart })
+    .locator("svg")
+    .first()
+    .evaluate((svg) => {
+      const boxes = [...svg.querySelectorAll("text")]
+        .filter((text) => (text.textContent ?? "").trim() !== "")
+        .map((text) => ({ text: text.textContent ?? "", box: text.getBoundingClientRect() }));
+      const overlaps: string[] = [];
+      boxes.forEach((a, i) => {
+        for (const b of boxes.slice(i + 1)) {
+          const across = Math.min(a.box.right, b.box.right) - Math.max(a.box.left, b.box.left);
+          const down = Math.min(a.box.bottom, b.box.bottom) - Math.max(a.box.top, b.box.top);
+          if (across > 0.5 && down > 0.5) overlaps.push(`${a.text} × ${b.text}`);
+        }
+      });
+      return overlaps;
+    });
+}
+
 async function keepPicture(page: Page, name: string) {
   const folder = process.env.E2E_SCREENSHOTS;
   if (folder) await page.screenshot({ path: path.join(folder, `${name}.png`), fullPage: true });
@@ -59,6 +90,7 @@ async function keepPicture(page: Page, name: string) {
 
 beforeAll(async () => {
   const summary = await analyzePenguinsWithCli();
+  const colonies = await analyzePenguinColoniesWithCli(24);
   const session = await openBrowser();
   const { page } = session;
   await signUpThroughForm(page, {
@@ -76,6 +108,13 @@ beforeAll(async () => {
     summary,
     title: "Penguins by island",
     createdAt: new Date(Date.UTC(2026, 0, 10, 9)),
+  }));
+  ({ reportId: coloniesReportId } = await insertReport({
+    workspaceId: workspacePath.split("/")[2],
+    authorId: user.id,
+    summary: colonies,
+    title: "Penguins in 24 colonies",
+    createdAt: new Date(Date.UTC(2026, 0, 10, 10)),
   }));
 });
 
@@ -144,7 +183,22 @@ describe.each([
     expect(await figures.getByText(/× the barrier H²B²\/R/).count()).toBe(1);
     expect(await page.getByText("(from memory)").count()).toBe(0);
     expect(await sidewaysOverflow(page)).toEqual({ overflow: 0, offenders: [] });
+    // The regime map's 13 round counts and 13 step counts stay legible at this width.
+    // (The chart spaces its labels once it has measured its width: wait for that, not a second.)
+    await expect.poll(() => overlappingLabels(page, "Regime map")).toEqual([]);
     await keepPicture(page, `${device}-report`);
+
+    // 24 shard names beside the agreement heat map's cells, and the regime map again.
+    await page.goto(`${workspacePath}/reports/${coloniesReportId}`);
+    for (const chart of ["Gradient agreement between shards", "Regime map"]) {
+      const drawing = page.getByRole("region", { name: chart }).locator("svg").first();
+      await drawing.waitFor();
+      await expect
+        .poll(async () => ({ chart, overlaps: await overlappingLabels(page, chart) }))
+        .toEqual({ chart, overlaps: [] });
+    }
+    expect(await sidewaysOverflow(page)).toEqual({ overflow: 0, offenders: [] });
+    await keepPicture(page, `${device}-report-24-shards`);
 
     await page.goto(`${workspacePath}/reports/compare?a=${reportId}&b=${reportId}`);
     await page.getByRole("heading", { level: 1 }).first().waitFor();

@@ -1,12 +1,19 @@
 "use client";
 
 import { ResponsiveHeatMap, ResponsiveHeatMapCanvas } from "@nivo/heatmap";
+import { labelWidth, spacedTicks, TICK_FONT_PX } from "@/lib/reports/axis-ticks";
 import { CHART_THEME, PALETTE, shortenLabel } from "./chart-style";
+import { useContainerWidth } from "./use-container-width";
 
 /** Above this many shards the names no longer fit beside the cells, which are then drawn on a canvas. */
 const SVG_LIMIT = 24;
 /** Characters of a shard name beside a cell; the tooltip gives the whole name. */
 const LABEL_LENGTH = 12;
+/** On a phone (a chart narrower than this) names are cut shorter, leaving the cells more room. */
+const NARROW_WIDTH = 480;
+const NARROW_LABEL_LENGTH = 8;
+/** The chart's right and bottom margins. */
+const EDGE = 16;
 
 /**
  * Cosine similarity of every pair of shard gradients at the training start: agreement shades dark,
@@ -28,18 +35,23 @@ export function AgreementHeatmap({
     data: row.map((value, column) => ({ x: keys[column], y: value })),
   }));
   const named = names.length <= SVG_LIMIT;
-  // Column names stand upright (rotated a quarter turn) so neighbours never overlap; the margins
-  // fit the longest shortened name at about 6.5 px per character of the chart's 11 px type.
-  const longest = Math.max(...names.map((name) => shortenLabel(name, LABEL_LENGTH).length));
-  const labelRoom = Math.ceil(longest * 6.5) + 12;
+  const [box, width] = useContainerWidth<HTMLDivElement>();
+  const labelLength = width > 0 && width < NARROW_WIDTH ? NARROW_LABEL_LENGTH : LABEL_LENGTH;
+  // Column names stand upright (rotated a quarter turn); the margins fit the longest shortened name.
+  const longest = Math.max(...names.map((name) => shortenLabel(name, labelLength).length));
+  const labelRoom = labelWidth(longest) + 12;
   const margin = named
-    ? { top: labelRoom, right: 16, bottom: 16, left: labelRoom }
-    : { top: 16, right: 16, bottom: 16, left: 16 };
+    ? { top: labelRoom, right: EDGE, bottom: EDGE, left: labelRoom }
+    : { top: EDGE, right: EDGE, bottom: EDGE, left: EDGE };
+  // Square cells in a square box: where they are thinner than a line of type, every k-th is named.
+  const cellSize = (width - labelRoom - EDGE) / names.length;
+  const ticks = spacedTicks(keys, cellSize, TICK_FONT_PX);
   const axis = named
     ? {
         tickSize: 0,
         tickPadding: 6,
-        format: (key: string) => shortenLabel(nameOf.get(key) ?? key, LABEL_LENGTH),
+        tickValues: ticks,
+        format: (key: string) => shortenLabel(nameOf.get(key) ?? key, labelLength),
       }
     : null;
   const common = {
@@ -76,7 +88,7 @@ export function AgreementHeatmap({
   };
   return (
     <div>
-      <div className="aspect-square w-full max-w-[560px]">
+      <div ref={box} className="aspect-square w-full max-w-[560px]">
         {named ? <ResponsiveHeatMap {...common} /> : <ResponsiveHeatMapCanvas {...common} />}
       </div>
       <GradientKey />

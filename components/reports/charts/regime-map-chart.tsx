@@ -2,9 +2,16 @@
 
 import { ResponsiveHeatMap, type CustomLayerProps } from "@nivo/heatmap";
 import type { Verdict } from "@/lib/analysis/advise-plan";
+import {
+  formatCountTick,
+  labelWidth,
+  spacedTicks,
+  TICK_FONT_PX,
+} from "@/lib/reports/axis-ticks";
 import { classifyRegimeCell, type RegimeMap } from "@/lib/reports/regime-map";
 import { formatFigure, VERDICT_LABELS } from "@/lib/reports/report-view";
 import { CHART_THEME, mixColours, PALETTE } from "./chart-style";
+import { useContainerWidth } from "./use-container-width";
 
 /** How far past its threshold (in decades of ρ) a cell reaches its band's full colour. */
 const FULL_STRENGTH = 1;
@@ -30,9 +37,26 @@ type RegimeDatum = { x: string; y: number | null };
 
 const rowKey = (localSteps: number) => `K${localSteps}`;
 const columnKey = (rounds: number) => `R${rounds}`;
+const countOfKey = (key: string) => formatCountTick(Number(key.slice(1)));
+
+const HEIGHT = 380;
+const MARGIN = { top: 44, right: 16, bottom: 16, left: 64 };
+/** The narrowest cell that holds the word "plan" in the 10 px bold type it is drawn in. */
+const PLAN_WORD_MIN_CELL = 28;
 
 /** log₁₀ ρ over local steps K (rows, largest on top) and rounds R (columns), the plan outlined. */
 export function RegimeMapChart({ map, label }: { map: RegimeMap; label: string }) {
+  const [box, width] = useContainerWidth<HTMLDivElement>();
+  const cellWidth = (width - MARGIN.left - MARGIN.right) / map.rounds.length;
+  const cellHeight = (HEIGHT - MARGIN.top - MARGIN.bottom) / map.localSteps.length;
+  const widestColumnLabel = Math.max(...map.rounds.map((rounds) => formatCountTick(rounds).length));
+  // On a phone the columns are narrower than their labels: every second or third is labelled.
+  const columnTicks = spacedTicks(
+    map.rounds.map(columnKey),
+    cellWidth,
+    labelWidth(widestColumnLabel),
+  );
+  const rowTicks = spacedTicks(map.localSteps.map(rowKey).reverse(), cellHeight, TICK_FONT_PX);
   const data: { id: string; data: RegimeDatum[] }[] = map.localSteps
     .map((localSteps, row) => ({
       id: rowKey(localSteps),
@@ -57,7 +81,8 @@ export function RegimeMapChart({ map, label }: { map: RegimeMap; label: string }
           stroke={PALETTE.ink}
           strokeWidth={2.5}
         />
-        <text
+        {cell.width < PLAN_WORD_MIN_CELL ? null : (
+          <text
           x={cell.x}
           y={cell.y}
           textAnchor="middle"
@@ -68,15 +93,16 @@ export function RegimeMapChart({ map, label }: { map: RegimeMap; label: string }
         >
           plan
         </text>
+        )}
       </g>
     );
   };
   return (
     <div>
-      <div className="h-[380px] w-full">
+      <div ref={box} className="w-full" style={{ height: HEIGHT }}>
         <ResponsiveHeatMap
           data={data}
-          margin={{ top: 44, right: 16, bottom: 16, left: 64 }}
+          margin={MARGIN}
           colors={(cell) => colourCell(cell.value)}
           xInnerPadding={0.04}
           yInnerPadding={0.04}
@@ -84,7 +110,8 @@ export function RegimeMapChart({ map, label }: { map: RegimeMap; label: string }
           axisTop={{
             tickSize: 0,
             tickPadding: 6,
-            format: (key: string) => key.slice(1),
+            tickValues: columnTicks,
+            format: countOfKey,
             legend: "Rounds R",
             legendPosition: "middle",
             legendOffset: -34,
@@ -92,7 +119,8 @@ export function RegimeMapChart({ map, label }: { map: RegimeMap; label: string }
           axisLeft={{
             tickSize: 0,
             tickPadding: 6,
-            format: (key: string) => key.slice(1),
+            tickValues: rowTicks,
+            format: countOfKey,
             legend: "Local steps K",
             legendPosition: "middle",
             legendOffset: -52,
@@ -132,6 +160,7 @@ export function RegimeMapChart({ map, label }: { map: RegimeMap; label: string }
           </li>
         ))}
         <li>darker = more decisive</li>
+        <li>outlined: your plan</li>
       </ul>
     </div>
   );
