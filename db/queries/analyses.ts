@@ -14,6 +14,29 @@ export type Analysis = typeof analyses.$inferSelect;
 export type AnalysisStatus = Analysis["status"];
 type DataFile = typeof dataFiles.$inferSelect;
 
+/**
+ * This workspace's analysis, only while it is running: the condition of every write a worker makes
+ * to a run it holds, so a cancelled or finished analysis is never touched again.
+ */
+function isRunningAnalysis(workspaceId: string, analysisId: string) {
+  return and(
+    eq(analyses.workspaceId, workspaceId),
+    eq(analyses.id, analysisId),
+    eq(analyses.status, "running"),
+  );
+}
+
+/**
+ * A running analysis whose worker is gone: no heartbeat (or start, for a run from before
+ * heartbeats) within the last `staleAfterMs`.
+ */
+function isLostRun(staleAfterMs: number) {
+  return and(
+    eq(analyses.status, "running"),
+    sql`coalesce(${analyses.heartbeatAt}, ${analyses.startedAt}) < now() - make_interval(secs => ${staleAfterMs / 1000})`,
+  );
+}
+
 /** A registered file as an analysis reads it. */
 export type AnalysisInputFile = Pick<
   DataFile,
@@ -218,13 +241,7 @@ export async function claimAnalysis(
       and(
         eq(analyses.workspaceId, workspaceId),
         eq(analyses.id, analysisId),
-        or(
-          eq(analyses.status, "queued"),
-          and(
-            eq(analyses.status, "running"),
-            sql`coalesce(${analyses.heartbeatAt}, ${analyses.startedAt}) < now() - make_interval(secs => ${staleAfterMs / 1000})`,
-          ),
-        ),
+        or(eq(analyses.status, "queued"), isLostRun(staleAfterMs)),
       ),
     )
     .returning();
@@ -262,13 +279,7 @@ export async function recordProgress(
       fraction: progress.fraction,
       simulationProgress: progress.simulation,
     })
-    .where(
-      and(
-        eq(analyses.workspaceId, workspaceId),
-        eq(analyses.id, analysisId),
-        eq(analyses.status, "running"),
-      ),
-    )
+    .where(isRunningAnalysis(workspaceId, analysisId))
     .returning({ id: analyses.id });
   return updated.length > 0;
 }
@@ -278,13 +289,7 @@ export async function recordHeartbeat(workspaceId: string, analysisId: string): 
   const updated = await db()
     .update(analyses)
     .set({ heartbeatAt: sql`now()` })
-    .where(
-      and(
-        eq(analyses.workspaceId, workspaceId),
-        eq(analyses.id, analysisId),
-        eq(analyses.status, "running"),
-      ),
-    )
+    .where(isRunningAnalysis(workspaceId, analysisId))
     .returning({ id: analyses.id });
   return updated.length > 0;
 }
@@ -311,12 +316,7 @@ export async function handBackLostRuns(staleAfterMs: number, note: string): Prom
       failureMessage: note,
       heartbeatAt: null,
     })
-    .where(
-      and(
-        eq(analyses.status, "running"),
-        sql`coalesce(${analyses.heartbeatAt}, ${analyses.startedAt}) < now() - make_interval(secs => ${staleAfterMs / 1000})`,
-      ),
-    )
+    .where(isLostRun(staleAfterMs))
     .returning({
       analysisId: analyses.id,
       workspaceId: analyses.workspaceId,
@@ -332,13 +332,7 @@ export async function recordStorageUnreachable(
   const [row] = await db()
     .update(analyses)
     .set({ storageUnreachableSince: sql`coalesce(${analyses.storageUnreachableSince}, now())` })
-    .where(
-      and(
-        eq(analyses.workspaceId, workspaceId),
-        eq(analyses.id, analysisId),
-        eq(analyses.status, "running"),
-      ),
-    )
+    .where(isRunningAnalysis(workspaceId, analysisId))
     .returning({ since: analyses.storageUnreachableSince });
   return row?.since ?? undefined;
 }
@@ -376,13 +370,7 @@ export async function endRunUnsuccessfully(
       failureMessage: outcome.message,
       finishedAt: outcome.status === "failed" ? sql`now()` : null,
     })
-    .where(
-      and(
-        eq(analyses.workspaceId, workspaceId),
-        eq(analyses.id, analysisId),
-        eq(analyses.status, "running"),
-      ),
-    );
+    .where(isRunningAnalysis(workspaceId, analysisId));
 }
 
 /** What the API's analyses list shows of one analysis. */
