@@ -7,6 +7,8 @@ import {
 } from "@/lib/analysis/layouts/generators";
 import { formatShardId } from "@/lib/analysis/layouts/layout-rows";
 import { fnv1a32 } from "@/lib/analysis/layouts/split-by-group";
+import { seedCentres } from "@/lib/analysis/layouts/split-clusters";
+import { SeededRandom } from "@/lib/math/random";
 import { measureLabelSkew } from "@/lib/analysis/measure-label-skew";
 import { measureQuantitySkew } from "@/lib/analysis/measure-quantity-skew";
 import { countByShard, makeRows, shardsPerGroup } from "./support";
@@ -160,6 +162,29 @@ describe("clusters", () => {
       if (distances.indexOf(Math.min(...distances)) !== m) misplaced++;
     });
     expect(misplaced).toBe(0);
+  });
+
+  // k-means++ (Arthur & Vassilvitskii 2007, from memory) draws each next centre with weight d²: on
+  // four blobs 100 apart with unit spread, a second centre in an already chosen blob has weight
+  // about 1/10⁴ of the others, so every blob gets one of the four starting centres.
+  it("starts k-means from one centre per well-separated blob, the same for the same seed", () => {
+    const random = new SeededRandom(11);
+    const corners = [
+      [0, 0],
+      [100, 0],
+      [0, 100],
+      [100, 100],
+    ];
+    const values = new Float64Array(4 * 250 * 2);
+    for (let point = 0; point < 1000; point++) {
+      const [x, y] = corners[point % 4];
+      values[2 * point] = x + random.normal();
+      values[2 * point + 1] = y + random.normal();
+    }
+    const centres = seedCentres(values, 2, 4, new SeededRandom(3));
+    const blobs = centres.map(([x, y]) => 2 * Math.round(y / 100) + Math.round(x / 100));
+    expect([...blobs].sort()).toEqual([0, 1, 2, 3]);
+    expect(seedCentres(values, 2, 4, new SeededRandom(3))).toEqual(centres);
   });
 
   it("refuses features that are only the bias", () => {
