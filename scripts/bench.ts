@@ -15,6 +15,8 @@
  * `--huge`, never part of a plain run (it writes about 5.5 GB of CSV and takes many minutes), runs
  * the beyond-memory case: 10M rows under the default 2 GiB memory limit, so the encoded rows live in
  * a scratch file, against the 1M case in the same run (targets: peak ≤ 2 GiB, wall ≤ 12× the 1M's).
+ * `--workers`, never part of a plain run either, times one analysis of the 1M data by one worker
+ * process pinned to a core against two pinned workers sharing it in parts (scripts/bench/bench-workers.ts).
  */
 import { spawn } from "node:child_process";
 import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from "node:fs";
@@ -23,6 +25,7 @@ import path from "node:path";
 import type { DigestEncoding, PartitionSummary } from "../lib/analysis";
 import { countAvailableThreads } from "../lib/analysis/pass-pool";
 import { splitBenchFile, timeDigestFit } from "./bench/bench-digests";
+import { benchWorkers } from "./bench/bench-workers";
 import { writeBenchData, type BenchDataSpec } from "./bench/generate-data";
 import { LOAD_CLIENTS, LOAD_REPORTS, runLoadTest } from "./bench/load-test";
 
@@ -464,6 +467,7 @@ async function main(): Promise<void> {
     "--digests",
     "--layouts",
     "--huge",
+    "--workers",
   ].find((flag) => process.argv.includes(flag));
   if (only === undefined || only === "--small") await benchCase(CASES[0]);
   if (only === undefined || only === "--large") await benchCase(CASES[1]);
@@ -472,6 +476,10 @@ async function main(): Promise<void> {
   if (only === undefined || only === "--digests") await benchDigests(CASES[1], CASES[0]);
   if (only === undefined || only === "--layouts") await benchLayouts(CASES[0]);
   if (only === "--huge") await benchHuge();
+  // Never part of a plain run: it pins workers to both cores for minutes.
+  if (only === "--workers") {
+    await benchWorkers(root, await prepareData(CASES[1], "workers, one analysis in parts: "));
+  }
 }
 
 main().catch((error: unknown) => {
