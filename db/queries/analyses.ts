@@ -324,6 +324,30 @@ export async function handBackLostRuns(staleAfterMs: number, note: string): Prom
     });
 }
 
+/** Records that the run's rows went to a scratch file under this memory limit (bytes). */
+export async function recordRowsSpilled(
+  workspaceId: string,
+  analysisId: string,
+  limitBytes: number,
+): Promise<void> {
+  await db()
+    .update(analyses)
+    .set({ rowsSpilledAtLimit: limitBytes })
+    .where(and(eq(analyses.workspaceId, workspaceId), eq(analyses.id, analysisId)));
+}
+
+/** The memory limit under which the analysis's rows went to a scratch file, or null. */
+export async function findRowsSpilledAtLimit(
+  workspaceId: string,
+  analysisId: string,
+): Promise<number | null> {
+  const [row] = await db()
+    .select({ limit: analyses.rowsSpilledAtLimit })
+    .from(analyses)
+    .where(and(eq(analyses.workspaceId, workspaceId), eq(analyses.id, analysisId)));
+  return row?.limit ?? null;
+}
+
 /** Marks the run as waiting for storage since now, unless it already was; returns since when. */
 export async function recordStorageUnreachable(
   workspaceId: string,

@@ -115,6 +115,11 @@ export const analyses = pgTable(
     heartbeatAt: instant("heartbeat_at"),
     /** When a sweeper found this analysis's worker gone and handed the run back to the queue. */
     workerLostAt: instant("worker_lost_at"),
+    /**
+     * The memory limit (bytes) under which the run's rows went to a scratch file on the worker's
+     * disk, for the report to say so; null when they stayed in memory.
+     */
+    rowsSpilledAtLimit: bigint("rows_spilled_at_limit", { mode: "number" }),
     /** Since when the current run has been waiting for storage to answer again; null when it answers. */
     storageUnreachableSince: instant("storage_unreachable_since"),
   },

@@ -190,6 +190,8 @@ async function coordinateParts(
         },
       ],
       stageSeconds: clock.finish(),
+      // Each part holds its own rows in memory (the memory limit applies to one process).
+      spilledAtLimit: null,
     };
   } catch (error) {
     if (error instanceof PartFailedError) return { type: "input-error", message: error.message };

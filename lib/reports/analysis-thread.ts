@@ -7,6 +7,7 @@ import type { ReportInput } from "@/db/schema/analyses";
 import {
   AnalysisInputError,
   analyzePartition,
+  DEFAULT_MEMORY_LIMIT_BYTES,
   type AnalysisProgress,
   type SimulationProgress,
 } from "@/lib/analysis";
@@ -99,6 +100,7 @@ async function run(input: EngineThreadInput) {
   const reference = input.weights ? await readReferenceWeights(input.weights) : undefined;
   const dataset = openHashedObject(input.dataset);
   const layout = input.layout ? openHashedObject(input.layout) : undefined;
+  let spilled = false;
   const summary = await analyzePartition(
     {
       data: dataset.stream,
@@ -108,7 +110,7 @@ async function run(input: EngineThreadInput) {
       partitionName: input.layout?.name,
       referenceName: input.weights?.name,
       options: reference ? { ...input.options, reference: reference.weights } : input.options,
-      memory: input.memory,
+      memory: { ...input.memory, onScratchFile: () => (spilled = true) },
       onSimulationProgress: createSimulationProgressPoster(),
     },
     (progress) => {
@@ -119,7 +121,13 @@ async function run(input: EngineThreadInput) {
   const inputs = [dataset.describe()];
   if (layout) inputs.push(layout.describe());
   if (reference) inputs.push(reference.input);
-  post({ type: "finished", summary, inputs, stageSeconds: clock.finish() });
+  post({
+    type: "finished",
+    summary,
+    inputs,
+    stageSeconds: clock.finish(),
+    spilledAtLimit: spilled ? (input.memory.limitBytes ?? DEFAULT_MEMORY_LIMIT_BYTES) : null,
+  });
 }
 
 // Set by engine-thread.ts, the only code that starts this thread.

@@ -29,6 +29,8 @@ export type EngineThreadMessage =
       inputs: ReportInput[];
       /** Seconds per engine stage. */
       stageSeconds: Record<string, number>;
+      /** The memory limit under which rows went to a scratch file; null when they fit in memory. */
+      spilledAtLimit: number | null;
     }
   /** Bad input: the engine's message, written for the user. */
   | { type: "input-error"; message: string }

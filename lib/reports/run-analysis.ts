@@ -2,6 +2,7 @@ import {
   claimAnalysis,
   endRunUnsuccessfully,
   findAnalysisStatus,
+  recordRowsSpilled,
   type AnalysisInputFile,
 } from "@/db/queries/analyses";
 import { storeReport } from "@/db/queries/report-store";
@@ -142,6 +143,9 @@ export async function runAnalysis(job: AnalysisJob, options: RunOptions): Promis
       });
       await notifyEnded({ outcome: "failed", message: result.message });
       return { outcome: "failed", message: result.message };
+    }
+    if (result.spilledAtLimit !== null) {
+      await recordRowsSpilled(job.workspaceId, job.analysisId, result.spilledAtLimit);
     }
     const stored = await storeReport({
       ...job,

@@ -14,28 +14,19 @@ import PgBoss from "pg-boss";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, db } from "@/db/client";
 import { listAnalysisParts } from "@/db/queries/analysis-parts";
-import { analyses, reports } from "@/db/schema";
+import { reports } from "@/db/schema";
 import { analyzePartition, type PartitionSummary } from "@/lib/analysis";
 import { ANALYSIS_PART_JOB_POLICY, ANALYSIS_PART_QUEUE, startBoss } from "@/lib/jobs";
 import type { PartsSettings } from "@/lib/reports/analysis-in-parts";
-import { describePartRun } from "@/lib/reports/part-run-notes";
+import { describeRun } from "@/lib/reports/run-notes";
 import { runAnalysis } from "@/lib/reports/run-analysis";
-import { createTeam } from "@/tests/support/accounts";
-import { loadStackedDigitsCsv } from "../analysis/support/open-data";
 import { compareSummaries } from "../analysis/digests/support";
-import { storeInput } from "./support/stored-inputs";
+import { DIGITS_CSV, DIGITS_OPTIONS, queueDigitsAnalysis } from "./support/digits-analysis";
 
 const projectRoot = path.resolve(import.meta.dirname, "../../..");
 
-/** A dozen pixels (one blanked every 97th row, so imputed) and the ink category. */
-const FEATURES = [
-  ...["2_3", "2_4", "3_2", "3_5", "4_2", "4_5", "5_3", "5_4", "6_3", "1_4", "6_5"].map(
-    (cell) => `pixel_${cell}`,
-  ),
-  "ink",
-];
-const OPTIONS = { labelColumn: "digit", shardColumn: "shard", features: FEATURES };
-const CSV = loadStackedDigitsCsv(23);
+const OPTIONS = DIGITS_OPTIONS;
+const CSV = DIGITS_CSV;
 
 /** A worker process as deployed, its output kept to wait on. */
 class WorkerProcess {
@@ -120,24 +111,6 @@ function partsSettings(parts: number): PartsSettings {
   };
 }
 
-/** A queued analysis of the stored digits, as the start action leaves it. */
-async function queueDigitsAnalysis() {
-  const team = await createTeam();
-  const workspace = { workspaceId: team.workspaceId, uploadedBy: team.owner.id };
-  const dataset = await storeInput(workspace, "dataset", "digits.csv", CSV);
-  const [analysis] = await db()
-    .insert(analyses)
-    .values({
-      workspaceId: team.workspaceId,
-      title: "Digits in parts",
-      datasetFileId: dataset.id,
-      parameters: OPTIONS,
-      createdBy: team.owner.id,
-    })
-    .returning({ id: analyses.id });
-  return { analysisId: analysis.id, workspaceId: team.workspaceId };
-}
-
 async function storedSummary(analysisId: string): Promise<PartitionSummary> {
   const stored = await db().select().from(reports).where(eq(reports.analysisId, analysisId));
   expect(stored).toHaveLength(1);
@@ -178,7 +151,7 @@ describe("one analysis shared by several workers", () => {
       expect(worker.output).toMatch(new RegExp(`analysis ${job.analysisId}, part \\d of 3: read`));
     }
     // The report page says it ran in parts, and that none was redone.
-    expect(describePartRun(await listAnalysisParts(job.analysisId))).toEqual([
+    expect(describeRun({ parts: await listAnalysisParts(job.analysisId), rowsSpilledAtLimit: null })).toEqual([
       expect.stringMatching(/^Read in 3 parts, each by whichever worker took it/),
     ]);
   }, 600_000);
@@ -199,7 +172,7 @@ describe("one analysis shared by several workers", () => {
     );
     expectOneProcessSummary(await storedSummary(job.analysisId), await analyzeInOneProcess());
     // The report page says what happened.
-    expect(describePartRun(await listAnalysisParts(job.analysisId))).toEqual([
+    expect(describeRun({ parts: await listAnalysisParts(job.analysisId), rowsSpilledAtLimit: null })).toEqual([
       expect.stringMatching(/^Read in 3 parts/),
       `Part ${part} of 3 was redone after its worker stopped.`,
     ]);

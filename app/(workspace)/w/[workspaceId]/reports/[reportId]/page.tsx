@@ -5,11 +5,11 @@ import { DeleteReportControl } from "@/components/reports/delete-report-control"
 import { DigestProvenance } from "@/components/reports/digest-provenance";
 import { KeyFigures } from "@/components/reports/key-figures";
 import { MethodsSection } from "@/components/reports/methods-section";
-import { PartRunNotes } from "@/components/reports/part-run-notes";
 import { PreprocessingNotes } from "@/components/reports/preprocessing-notes";
 import { ReportEvidence } from "@/components/reports/report-evidence";
 import { ReportHeader } from "@/components/reports/report-header";
 import { ReportProvenance } from "@/components/reports/report-provenance";
+import { RunNotes } from "@/components/reports/run-notes";
 import { ShardTable } from "@/components/reports/shard-table";
 import { SimulationSection } from "@/components/reports/simulation-section";
 import { ReviewPanel } from "@/components/reviews/review-panel";
@@ -17,11 +17,12 @@ import { ReviewStateChip } from "@/components/reviews/review-state-chip";
 import { VerdictPanel } from "@/components/reports/verdict-panel";
 import { Cautions } from "@/components/workspace/cautions";
 import { listAnalysisParts } from "@/db/queries/analysis-parts";
+import { findRowsSpilledAtLimit } from "@/db/queries/analyses";
 import { findReport, findShardPage, listShardIds } from "@/db/queries/reports";
 import { findReviewOverview, listReviewerCandidates } from "@/db/queries/reviews";
 import { guardPage } from "@/lib/auth/page-guard";
 import { roleAllows } from "@/lib/auth/roles";
-import { describePartRun } from "@/lib/reports/part-run-notes";
+import { describeRun } from "@/lib/reports/run-notes";
 import { readShardTableView, SHARD_PAGE_SIZE } from "@/lib/reports/shard-table-view";
 import type { SearchParams } from "@/lib/validation/url-filters";
 
@@ -59,12 +60,14 @@ export default async function ReportPage({ params, searchParams }: PageProps) {
   const { user, workspace, report } = await loadReport(workspaceId, reportId);
   const { summary } = report;
   const shardView = readShardTableView(await searchParams);
-  const [review, reviewerCandidates, shardPage, shardIds, parts] = await Promise.all([
+  const [review, reviewerCandidates, shardPage, shardIds, parts, rowsSpilledAtLimit] =
+    await Promise.all([
     findReviewOverview(workspace.id, report.id),
     listReviewerCandidates(workspace.id),
     findShardPage(report.id, shardView),
     listShardIds(report.id, PICKABLE_SHARDS),
     listAnalysisParts(report.analysisId),
+    findRowsSpilledAtLimit(workspace.id, report.analysisId),
   ]);
   return (
     <article
@@ -85,7 +88,7 @@ export default async function ReportPage({ params, searchParams }: PageProps) {
       <KeyFigures summary={summary} shardCount={report.shardCount} />
       {summary.digests ? <DigestProvenance digests={summary.digests} /> : null}
       <ReportProvenance report={report} />
-      <PartRunNotes notes={describePartRun(parts)} />
+      <RunNotes notes={describeRun({ parts, rowsSpilledAtLimit })} />
       <Cautions sharing digests={summary.digests !== undefined} />
       <ReportEvidence summary={summary} shardCount={report.shardCount} />
       <SimulationSection summary={summary} />

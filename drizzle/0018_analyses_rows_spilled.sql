@@ -1,0 +1,1 @@
+ALTER TABLE "analyses" ADD COLUMN "rows_spilled_at_limit" bigint;
