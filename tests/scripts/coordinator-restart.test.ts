@@ -6,9 +6,6 @@
 // package, by island, two clients; every summary key to 1e-9 relative, methods.md §9).
 // Heartbeat and staleness are shortened (500 ms, 3 s) so the test is quick; the worker and this
 // test share a database of their own, so the test services' worker cannot take the job.
-import { mkdtempSync, readFileSync, rmSync } from "node:fs";
-import os from "node:os";
-import path from "node:path";
 import { Readable } from "node:stream";
 import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
@@ -34,59 +31,31 @@ import {
   issueClientKey,
 } from "@/lib/federated";
 import { stopSendingBoss } from "@/lib/jobs";
-import type { KeptService, SupervisedProcess } from "@/scripts/services/processes";
-import { Supervisor } from "@/scripts/services/processes";
-import { startWorker } from "@/scripts/services/worker";
 import { compareSummaries } from "@/tests/lib/analysis/digests/support";
 import { analyzeText } from "@/tests/lib/analysis/support/analyze-text";
 import { createPenguinClients, PENGUIN_COLUMNS } from "@/tests/lib/federated/support";
 import { createTeam } from "@/tests/support/accounts";
 import { createDigestRoutesClient } from "@/tests/support/digest-routes";
 import { createMigratedDatabase, dropDatabase } from "@/tests/support/private-database";
+import { superviseTestWorker } from "@/tests/support/supervised-test-worker";
 
-const projectRoot = path.resolve(import.meta.dirname, "../..");
 const savedEnvironment = { ...process.env };
-const supervisor = new Supervisor();
-let workDir: string;
-let logFile: string;
-let worker: KeptService;
+const testWorker = superviseTestWorker("coordinator-restart");
+const { waitFor } = testWorker;
 let penguins: Awaited<ReturnType<typeof createPenguinClients>>;
-
-const workerLog = () => readFileSync(logFile, "utf8");
-
-/** Waits (polling every 100 ms) until `read` returns a value, for at most `limitMs`. */
-async function waitFor<T>(
-  what: string,
-  read: () => Promise<T | undefined> | T | undefined,
-  limitMs: number,
-): Promise<T> {
-  const deadline = Date.now() + limitMs;
-  for (;;) {
-    const value = await read();
-    if (value !== undefined) return value;
-    if (Date.now() > deadline)
-      throw new Error(`${what} did not happen; worker log:\n${workerLog()}`);
-    await new Promise((resolve) => setTimeout(resolve, 100));
-  }
-}
 
 beforeAll(async () => {
   await createMigratedDatabase(databaseUrl.private);
-  workDir = mkdtempSync(path.join(os.tmpdir(), "partita-coordinator-restart-"));
-  logFile = path.join(workDir, "worker.log");
-  Object.assign(process.env, { WORKER_HEARTBEAT_MS: "500", WORKER_STALE_AFTER_MS: "3000" });
-  worker = startWorker(supervisor, projectRoot, { ...process.env }, logFile);
   penguins = await createPenguinClients();
-  await waitFor("worker start", () => (/ready/.test(workerLog()) ? true : undefined), 60_000);
+  await testWorker.start();
 });
 
 afterAll(async () => {
   await Promise.all([penguins.north.close(), penguins.south.close()]);
-  await supervisor.shutdown();
+  await testWorker.stop();
   await stopSendingBoss();
   await closeDb();
   await dropDatabase(databaseUrl.private);
-  rmSync(workDir, { recursive: true, force: true });
   process.env = savedEnvironment;
   process.env.DATABASE_URL = databaseUrl.original;
 });
@@ -130,13 +99,12 @@ describe("a worker killed while a federated coordinator waits", () => {
       60_000,
     );
 
-    const restarted = new Promise<SupervisedProcess>((resolve) => worker.onRestart(resolve));
-    const killedPid = worker.current.pid;
-    process.kill(-killedPid, "SIGKILL");
-    expect((await restarted).pid).not.toBe(killedPid);
+    const { killedPid, restartedPid } = await testWorker.killAndAwaitRestart();
+    expect(restartedPid).not.toBe(killedPid);
     await waitFor(
       "the lost coordinator's hand-back",
-      () => (/its coordinator's worker stopped; handed back/.test(workerLog()) ? true : undefined),
+      () =>
+        /its coordinator's worker stopped; handed back/.test(testWorker.log()) ? true : undefined,
       60_000,
     );
     // The same job, retried at once by pg-boss on the live worker, holds the analysis again.

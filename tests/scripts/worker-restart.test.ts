@@ -3,9 +3,6 @@
 // heartbeat and handed back, the status says what happened, and the analysis ends with exactly one
 // report. Heartbeat and staleness are shortened (500 ms, 3 s) so the test is quick; the worker
 // and this test share a database of their own, so the test services' worker cannot take the job.
-import { mkdtempSync, readFileSync, rmSync } from "node:fs";
-import os from "node:os";
-import path from "node:path";
 import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 
@@ -24,54 +21,26 @@ import { findAnalysisStatus } from "@/db/queries/analyses";
 import { reports } from "@/db/schema";
 import { stopSendingBoss } from "@/lib/jobs";
 import { interruptionNotice, toStatusJson } from "@/lib/reports/analysis-status";
-import type { KeptService, SupervisedProcess } from "@/scripts/services/processes";
-import { Supervisor } from "@/scripts/services/processes";
-import { startWorker } from "@/scripts/services/worker";
 import { createTeam } from "@/tests/support/accounts";
 import { actAs } from "@/tests/support/fake-session";
 import { createMigratedDatabase, dropDatabase } from "@/tests/support/private-database";
+import { superviseTestWorker } from "@/tests/support/supervised-test-worker";
 import { PENGUIN_OPTIONS, storePenguins } from "@/tests/lib/reports/support/stored-inputs";
 
-const projectRoot = path.resolve(import.meta.dirname, "../..");
 const savedEnvironment = { ...process.env };
-const supervisor = new Supervisor();
-let workDir: string;
-let logFile: string;
-let worker: KeptService;
-
-const workerLog = () => readFileSync(logFile, "utf8");
-
-/** Waits (polling every 100 ms) until `read` returns a value, for at most `limitMs`. */
-async function waitFor<T>(
-  what: string,
-  read: () => Promise<T | undefined> | T | undefined,
-  limitMs: number,
-): Promise<T> {
-  const deadline = Date.now() + limitMs;
-  for (;;) {
-    const value = await read();
-    if (value !== undefined) return value;
-    if (Date.now() > deadline)
-      throw new Error(`${what} did not happen; worker log:\n${workerLog()}`);
-    await new Promise((resolve) => setTimeout(resolve, 100));
-  }
-}
+const testWorker = superviseTestWorker("worker-restart");
+const { waitFor } = testWorker;
 
 beforeAll(async () => {
   await createMigratedDatabase(databaseUrl.private);
-  workDir = mkdtempSync(path.join(os.tmpdir(), "partita-worker-restart-"));
-  logFile = path.join(workDir, "worker.log");
-  Object.assign(process.env, { WORKER_HEARTBEAT_MS: "500", WORKER_STALE_AFTER_MS: "3000" });
-  worker = startWorker(supervisor, projectRoot, { ...process.env }, logFile);
-  await waitFor("worker start", () => (/ready/.test(workerLog()) ? true : undefined), 60_000);
+  await testWorker.start();
 });
 
 afterAll(async () => {
-  await supervisor.shutdown();
+  await testWorker.stop();
   await stopSendingBoss();
   await closeDb();
   await dropDatabase(databaseUrl.private);
-  rmSync(workDir, { recursive: true, force: true });
   process.env = savedEnvironment;
   process.env.DATABASE_URL = databaseUrl.original;
 });
@@ -107,12 +76,9 @@ describe("a worker killed mid-analysis", () => {
         },
         120_000,
       );
-      const restarted = new Promise<SupervisedProcess>((resolve) => worker.onRestart(resolve));
-      const killedPid = worker.current.pid;
-      process.kill(-killedPid, "SIGKILL");
       const killedAt = Date.now();
-
-      expect((await restarted).pid).not.toBe(killedPid);
+      const { killedPid, restartedPid } = await testWorker.killAndAwaitRestart();
+      expect(restartedPid).not.toBe(killedPid);
       // Noticed within a minute of the kill: queued again, with the reason on the page.
       const handedBack = await waitFor(
         "the lost run's notice",
@@ -154,7 +120,7 @@ describe("a worker killed mid-analysis", () => {
           .from(reports)
           .where(eq(reports.analysisId, analysisId)),
       ).toHaveLength(1);
-      expect(workerLog()).toMatch(/its worker stopped; handed back to the queue/);
+      expect(testWorker.log()).toMatch(/its worker stopped; handed back to the queue/);
     },
   );
 });
