@@ -40,6 +40,7 @@ import {
   TEXT_FORMAT_USAGE,
 } from "../lib/cli/analysis-flags";
 import { createProgressPrinter } from "../lib/cli/progress-lines";
+import { EXIT_BAD_INPUT, EXIT_INTERNAL, runCommand } from "../lib/cli/run-command";
 import { runOnServer, ServerAnalysisError } from "../lib/cli/server-run";
 import type { AnalysisOptionsInput } from "../lib/validation/analysis-options";
 
@@ -54,8 +55,6 @@ const USAGE = `usage: npm run analyze -- --data FILE --label COL (--partition FI
   scratch file in --scratch-dir (default $PARTITA_SCRATCH_DIR, else the temporary folder)
   --token defaults to $PARTITA_API_TOKEN; RULE is KEY OP VALUE, e.g. 'js>0.1' or verdict!=local-updates`;
 
-const EXIT_BAD_INPUT = 2;
-const EXIT_INTERNAL = 1;
 const EXIT_RULE_CROSSED = 3;
 
 /** Runs the analysis and answers the exit code: 0, or 3 when a --fail-on rule is crossed. */
@@ -259,30 +258,18 @@ function describeSimulation(simulation: PartitionSummary["simulation"]): string[
   ];
 }
 
-// exitCode instead of process.exit(): exiting at once would cut off JSON still queued for a pipe.
-main().then(
-  (code) => {
-    process.exitCode = code;
-  },
-  (error: unknown) => {
-    if (error instanceof AnalysisInputError || error instanceof FailOnRuleError) {
-      process.stderr.write(`partita: bad input: ${describeInputError(error)}\n`);
-      process.exitCode = EXIT_BAD_INPUT;
-      return;
-    }
-    if (error instanceof ServerError && error.status < 500) {
-      process.stderr.write(`partita: the server refused (${error.code}): ${error.message}\n`);
-      process.exitCode = EXIT_BAD_INPUT;
-      return;
-    }
-    if (error instanceof ServerAnalysisError) {
-      process.stderr.write(`partita: the analysis failed on the server: ${error.message}\n`);
-      process.exitCode = EXIT_INTERNAL;
-      return;
-    }
-    const message = error instanceof Error ? error.message : String(error);
-    process.stderr.write(`partita: internal error: ${message}\n`);
-    if (process.env.DEBUG && error instanceof Error) process.stderr.write(`${error.stack}\n`);
-    process.exitCode = EXIT_INTERNAL;
-  },
-);
+runCommand(main, (error) => {
+  if (error instanceof AnalysisInputError || error instanceof FailOnRuleError) {
+    return { line: `bad input: ${describeInputError(error)}`, exitCode: EXIT_BAD_INPUT };
+  }
+  if (error instanceof ServerError && error.status < 500) {
+    return {
+      line: `the server refused (${error.code}): ${error.message}`,
+      exitCode: EXIT_BAD_INPUT,
+    };
+  }
+  if (error instanceof ServerAnalysisError) {
+    return { line: `the analysis failed on the server: ${error.message}`, exitCode: EXIT_INTERNAL };
+  }
+  return undefined;
+});

@@ -43,6 +43,7 @@ import {
 import { createApiClient, ServerError } from "../lib/cli/api-client";
 import { readDigestFile, writeJson } from "../lib/cli/digest-files";
 import { FederatedAnalysisFailed, runOnlineClient } from "../lib/cli/digest-online";
+import { EXIT_BAD_INPUT, runCommand } from "../lib/cli/run-command";
 import { analysisOptionsSchema } from "../lib/validation/analysis-options";
 
 const USAGE = `usage: npm run digest -- --server URL --key K DATA_FLAGS [--dry-run]
@@ -53,9 +54,6 @@ const USAGE = `usage: npm run digest -- --server URL --key K DATA_FLAGS [--dry-r
          [--local-steps K] [--rounds R] [--batch-size b] --out FILE
   DATA_FLAGS: --data FILE --label COL (--shard-column COL | --partition FILE | --shard NAME)
     [--id-column COL] [--features a,b,…] [--task classification|regression]`;
-
-const EXIT_BAD_INPUT = 2;
-const EXIT_INTERNAL = 1;
 
 const text = { type: "string" } as const;
 type Flags = Partial<Record<string, string>>;
@@ -243,29 +241,15 @@ function readFlags(argv: string[]): { flags: Flags; files: string[]; dryRun: boo
   }
 }
 
-// exitCode instead of process.exit(): exiting at once would cut off JSON still queued for a pipe.
-main().then(
-  () => {
-    process.exitCode = 0;
-  },
-  (error: unknown) => {
-    if (error instanceof AnalysisInputError) {
-      process.stderr.write(`partita: bad input: ${error.message}\n`);
-      process.exitCode = EXIT_BAD_INPUT;
-      return;
-    }
-    if (error instanceof ServerError || error instanceof FederatedAnalysisFailed) {
-      const who =
-        error instanceof ServerError
-          ? `the server refused (${error.status})`
-          : "the analysis failed";
-      process.stderr.write(`partita: ${who}: ${error.message}\n`);
-      process.exitCode = EXIT_BAD_INPUT;
-      return;
-    }
-    const message = error instanceof Error ? error.message : String(error);
-    process.stderr.write(`partita: internal error: ${message}\n`);
-    if (process.env.DEBUG && error instanceof Error) process.stderr.write(`${error.stack}\n`);
-    process.exitCode = EXIT_INTERNAL;
-  },
-);
+runCommand(main, (error) => {
+  if (error instanceof ServerError) {
+    return {
+      line: `the server refused (${error.status}): ${error.message}`,
+      exitCode: EXIT_BAD_INPUT,
+    };
+  }
+  if (error instanceof FederatedAnalysisFailed) {
+    return { line: `the analysis failed: ${error.message}`, exitCode: EXIT_BAD_INPUT };
+  }
+  return undefined;
+});

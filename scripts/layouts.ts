@@ -31,6 +31,7 @@ import {
   requireReadableFile,
 } from "../lib/cli/analysis-flags";
 import { createProgressPrinter } from "../lib/cli/progress-lines";
+import { EXIT_BAD_INPUT, EXIT_INTERNAL, runCommand } from "../lib/cli/run-command";
 
 const USAGE = `usage: npm run layouts -- --data FILE --label COL --shards M --out-dir DIR
   [--group COL] [--id-column COL] [--features a,b,…] [--task classification|regression]
@@ -41,9 +42,6 @@ quantity:0.5, clusters; with --group also group-hash and group-balanced):
 ${LAYOUT_GENERATORS.map((name) => `  ${name.padEnd(15)}${GENERATOR_FACTS[name].models}`).join("\n")}
   dirichlet:A takes the total concentration α (dirichlet:beta=B: β per class, α = β·C);
   classes:K the classes per shard; quantity:B the concentration β of the shard sizes.`;
-
-const EXIT_BAD_INPUT = 2;
-const EXIT_INTERNAL = 1;
 
 async function main(): Promise<number> {
   const flags = readFlags(process.argv.slice(2));
@@ -162,20 +160,4 @@ function describeComparison(comparison: LayoutComparison): string {
   return `${[header, ...lines, ...failures].join("\n")}\n`;
 }
 
-// exitCode instead of process.exit(): exiting at once would cut off output still queued for a pipe.
-main().then(
-  (code) => {
-    process.exitCode = code;
-  },
-  (error: unknown) => {
-    if (error instanceof AnalysisInputError) {
-      process.stderr.write(`partita: bad input: ${error.message}\n`);
-      process.exitCode = EXIT_BAD_INPUT;
-      return;
-    }
-    const message = error instanceof Error ? error.message : String(error);
-    process.stderr.write(`partita: internal error: ${message}\n`);
-    if (process.env.DEBUG && error instanceof Error) process.stderr.write(`${error.stack}\n`);
-    process.exitCode = EXIT_INTERNAL;
-  },
-);
+runCommand(main);
