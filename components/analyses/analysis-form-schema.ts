@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { DECIMAL_MARKS, DELIMITERS, TEXT_ENCODINGS } from "@/lib/analysis/text-format";
+import { DECIMAL_MARKS, DELIMITERS, TEXT_ENCODINGS } from "@/lib/analysis/browser";
 import {
   DEFAULT_SIMULATION_SEEDS,
   MAX_SIMULATION_SEEDS,

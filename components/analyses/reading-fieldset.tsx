@@ -11,7 +11,7 @@ import {
   type DecimalMark,
   type Delimiter,
   type TextEncodingName,
-} from "@/lib/analysis/text-format";
+} from "@/lib/analysis/browser";
 
 const ENCODING_NAMES: Record<TextEncodingName, string> = {
   "utf-8": "UTF-8",

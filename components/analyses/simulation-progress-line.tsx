@@ -1,4 +1,4 @@
-import type { SimulationProgress } from "@/lib/analysis/simulation/simulate-plan";
+import type { SimulationProgress } from "@/lib/analysis/browser";
 import { describeSimulationPhase, describeSimulationProgress } from "@/lib/reports/simulation-view";
 import { ProgressBar } from "./progress-bar";
 

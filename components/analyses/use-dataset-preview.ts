@@ -4,7 +4,7 @@ import { useQuery } from "@tanstack/react-query";
 import { previewDatasetAs } from "@/app/(workspace)/w/[workspaceId]/analyses/new/actions";
 import type { AnalysisFormValues } from "@/components/analyses/analysis-form-schema";
 import type { DataFileSummary } from "@/db/queries/data-files";
-import type { CsvFormatChoice } from "@/lib/analysis/text-format";
+import type { CsvFormatChoice } from "@/lib/analysis/browser";
 
 /**
  * The reading options the user changed from those detected at upload, or null while the detected

@@ -2,7 +2,7 @@
 
 import { ResponsiveScatterPlot } from "@nivo/scatterplot";
 import { CHART_THEME, PALETTE } from "@/components/reports/charts/chart-style";
-import type { Verdict } from "@/lib/analysis/advise-plan";
+import type { Verdict } from "@/lib/analysis/browser";
 import type { ComparisonRow } from "@/lib/layout-plans/comparison-view";
 import { formatFigure, VERDICT_LABELS } from "@/lib/reports/report-view";
 

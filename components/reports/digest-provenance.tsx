@@ -1,4 +1,4 @@
-import type { DigestProvenance as Provenance } from "@/lib/analysis/summary";
+import type { DigestProvenance as Provenance } from "@/lib/analysis/browser";
 
 /**
  * For a report built from client digests (methods.md §9): how many clients sent what (shards and

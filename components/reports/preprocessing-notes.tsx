@@ -1,4 +1,4 @@
-import type { PartitionSummary } from "@/lib/analysis/summary";
+import type { PartitionSummary } from "@/lib/analysis/browser";
 import { DIGEST_CAUTION } from "@/lib/federated/digest-caution";
 
 const OMISSION_REASONS = {

@@ -1,4 +1,4 @@
-import type { PartitionSummary } from "@/lib/analysis/summary";
+import type { PartitionSummary } from "@/lib/analysis/browser";
 import { computeBoundCurves, readBoundInputs } from "@/lib/reports/bound-curves";
 import { TOP_CHART_SHARDS } from "@/lib/reports/chart-shards";
 import { computeRegimeMap } from "@/lib/reports/regime-map";

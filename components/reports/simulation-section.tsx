@@ -1,4 +1,4 @@
-import type { PartitionSummary } from "@/lib/analysis/summary";
+import type { PartitionSummary } from "@/lib/analysis/browser";
 import { formatFigure } from "@/lib/reports/report-view";
 import {
   ALGORITHM_LABELS,

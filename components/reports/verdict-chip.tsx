@@ -1,4 +1,4 @@
-import type { Verdict } from "@/lib/analysis/advise-plan";
+import type { Verdict } from "@/lib/analysis/browser";
 import { VERDICT_LABELS } from "@/lib/reports/report-view";
 
 export const VERDICT_TONES: Record<Verdict, string> = {

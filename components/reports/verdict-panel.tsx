@@ -1,4 +1,4 @@
-import type { PartitionSummary } from "@/lib/analysis/summary";
+import type { PartitionSummary } from "@/lib/analysis/browser";
 import {
   computeBarrierThreshold,
   formatFigure,

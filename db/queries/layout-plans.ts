@@ -2,10 +2,11 @@ import "server-only";
 import { and, asc, desc, eq, inArray, isNull, sql } from "drizzle-orm";
 import { db } from "@/db/client";
 import { dataFiles, layoutCandidates, layoutPlans } from "@/db/schema";
-import type { PartitionSummary } from "@/lib/analysis";
-// The generators' module itself: the engine's index also exports the passes' and the simulation's
-// worker threads, which a server bundle cannot hold.
-import { describeLayoutParameters, nameLayout } from "@/lib/analysis/layouts/generators";
+import {
+  describeLayoutParameters,
+  nameLayout,
+  type PartitionSummary,
+} from "@/lib/analysis/browser";
 import type { LayoutPlanRequest } from "@/lib/validation/layout-plan";
 import { findInputFiles, type AnalysisInputFile } from "./analyses";
 

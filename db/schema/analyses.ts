@@ -13,9 +13,7 @@ import {
 } from "drizzle-orm/pg-core";
 import { cascadingReference, createdAt, instant, uuidPrimaryKey } from "./columns";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
-import type { PartitionSummary } from "@/lib/analysis/summary";
-import type { CsvFormat } from "@/lib/analysis/text-format";
-import type { SimulationProgress } from "@/lib/analysis/simulation/simulate-plan";
+import type { CsvFormat, PartitionSummary, SimulationProgress } from "@/lib/analysis/browser";
 import { users } from "./auth";
 import { workspaces } from "./workspaces";
 

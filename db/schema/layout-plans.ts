@@ -11,8 +11,7 @@ import {
   primaryKey,
   text,
 } from "drizzle-orm/pg-core";
-import type { LayoutSpec } from "@/lib/analysis/layouts/generators";
-import type { PartitionSummary } from "@/lib/analysis/summary";
+import type { LayoutSpec, PartitionSummary } from "@/lib/analysis/browser";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
 import { dataFiles } from "./analyses";
 import { users } from "./auth";

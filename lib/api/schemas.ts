@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { DECIMAL_MARKS, DELIMITERS, TEXT_ENCODINGS } from "@/lib/analysis/text-format";
+import { DECIMAL_MARKS, DELIMITERS, TEXT_ENCODINGS } from "@/lib/analysis/browser";
 import { VERDICTS } from "@/lib/reports/report-filters";
 import { DATA_FILE_KINDS } from "@/lib/uploads/file-rules";
 

@@ -18,9 +18,7 @@ import {
   type DigestEncoding,
   type GradientDigest,
 } from "@/lib/analysis/digests/digest-format";
-import { parseDigest } from "@/lib/analysis/digests/parse-digest";
-import { AnalysisInputError } from "@/lib/analysis/errors";
-import { PATH_POINTS } from "@/lib/analysis/path-points";
+import { AnalysisInputError, parseDigest, PATH_POINTS } from "@/lib/analysis/browser";
 import type { ClientCaller } from "@/lib/auth/client-key-guard";
 import { RuleError } from "@/lib/errors";
 import { ENDED_STATES, recordRefusal } from "./federated-rules";

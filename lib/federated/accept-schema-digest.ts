@@ -11,8 +11,7 @@ import {
   type SchemaDigest,
 } from "@/lib/analysis/digests/digest-format";
 import { checkSchemaAgreement } from "@/lib/analysis/digests/merge-schemas";
-import { parseDigest } from "@/lib/analysis/digests/parse-digest";
-import { AnalysisInputError } from "@/lib/analysis/errors";
+import { AnalysisInputError, parseDigest } from "@/lib/analysis/browser";
 import type { ClientCaller } from "@/lib/auth/client-key-guard";
 import { RuleError } from "@/lib/errors";
 import { buildEncodingWhenReady } from "./build-encoding";

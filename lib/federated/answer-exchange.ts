@@ -6,8 +6,7 @@ import {
   evaluationRequestSchema,
   evaluationSumsSchema,
 } from "@/lib/analysis/digests/digest-format";
-import { parseDigest } from "@/lib/analysis/digests/parse-digest";
-import { AnalysisInputError } from "@/lib/analysis/errors";
+import { AnalysisInputError, parseDigest } from "@/lib/analysis/browser";
 import type { ClientCaller } from "@/lib/auth/client-key-guard";
 import { RuleError } from "@/lib/errors";
 import { recordRefusal } from "./federated-rules";

@@ -8,7 +8,7 @@ import {
 import { listFederatedDigests } from "@/db/queries/federated-digests";
 import type { SchemaDigest } from "@/lib/analysis/digests/digest-format";
 import { mergeSchemaDigests } from "@/lib/analysis/digests/merge-schemas";
-import { AnalysisInputError } from "@/lib/analysis/errors";
+import { AnalysisInputError } from "@/lib/analysis/browser";
 import { enqueueFederatedAnalysis } from "@/lib/jobs";
 import { orderRoster } from "./federated-rules";
 

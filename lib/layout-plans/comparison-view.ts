@@ -1,9 +1,11 @@
 import type { LayoutCandidateRow, LayoutPlanView } from "@/db/queries/layout-plans";
-import type { LayoutCandidate, LayoutComparison, PartitionSummary } from "@/lib/analysis";
-// The ranking's module itself: the engine's index also exports worker threads a server bundle
-// cannot hold.
-import { rankLayouts } from "@/lib/analysis/layouts/rank-layouts";
-import type { Verdict } from "@/lib/analysis/advise-plan";
+import {
+  rankLayouts,
+  type LayoutCandidate,
+  type LayoutComparison,
+  type PartitionSummary,
+  type Verdict,
+} from "@/lib/analysis/browser";
 
 /** One scored candidate as a row of the comparison table (methods.md §8's columns). */
 export interface ComparisonRow {

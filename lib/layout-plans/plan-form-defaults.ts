@@ -1,10 +1,4 @@
-// The generators' module itself: the engine's index also exports worker threads a server bundle
-// cannot hold.
-import {
-  GENERATOR_FACTS,
-  type LayoutGenerator,
-  type LayoutSpec,
-} from "@/lib/analysis/layouts/generators";
+import { GENERATOR_FACTS, type LayoutGenerator, type LayoutSpec } from "@/lib/analysis/browser";
 
 /** One line of the form's generator list: a generator, its parameter if any, and what it models. */
 export interface GeneratorChoice {

@@ -1,10 +1,4 @@
-import {
-  computeBounds,
-  LOCAL_STEP_CHOICES,
-  type BoundInputs,
-  type Bounds,
-} from "@/lib/analysis/advise-plan";
-import type { PartitionSummary } from "@/lib/analysis/summary";
+import { computeBounds, LOCAL_STEP_CHOICES, type BoundInputs, type Bounds, type PartitionSummary } from "@/lib/analysis/browser";
 
 /**
  * The constants and plan the engine fed to its bounds (lib/analysis/analyze-partition.ts): H, B,

@@ -1,4 +1,4 @@
-import { MAX_AGREEMENT_SHARDS } from "@/lib/analysis/assemble-summary";
+import { MAX_AGREEMENT_SHARDS } from "@/lib/analysis/browser";
 
 /**
  * How many shards a report page's charts need. Up to ALL_CHART_SHARDS (as many as the engine

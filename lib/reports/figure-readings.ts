@@ -1,4 +1,4 @@
-import type { PartitionSummary } from "@/lib/analysis/summary";
+import type { PartitionSummary } from "@/lib/analysis/browser";
 import { computeBarrierThreshold, formatFigure } from "./report-view";
 
 /** α̂ is searched in [1e-3, 1e6] (methods.md §4); at the top it means "indistinguishable from IID". */

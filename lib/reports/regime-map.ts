@@ -5,7 +5,7 @@ import {
   ROUND_CHOICES,
   type BoundInputs,
   type Verdict,
-} from "@/lib/analysis/advise-plan";
+} from "@/lib/analysis/browser";
 
 export interface RegimeMap {
   /** Rows: local steps K, ascending (powers of two up to 4096 and the plan's K). */

@@ -1,4 +1,4 @@
-import type { PartitionSummary } from "@/lib/analysis/summary";
+import type { PartitionSummary } from "@/lib/analysis/browser";
 import type { ReportInput } from "@/db/schema/analyses";
 import { formatBytes } from "@/lib/uploads/file-rules";
 import { formatFigure, VERDICT_LABELS } from "./report-view";

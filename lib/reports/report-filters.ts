@@ -5,7 +5,7 @@ import {
   type SearchParams,
   type UrlFilters,
 } from "@/lib/validation/url-filters";
-import type { Verdict } from "@/lib/analysis/advise-plan";
+import type { Verdict } from "@/lib/analysis/browser";
 
 export const VERDICTS = [
   "local-updates",

@@ -1,5 +1,4 @@
-import type { Verdict } from "@/lib/analysis/advise-plan";
-import type { PartitionSummary, ShardSummary } from "@/lib/analysis/summary";
+import type { PartitionSummary, ShardSummary, Verdict } from "@/lib/analysis/browser";
 
 export const VERDICT_LABELS: Record<Verdict, string> = {
   "local-updates": "Local updates",

@@ -1,13 +1,6 @@
 import "server-only";
 import type { DataFilePreview } from "@/db/schema/analyses";
-import { MAX_ONE_HOT_LEVELS } from "@/lib/analysis/column-accumulator";
-import type { TrainingPlan } from "@/lib/analysis/simulation/run-algorithm";
-import {
-  countOf,
-  estimateEvaluationCost,
-  estimateSimulationCost,
-  fitWithinBudget,
-} from "@/lib/analysis/simulation/simulation-cost";
+import { countOf, estimateEvaluationCost, estimateSimulationCost, fitWithinBudget, MAX_ONE_HOT_LEVELS, type TrainingPlan } from "@/lib/analysis/browser";
 import { formatFigure } from "@/lib/reports/report-view";
 import { detectTask } from "@/lib/uploads/preview-task";
 import type { AnalysisOptions } from "@/lib/validation/analysis-options";

@@ -1,6 +1,4 @@
-import type { Verdict } from "@/lib/analysis/advise-plan";
-import type { AlgorithmName } from "@/lib/analysis/simulation/run-algorithm";
-import type { AlgorithmResult, SimulationProgress } from "@/lib/analysis/simulation/simulate-plan";
+import type { AlgorithmName, AlgorithmResult, SimulationProgress, Verdict } from "@/lib/analysis/browser";
 import { formatFigure, VERDICT_LABELS } from "./report-view";
 
 // How the simulation of methods.md §7 reads in the product: names, progress lines, the report's

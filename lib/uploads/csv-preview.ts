@@ -2,16 +2,18 @@ import Papa from "papaparse";
 import type { DataFilePreview } from "@/db/schema/analyses";
 import { DECIMAL_MARK_SAMPLE_ROWS, detectDecimalMark, readHeader } from "@/lib/analysis/csv-reader";
 import { describeNonText } from "@/lib/analysis/decode-text";
-import { AnalysisInputError } from "@/lib/analysis/errors";
 import {
+  AnalysisInputError,
   DELIMITERS,
+  isMissingToken,
+  parseNumberToken,
+  trimToken,
   type CsvFormat,
   type CsvFormatChoice,
   type DecimalMark,
   type Delimiter,
   type TextEncodingName,
-} from "@/lib/analysis/text-format";
-import { isMissingToken, parseNumberToken, trimToken } from "@/lib/analysis/tokens";
+} from "@/lib/analysis/browser";
 
 /** How much of a file's beginning the server reads for a preview. */
 export const PREVIEW_BYTES = 256 * 1024;

@@ -1,7 +1,7 @@
 // What Partita accepts as an upload, shared by the browser (checks before any byte is sent) and the
 // server (the same checks again, since a browser can be bypassed). No Node or Next.js imports.
 
-import { quoteValue } from "@/lib/analysis/quote-value";
+import { quoteValue } from "@/lib/analysis/browser";
 
 export const DATA_FILE_KINDS = ["dataset", "layout", "weights"] as const;
 export type DataFileKind = (typeof DATA_FILE_KINDS)[number];

@@ -1,9 +1,7 @@
 import "server-only";
 import type { DataFilePreview } from "@/db/schema/analyses";
-import { AnalysisInputError } from "@/lib/analysis/errors";
-import { quoteValue } from "@/lib/analysis/quote-value";
+import { AnalysisInputError, quoteValue, type CsvFormatChoice } from "@/lib/analysis/browser";
 import { RuleError } from "@/lib/errors";
-import type { CsvFormatChoice } from "@/lib/analysis/text-format";
 import { deleteObject, getObjectRange, headObject } from "@/lib/storage";
 import { findUploadProblem, formatBytes, type DataFileKind } from "./file-rules";
 import {

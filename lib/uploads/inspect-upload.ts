@@ -1,5 +1,5 @@
 import type { DataFilePreview } from "@/db/schema/analyses";
-import { AnalysisInputError } from "@/lib/analysis/errors";
+import { AnalysisInputError, quoteValue } from "@/lib/analysis/browser";
 import { referenceWeightsSchema } from "@/lib/validation/analysis-options";
 import {
   describeColumns,
@@ -8,7 +8,6 @@ import {
   summarizeCsvHead,
   type CsvPreviewSource,
 } from "./csv-preview";
-import { quoteValue } from "@/lib/analysis/quote-value";
 
 /** Reference weights are read whole; a model over thousands of features stays far below this. */
 export const WEIGHTS_MAX_BYTES = 8 * 1024 * 1024;

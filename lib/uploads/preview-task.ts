@@ -1,5 +1,5 @@
 import type { DataFilePreview } from "@/db/schema/analyses";
-import { MAX_CLASSES_FOR_NUMERIC_LABEL } from "@/lib/analysis/task-rules";
+import { MAX_CLASSES_FOR_NUMERIC_LABEL } from "@/lib/analysis/browser";
 
 /**
  * How the engine will treat a label (methods.md §1), as far as its preview column shows: regression

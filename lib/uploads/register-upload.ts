@@ -1,6 +1,6 @@
 import "server-only";
 import { findSameContents, insertDataFile, type DataFileSummary } from "@/db/queries/data-files";
-import { quoteValue } from "@/lib/analysis/quote-value";
+import { quoteValue } from "@/lib/analysis/browser";
 import { env } from "@/lib/env";
 import { RuleError } from "@/lib/errors";
 import { openHashedObject } from "@/lib/reports/hashed-object";

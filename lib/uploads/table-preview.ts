@@ -1,13 +1,12 @@
 import { constants, gunzipSync } from "node:zlib";
 import type { DataFilePreview } from "@/db/schema/analyses";
-import { AnalysisInputError } from "@/lib/analysis/errors";
+import { AnalysisInputError, type CsvFormat, type CsvFormatChoice } from "@/lib/analysis/browser";
 import {
   readParquetHead,
   readParquetLayout,
   type AsyncBuffer,
 } from "@/lib/analysis/parquet-reader";
 import { detectTableFormat } from "@/lib/analysis/table-reader";
-import type { CsvFormat, CsvFormatChoice } from "@/lib/analysis/text-format";
 import {
   PREVIEW_BYTES,
   PREVIEW_ROWS,

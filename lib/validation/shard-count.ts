@@ -1,5 +1,5 @@
 import type { DataFilePreview } from "@/db/schema/analyses";
-import { quoteValue } from "@/lib/analysis/quote-value";
+import { quoteValue } from "@/lib/analysis/browser";
 
 /**
  * The form's and the API's sentence when a plan asks for more shards per round than there are.

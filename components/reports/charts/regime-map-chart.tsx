@@ -1,7 +1,7 @@
 "use client";
 
 import { ResponsiveHeatMap, type CustomLayerProps } from "@nivo/heatmap";
-import type { Verdict } from "@/lib/analysis/advise-plan";
+import type { Verdict } from "@/lib/analysis/browser";
 import {
   formatCountTick,
   labelWidth,

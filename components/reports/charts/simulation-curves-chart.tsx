@@ -1,7 +1,7 @@
 "use client";
 
 import { ResponsiveLine, type LineCustomSvgLayerProps } from "@nivo/line";
-import type { AlgorithmName } from "@/lib/analysis/simulation/run-algorithm";
+import type { AlgorithmName } from "@/lib/analysis/browser";
 import { formatDecade, spanDecades } from "@/lib/reports/report-view";
 import type { CurvePoint } from "@/lib/reports/simulation-view";
 import { CHART_THEME, PALETTE } from "./chart-style";

@@ -8,7 +8,7 @@ import { RuleError } from "@/lib/errors";
 import { deleteObject } from "@/lib/storage";
 import { previewStoredDataset } from "@/lib/uploads/inspect-stored-upload";
 import { registerUpload, type RegisteredFile } from "@/lib/uploads/register-upload";
-import type { CsvFormatChoice } from "@/lib/analysis/text-format";
+import type { CsvFormatChoice } from "@/lib/analysis/browser";
 import { csvFormatChoiceSchema } from "@/lib/validation/analysis-options";
 import type { RegisterDataFileInput } from "@/lib/validation/upload";
 
