@@ -1,5 +1,5 @@
 import "server-only";
-import { and, asc, desc, eq, inArray, isNull, sql } from "drizzle-orm";
+import { and, asc, desc, eq, exists, inArray, isNull, sql } from "drizzle-orm";
 import { db } from "@/db/client";
 import { dataFiles, layoutCandidates, layoutPlans } from "@/db/schema";
 import {
@@ -217,6 +217,14 @@ export async function claimLayoutPlan(
 const planIs = (workspaceId: string, planId: string) =>
   and(eq(layoutPlans.workspaceId, workspaceId), eq(layoutPlans.id, planId));
 
+/** The plan, in its workspace, while a worker scores it: every write of a run checks this. */
+const planRunning = (workspaceId: string, planId: string) =>
+  and(planIs(workspaceId, planId), eq(layoutPlans.status, "running"));
+
+/** The plan's candidates that have not ended, which end with the plan. */
+const unfinishedCandidates = (planId: string) =>
+  and(eq(layoutCandidates.planId, planId), inArray(layoutCandidates.status, ["queued", "running"]));
+
 /** Stores the shared stage's progress; false when the plan is no longer running (cancelled). */
 export async function recordLayoutPlanProgress(
   workspaceId: string,
@@ -226,7 +234,7 @@ export async function recordLayoutPlanProgress(
   const rows = await db()
     .update(layoutPlans)
     .set(progress)
-    .where(and(planIs(workspaceId, planId), eq(layoutPlans.status, "running")))
+    .where(planRunning(workspaceId, planId))
     .returning({ id: layoutPlans.id });
   return rows.length > 0;
 }
@@ -268,7 +276,12 @@ export async function updateLayoutCandidate(
       and(
         eq(layoutCandidates.planId, planId),
         eq(layoutCandidates.ordinal, ordinal),
-        sql`exists (select 1 from ${layoutPlans} where ${layoutPlans.id} = ${planId} and ${layoutPlans.workspaceId} = ${workspaceId} and ${layoutPlans.status} = 'running')`,
+        exists(
+          db()
+            .select({ id: layoutPlans.id })
+            .from(layoutPlans)
+            .where(planRunning(workspaceId, planId)),
+        ),
       ),
     );
 }
@@ -291,18 +304,13 @@ export async function endLayoutPlan(
         finishedAt: end.status === "queued" ? null : sql`now()`,
         fraction: end.status === "succeeded" ? 1 : layoutPlans.fraction,
       })
-      .where(and(planIs(workspaceId, planId), eq(layoutPlans.status, "running")))
+      .where(planRunning(workspaceId, planId))
       .returning({ id: layoutPlans.id });
     if (rows.length === 0 || end.status === "queued") return;
     await tx
       .update(layoutCandidates)
       .set({ status: "failed", failureMessage: end.message ?? null, finishedAt: sql`now()` })
-      .where(
-        and(
-          eq(layoutCandidates.planId, planId),
-          inArray(layoutCandidates.status, ["queued", "running"]),
-        ),
-      );
+      .where(unfinishedCandidates(planId));
   });
 }
 
@@ -321,12 +329,7 @@ export async function cancelLayoutPlan(workspaceId: string, planId: string): Pro
     await tx
       .update(layoutCandidates)
       .set({ status: "cancelled", finishedAt: sql`now()` })
-      .where(
-        and(
-          eq(layoutCandidates.planId, planId),
-          inArray(layoutCandidates.status, ["queued", "running"]),
-        ),
-      );
+      .where(unfinishedCandidates(planId));
     return true;
   });
 }
