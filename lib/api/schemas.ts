@@ -17,28 +17,6 @@ export const reportPathSchema = z.object({
   reportId: resourceId.meta({ description: "A report id, e.g. from GET /api/v1/reports." }),
 });
 
-/** GET /api/v1/reports: unlike the list page, a bad filter is the caller's mistake (422). */
-export const listReportsQuerySchema = z.object({
-  verdict: z.enum(VERDICTS).optional().meta({ description: "Only reports with this verdict." }),
-  q: z
-    .string()
-    .trim()
-    .min(1)
-    .max(100)
-    .optional()
-    .meta({ description: "Only reports whose title contains this text." }),
-  limit: z.coerce
-    .number()
-    .int()
-    .min(1)
-    .max(100)
-    .default(50)
-    .meta({ description: "How many reports, newest first (1–100)." }),
-  cursor: z.string().max(300).optional().meta({
-    description: "Start after the reports already listed: the nextCursor of the previous page.",
-  }),
-});
-
 /** A page of a newest-first list: how many, and where the previous page ended. */
 export const listPageQuerySchema = z.object({
   limit: z.coerce
@@ -51,6 +29,18 @@ export const listPageQuerySchema = z.object({
   cursor: z.string().max(300).optional().meta({
     description: "Start after the ones already listed: the nextCursor of the previous page.",
   }),
+});
+
+/** GET /api/v1/reports: unlike the list page, a bad filter is the caller's mistake (422). */
+export const listReportsQuerySchema = listPageQuerySchema.extend({
+  verdict: z.enum(VERDICTS).optional().meta({ description: "Only reports with this verdict." }),
+  q: z
+    .string()
+    .trim()
+    .min(1)
+    .max(100)
+    .optional()
+    .meta({ description: "Only reports whose title contains this text." }),
 });
 
 const nextCursorSchema = z.string().nullable().meta({
