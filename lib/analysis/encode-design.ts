@@ -1,6 +1,7 @@
+import { quantileSorted } from "simple-statistics";
+
 import { createMatrix, matrixFromValues, type Matrix } from "../math/matrix";
 import { measureColumnMomentsInBlocks, measureMoments } from "../math/moments";
-import { quantileSorted } from "../math/quantile";
 import { CompensatedSum } from "../math/summation";
 import { compareCodePoints } from "./code-point-order";
 import { CHUNK_LENGTH } from "./chunked-arrays";
@@ -282,7 +283,9 @@ function measureBinRanges(
  * interpolation), row i in bin #{k : yᵢ > q_k}, empty bins dropped and the rest renumbered.
  */
 export function binIntoDeciles(values: Float64Array): { categories: Int32Array; count: number } {
-  const sorted = Float64Array.from(values).sort();
+  // simple-statistics' quantileSorted is NumPy's linear method (type 7); it takes a plain array,
+  // so the typed array is sorted (numerically, fast) before the copy.
+  const sorted = Array.from(Float64Array.from(values).sort());
   const cuts = Array.from({ length: 9 }, (_, k) => quantileSorted(sorted, (k + 1) / 10));
   const raw = new Int32Array(values.length);
   const used = new Uint8Array(10);

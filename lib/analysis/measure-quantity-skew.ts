@@ -1,3 +1,5 @@
+import { mean, standardDeviation, sum } from "simple-statistics";
+
 export interface QuantitySkew {
   gini: number;
   /** Coefficient of variation: population standard deviation / mean of the shard sizes. */
@@ -15,14 +17,13 @@ export interface QuantitySkew {
 export function measureQuantitySkew(sizes: number[]): QuantitySkew {
   const sorted = [...sizes].sort((a, b) => a - b);
   const count = sorted.length;
-  const total = sorted.reduce((a, b) => a + b, 0);
-  const mean = total / count;
+  const total = sum(sorted);
+  // simple-statistics has no Gini coefficient; the sizes are integers, so this sum is exact.
   let gini = 0;
   sorted.forEach((size, index) => (gini += (2 * (index + 1) - count - 1) * size));
-  const variance = sorted.reduce((sum, size) => sum + (size - mean) ** 2, 0) / count;
   return {
     gini: gini / (count * total),
-    cv: Math.sqrt(variance) / mean,
+    cv: standardDeviation(sorted) / mean(sorted),
     min: sorted[0],
     max: sorted[count - 1],
   };

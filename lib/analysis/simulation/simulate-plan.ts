@@ -1,3 +1,5 @@
+import { mean } from "simple-statistics";
+
 import { decideVerdict, type Verdict } from "../advise-plan";
 import { countWeightRows } from "../objective";
 import { countAvailableThreads } from "../pass-pool";
@@ -426,12 +428,6 @@ function summarizeAlgorithm(
     grid,
     divergedSeeds,
   };
-}
-
-function mean(values: number[]): number {
-  let total = 0;
-  for (const value of values) total += value;
-  return total / values.length;
 }
 
 const VERDICT_WORDS: Record<Verdict, string> = {

@@ -8,7 +8,6 @@ import {
 } from "@/lib/math/gram";
 import { createMatrix, matrixFromValues } from "@/lib/math/matrix";
 import { measureColumnMoments, measureMoments } from "@/lib/math/moments";
-import { quantileSorted } from "@/lib/math/quantile";
 import { maximizeOnInterval } from "@/lib/math/scalar-search";
 import { softmaxInPlace } from "@/lib/math/softmax";
 import { runPythonJson } from "../analysis/support/run-python";
@@ -174,29 +173,6 @@ print(json.dumps({"mean":x.mean(0).tolist(),"std":x.std(0).tolist()}))`,
       { mean: 3.5, std: 0.8660254037844386 },
       { mean: 6.5, std: 1.6583123951777 },
     ]);
-  });
-});
-
-describe("quantileSorted", () => {
-  it("matches numpy.quantile's default linear method", () => {
-    const sorted = Array.from(seededValues(101, 3)).sort((a, b) => a - b);
-    const levels = [0, 0.1, 0.25, 0.5, 0.9, 1];
-    // Outside reference: numpy.quantile(method='linear').
-    const reference = runPythonJson<number[]>(
-      `import json,sys
-import numpy as np
-d=json.load(sys.stdin)
-print(json.dumps(np.quantile(np.array(d["x"]), d["q"]).tolist()))`,
-      { x: sorted, q: levels },
-    );
-    levels.forEach((level, index) =>
-      expect(quantileSorted(sorted, level)).toBeCloseTo(reference[index], 14),
-    );
-    expect(quantileSorted([1, 2, 3, 4], 0.1)).toBeCloseTo(1.3, 15);
-  });
-
-  it("rejects an empty array", () => {
-    expect(() => quantileSorted([], 0.5)).toThrow(RangeError);
   });
 });
 
