@@ -182,7 +182,9 @@ describe("clusters", () => {
       values[2 * point + 1] = y + random.normal();
     }
     const centres = seedCentres(values, 2, 4, new SeededRandom(3));
-    const blobs = centres.map(([x, y]) => 2 * Math.round(y / 100) + Math.round(x / 100));
+    const blobs = [0, 1, 2, 3].map(
+      (m) => 2 * Math.round(centres[2 * m + 1] / 100) + Math.round(centres[2 * m] / 100),
+    );
     expect([...blobs].sort()).toEqual([0, 1, 2, 3]);
     expect(seedCentres(values, 2, 4, new SeededRandom(3))).toEqual(centres);
   });
