@@ -10,10 +10,13 @@ export interface Moments {
 
 /**
  * Mean and population standard deviation of values (all finite), by the two-pass method
- * (mean first, then the mean squared deviation), with every term divided by s = max |xᵢ| so huge
- * values near 1e308 neither overflow nor lose the variance, and with blockwise sums merged by a
- * compensated sum. Sources: Chan, Golub & LeVeque, Amer. Statistician 37(3), 1983 (two-pass is the
- * accurate baseline; from memory); scaling as in LAPACK's dnrm2 (from memory).
+ * (mean first, then the mean squared deviation), with every term scaled by s, the power of two at
+ * or above max |xᵢ| (kept within the normal range), so huge values near 1e308 neither overflow nor
+ * lose the variance, and with blockwise sums merged by a compensated sum. A power of two makes the
+ * scaling exact: scaling by max |xᵢ| itself rounds every term, which loses digits of a small spread
+ * about a large mean (std/mean near ε) and overflows 1/s for subnormal values.
+ * Sources: Chan, Golub & LeVeque, Amer. Statistician 37(3), 1983 (two-pass is the accurate
+ * baseline; from memory); scaling as in LAPACK's dnrm2 (from memory).
  *
  * Example: measureMoments([2, 4, 4, 4, 5, 5, 7, 9]) is { mean: 5, std: 2 }.
  */
@@ -71,6 +74,7 @@ export function measureColumnMomentsInBlocks(
       }
     }
   });
+  for (let k = 0; k < count; k++) scales[k] = powerOfTwoAtLeast(scales[k]);
   const inverses = scales.map((scale) => (scale === 0 ? 0 : 1 / scale));
 
   const blocks = new Float64Array(count);
@@ -111,4 +115,20 @@ export function measureColumnMomentsInBlocks(
           std: Math.sqrt(squares[k].value / rows) * scales[k],
         },
   );
+}
+
+/** Smallest and largest exponents e whose 2^e and 2^−e are both normal doubles. */
+const NORMAL_EXPONENTS = [-1022, 1022] as const;
+
+/**
+ * 2^e ≥ `magnitude` with e clamped to the normal range (0 stays 0): scaling by it and by its
+ * inverse is exact, where 1/`magnitude` would round (and overflow for subnormal magnitudes). Values
+ * near the largest double scaled by 2^−1022 stay below 4.
+ *
+ * Example: powerOfTwoAtLeast(3) is 4; powerOfTwoAtLeast(1e-310) is 2^−1022.
+ */
+function powerOfTwoAtLeast(magnitude: number): number {
+  if (magnitude === 0) return 0;
+  const [lowest, highest] = NORMAL_EXPONENTS;
+  return 2 ** Math.min(highest, Math.max(lowest, Math.ceil(Math.log2(magnitude))));
 }
