@@ -9,7 +9,7 @@ export interface LargestEigenvalueOptions {
 /**
  * λ_max of a symmetric positive semi-definite matrix by power iteration with Rayleigh quotients.
  *
- * Method: v ← A v / ‖A v‖ from a fixed start vector (all ones, plus a small index-dependent tilt so
+ * Method: v ← A v / ‖A v‖ from a fixed start vector vᵢ = 1 + i/(7n) (all ones, plus a small tilt so
  * it is not orthogonal to the top eigenvector of common structured matrices); the estimate is the
  * Rayleigh quotient vᵀ A v, which converges like (λ₂/λ₁)^{2k}.
  * Source: Golub & Van Loan, "Matrix Computations", §8.2.1 (from memory).
