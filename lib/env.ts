@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { parseMemorySize } from "./analysis/memory-size";
+import { parseMemorySize } from "./analysis/browser";
 
 /**
  * Configuration, parsed once. Every hosted service is reached through these values only, so pointing

@@ -15,8 +15,8 @@ import {
   AnalysisInputError,
   readMemorySettings,
   type PartitionSummary,
+  type SimulationProgress,
 } from "../lib/analysis";
-import type { SimulationProgress } from "../lib/analysis/simulation/simulate-plan";
 import { ServerError } from "../lib/cli/api-client";
 import {
   checkFailOnRules,

@@ -2,7 +2,7 @@ import "server-only";
 import { and, desc, eq, inArray, isNotNull, isNull, lt, or, sql } from "drizzle-orm";
 import { db } from "@/db/client";
 import { federatedAnalyses, federatedClients, reports } from "@/db/schema";
-import type { DigestEncoding } from "@/lib/analysis/digests/digest-format";
+import type { DigestEncoding } from "@/lib/analysis";
 
 // Every function that takes a workspace filters by it: a federated analysis of another workspace
 // is "not found", never "forbidden".

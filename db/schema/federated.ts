@@ -10,7 +10,7 @@ import {
   uniqueIndex,
 } from "drizzle-orm/pg-core";
 import { cascadingReference, createdAt, instant, uuidPrimaryKey } from "./columns";
-import type { DigestEncoding } from "@/lib/analysis/digests/digest-format";
+import type { DigestEncoding } from "@/lib/analysis";
 import type { ReferenceWeights } from "@/lib/validation/analysis-options";
 import { users } from "./auth";
 import { analyses, reports } from "./analyses";

@@ -19,6 +19,7 @@ export { MAX_AGREEMENT_SHARDS } from "./assemble-summary";
 export { compareCodePoints } from "./code-point-order";
 export { MAX_ONE_HOT_LEVELS } from "./column-accumulator";
 export { AnalysisInputError } from "./errors";
+export { parseMemorySize } from "./memory-size";
 export { PATH_POINTS } from "./path-points";
 export { quoteValue, showValue } from "./quote-value";
 export { MAX_CLASSES_FOR_NUMERIC_LABEL } from "./task-rules";

@@ -4,7 +4,7 @@ import { quoteValue } from "./quote-value";
 import type { DecimalMark } from "./text-format";
 import { AnalysisInputError, listFirst } from "./errors";
 import type { PartitionMap } from "./partition-map";
-import type { RawDataset } from "./read-dataset";
+import type { RawDataset } from "./raw-dataset";
 import type { StoredMatrix } from "./stored-matrix";
 import { isMissingToken, trimToken } from "./tokens";
 

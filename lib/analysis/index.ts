@@ -6,6 +6,13 @@
 export * from "./browser";
 export { analyzePartition, type PartitionInput } from "./analyze-partition";
 export { countShardsUpTo } from "./count-shards";
+export { countAvailableThreads } from "./pass-pool";
+// What the upload previews read of a file's head, without reading the dataset.
+export { DECIMAL_MARK_SAMPLE_ROWS, detectDecimalMark, readHeader } from "./csv-reader";
+export { describeNonText } from "./decode-text";
+export { readParquetHead, readParquetLayout, type AsyncBuffer } from "./parquet-reader";
+export { detectTableFormat } from "./table-reader";
+export type { RawDataset } from "./read-dataset";
 export {
   DEFAULT_MEMORY_LIMIT_BYTES,
   readMemorySettings,

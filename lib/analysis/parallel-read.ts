@@ -11,7 +11,7 @@ import {
 } from "./dataset-rows";
 import { AnalysisInputError } from "./errors";
 import { measureRowBudget } from "./memory-limit";
-import type { RawDataset, ReadDatasetOptions } from "./read-dataset";
+import type { RawDataset, ReadDatasetOptions } from "./raw-dataset";
 import type { ReadPartData, ReadPartOrder, ReadPartReport } from "./read-part-protocol";
 import { DELIMITERS, type CsvFormat, type DecimalMark, type Delimiter } from "./text-format";
 

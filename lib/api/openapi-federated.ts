@@ -1,10 +1,6 @@
 import { z } from "zod";
 import type { ZodOpenApiOperationObject, ZodOpenApiPathsObject } from "zod-openapi";
-import {
-  evaluationSumsSchema,
-  gradientDigestSchema,
-  schemaDigestSchema,
-} from "@/lib/analysis/digests/digest-format";
+import { evaluationSumsSchema, gradientDigestSchema, schemaDigestSchema } from "@/lib/analysis";
 import { CLIENT_KEY_PREFIX } from "@/lib/auth/client-key-secret";
 import {
   createFederatedAnalysisSchema,

@@ -1,7 +1,6 @@
 import { readFileSync, statSync } from "node:fs";
 import { AnalysisInputError } from "../analysis";
-import { quoteValue } from "../analysis/quote-value";
-import { DECIMAL_MARKS, DELIMITERS, TEXT_ENCODINGS } from "../analysis/text-format";
+import { DECIMAL_MARKS, DELIMITERS, quoteValue, TEXT_ENCODINGS } from "../analysis";
 import {
   referenceWeightsSchema,
   type AnalysisOptionsInput,

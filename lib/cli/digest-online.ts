@@ -7,7 +7,7 @@ import {
   measurementRequestSchema,
   type DigestEncoding,
 } from "../analysis";
-import type { RawDataset } from "../analysis/read-dataset";
+import type { RawDataset } from "../analysis";
 import type { ApiClient } from "./api-client";
 import { ServerError } from "./api-client";
 

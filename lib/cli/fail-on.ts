@@ -1,4 +1,4 @@
-import { quoteValue } from "../analysis/quote-value";
+import { quoteValue } from "../analysis";
 
 /**
  * `--fail-on` rules: conditions on the JSON summary that make the CLI exit 3, so a pipeline can

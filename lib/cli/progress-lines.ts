@@ -1,4 +1,4 @@
-import type { AnalysisProgress } from "../analysis/summary";
+import type { AnalysisProgress } from "../analysis";
 
 /**
  * Analysis progress as lines on stderr, one per stage and quarter (`partita: fitting 50%`), so a

@@ -1,4 +1,4 @@
-import { AnalysisInputError } from "../analysis/errors";
+import { AnalysisInputError } from "../analysis";
 
 /** The command lines' exit codes besides 0: a fault of Partita's, and input it cannot use. */
 export const EXIT_INTERNAL = 1;

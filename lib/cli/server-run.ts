@@ -1,7 +1,6 @@
 import { open, stat } from "node:fs/promises";
 import path from "node:path";
-import type { SimulationProgress } from "../analysis/simulation/simulate-plan";
-import type { AnalysisProgress } from "../analysis/summary";
+import type { AnalysisProgress, SimulationProgress } from "../analysis";
 import type { AnalysisOptionsInput } from "../validation/analysis-options";
 import { storedContentTypeOf, type DataFileKind } from "../uploads/file-rules";
 import type { UploadTicket } from "../validation/upload";

@@ -12,13 +12,15 @@ import {
   type FederatedExchangeRow,
 } from "@/db/queries/federated-digests";
 import {
+  AnalysisInputError,
   gradientDigestSchema,
   hashDocument,
+  parseDigest,
+  PATH_POINTS,
   schemaDigestSchema,
   type DigestEncoding,
   type GradientDigest,
-} from "@/lib/analysis/digests/digest-format";
-import { AnalysisInputError, parseDigest, PATH_POINTS } from "@/lib/analysis/browser";
+} from "@/lib/analysis";
 import type { ClientCaller } from "@/lib/auth/client-key-guard";
 import { RuleError } from "@/lib/errors";
 import { ENDED_STATES, recordRefusal } from "./federated-rules";

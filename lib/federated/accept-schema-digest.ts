@@ -6,12 +6,13 @@ import {
   listFederatedDigests,
 } from "@/db/queries/federated-digests";
 import {
+  AnalysisInputError,
+  checkSchemaAgreement,
   hashDocument,
+  parseDigest,
   schemaDigestSchema,
   type SchemaDigest,
-} from "@/lib/analysis/digests/digest-format";
-import { checkSchemaAgreement } from "@/lib/analysis/digests/merge-schemas";
-import { AnalysisInputError, parseDigest } from "@/lib/analysis/browser";
+} from "@/lib/analysis";
 import type { ClientCaller } from "@/lib/auth/client-key-guard";
 import { RuleError } from "@/lib/errors";
 import { buildEncodingWhenReady } from "./build-encoding";

@@ -3,10 +3,11 @@ import { z } from "zod";
 import { findFederatedAnalysisById, updateFederatedClient } from "@/db/queries/federated-analyses";
 import { answerExchange as storeAnswer, findExchange } from "@/db/queries/federated-digests";
 import {
+  AnalysisInputError,
   evaluationRequestSchema,
   evaluationSumsSchema,
-} from "@/lib/analysis/digests/digest-format";
-import { AnalysisInputError, parseDigest } from "@/lib/analysis/browser";
+  parseDigest,
+} from "@/lib/analysis";
 import type { ClientCaller } from "@/lib/auth/client-key-guard";
 import { RuleError } from "@/lib/errors";
 import { recordRefusal } from "./federated-rules";

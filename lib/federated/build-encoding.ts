@@ -6,9 +6,7 @@ import {
   storeFederatedEncoding,
 } from "@/db/queries/federated-analyses";
 import { listFederatedDigests } from "@/db/queries/federated-digests";
-import type { SchemaDigest } from "@/lib/analysis/digests/digest-format";
-import { mergeSchemaDigests } from "@/lib/analysis/digests/merge-schemas";
-import { AnalysisInputError } from "@/lib/analysis/browser";
+import { AnalysisInputError, mergeSchemaDigests, type SchemaDigest } from "@/lib/analysis";
 import { enqueueFederatedAnalysis } from "@/lib/jobs";
 import { orderRoster } from "./federated-rules";
 

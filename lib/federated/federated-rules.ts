@@ -5,10 +5,7 @@ import {
   type FederatedAnalysisRow,
   type FederatedClientRow,
 } from "@/db/queries/federated-analyses";
-// The browser-safe entry and the engine's modules themselves, here and in every file a route
-// bundles: the engine's index also exports the simulation, whose worker threads a server bundle
-// cannot hold.
-import { AnalysisInputError, compareCodePoints } from "@/lib/analysis/browser";
+import { AnalysisInputError, compareCodePoints } from "@/lib/analysis";
 import { RuleError } from "@/lib/errors";
 
 /** States after which nothing more is accepted from clients or the analyst. */

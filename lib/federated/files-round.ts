@@ -2,14 +2,13 @@ import "server-only";
 import type { FederatedAnalysisRow } from "@/db/queries/federated-analyses";
 import { listFederatedClients, moveFederatedState } from "@/db/queries/federated-analyses";
 import { listFederatedDigests } from "@/db/queries/federated-digests";
-// The engine's modules themselves: this file is bundled by the digest routes (see federated-rules).
-import { createMeasurementRequest } from "@/lib/analysis/digests/analyze-from-digests";
 import {
+  createMeasurementRequest,
   gradientDigestSchema,
   hashDocument,
   type GradientDigest,
   type MeasurementRequest,
-} from "@/lib/analysis/digests/digest-format";
+} from "@/lib/analysis";
 import { enqueueFederatedAnalysis } from "@/lib/jobs";
 
 /**

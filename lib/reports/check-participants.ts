@@ -1,9 +1,6 @@
 import "server-only";
 import type { DataFilePreview } from "@/db/schema/analyses";
-import { AnalysisInputError } from "@/lib/analysis/browser";
-// The reading module itself, not the engine's index: the index also exports the simulation, whose
-// worker threads a server bundle cannot hold.
-import { countShardsUpTo } from "@/lib/analysis/count-shards";
+import { AnalysisInputError, countShardsUpTo } from "@/lib/analysis";
 import { RuleError } from "@/lib/errors";
 import { getObjectStream } from "@/lib/storage";
 import { describeShardSource, describeTooFewShards } from "@/lib/validation/shard-count";

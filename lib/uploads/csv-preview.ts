@@ -1,19 +1,21 @@
 import Papa from "papaparse";
 import type { DataFilePreview } from "@/db/schema/analyses";
-import { DECIMAL_MARK_SAMPLE_ROWS, detectDecimalMark, readHeader } from "@/lib/analysis/csv-reader";
-import { describeNonText } from "@/lib/analysis/decode-text";
 import {
   AnalysisInputError,
+  DECIMAL_MARK_SAMPLE_ROWS,
   DELIMITERS,
+  describeNonText,
+  detectDecimalMark,
   isMissingToken,
   parseNumberToken,
+  readHeader,
   trimToken,
   type CsvFormat,
   type CsvFormatChoice,
   type DecimalMark,
   type Delimiter,
   type TextEncodingName,
-} from "@/lib/analysis/browser";
+} from "@/lib/analysis";
 
 /** How much of a file's beginning the server reads for a preview. */
 export const PREVIEW_BYTES = 256 * 1024;

@@ -1,12 +1,14 @@
 import { constants, gunzipSync } from "node:zlib";
 import type { DataFilePreview } from "@/db/schema/analyses";
-import { AnalysisInputError, type CsvFormat, type CsvFormatChoice } from "@/lib/analysis/browser";
 import {
+  AnalysisInputError,
+  detectTableFormat,
   readParquetHead,
   readParquetLayout,
   type AsyncBuffer,
-} from "@/lib/analysis/parquet-reader";
-import { detectTableFormat } from "@/lib/analysis/table-reader";
+  type CsvFormat,
+  type CsvFormatChoice,
+} from "@/lib/analysis";
 import {
   PREVIEW_BYTES,
   PREVIEW_ROWS,

@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { DEFAULT_MINIMUM_SHARD_ROWS } from "../analysis/digests/digest-format";
+import { DEFAULT_MINIMUM_SHARD_ROWS } from "../analysis";
 import { analysisOptionsSchema } from "./analysis-options";
 
 /** How long a client key may live: a federated analysis's rounds take hours to days, not years. */

@@ -1,4 +1,5 @@
 import type { SeededRandom } from "../../math/random";
+import type { Design } from "../design";
 import { addRegularizerGradient, computePenalty, countWeightRows } from "../objective";
 import {
   accumulatePass,
@@ -8,7 +9,15 @@ import {
   type PassTotals,
   type PassWorkspace,
 } from "../objective-pass";
-import type { SimulationDesign } from "./run-algorithm";
+
+/**
+ * What a run reads of the engine's design: the rows with their classes or targets, and the shards.
+ * Small enough to hand to a worker thread (its arrays in shared memory, see run-threads.ts).
+ */
+export type SimulationDesign = Pick<
+  Design,
+  "x" | "labels" | "targets" | "classes" | "shardOffsets"
+>;
 
 /**
  * Buffers for minibatch gradients on one design, made once per run so the simulation's inner loops

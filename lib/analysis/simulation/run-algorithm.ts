@@ -1,5 +1,4 @@
 import { SeededRandom } from "../../math/random";
-import type { Design } from "../design";
 import { countWeightRows } from "../objective";
 import { accumulateLoss } from "../objective-pass";
 import {
@@ -9,18 +8,10 @@ import {
   readBatchGradient,
   readBatchLoss,
   type BatchWorkspace,
+  type SimulationDesign,
 } from "./batch-gradient";
 
 export type AlgorithmName = "minibatch" | "local" | "scaffold";
-
-/**
- * What a run reads of the engine's design: the rows with their classes or targets, and the shards.
- * Small enough to hand to a worker thread (its arrays in shared memory, see run-threads.ts).
- */
-export type SimulationDesign = Pick<
-  Design,
-  "x" | "labels" | "targets" | "classes" | "shardOffsets"
->;
 
 /** The objective the algorithms minimize: the engine's F on its design (methods.md §2). */
 export interface SimulationProblem {

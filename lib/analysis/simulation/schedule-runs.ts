@@ -1,7 +1,7 @@
 import type { AlgorithmName, RunOutcome } from "./run-algorithm";
 import type { RunRequest } from "./run-thread-protocol";
 import type { RunExecutor } from "./run-threads";
-import type { SimulationProgress } from "./simulate-plan";
+import type { SimulationProgress } from "./simulation-progress";
 
 /** One run of the simulation, numbered by its place in the plan's run list. */
 export interface PlannedRun {

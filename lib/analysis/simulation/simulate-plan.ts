@@ -21,6 +21,9 @@ import {
   MAX_CURVE_POINTS,
   STEP_SIZE_COUNT,
 } from "./simulation-cost";
+import type { SimulationProgress } from "./simulation-progress";
+
+export type { SimulationProgress } from "./simulation-progress";
 
 // The cost and its check live in simulation-cost.ts, which imports no threads, so the web app can
 // estimate a simulation without bundling its run threads.
@@ -62,23 +65,6 @@ export interface SimulationInput extends SimulationProblem {
   smoothness: number;
   /** The bound-based verdict of methods.md §5, compared with the simulation's. */
   boundVerdict: Verdict;
-}
-
-export interface SimulationProgress {
-  algorithm: AlgorithmName;
-  /** Searching the step size on one seed, or re-running the chosen one on S seeds. */
-  phase: "step-size" | "seeds";
-  /**
-   * 1-based run number among `runs` = 3 × (8 + 3 + S): per algorithm the grid, three places for
-   * extending it (skipped unless needed) and the seeds.
-   */
-  run: number;
-  runs: number;
-  /** Rounds finished in this run. */
-  round: number;
-  rounds: number;
-  /** The whole simulation's progress, 0 to 1. */
-  fraction: number;
 }
 
 export interface SimulationHooks {

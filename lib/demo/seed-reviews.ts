@@ -2,15 +2,15 @@ import "server-only";
 import { and, count, desc, eq, inArray } from "drizzle-orm";
 import { db } from "@/db/client";
 import { memberships, reports, reportShards, reviewRequests, users } from "@/db/schema";
-import { recordAudit } from "./queries/audit";
+import { recordAudit } from "@/db/queries/audit";
 import {
   addComment,
   createReviewRequests,
   recordDecision,
   reportForReviewColumns,
-} from "./queries/reviews";
+} from "@/db/queries/reviews";
 import { DEMO_ACCOUNTS } from "./seed";
-import { DEMO_REPORT_TITLES } from "./seed-demo-analyses";
+import { DEMO_REPORT_TITLES } from "./seed-analyses";
 
 const POLL_MS = 2_000;
 

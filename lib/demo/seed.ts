@@ -5,9 +5,9 @@ import { Pool } from "pg";
 import { hashPassword } from "@/lib/auth/password";
 import type { Role } from "@/lib/auth/roles";
 import { stopSendingBoss } from "@/lib/jobs";
-import { closeDb } from "./client";
-import * as schema from "./schema";
-import { seedDemoAnalyses } from "./seed-demo-analyses";
+import { closeDb } from "@/db/client";
+import * as schema from "@/db/schema";
+import { seedDemoAnalyses } from "./seed-analyses";
 
 export type DemoAccount = { email: string; password: string; role: Role };
 

@@ -7,9 +7,9 @@ import { afterAll, describe, expect, it } from "vitest";
 import { closeDb, db } from "@/db/client";
 import { listAuditEntries } from "@/db/queries/audit";
 import { findReviewOverview } from "@/db/queries/reviews";
-import { DEMO_ACCOUNTS, seedDemo } from "@/db/seed";
-import { DEMO_REPORT_TITLES } from "@/db/seed-demo-analyses";
-import { seedDemoReviews } from "@/db/seed-demo-reviews";
+import { DEMO_ACCOUNTS, seedDemo } from "@/lib/demo/seed";
+import { DEMO_REPORT_TITLES } from "@/lib/demo/seed-analyses";
+import { seedDemoReviews } from "@/lib/demo/seed-reviews";
 import { dataFiles, memberships, reports, reportShards, users } from "@/db/schema";
 
 afterAll(closeDb);
