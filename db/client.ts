@@ -2,6 +2,7 @@ import "server-only";
 import { drizzle, type NodePgDatabase } from "drizzle-orm/node-postgres";
 import { Pool } from "pg";
 import { env } from "@/lib/env";
+import { stopListening } from "./notifications";
 import * as schema from "./schema";
 
 export type Database = NodePgDatabase<typeof schema>;
@@ -34,8 +35,12 @@ function logLostConnection(error: Error) {
   console.error(`[database] lost an idle connection (${error.message}); reconnecting on next use`);
 }
 
-/** Closes the pool; tests and scripts call it so the process can exit. */
+/**
+ * Closes the pool and the notification connection; tests and scripts call it so the process can
+ * exit.
+ */
 export async function closeDb(): Promise<void> {
+  await stopListening();
   await holder.partitaPool?.end();
   holder.partitaPool = undefined;
   holder.partitaDb = undefined;

@@ -101,6 +101,7 @@ async function handlePartJob(job: PgBoss.JobWithMetadata<AnalysisPartJob>): Prom
   await runAnalysisPart(parsed.data, {
     jobId: job.id,
     signal: shutdown.signal,
+    handBackOnAbort: true,
     heartbeatMs: env().WORKER_HEARTBEAT_MS,
     staleAfterMs: env().WORKER_STALE_AFTER_MS,
     willRetry: job.retryCount < job.retryLimit,

@@ -1,14 +1,58 @@
 import "server-only";
 import { and, asc, eq, isNull, or, sql } from "drizzle-orm";
 import { db } from "@/db/client";
+import { listen } from "@/db/notifications";
 import { analyses, analysisPartExchanges, analysisParts, dataFiles } from "@/db/schema";
 
 // The parts of an analysis shared by several workers (lib/reports/analysis-in-parts.ts). Parts are
 // reached by analysis, run and index; the analysis's workspace was checked when its job was claimed.
+// Every write another process waits for is followed by a notification (see listenToPart).
 
 export type AnalysisPartRow = typeof analysisParts.$inferSelect;
 export type PartExchangeRow = typeof analysisPartExchanges.$inferSelect;
 export type PartExchangeKind = PartExchangeRow["kind"];
+
+/**
+ * What a notification about a part says: a question was stored for it, it answered one, or its
+ * run changed (a part failed, the run ended or was replaced), so its waiters look at the rows again.
+ */
+export type PartNotice = "question" | "answer" | "state";
+
+const PART_CHANNEL = "analysis_parts";
+/** The part index of a notice about every part of an analysis. */
+const EVERY_PART = "all";
+
+function partNoticePayload(notice: PartNotice, analysisId: string, partIndex: number | null) {
+  return `${notice}:${analysisId}:${partIndex ?? EVERY_PART}`;
+}
+
+async function notifyPart(notice: PartNotice, analysisId: string, partIndex: number | null) {
+  await db().execute(
+    sql`select pg_notify(${PART_CHANNEL}, ${partNoticePayload(notice, analysisId, partIndex)})`,
+  );
+}
+
+/**
+ * Calls `onNotice` on each of `notices` about the analysis's part `partIndex` (or about all its
+ * parts) from any process, until the returned function is called. Notices are hints: a waiter
+ * reads the rows, and looks again after a timeout in case one was lost.
+ */
+export async function listenToPart(
+  analysisId: string,
+  partIndex: number,
+  notices: PartNotice[],
+  onNotice: () => void,
+): Promise<() => void> {
+  const payloads = new Set(
+    notices.flatMap((notice) => [
+      partNoticePayload(notice, analysisId, partIndex),
+      partNoticePayload(notice, analysisId, null),
+    ]),
+  );
+  return listen(PART_CHANNEL, (payload) => {
+    if (payloads.has(payload)) onNotice();
+  });
+}
 
 /** One part's place in the dataset, as the coordinator planned it. */
 export interface PlannedPart {
@@ -39,6 +83,7 @@ export async function startPartRun(
       })),
     );
   });
+  await notifyPart("state", analysisId, null);
 }
 
 /** Records the pg-boss job sent for a part. */
@@ -114,6 +159,7 @@ export async function recordPartFailure(
     .update(analysisParts)
     .set({ failureMessage: message })
     .where(partKey(analysisId, runId, partIndex));
+  await notifyPart("state", analysisId, partIndex);
 }
 
 /**
@@ -148,7 +194,23 @@ export async function recordPartHeartbeat(
   return rows.length === 1;
 }
 
-/** Stores a part's round-1 digest once (a part redone computes the same one). */
+/**
+ * Hands a part back at once (its worker is stopping): no longer held, so the next worker to run
+ * its job — or its coordinator — takes it without waiting for the heartbeat to go stale.
+ */
+export async function releasePart(
+  analysisId: string,
+  runId: string,
+  partIndex: number,
+  heldBy: string,
+): Promise<void> {
+  await db()
+    .update(analysisParts)
+    .set({ heartbeatAt: null, heldBy: null })
+    .where(and(partKey(analysisId, runId, partIndex), eq(analysisParts.heldBy, heldBy)));
+}
+
+/** Stores a part's round-1 digest once (a part redone computes the same one): its first answer. */
 export async function storePartSchema(
   analysisId: string,
   runId: string,
@@ -159,6 +221,7 @@ export async function storePartSchema(
     .update(analysisParts)
     .set({ schemaDigest: digest })
     .where(and(partKey(analysisId, runId, partIndex), isNull(analysisParts.schemaDigest)));
+  await notifyPart("answer", analysisId, partIndex);
 }
 
 /** The parts of a run, in file order. */
@@ -179,7 +242,12 @@ export async function openPartExchange(values: {
   requestKey: string;
   request: unknown;
 }): Promise<PartExchangeRow> {
-  await db().insert(analysisPartExchanges).values(values).onConflictDoNothing();
+  const inserted = await db()
+    .insert(analysisPartExchanges)
+    .values(values)
+    .onConflictDoNothing()
+    .returning({ id: analysisPartExchanges.id });
+  if (inserted.length > 0) await notifyPart("question", values.analysisId, values.partIndex);
   const [row] = await db()
     .select()
     .from(analysisPartExchanges)
@@ -225,10 +293,15 @@ export async function findOpenPartExchange(
 
 /** Records an answer once (a part redone on two workers at once answers the same). */
 export async function answerPartExchange(exchangeId: string, answer: unknown): Promise<void> {
-  await db()
+  const [answered] = await db()
     .update(analysisPartExchanges)
     .set({ answer, answeredAt: sql`now()` })
-    .where(and(eq(analysisPartExchanges.id, exchangeId), isNull(analysisPartExchanges.answeredAt)));
+    .where(and(eq(analysisPartExchanges.id, exchangeId), isNull(analysisPartExchanges.answeredAt)))
+    .returning({
+      analysisId: analysisPartExchanges.analysisId,
+      partIndex: analysisPartExchanges.partIndex,
+    });
+  if (answered) await notifyPart("answer", answered.analysisId, answered.partIndex);
 }
 
 /** Abandons a run (the analysis goes on in one process): its parts' jobs find nothing and end. */
@@ -237,11 +310,16 @@ export async function removePartRun(analysisId: string): Promise<void> {
     await tx.delete(analysisPartExchanges).where(eq(analysisPartExchanges.analysisId, analysisId));
     await tx.delete(analysisParts).where(eq(analysisParts.analysisId, analysisId));
   });
+  await notifyPart("state", analysisId, null);
 }
 
-/** The questions of an ended run are of no further use; its parts stay, for the report's notes. */
+/**
+ * The questions of an ended run are of no further use; its parts stay, for the report's notes.
+ * Their workers are told, so they stop at once.
+ */
 export async function removePartExchanges(analysisId: string): Promise<void> {
   await db().delete(analysisPartExchanges).where(eq(analysisPartExchanges.analysisId, analysisId));
+  await notifyPart("state", analysisId, null);
 }
 
 export interface LostPart {

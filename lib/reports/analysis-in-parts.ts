@@ -1,5 +1,6 @@
 import { createHash, randomUUID } from "node:crypto";
 import {
+  listenToPart,
   listRunParts,
   recordPartJob,
   removePartExchanges,
@@ -13,8 +14,10 @@ import {
   PartsConnection,
   planDatasetParts,
   type AnalysisProgress,
+  type DatasetPartPlan,
   type AnalysisStage,
 } from "@/lib/analysis";
+import { Doorbell } from "@/lib/doorbell";
 import type { AnalysisPartJob } from "@/lib/jobs";
 import { getObjectStream, isStorageUnreachable } from "@/lib/storage";
 import { StorageUnreachableError, type EngineOutcome } from "./engine-thread";
@@ -37,7 +40,6 @@ export interface PartsSettings {
    * busy with theirs. 10 s by default, a few of the workers' 1 s polls.
    */
   takeOverAfterMs?: number;
-  pollMs?: number;
   log?: (line: string) => void;
 }
 
@@ -107,6 +109,32 @@ async function coordinateParts(
   const plan = await planDatasetParts(storedDatasetBytes(dataset), dataset.name, count);
   if (plan.parts.length < 2) return null;
   const runId = randomUUID();
+  // Listening before the first question: every answer wakes the coordinator at once.
+  const answers = plan.parts.map(() => new Doorbell());
+  const stopListening = await Promise.all(
+    answers.map((bell, partIndex) =>
+      listenToPart(analysis.id, partIndex, ["answer", "state"], () => bell.ring()),
+    ),
+  );
+  try {
+    return await runParts(analysis, plan, runId, answers, settings, hooks);
+  } finally {
+    for (const stop of stopListening) stop();
+  }
+}
+
+/** Looks for a part's answer again after this long without a notification. */
+const LOOK_AGAIN_MS = 1000;
+
+async function runParts(
+  analysis: ClaimedAnalysis,
+  plan: DatasetPartPlan,
+  runId: string,
+  answers: Doorbell[],
+  settings: PartsSettings,
+  hooks: { signal: AbortSignal; onProgress(progress: AnalysisProgress): void },
+): Promise<EngineOutcome | null> {
+  const { dataset } = analysis;
   await startPartRun(
     analysis.id,
     runId,
@@ -140,7 +168,8 @@ async function coordinateParts(
         partIndex,
         partCount: plan.parts.length,
         signal: hooks.signal,
-        pollMs: settings.pollMs ?? 20,
+        answers: answers[partIndex],
+        lookAgainMs: LOOK_AGAIN_MS,
       }),
   );
   const whole = new PartsConnection(dataset.name, connections, analysis.parameters.task);
@@ -226,6 +255,8 @@ function takeOverWaitingParts(
       const run = runAnalysisPart(jobOf(part.partIndex), {
         jobId: null,
         signal: partSignal,
+        // Aborted when the coordinator's run ends (or its worker stops, ending the run too).
+        handBackOnAbort: false,
         heartbeatMs: settings.heartbeatMs,
         staleAfterMs: settings.staleAfterMs,
         willRetry: true,

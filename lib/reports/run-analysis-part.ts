@@ -1,12 +1,15 @@
 import { hostname } from "node:os";
+import { addAbortSignal } from "node:stream";
 import {
   answerPartExchange,
   claimPart,
   findOpenPartExchange,
   findPartInputs,
   findPartState,
+  listenToPart,
   recordPartFailure,
   recordPartHeartbeat,
+  releasePart,
   storePartSchema,
 } from "@/db/queries/analysis-parts";
 import {
@@ -18,8 +21,8 @@ import {
   openDatasetPart,
   readClientRows,
 } from "@/lib/analysis";
+import { Doorbell } from "@/lib/doorbell";
 import type { AnalysisPartJob } from "@/lib/jobs";
-import { pause } from "@/lib/pause";
 import { storedDatasetBytes } from "./stored-dataset-bytes";
 
 /** This process, as the parts it holds name it. */
@@ -30,10 +33,14 @@ export interface PartRunSettings {
   jobId: string | null;
   /** Aborted when the worker stops (or its coordinator's run ends): the part is left to others. */
   signal: AbortSignal;
+  /**
+   * Whether an abort of `signal` means this worker is stopping while the run goes on, so the part
+   * is handed back at once for another worker (its job is retried) instead of after its heartbeat
+   * goes stale.
+   */
+  handBackOnAbort: boolean;
   heartbeatMs: number;
   staleAfterMs: number;
-  /** Between two looks for the coordinator's next question. */
-  pollMs?: number;
   /** Threads of the part's passes (default: the cores this process may use). */
   threads?: number;
   /** Whether the part's job runs again if this run throws; on the last try a failure is recorded. */
@@ -47,8 +54,11 @@ export type PartOutcome =
   | { outcome: "skipped" }
   | { outcome: "failed"; message: string };
 
-/** Polls between looks at whether the run is still going (about once a second at 20 ms). */
-const POLLS_PER_RUN_CHECK = 50;
+/**
+ * Longest wait for a question without a notification before looking again, and between looks at
+ * whether the run is still going when nobody said it ended (a cancelled analysis, a lost notice).
+ */
+const LOOK_AGAIN_MS = 1000;
 
 /**
  * One part of an analysis shared by several workers, as a client of methods.md §9: reads its byte
@@ -72,6 +82,11 @@ export async function runAnalysisPart(
   const log = (line: string) => settings.log?.(`analysis ${analysisId}, ${name}: ${line}`);
   log(part.attempts > 1 ? `taken over (attempt ${part.attempts})` : "started");
 
+  // Listening before the round-1 digest is stored, so the coordinator's first question wakes it.
+  const questions = new Doorbell();
+  const stopListening = await listenToPart(analysisId, partIndex, ["question", "state"], () =>
+    questions.ring(),
+  );
   const handedOver = new AbortController();
   const signal = AbortSignal.any([settings.signal, handedOver.signal]);
   const heartbeat = setInterval(() => {
@@ -90,10 +105,14 @@ export async function runAnalysisPart(
     const { parameters, dataset } = inputs;
     const range = { start: part.startByte, end: part.endByte };
     const raw = await readClientRows({
-      data: openDatasetPart(
-        storedDatasetBytes(dataset),
-        { headerBytes: part.headerBytes, parts: [range] },
-        range,
+      // A worker that stops mid-read hands its part back at once, not after the whole range.
+      data: addAbortSignal(
+        signal,
+        openDatasetPart(
+          storedDatasetBytes(dataset),
+          { headerBytes: part.headerBytes, parts: [range] },
+          range,
+        ),
       ),
       dataName: `${dataset.name} (${name})`,
       columns: {
@@ -112,21 +131,26 @@ export async function runAnalysisPart(
     });
     await storePartSchema(analysisId, runId, partIndex, await client.schema());
     log("read");
-    let questions = 0;
-    for (let poll = 1; ; poll++) {
+    let answered = 0;
+    // The run's state is read only after a wait: a ring without a question is its end (or a
+    // timeout), while a part that has just answered waits for the next question at once.
+    let waited = false;
+    for (;;) {
       signal.throwIfAborted();
       const open = await findOpenPartExchange(runId, partIndex);
       if (open) {
         await answerPartExchange(open.id, await answer(client, open.kind, open.request));
-        questions++;
-        if (open.kind !== "evaluate" || questions === 1) log(`answered ${open.kind}`);
+        answered++;
+        if (open.kind !== "evaluate" || answered === 1) log(`answered ${open.kind}`);
+        waited = false;
         continue;
       }
-      if (poll % POLLS_PER_RUN_CHECK === 0 && !(await findPartState(analysisId, runId, partIndex)).live) {
-        log(`done after ${questions} questions`);
-        return { outcome: "answered", questions };
+      if (waited && !(await findPartState(analysisId, runId, partIndex)).live) {
+        log(`done after ${answered} questions`);
+        return { outcome: "answered", questions: answered };
       }
-      await pause(settings.pollMs ?? 20, signal);
+      await questions.wait(LOOK_AGAIN_MS, signal);
+      waited = true;
     }
   } catch (error) {
     if (error instanceof AnalysisInputError) {
@@ -136,6 +160,10 @@ export async function runAnalysisPart(
     if (handedOver.signal.aborted) {
       log("handed to another worker");
       return { outcome: "skipped" };
+    }
+    if (settings.signal.aborted && settings.handBackOnAbort) {
+      await releasePart(analysisId, runId, partIndex, PART_HOLDER);
+      log("handed back: this worker is stopping");
     }
     if (!settings.willRetry && !settings.signal.aborted) {
       await recordPartFailure(
@@ -147,6 +175,7 @@ export async function runAnalysisPart(
     }
     throw error;
   } finally {
+    stopListening();
     clearInterval(heartbeat);
     await client?.close();
   }

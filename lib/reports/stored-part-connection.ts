@@ -18,7 +18,7 @@ import {
   type MeasurementRequest,
   type SchemaDigest,
 } from "@/lib/analysis";
-import { pause } from "@/lib/pause";
+import type { Doorbell } from "@/lib/doorbell";
 
 export interface StoredPartOptions {
   analysisId: string;
@@ -26,8 +26,13 @@ export interface StoredPartOptions {
   partIndex: number;
   partCount: number;
   signal: AbortSignal;
-  /** Between two looks for the part's answer. */
-  pollMs: number;
+  /** Rung on every answer of the part and every change of its run (db listenToPart). */
+  answers: Doorbell;
+  /**
+   * Longest wait without a ring before looking again, and between looks at whether the part failed
+   * or the run ended without a notification (a cancelled analysis, a lost notification).
+   */
+  lookAgainMs: number;
 }
 
 /** The analysis stopped running (cancelled) or a newer run replaced this one while it waited. */
@@ -45,9 +50,6 @@ export class PartFailedError extends Error {
     this.name = "PartFailedError";
   }
 }
-
-/** Polls between looks at whether the run is still going (about once a second at 50 ms). */
-const POLLS_PER_RUN_CHECK = 20;
 
 /**
  * The coordinator's side of one part of an analysis shared by several workers (a
@@ -99,18 +101,22 @@ export class StoredPartConnection implements DigestClientConnection {
     return this.waitFor(() => findPartAnswer(exchange.id));
   }
 
+  /**
+   * Looks until `look` finds something, woken by the part's notifications; the part's state is read
+   * only after a wait (a ring without the answer is a failure or the run's end, or a timeout).
+   */
   private async waitFor(look: () => Promise<unknown>): Promise<unknown> {
-    const { analysisId, runId, signal, pollMs } = this.options;
-    for (let poll = 1; ; poll++) {
+    const { analysisId, runId, signal, answers, lookAgainMs } = this.options;
+    for (let waited = false; ; waited = true) {
       signal.throwIfAborted();
       const found = await look();
       if (found !== null) return found;
-      if (poll % POLLS_PER_RUN_CHECK === 0) {
+      if (waited) {
         const state = await findPartState(analysisId, runId, this.options.partIndex);
         if (state.failureMessage !== null) throw new PartFailedError(state.failureMessage);
         if (!state.live) throw new PartRunEndedError();
       }
-      await pause(pollMs, signal);
+      await answers.wait(lookAgainMs, signal);
     }
   }
 }

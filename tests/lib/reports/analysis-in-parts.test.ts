@@ -67,12 +67,13 @@ class WorkerProcess {
     });
   }
 
-  kill(): Promise<void> {
+  /** Sends `signal` (SIGKILL by default: no chance to clean up) and waits for the exit. */
+  kill(signal: NodeJS.Signals = "SIGKILL"): Promise<void> {
     if (this.process.exitCode !== null || this.process.signalCode !== null) {
       return Promise.resolve();
     }
     const exited = new Promise<void>((resolve) => this.process.once("exit", () => resolve()));
-    this.process.kill("SIGKILL");
+    this.process.kill(signal);
     return exited;
   }
 }
@@ -175,6 +176,35 @@ describe("one analysis shared by several workers", () => {
     expect(describeRun({ parts: await listAnalysisParts(job.analysisId), rowsSpilledAtLimit: null })).toEqual([
       expect.stringMatching(/^Read in 3 parts/),
       `Part ${part} of 3 was redone after its worker stopped.`,
+    ]);
+  }, 600_000);
+
+  it("takes back at once the part of a worker stopped with SIGTERM, and ends with one report", async () => {
+    // The previous test killed the first worker: a new one takes its place.
+    const replacement = new WorkerProcess(WORKER_ENV);
+    workers.push(replacement);
+    await replacement.waitFor(/\[worker\] ready/);
+    const job = await queueDigitsAnalysis();
+    const run = runAnalysis(job, { willRetry: true, parts: partsSettings(3) });
+    // Whichever worker process answers the fit first is stopped, as an operator stops one.
+    const answered = (worker: WorkerProcess) =>
+      worker
+        .waitFor(new RegExp(`analysis ${job.analysisId}, part (\\d) of 3: answered evaluate`))
+        .then(([, part]) => ({ worker, part }));
+    const { worker: victim, part } = await Promise.race([answered(workers[1]), answered(replacement)]);
+    await victim.kill("SIGTERM");
+    expect(victim.output).toMatch(
+      new RegExp(`analysis ${job.analysisId}, part ${part} of 3: handed back: this worker is stopping`),
+    );
+    expect((await run).outcome).toBe("succeeded");
+    expectOneProcessSummary(await storedSummary(job.analysisId), await analyzeInOneProcess());
+    // Handed back, not found by the sweep of silent workers: no worker counts as lost, and the
+    // report page says the part was redone after its worker was stopped.
+    const parts = await listAnalysisParts(job.analysisId);
+    expect(parts.map((record) => record.workerLosses)).toEqual([0, 0, 0]);
+    expect(describeRun({ parts, rowsSpilledAtLimit: null })).toEqual([
+      expect.stringMatching(/^Read in 3 parts/),
+      `Part ${part} of 3 was redone after its worker was stopped or failed.`,
     ]);
   }, 600_000);
 });
