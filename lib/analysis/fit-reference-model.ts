@@ -210,6 +210,8 @@ function createNewtonPreconditioner(
   size: number,
   lambda: number,
 ): (vector: Float64Array) => void {
+  const known = preconditioners.get(hessian);
+  if (known) return known;
   let largestDiagonal = 0;
   for (let k = 0; k < size; k++) largestDiagonal = Math.max(largestDiagonal, hessian[k * size + k]);
   const floor = PRECONDITIONER_FLOOR * largestDiagonal;
@@ -218,8 +220,17 @@ function createNewtonPreconditioner(
   }
   const lower = createMatrix(size, size);
   choleskyDecompose(matrixFromValues(size, size, hessian), lower);
-  return (vector) => choleskySolveInPlace(lower, vector);
+  const precondition = (vector: Float64Array) => choleskySolveInPlace(lower, vector);
+  preconditioners.set(hessian, precondition);
+  return precondition;
 }
+
+/**
+ * Preconditioners by the Hessian array they were made from (and modified). The fit from digests
+ * (digests/fit-pooled-optimum.ts) replays the fit after every round and hands over the same array
+ * each time: its factorization, about (C·width)³/6 multiply-adds, is made once.
+ */
+const preconditioners = new WeakMap<Float64Array, (vector: Float64Array) => void>();
 
 /**
  * Least squares' W* (methods.md §2): the normal equations (G + Λ) w = −∇F(0) by Cholesky, then

@@ -1,7 +1,7 @@
 import { createMatrix } from "../../math/matrix";
 import { readTotals } from "../objective-pass";
 import { PARALLEL_MIN_WORK } from "../analyze-partition";
-import { countAvailableThreads, PassPool, type SharedDesign } from "../pass-pool";
+import { countAvailableThreads, PassPool, type PassResult, type SharedDesign } from "../pass-pool";
 import type { ClientDesign } from "./client-rows";
 import type { EvaluationRequest, EvaluationSums } from "./digest-format";
 
@@ -13,6 +13,8 @@ import type { EvaluationRequest, EvaluationSums } from "./digest-format";
 export class ClientPasses {
   readonly passes: SharedDesign;
   private sample: { key: string; passes: SharedDesign } | null = null;
+  /** Passes over all rows that round 2 asks for again (see `passAt`), by their point W. */
+  private readonly kept = new Map<string, { withSquaredNorms: boolean; result: PassResult }>();
 
   constructor(
     readonly design: ClientDesign,
@@ -32,7 +34,15 @@ export class ClientPasses {
   evaluate(request: EvaluationRequest): EvaluationSums {
     const weights = Float64Array.from(request.weights);
     const target = request.sample === null ? this.passes : this.sharedSample(request.sample);
-    const { pooled } = target.evaluate(weights, false);
+    // The fit starts at W = 0, where round 2's path starts too: that pass is kept for it.
+    const { pooled } =
+      request.sample === null
+        ? this.passAt(
+            weights,
+            false,
+            weights.every((value) => value === 0),
+          )
+        : target.evaluate(weights, false);
     const sums = readTotals(pooled);
     let hessianSum: number[] | null = null;
     if (request.hessian) {
@@ -50,6 +60,22 @@ export class ClientPasses {
       gradientSum: Array.from(sums.gradient),
       hessianSum,
     };
+  }
+
+  /**
+   * Σℓᵢ, Σ∇ℓᵢ (and with `withSquaredNorms` Σ‖∇ℓᵢ‖²) per shard and pooled over all rows at W. A pass
+   * made with `keep` is kept and serves the same point again — one with squared norms also serves
+   * one without, their loss and gradient sums being the same arithmetic (objective-pass.ts) — so
+   * round 2 makes no pass twice: its path starts at the fit's first point (W = 0) and, for the
+   * pooled optimum, ends at the reference point.
+   */
+  passAt(weights: Float64Array, withSquaredNorms: boolean, keep: boolean): PassResult {
+    const key = weights.join(",");
+    const known = this.kept.get(key);
+    if (known && (known.withSquaredNorms || !withSquaredNorms)) return known.result;
+    const result = this.passes.evaluate(weights, withSquaredNorms);
+    if (keep) this.kept.set(key, { withSquaredNorms, result });
+    return result;
   }
 
   /** Σ x̃ᵢx̃ᵢᵀ over the client's rows, (d+1) × (d+1). */

@@ -49,9 +49,10 @@ export async function fitPooledOptimum(
   options: FitPooledOptions,
 ): Promise<PooledFit> {
   const answers = new Map<string, EvaluationSums>();
+  const hessians = new WeakMap<EvaluationSums, Float64Array>();
   for (;;) {
     try {
-      return replayFit(encoding, answers, options);
+      return replayFit(encoding, answers, hessians, options);
     } catch (error) {
       if (!(error instanceof EvaluationNeeded)) throw error;
       answers.set(keyOf(error.request), await evaluate(error.request));
@@ -116,9 +117,15 @@ function keyOf(request: EvaluationRequest): string {
   return JSON.stringify([request.weights, request.sample?.stride ?? 1, request.hessian]);
 }
 
+/**
+ * One replay of the fit with the answers so far. `hessians` keeps the preconditioner's Hessian made
+ * from each answer, so every replay hands the fit the same array, whose factorization the fit then
+ * reuses (fit-reference-model.ts).
+ */
 function replayFit(
   encoding: DigestEncoding,
   answers: Map<string, EvaluationSums>,
+  hessians: WeakMap<EvaluationSums, Float64Array>,
   { lambda, gram, schemas }: FitPooledOptions,
 ): PooledFit {
   const width = encoding.columns.length + 1;
@@ -165,10 +172,15 @@ function replayFit(
         sample === null ? evaluate(weights) : finish(weights, ask(weights, true, false)),
       computeSampleHessian: (weights) => {
         const answer = ask(weights, sample !== null, true);
+        const known = hessians.get(answer);
+        if (known) return known;
         const size = weights.length;
-        const hessian = Float64Array.from(answer.hessianSum ?? [], (value) => value / answer.rows);
+        const hessian = new Float64Array(size * size);
+        const sums = answer.hessianSum ?? [];
+        for (let k = 0; k < hessian.length; k++) hessian[k] = sums[k] / answer.rows;
         // The regularizer's Hessian λ·I off the biases (methods.md §2), as the central one adds.
         for (let k = 0; k < size; k++) if (k % width !== width - 1) hessian[k * size + k] += lambda;
+        hessians.set(answer, hessian);
         return hessian;
       },
     },

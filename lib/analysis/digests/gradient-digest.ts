@@ -31,17 +31,9 @@ export function computeGradientDigest(
       { expected: "the encoding the coordinator sent for this analysis" },
     );
   }
-  const { design, passes } = clientPasses;
-  const measured = new Map<string, PassTotals[]>();
-  const measure = (weights: Float64Array, withNoise: boolean): PassTotals[] => {
-    const key = `${withNoise}:${Array.from(weights).join(",")}`;
-    let shards = measured.get(key);
-    if (shards === undefined) {
-      shards = passes.evaluate(weights, withNoise).shards;
-      measured.set(key, shards);
-    }
-    return shards;
-  };
+  const { design } = clientPasses;
+  const measure = (weights: Float64Array, withNoise: boolean): PassTotals[] =>
+    clientPasses.passAt(weights, withNoise, true).shards;
   const atReference = measure(Float64Array.from(request.referenceWeights.flat()), true);
   const pathEnd = Float64Array.from(request.pathEnd.flat());
   const alongPath = PATH_POINTS.map((t) =>
