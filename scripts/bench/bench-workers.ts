@@ -4,11 +4,14 @@
  * its own (`taskset -c 0` and `-c 1`) and sharing the analysis in two parts (methods.md §9's
  * digests, lib/reports/analysis-in-parts.ts). Throwaway PostgreSQL and S3 fake on free loopback
  * ports (not pinned). The time of each run is the coordinating worker's own: from taking the
- * analysis's job to its report stored. Prints both and the speed-up.
+ * analysis's job to its report stored. Prints both and the speed-up, with each worker's CPU time
+ * over the same span (steadier than wall time while other work loads the machine) and the load
+ * average before each run.
  */
 import { execFile, spawn, type ChildProcess } from "node:child_process";
 import { createHash } from "node:crypto";
-import { createReadStream } from "node:fs";
+import { createReadStream, readFileSync } from "node:fs";
+import { loadavg } from "node:os";
 import path from "node:path";
 import { promisify } from "node:util";
 import { Supervisor } from "../services/processes";
@@ -65,20 +68,40 @@ function startPinnedWorkers(projectRoot: string, env: NodeJS.ProcessEnv, count: 
   return { workers, waitFor, stop };
 }
 
+/** Clock ticks per second of /proc/<pid>/stat times (USER_HZ, 100 on Linux). */
+const CLOCK_TICKS = 100;
+
+/** User + system CPU seconds of a process so far, all its threads included. */
+function cpuSecondsOf(pid: number): number {
+  const stat = readFileSync(`/proc/${pid}/stat`, "utf8");
+  // Fields 14 and 15 (utime, stime), counted after the command name.
+  const fields = stat.slice(stat.lastIndexOf(")") + 2).split(" ");
+  return (Number(fields[11]) + Number(fields[12])) / CLOCK_TICKS;
+}
+
+interface WorkersRun {
+  /** The coordinating worker's seconds from taking the job to the stored report. */
+  seconds: number;
+  /** Each worker's CPU seconds from queueing the analysis to its end. */
+  cpuSeconds: number[];
+  /** The one-minute load average before the run. */
+  load: number;
+}
+
 async function sha256Of(file: string): Promise<string> {
   const hash = createHash("sha256");
   for await (const chunk of createReadStream(file)) hash.update(chunk as Buffer);
   return hash.digest("hex");
 }
 
-/** One analysis of `file` by `count` pinned workers; the coordinating worker's seconds. */
+/** One analysis of `file` by `count` pinned workers. */
 async function timeWorkers(
   projectRoot: string,
   env: NodeJS.ProcessEnv,
   file: string,
   sha256: string,
   count: number,
-): Promise<number> {
+): Promise<WorkersRun> {
   const workerEnv = { ...env, PARTITA_ANALYSIS_PARTS: String(count) };
   const pinned = startPinnedWorkers(projectRoot, workerEnv, count);
   try {
@@ -96,6 +119,8 @@ async function timeWorkers(
           }),
       ),
     );
+    const load = loadavg()[0];
+    const cpuBefore = pinned.workers.map(({ child }) => cpuSecondsOf(child.pid as number));
     const queued = await run(
       process.execPath,
       [...NODE_ARGS, path.join(projectRoot, "scripts/bench/queue-analysis.ts"), file, sha256],
@@ -110,7 +135,10 @@ async function timeWorkers(
         `the analysis ${outcome}:\n${pinned.workers.map((w) => w.output).join("\n")}`,
       );
     }
-    return Number(seconds);
+    const cpuSeconds = pinned.workers.map(
+      ({ child }, index) => cpuSecondsOf(child.pid as number) - cpuBefore[index],
+    );
+    return { seconds: Number(seconds), cpuSeconds, load };
   } finally {
     await pinned.stop();
   }
@@ -125,13 +153,21 @@ export async function benchWorkers(projectRoot: string, file: string): Promise<v
     process.stdout.write("one worker pinned to one core …\n");
     const one = await timeWorkers(projectRoot, env, file, sha256, 1);
     process.stdout.write(
-      `  ${one.toFixed(1)} s\ntwo workers, each pinned to a core, two parts …\n`,
+      `  ${describeRun(one)}\ntwo workers, each pinned to a core, two parts …\n`,
     );
     const two = await timeWorkers(projectRoot, env, file, sha256, 2);
+    const busiest = Math.max(...two.cpuSeconds);
     process.stdout.write(
-      `  ${two.toFixed(1)} s\nspeed-up of two workers over one: ${(one / two).toFixed(2)}× (target ≥ 1.7×)\n`,
+      `  ${describeRun(two)}\n` +
+        `speed-up of two workers over one: ${(one.seconds / two.seconds).toFixed(2)}× (target ≥ 1.7×); ` +
+        `by CPU time, one worker's over the busier of two: ${(one.cpuSeconds[0] / busiest).toFixed(2)}×\n`,
     );
   } finally {
     await supervisor.shutdown();
   }
+}
+
+function describeRun(run: WorkersRun): string {
+  const cpu = run.cpuSeconds.map((seconds) => `${seconds.toFixed(1)} s`).join(" + ");
+  return `${run.seconds.toFixed(1)} s wall, CPU ${cpu} (load average ${run.load.toFixed(1)} before)`;
 }
