@@ -1,7 +1,7 @@
 import "server-only";
 import { and, desc, eq, ne, or, sql } from "drizzle-orm";
 import { db } from "@/db/client";
-import { analyses, dataFiles, type DataFilePreview } from "@/db/schema";
+import { analyses, dataFiles, layoutPlans, type DataFilePreview } from "@/db/schema";
 import { encodeListCursor, type ListCursor } from "@/lib/api/list-cursor";
 import { RuleError } from "@/lib/errors";
 import type { DataFileKind } from "@/lib/uploads/file-rules";
@@ -154,9 +154,11 @@ export async function findSameContents(
 }
 
 /**
- * Deletes a file of this workspace that no analysis reads, and returns its object key for the
- * caller to remove from storage. 404 when there is no such file, 409 when an analysis reads it
- * (its reports name it as an input, so it stays while they do).
+ * Deletes a file of this workspace that no analysis reads and no layout plan splits, and returns
+ * its object key for the caller to remove from storage. 404 when there is no such file, 409 when an
+ * analysis reads it (its reports name it as an input, so it stays while they do) or a layout plan
+ * was made of it (its comparison and maps are rows of that dataset). A layout file registered from
+ * a plan's candidate is a copy and may go: the candidate's link to it is cleared (on delete).
  */
 export async function deleteUnusedDataFile(
   workspaceId: string,
@@ -175,6 +177,7 @@ export async function deleteUnusedDataFile(
         ),
       ),
     );
+  const plannedOn = plansOfDataset(workspaceId, fileId);
   const [deleted] = await db()
     .delete(dataFiles)
     .where(
@@ -182,16 +185,43 @@ export async function deleteUnusedDataFile(
         eq(dataFiles.workspaceId, workspaceId),
         eq(dataFiles.id, fileId),
         sql`not exists (${usedBy})`,
+        sql`not exists (${plannedOn})`,
       ),
     )
     .returning({ objectKey: dataFiles.objectKey, name: dataFiles.name });
   if (deleted) return deleted;
   const file = await findDataFile(workspaceId, fileId);
   if (!file) throw new RuleError(404, "That file is not in this workspace.");
-  throw new RuleError(
-    409,
-    `"${file.name}" is an input of ${file.analysisCount === 1 ? "an analysis" : `${file.analysisCount} analyses`}; it stays while their reports do.`,
-  );
+  const planCount = (await plansOfDataset(workspaceId, fileId)).length;
+  throw new RuleError(409, describeReaders(file.name, file.analysisCount, planCount));
+}
+
+/** The layout plans of the workspace that split this file (their dataset). */
+function plansOfDataset(workspaceId: string, fileId: string) {
+  return db()
+    .select({ id: layoutPlans.id })
+    .from(layoutPlans)
+    .where(and(eq(layoutPlans.workspaceId, workspaceId), eq(layoutPlans.datasetFileId, fileId)));
+}
+
+/** Why a file stays: the analyses that read it and the layout plans that split it. */
+function describeReaders(name: string, analysisCount: number, planCount: number): string {
+  const count = (n: number, one: string, many: string) => (n === 1 ? one : `${n} ${many}`);
+  const readers = [
+    ...(analysisCount > 0
+      ? [`an input of ${count(analysisCount, "an analysis", "analyses")}`]
+      : []),
+    ...(planCount > 0
+      ? [`the dataset of ${count(planCount, "a layout plan", "layout plans")}`]
+      : []),
+  ];
+  const keeper =
+    planCount === 0
+      ? "their reports do"
+      : analysisCount + planCount === 1
+        ? "the plan does"
+        : "they do";
+  return `"${name}" is ${readers.join(" and ")}; it stays while ${keeper}.`;
 }
 
 /** The registration of an object key in this workspace, or undefined. */

@@ -85,8 +85,12 @@ export const layoutCandidates = pgTable(
     /** Where the candidate's partition map (row_id,shard CSV) is stored. */
     mapObjectKey: text("map_object_key"),
     mapSizeBytes: integer("map_size_bytes"),
-    /** The map registered as a layout file once someone chose to analyse it. */
-    mapFileId: text("map_file_id").references(() => dataFiles.id),
+    /**
+     * The map registered as a layout file once someone chose to analyse it. That file is a copy:
+     * deleting it clears this link and leaves the candidate's own map (a later "analyse" registers
+     * it again).
+     */
+    mapFileId: text("map_file_id").references(() => dataFiles.id, { onDelete: "set null" }),
     failureMessage: text("failure_message"),
     /** True when the candidate failed on its input (data, M, parameters), not on a defect. */
     failedOnInput: boolean("failed_on_input").notNull().default(false),

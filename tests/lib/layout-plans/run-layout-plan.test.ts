@@ -47,6 +47,7 @@ import { eq } from "drizzle-orm";
 import { closeDb, db } from "@/db/client";
 import { layoutPlans } from "@/db/schema";
 import { createHash } from "node:crypto";
+import { deleteDataFile } from "@/app/(workspace)/w/[workspaceId]/analyses/new/actions";
 import { findInputFiles } from "@/db/queries/analyses";
 import { listDataFiles } from "@/db/queries/data-files";
 import { findLayoutPlan } from "@/db/queries/layout-plans";
@@ -176,6 +177,32 @@ describe("running a layout plan job", () => {
     const other = await createTeam();
     actAs(other.owner);
     expect(await analyseCandidate(other.workspaceId, planId, 0)).toMatchObject({ status: 404 });
+  }, 120_000);
+
+  it("refuses to delete a plan's dataset with a clear 409, and lets a candidate's registered map go", async () => {
+    const { team, planId, job } = await planPenguins({ generators: [{ generator: "iid" }] });
+    await runLayoutPlan(job, { willRetry: false });
+    const plan = (await findLayoutPlan(team.workspaceId, planId))!;
+    expect(await deleteDataFile(team.workspaceId, plan.datasetFileId)).toMatchObject({
+      ok: false,
+      status: 409,
+      message: '"penguins.csv" is the dataset of a layout plan; it stays while the plan does.',
+    });
+    expect((await findInputFiles(team.workspaceId, [plan.datasetFileId])).length).toBe(1);
+
+    // The registered map is a copy: deleting it clears the candidate's link, keeps its own map,
+    // and analysing the candidate again registers a new file.
+    const first = await analyseCandidate(team.workspaceId, planId, 0);
+    if (!first.ok) throw new Error(first.message);
+    expect(await deleteDataFile(team.workspaceId, first.data.layoutFileId)).toEqual({
+      ok: true,
+      data: undefined,
+    });
+    const candidate = (await findLayoutPlan(team.workspaceId, planId))!.candidates[0];
+    expect(candidate.mapFileId).toBeNull();
+    expect((await readObject(candidate.mapObjectKey!)).startsWith("row_id,shard\n")).toBe(true);
+    const again = await analyseCandidate(team.workspaceId, planId, 0);
+    expect(again.ok && again.data.layoutFileId !== first.data.layoutFileId).toBe(true);
   }, 120_000);
 
   it("stops when cancelled, keeping the candidates already scored", async () => {
