@@ -1,6 +1,5 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { notFound } from "next/navigation";
 import { CandidateScatter } from "@/components/layouts/candidate-scatter";
 import { CandidateTable } from "@/components/layouts/candidate-table";
 import { LabelMixStrip } from "@/components/layouts/label-mix-strip";
@@ -8,10 +7,9 @@ import { PrintButton } from "@/components/reports/print-button";
 import { buttonClasses } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import { Cautions } from "@/components/workspace/cautions";
-import { findLayoutPlan } from "@/db/queries/layout-plans";
-import { guardPage } from "@/lib/auth/page-guard";
 import { roleAllows } from "@/lib/auth/roles";
 import { buildComparisonRows } from "@/lib/layout-plans/comparison-view";
+import { describePlanInput, loadPlanPage, type PlanPageParams } from "../load-plan";
 
 export const metadata: Metadata = { title: "Compare layouts" };
 
@@ -19,25 +17,14 @@ export const metadata: Metadata = { title: "Compare layouts" };
  * The candidates of one plan side by side (methods.md §8): ρ against weighted JS, the sortable
  * table, each candidate's label mix, the downloads, and "Analyse this layout".
  */
-export default async function CompareLayoutsPage({
-  params,
-}: {
-  params: Promise<{ workspaceId: string; planId: string }>;
-}) {
-  const { workspaceId, planId } = await params;
-  const { workspace } = await guardPage(
-    workspaceId,
-    "readWorkspace",
-    `/w/${workspaceId}/layouts/${planId}/compare`,
-  );
-  const plan = await findLayoutPlan(workspace.id, planId);
-  if (!plan) notFound();
+export default async function CompareLayoutsPage({ params }: { params: PlanPageParams }) {
+  const { workspace, plan } = await loadPlanPage(params, "/compare");
   const rows = buildComparisonRows(plan);
   const failed = plan.candidates.filter((candidate) => candidate.status === "failed");
   const unfinished = plan.candidates.filter((candidate) =>
     ["queued", "running"].includes(candidate.status),
   ).length;
-  const base = `/w/${workspace.id}/layouts/${planId}`;
+  const base = `/w/${workspace.id}/layouts/${plan.id}`;
   return (
     <div className="space-y-8">
       <header className="space-y-1">
@@ -53,11 +40,10 @@ export default async function CompareLayoutsPage({
         </p>
         <h1 className="text-2xl font-semibold tracking-tight break-words">{plan.title}</h1>
         <p className="text-sm text-ink-soft">
-          {plan.datasetName} into {plan.shardCount} shards
-          {plan.groupColumn ? `, groups by ${plan.groupColumn}` : ""}, seed {plan.seed}; every
-          candidate scored for the plan K = {plan.options.localSteps ?? 10}, R ={" "}
-          {plan.options.rounds ?? 100}, b = {plan.options.batchSize ?? 32}. Ranked by ρ (lower
-          favours local updates), then by weighted JS.
+          {describePlanInput(plan)}; every candidate scored for the plan K ={" "}
+          {plan.options.localSteps ?? 10}, R = {plan.options.rounds ?? 100}, b ={" "}
+          {plan.options.batchSize ?? 32}. Ranked by ρ (lower favours local updates), then by
+          weighted JS.
         </p>
       </header>
       {unfinished > 0 ? (
@@ -79,7 +65,7 @@ export default async function CompareLayoutsPage({
           <div className="no-print flex flex-wrap gap-2">
             <a
               className={buttonClasses("quiet")}
-              href={`/api/workspaces/${workspace.id}/layout-plans/${planId}/comparison.json`}
+              href={`/api/workspaces/${workspace.id}/layout-plans/${plan.id}/comparison.json`}
               download
             >
               Download the comparison (JSON)
@@ -99,7 +85,7 @@ export default async function CompareLayoutsPage({
             <CandidateTable
               rows={rows}
               workspaceId={workspace.id}
-              planId={planId}
+              planId={plan.id}
               canAnalyse={roleAllows(workspace.role, "uploadData")}
             />
             <p className="text-sm text-ink-soft">
