@@ -1,5 +1,5 @@
 import { z } from "zod";
-import type { ZodOpenApiOperationObject, ZodOpenApiPathsObject } from "zod-openapi";
+import type { ZodOpenApiPathsObject } from "zod-openapi";
 import { evaluationSumsSchema, gradientDigestSchema, schemaDigestSchema } from "@/lib/analysis";
 import { CLIENT_KEY_PREFIX } from "@/lib/auth/client-key-secret";
 import {
@@ -20,15 +20,7 @@ import {
   issuedKeySchema,
   waitQuerySchema,
 } from "./federated-schemas";
-
-type ErrorStatus = "401" | "403" | "404" | "422" | "429";
-type Operation = (
-  spec: Omit<ZodOpenApiOperationObject, "responses"> & {
-    success: [status: string, description: string, schema?: z.ZodType];
-    failures: ErrorStatus[];
-  },
-) => ZodOpenApiOperationObject;
-type Json = (schema: z.ZodType) => { content: { "application/json": { schema: z.ZodType } } };
+import { json, operation } from "./openapi-operation";
 
 /** The client key's security scheme: it reaches only the /api/v1/digests routes. */
 export const clientKeyScheme = {
@@ -39,22 +31,14 @@ export const clientKeyScheme = {
   },
 };
 
-const conflict = {
-  "409": {
-    description: "Not now: the analysis is in another state, or this was sent already.",
-  },
-};
+const NOT_NOW = "Not now: the analysis is in another state, or this was sent already.";
 
 /**
  * The federated analysis's paths (methods.md §9): the analyst's, with a personal API token, and a
- * client's, with its client key. Built with openapi.ts's own operation helper.
+ * client's, with its client key.
  */
-export function federatedPaths(operation: Operation, json: Json): ZodOpenApiPathsObject {
+export function federatedPaths(): ZodOpenApiPathsObject {
   const asClient = { security: [{ clientKey: [] }] };
-  const withConflict = (spec: ZodOpenApiOperationObject) => ({
-    ...spec,
-    responses: { ...spec.responses, ...conflict },
-  });
   return {
     "/api/v1/federated": {
       post: operation({
@@ -83,16 +67,15 @@ export function federatedPaths(operation: Operation, json: Json): ZodOpenApiPath
       }),
     },
     "/api/v1/federated/{analysisId}/keys": {
-      post: withConflict(
-        operation({
-          operationId: "issueClientKey",
-          summary: "Issue a client key for one roster client (shown once)",
-          requestParams: { path: federatedPathSchema },
-          requestBody: json(issueClientKeySchema),
-          success: ["201", "The key; only its hash is kept.", issuedKeySchema],
-          failures: ["403", "404", "422"],
-        }),
-      ),
+      post: operation({
+        operationId: "issueClientKey",
+        summary: "Issue a client key for one roster client (shown once)",
+        requestParams: { path: federatedPathSchema },
+        requestBody: json(issueClientKeySchema),
+        success: ["201", "The key; only its hash is kept.", issuedKeySchema],
+        failures: ["403", "404", "422"],
+        conflict: NOT_NOW,
+      }),
     },
     "/api/v1/federated/{analysisId}/keys/{keyId}": {
       delete: operation({
@@ -104,26 +87,24 @@ export function federatedPaths(operation: Operation, json: Json): ZodOpenApiPath
       }),
     },
     "/api/v1/federated/{analysisId}/close": {
-      post: withConflict(
-        operation({
-          operationId: "closeRoster",
-          summary: "End round 1 without the clients still missing",
-          requestParams: { path: federatedPathSchema },
-          success: ["200", "The state after, and who is missing.", closedRosterSchema],
-          failures: ["403", "404", "422"],
-        }),
-      ),
+      post: operation({
+        operationId: "closeRoster",
+        summary: "End round 1 without the clients still missing",
+        requestParams: { path: federatedPathSchema },
+        success: ["200", "The state after, and who is missing.", closedRosterSchema],
+        failures: ["403", "404", "422"],
+        conflict: NOT_NOW,
+      }),
     },
     "/api/v1/federated/{analysisId}/cancel": {
-      post: withConflict(
-        operation({
-          operationId: "cancelFederatedAnalysis",
-          summary: "Stop a federated analysis that has not ended",
-          requestParams: { path: federatedPathSchema },
-          success: ["204", "Stopped; accepted digests stay stored."],
-          failures: ["403", "404", "422"],
-        }),
-      ),
+      post: operation({
+        operationId: "cancelFederatedAnalysis",
+        summary: "Stop a federated analysis that has not ended",
+        requestParams: { path: federatedPathSchema },
+        success: ["204", "Stopped; accepted digests stay stored."],
+        failures: ["403", "404", "422"],
+        conflict: NOT_NOW,
+      }),
     },
     "/api/v1/digests/client": {
       get: operation({
@@ -135,31 +116,29 @@ export function federatedPaths(operation: Operation, json: Json): ZodOpenApiPath
       }),
     },
     "/api/v1/digests/schema": {
-      post: withConflict(
-        operation({
-          ...asClient,
-          operationId: "sendSchemaDigest",
-          summary: "Round 1: the client's schema digest",
-          requestBody: json(schemaDigestSchema),
-          success: [
-            "201",
-            "Accepted (200 when the same digest was accepted before).",
-            acceptedDigestSchema,
-          ],
-          failures: ["404", "422"],
-        }),
-      ),
+      post: operation({
+        ...asClient,
+        operationId: "sendSchemaDigest",
+        summary: "Round 1: the client's schema digest",
+        requestBody: json(schemaDigestSchema),
+        success: [
+          "201",
+          "Accepted (200 when the same digest was accepted before).",
+          acceptedDigestSchema,
+        ],
+        failures: ["404", "422"],
+        conflict: NOT_NOW,
+      }),
     },
     "/api/v1/digests/encoding": {
-      get: withConflict(
-        operation({
-          ...asClient,
-          operationId: "getEncoding",
-          summary: "The encoding (merged round 1); 409 while round 1 is open",
-          success: ["200", "The encoding with its hash."],
-          failures: ["404"],
-        }),
-      ),
+      get: operation({
+        ...asClient,
+        operationId: "getEncoding",
+        summary: "The encoding (merged round 1); 409 while round 1 is open",
+        success: ["200", "The encoding with its hash."],
+        failures: ["404"],
+        conflict: NOT_NOW,
+      }),
     },
     "/api/v1/digests/work": {
       get: operation({
@@ -185,20 +164,19 @@ export function federatedPaths(operation: Operation, json: Json): ZodOpenApiPath
       }),
     },
     "/api/v1/digests/gradients": {
-      post: withConflict(
-        operation({
-          ...asClient,
-          operationId: "sendGradientDigest",
-          summary: "Round 2: the gradient digest at the points the coordinator asked for",
-          requestBody: json(gradientDigestSchema),
-          success: [
-            "201",
-            "Accepted (200 when the same digest was accepted before).",
-            acceptedDigestSchema,
-          ],
-          failures: ["404", "422"],
-        }),
-      ),
+      post: operation({
+        ...asClient,
+        operationId: "sendGradientDigest",
+        summary: "Round 2: the gradient digest at the points the coordinator asked for",
+        requestBody: json(gradientDigestSchema),
+        success: [
+          "201",
+          "Accepted (200 when the same digest was accepted before).",
+          acceptedDigestSchema,
+        ],
+        failures: ["404", "422"],
+        conflict: NOT_NOW,
+      }),
     },
   };
 }

@@ -1,5 +1,4 @@
-import { z } from "zod";
-import { createDocument, type ZodOpenApiOperationObject } from "zod-openapi";
+import { createDocument } from "zod-openapi";
 import {
   createUploadSchema,
   abortMultipartSchema,
@@ -9,13 +8,12 @@ import { registerDataFileSchema, signPartsSchema } from "@/lib/validation/upload
 import { layoutPlanSchema } from "@/lib/validation/layout-plan";
 import { startAnalysisSchema } from "@/lib/validation/start-analysis";
 import { API_TOKEN_PREFIX } from "@/lib/auth/api-token-secret";
-import { API_REQUESTS_PER_MINUTE } from "./rate-limit";
+import { json, operation } from "./openapi-operation";
 import { clientKeyScheme, federatedPaths } from "./openapi-federated";
 import {
   analysisListSchema,
   analysisPathSchema,
   analysisStatusSchema,
-  apiErrorSchema,
   callerSchema,
   completedUploadSchema,
   dataFileListSchema,
@@ -35,50 +33,7 @@ import {
   uploadTicketSchema,
 } from "./schemas";
 
-const json = (schema: z.ZodType) => ({ content: { "application/json": { schema } } });
-
-const ERROR_DESCRIPTIONS = {
-  "401":
-    "No token, or a token that is unknown, expired, revoked or whose owner left the workspace.",
-  "403": "The token's user does not hold the role this needs in the workspace.",
-  "404": "Nothing with that id in the token's workspace.",
-  "409": "Not yet: the plan is still running.",
-  "422": "The input is malformed or breaks a rule; `fieldErrors` says where.",
-  "429": `More than ${API_REQUESTS_PER_MINUTE} requests a minute with this token; see Retry-After.`,
-} as const;
-
-type ErrorStatus = keyof typeof ERROR_DESCRIPTIONS;
-
-function errors(...statuses: ErrorStatus[]) {
-  return Object.fromEntries(
-    (["401", ...statuses, "429"] as ErrorStatus[]).map((status) => [
-      status,
-      { description: ERROR_DESCRIPTIONS[status], ...json(apiErrorSchema) },
-    ]),
-  );
-}
-
-function operation(
-  spec: Omit<ZodOpenApiOperationObject, "responses"> & {
-    success: [status: string, description: string, schema?: z.ZodType];
-    /** The success's media type when it is not JSON. */
-    successMediaType?: "text/csv";
-    failures: ErrorStatus[];
-  },
-): ZodOpenApiOperationObject {
-  const { success, successMediaType, failures, ...rest } = spec;
-  const [status, description, schema] = success;
-  const content = successMediaType
-    ? { content: { [successMediaType]: { schema: schema ?? z.string() } } }
-    : schema && json(schema);
-  return {
-    ...rest,
-    responses: {
-      [status]: { description, ...content },
-      ...errors(...failures),
-    },
-  };
-}
+const PLAN_RUNNING = "Not yet: the plan is still running.";
 
 /**
  * The OpenAPI 3.1 description of /api/v1, generated from the zod schemas the handlers validate
@@ -234,7 +189,8 @@ export function createApiDocument() {
             "Scored candidates ranked, and the failed ones.",
             layoutComparisonSchema,
           ],
-          failures: ["404", "409", "422"],
+          failures: ["404", "422"],
+          conflict: PLAN_RUNNING,
         }),
       },
       "/api/v1/layout-plans/{planId}/candidates/{candidate}/map": {
@@ -247,7 +203,8 @@ export function createApiDocument() {
           requestParams: { path: layoutCandidatePathSchema },
           success: ["200", "The partition map."],
           successMediaType: "text/csv",
-          failures: ["404", "409", "422"],
+          failures: ["404", "422"],
+          conflict: PLAN_RUNNING,
         }),
       },
       "/api/v1/reports": {
@@ -269,7 +226,7 @@ export function createApiDocument() {
           failures: ["404", "422"],
         }),
       },
-      ...federatedPaths(operation, json),
+      ...federatedPaths(),
       "/api/v1/openapi.json": {
         get: {
           operationId: "getOpenApiDocument",
