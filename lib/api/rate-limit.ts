@@ -16,8 +16,16 @@ const perToken = sharedLimiter({
 
 /** Counts one request of a token; throws a 429 ApiError (with Retry-After) once the minute is spent. */
 export async function consumeApiRequest(tokenId: string): Promise<void> {
+  await consumeOrRefuse(perToken, tokenId);
+}
+
+/** Counts one request against `key`'s budget; a spent budget is a 429 ApiError with Retry-After. */
+export async function consumeOrRefuse(
+  limiter: ReturnType<typeof sharedLimiter>,
+  key: string,
+): Promise<void> {
   try {
-    await perToken.consume(tokenId);
+    await limiter.consume(key);
   } catch (rejection) {
     if (rejection instanceof RateLimiterRes) {
       throw rateLimited(Math.max(1, Math.ceil(rejection.msBeforeNext / 1000)));

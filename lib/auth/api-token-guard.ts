@@ -14,7 +14,8 @@ import {
 } from "@/lib/api/errors";
 import { consumeApiRequest } from "@/lib/api/rate-limit";
 import { forbidden } from "./errors";
-import { hashApiToken, looksLikeApiToken } from "./api-token-secret";
+import { API_TOKENS } from "./api-token-secret";
+import { findBearerGrant } from "./bearer-secret";
 import { roleAllows, type Capability } from "./roles";
 import type { SessionUser } from "./session";
 
@@ -24,13 +25,6 @@ export type TokenCaller = {
   tokenId: string;
   tokenName: string;
 };
-
-function readBearerToken(request: Request): string {
-  const header = request.headers.get("authorization") ?? "";
-  const match = /^Bearer\s+(\S+)\s*$/i.exec(header);
-  if (!match) throw missingToken();
-  return match[1];
-}
 
 /**
  * First line of every /api/v1 handler, the API's requireRole: the bearer token names a user and a
@@ -43,12 +37,13 @@ export async function requireToken(
   capability: Capability,
   now = new Date(),
 ): Promise<TokenCaller> {
-  const token = readBearerToken(request);
-  if (!looksLikeApiToken(token)) throw unknownToken();
-  const grant = await findApiTokenGrant(hashApiToken(token));
-  if (!grant) throw unknownToken();
-  if (grant.revokedAt) throw revokedToken();
-  if (grant.expiresAt <= now) throw expiredToken(grant.expiresAt);
+  const grant = await findBearerGrant(
+    request,
+    API_TOKENS,
+    findApiTokenGrant,
+    { missing: missingToken, unknown: unknownToken, revoked: revokedToken, expired: expiredToken },
+    now,
+  );
   if (!grant.role) throw formerMemberToken();
   await consumeApiRequest(grant.tokenId);
   // Most requests of a busy token skip the write: its recorded use is still within the minute.

@@ -1,9 +1,11 @@
 import "server-only";
 import { findClientKeyGrant, recordClientKeyUse } from "@/db/queries/federated-client-keys";
 import { markClientSeen } from "@/db/queries/federated-analyses";
-import { ApiError, rateLimited } from "@/lib/api/errors";
-import { RateLimiterRes, sharedLimiter } from "@/lib/rate-limits/shared-limiter";
-import { hashClientKey, looksLikeClientKey } from "./client-key-secret";
+import { ApiError } from "@/lib/api/errors";
+import { consumeOrRefuse } from "@/lib/api/rate-limit";
+import { sharedLimiter } from "@/lib/rate-limits/shared-limiter";
+import { findBearerGrant, type BearerRefusals } from "./bearer-secret";
+import { CLIENT_KEYS } from "./client-key-secret";
 
 /** Who a client key speaks for: one client of one federated analysis, nothing more. */
 export type ClientCaller = {
@@ -27,41 +29,31 @@ const perKey = sharedLimiter({
 
 const keyError = (code: string, message: string) => new ApiError(401, code, message);
 
+const refuseKey: BearerRefusals = {
+  missing: () =>
+    keyError(
+      "missing_key",
+      `Send the client key the analyst issued as \`Authorization: Bearer ${CLIENT_KEYS.prefix}…\`.`,
+    ),
+  unknown: () =>
+    keyError("invalid_key", "This client key is not valid. Check that it was copied whole."),
+  revoked: () =>
+    keyError("key_revoked", "This client key was revoked. Ask the analyst for a new one."),
+  expired: (expiresAt) =>
+    keyError(
+      "key_expired",
+      `This client key expired on ${expiresAt.toISOString().slice(0, 10)}. Ask the analyst for a new one.`,
+    ),
+};
+
 /**
  * First line of every client-key route: the bearer key names one client of one federated
  * analysis (the only thing it reaches); expiry and revocation are checked on every request, the
  * per-key rate limit counted, and the client marked as seen for the roster.
  */
 export async function requireClientKey(request: Request, now = new Date()): Promise<ClientCaller> {
-  const match = /^Bearer\s+(\S+)\s*$/i.exec(request.headers.get("authorization") ?? "");
-  if (!match) {
-    throw keyError(
-      "missing_key",
-      "Send the client key the analyst issued as `Authorization: Bearer prck_…`.",
-    );
-  }
-  const key = match[1];
-  const grant = looksLikeClientKey(key) ? await findClientKeyGrant(hashClientKey(key)) : undefined;
-  if (!grant) {
-    throw keyError("invalid_key", "This client key is not valid. Check that it was copied whole.");
-  }
-  if (grant.revokedAt) {
-    throw keyError("key_revoked", "This client key was revoked. Ask the analyst for a new one.");
-  }
-  if (grant.expiresAt <= now) {
-    throw keyError(
-      "key_expired",
-      `This client key expired on ${grant.expiresAt.toISOString().slice(0, 10)}. Ask the analyst for a new one.`,
-    );
-  }
-  try {
-    await perKey.consume(grant.keyId);
-  } catch (rejection) {
-    if (rejection instanceof RateLimiterRes) {
-      throw rateLimited(Math.max(1, Math.ceil(rejection.msBeforeNext / 1000)));
-    }
-    throw rejection;
-  }
+  const grant = await findBearerGrant(request, CLIENT_KEYS, findClientKeyGrant, refuseKey, now);
+  await consumeOrRefuse(perKey, grant.keyId);
   await Promise.all([recordClientKeyUse(grant.keyId, now), markClientSeen(grant.client.id, now)]);
   return {
     keyId: grant.keyId,

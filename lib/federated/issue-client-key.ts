@@ -2,7 +2,7 @@ import "server-only";
 import { recordAudit, type AuditActor } from "@/db/queries/audit";
 import { findFederatedClientByName } from "@/db/queries/federated-analyses";
 import { insertClientKey } from "@/db/queries/federated-client-keys";
-import { createClientKeySecret } from "@/lib/auth/client-key-secret";
+import { CLIENT_KEYS } from "@/lib/auth/client-key-secret";
 import { RuleError } from "@/lib/errors";
 import { issueClientKeySchema } from "@/lib/validation/federated-analysis";
 import { ENDED_STATES, requireFederatedAnalysis } from "./federated-rules";
@@ -31,7 +31,7 @@ export async function issueClientKey(
   if (!row) {
     throw new RuleError(422, `“${client}” is not on this analysis's roster.`, "client");
   }
-  const { key, keyHash } = createClientKeySecret();
+  const { secret: key, hash: keyHash } = CLIENT_KEYS.create();
   const inserted = await insertClientKey({
     clientId: row.id,
     keyHash,

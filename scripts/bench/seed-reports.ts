@@ -17,7 +17,7 @@ import { openSession } from "@/db/queries/sessions";
 import { createAccountWithWorkspace } from "@/db/queries/workspaces";
 import { analyses, dataFiles } from "@/db/schema";
 import type { PartitionSummary } from "@/lib/analysis";
-import { createApiTokenSecret } from "@/lib/auth/api-token-secret";
+import { API_TOKENS } from "@/lib/auth/api-token-secret";
 import { SESSION_MAX_AGE_SECONDS } from "@/lib/auth/options";
 import { env } from "@/lib/env";
 
@@ -71,7 +71,7 @@ async function seed(summary: PartitionSummary, count: number, tokenCount: number
   }
   const tokens: string[] = [];
   for (let index = 0; index < tokenCount; index++) {
-    const { token, tokenHash } = createApiTokenSecret();
+    const { secret: token, hash: tokenHash } = API_TOKENS.create();
     await insertApiToken({
       workspaceId,
       userId,

@@ -1,5 +1,5 @@
 import { insertApiToken } from "@/db/queries/api-tokens";
-import { createApiTokenSecret } from "@/lib/auth/api-token-secret";
+import { API_TOKENS } from "@/lib/auth/api-token-secret";
 
 /** A token made straight in the database (as the tokens page would), for API and CLI tests. */
 export async function issueTestToken(
@@ -7,7 +7,7 @@ export async function issueTestToken(
   workspaceId: string,
   expiresAt = new Date(Date.now() + 24 * 60 * 60 * 1000),
 ): Promise<{ token: string; tokenId: string }> {
-  const { token, tokenHash } = createApiTokenSecret();
+  const { secret: token, hash: tokenHash } = API_TOKENS.create();
   const row = await insertApiToken({
     userId,
     workspaceId,

@@ -5,7 +5,7 @@ import { insertApiToken, revokeApiToken } from "@/db/queries/api-tokens";
 import { recordAudit } from "@/db/queries/audit";
 import { failWith, succeed, type ActionResult } from "@/lib/actions/result";
 import { createApiTokenSchema, type CreateApiTokenInput } from "@/lib/auth/api-token-schema";
-import { createApiTokenSecret } from "@/lib/auth/api-token-secret";
+import { API_TOKENS } from "@/lib/auth/api-token-secret";
 import { requireRole } from "@/lib/auth/guards";
 import { roleAllows } from "@/lib/auth/roles";
 import { RuleError } from "@/lib/errors";
@@ -23,7 +23,7 @@ export async function createApiToken(
   try {
     const { user } = await requireRole(workspaceId, "manageApiTokens");
     const { name, lifetimeDays } = createApiTokenSchema.parse(input);
-    const { token, tokenHash } = createApiTokenSecret();
+    const { secret: token, hash: tokenHash } = API_TOKENS.create();
     const created = await insertApiToken({
       workspaceId,
       userId: user.id,
