@@ -1,14 +1,9 @@
 // The words for a federated analysis's state (db/schema/federated.ts), in one place for the list,
 // the roster page's stepper and its headline.
 
-export type FederatedState =
-  | "collecting-schemas"
-  | "encoding-ready"
-  | "fitting"
-  | "collecting-gradients"
-  | "merging"
-  | "done"
-  | "failed";
+import type { FederatedState } from "@/db/schema/federated";
+
+export type { FederatedState };
 
 export const STATE_LABELS: Record<FederatedState, string> = {
   "collecting-schemas": "Waiting for round 1",

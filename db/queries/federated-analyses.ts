@@ -2,6 +2,7 @@ import "server-only";
 import { and, desc, eq, inArray, isNotNull, isNull, lt, or, sql } from "drizzle-orm";
 import { db } from "@/db/client";
 import { federatedAnalyses, federatedClients, reports } from "@/db/schema";
+import { COORDINATED_FEDERATED_STATES, type FederatedState } from "@/db/schema/federated";
 import type { DigestEncoding } from "@/lib/analysis";
 
 // Every function that takes a workspace filters by it: a federated analysis of another workspace
@@ -9,7 +10,6 @@ import type { DigestEncoding } from "@/lib/analysis";
 
 export type FederatedAnalysisRow = typeof federatedAnalyses.$inferSelect;
 export type FederatedClientRow = typeof federatedClients.$inferSelect;
-export type FederatedState = FederatedAnalysisRow["state"];
 
 export async function insertFederatedAnalysis(
   values: typeof federatedAnalyses.$inferInsert,
@@ -135,7 +135,7 @@ export async function markClientSeen(clientId: string, now = new Date()): Promis
  */
 export async function moveFederatedState(
   analysisId: string,
-  from: FederatedState[],
+  from: readonly FederatedState[],
   values: Partial<
     Pick<
       FederatedAnalysisRow,
@@ -146,18 +146,10 @@ export async function moveFederatedState(
   const moved = await db()
     .update(federatedAnalyses)
     .set(values)
-    .where(and(eq(federatedAnalyses.id, analysisId), inArray(federatedAnalyses.state, from)))
+    .where(and(eq(federatedAnalyses.id, analysisId), inArray(federatedAnalyses.state, [...from])))
     .returning({ id: federatedAnalyses.id });
   return moved.length === 1;
 }
-
-/** The states in which a coordinator's job works on the analysis. */
-const COORDINATED_STATES: FederatedState[] = [
-  "encoding-ready",
-  "fitting",
-  "collecting-gradients",
-  "merging",
-];
 
 /**
  * A coordinator's job takes the analysis: its first heartbeat, and the job that now holds it (a
@@ -173,7 +165,7 @@ export async function claimFederatedCoordinator(
     .where(
       and(
         eq(federatedAnalyses.id, analysisId),
-        inArray(federatedAnalyses.state, COORDINATED_STATES),
+        inArray(federatedAnalyses.state, [...COORDINATED_FEDERATED_STATES]),
       ),
     )
     .returning({ id: federatedAnalyses.id });
@@ -209,7 +201,7 @@ export async function handBackLostCoordinators(
     .set({ heartbeatAt: null })
     .where(
       and(
-        inArray(federatedAnalyses.state, COORDINATED_STATES),
+        inArray(federatedAnalyses.state, [...COORDINATED_FEDERATED_STATES]),
         sql`${federatedAnalyses.heartbeatAt} < now() - make_interval(secs => ${staleAfterMs / 1000})`,
       ),
     )

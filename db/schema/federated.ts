@@ -21,7 +21,7 @@ import { workspaces } from "./workspaces";
  * schema digest or the analyst closed the roster; then the coordinator (the worker) fits W* from
  * the clients' evaluations, asks round 2 and merges; done once its report is stored.
  */
-export const federatedState = pgEnum("federated_state", [
+export const FEDERATED_STATES = [
   "collecting-schemas",
   "encoding-ready",
   "fitting",
@@ -29,7 +29,19 @@ export const federatedState = pgEnum("federated_state", [
   "merging",
   "done",
   "failed",
-]);
+] as const;
+export type FederatedState = (typeof FEDERATED_STATES)[number];
+export const federatedState = pgEnum("federated_state", FEDERATED_STATES);
+
+/** States after which nothing more is accepted from clients or the analyst. */
+export const ENDED_FEDERATED_STATES: readonly FederatedState[] = ["done", "failed"];
+/** Round 1 is merged and the analysis has not ended: a coordinator's job works on it. */
+export const COORDINATED_FEDERATED_STATES: readonly FederatedState[] = [
+  "encoding-ready",
+  "fitting",
+  "collecting-gradients",
+  "merging",
+];
 
 /** The plan of methods.md §5 a federated analysis advises on (participants absent: all shards). */
 export type FederatedPlan = {

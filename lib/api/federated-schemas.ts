@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { FEDERATED_STATES } from "@/db/schema/federated";
 
 // What the federated routes read from paths and queries and answer with, for validation and the
 // OpenAPI description. Bodies reuse the product's own schemas (lib/validation, the digest formats).
@@ -31,15 +32,7 @@ export const createdFederatedSchema = z
   .meta({ id: "CreatedFederatedAnalysis" });
 
 const round = z.enum(["none", "schema", "fit", "gradients"]);
-const states = z.enum([
-  "collecting-schemas",
-  "encoding-ready",
-  "fitting",
-  "collecting-gradients",
-  "merging",
-  "done",
-  "failed",
-]);
+const states = z.enum(FEDERATED_STATES);
 
 export const federatedStatusSchema = z
   .object({

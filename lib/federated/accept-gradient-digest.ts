@@ -11,6 +11,7 @@ import {
   insertFederatedDigest,
   type FederatedExchangeRow,
 } from "@/db/queries/federated-digests";
+import { ENDED_FEDERATED_STATES } from "@/db/schema/federated";
 import {
   AnalysisInputError,
   gradientDigestSchema,
@@ -23,7 +24,7 @@ import {
 } from "@/lib/analysis";
 import type { ClientCaller } from "@/lib/auth/client-key-guard";
 import { RuleError } from "@/lib/errors";
-import { ENDED_STATES, recordRefusal } from "./federated-rules";
+import { recordRefusal } from "./federated-rules";
 import { filesRequestOf, queueMergeWhenFilesAreIn } from "./files-round";
 
 type Sender = Pick<ClientCaller, "analysisId" | "client">;
@@ -56,7 +57,7 @@ export async function acceptGradientDigest(
     if (stored) {
       throw new RuleError(409, `client "${name}" already sent its gradient digest`);
     }
-    if (ENDED_STATES.includes(analysis.state) || analysis.encoding === null) {
+    if (ENDED_FEDERATED_STATES.includes(analysis.state) || analysis.encoding === null) {
       throw new RuleError(409, `client "${name}": this analysis takes no gradient digest now`);
     }
     const digest = parseDigest(document, gradientDigestSchema, "gradient digest");

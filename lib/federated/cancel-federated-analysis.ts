@@ -1,8 +1,9 @@
 import "server-only";
 import { recordAudit, type AuditActor } from "@/db/queries/audit";
 import { moveFederatedState } from "@/db/queries/federated-analyses";
+import { COORDINATED_FEDERATED_STATES, ENDED_FEDERATED_STATES } from "@/db/schema/federated";
 import { RuleError } from "@/lib/errors";
-import { ENDED_STATES, requireFederatedAnalysis } from "./federated-rules";
+import { requireFederatedAnalysis } from "./federated-rules";
 
 /** Shown as the analysis's failure when the analyst stopped it. */
 export const CANCELLED_MESSAGE = "The analyst stopped this analysis.";
@@ -18,16 +19,9 @@ export async function cancelFederatedAnalysis(
   analysisId: string,
 ): Promise<void> {
   const analysis = await requireFederatedAnalysis(workspaceId, analysisId);
-  const active = [
-    "collecting-schemas",
-    "encoding-ready",
-    "fitting",
-    "collecting-gradients",
-    "merging",
-  ] as const;
   const moved =
-    !ENDED_STATES.includes(analysis.state) &&
-    (await moveFederatedState(analysisId, [...active], {
+    !ENDED_FEDERATED_STATES.includes(analysis.state) &&
+    (await moveFederatedState(analysisId, ["collecting-schemas", ...COORDINATED_FEDERATED_STATES], {
       state: "failed",
       failureMessage: CANCELLED_MESSAGE,
       finishedAt: new Date(),

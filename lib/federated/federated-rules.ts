@@ -8,9 +8,6 @@ import {
 import { AnalysisInputError, compareCodePoints } from "@/lib/analysis";
 import { RuleError } from "@/lib/errors";
 
-/** States after which nothing more is accepted from clients or the analyst. */
-export const ENDED_STATES: FederatedAnalysisRow["state"][] = ["done", "failed"];
-
 /** The analysis of this workspace, or a 404 (another workspace's looks the same as none). */
 export async function requireFederatedAnalysis(
   workspaceId: string,

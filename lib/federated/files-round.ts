@@ -2,6 +2,7 @@ import "server-only";
 import type { FederatedAnalysisRow } from "@/db/queries/federated-analyses";
 import { listFederatedClients, moveFederatedState } from "@/db/queries/federated-analyses";
 import { listFederatedDigests } from "@/db/queries/federated-digests";
+import type { FederatedState } from "@/db/schema/federated";
 import {
   createMeasurementRequest,
   gradientDigestSchema,
@@ -47,6 +48,13 @@ export async function collectFileDigests<Client extends { id: string; name: stri
   return { digests, missing };
 }
 
+/** The coordinator's states before it merges: a files round's merge can still be queued. */
+const BEFORE_MERGING: readonly FederatedState[] = [
+  "encoding-ready",
+  "fitting",
+  "collecting-gradients",
+];
+
 /**
  * Queues the coordinator once every participant's round-2 file is in, so it merges them (a
  * coordinator still running finishes first; the queue holds one more job per analysis). Safe to
@@ -54,10 +62,7 @@ export async function collectFileDigests<Client extends { id: string; name: stri
  */
 export async function queueMergeWhenFilesAreIn(analysis: FederatedAnalysisRow): Promise<void> {
   const files = filesRequestOf(analysis);
-  if (
-    files === null ||
-    !["encoding-ready", "fitting", "collecting-gradients"].includes(analysis.state)
-  ) {
+  if (files === null || !BEFORE_MERGING.includes(analysis.state)) {
     return;
   }
   const schemas = await listFederatedDigests(analysis.id, "schema");
@@ -68,7 +73,7 @@ export async function queueMergeWhenFilesAreIn(analysis: FederatedAnalysisRow): 
   if (missing.length > 0) return;
   const jobId = await enqueueFederatedAnalysis({ federatedAnalysisId: analysis.id });
   if (jobId !== null) {
-    await moveFederatedState(analysis.id, ["encoding-ready", "fitting", "collecting-gradients"], {
+    await moveFederatedState(analysis.id, BEFORE_MERGING, {
       jobId,
     });
   }

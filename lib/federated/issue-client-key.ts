@@ -2,10 +2,11 @@ import "server-only";
 import { recordAudit, type AuditActor } from "@/db/queries/audit";
 import { findFederatedClientByName } from "@/db/queries/federated-analyses";
 import { insertClientKey } from "@/db/queries/federated-client-keys";
+import { ENDED_FEDERATED_STATES } from "@/db/schema/federated";
 import { CLIENT_KEYS } from "@/lib/auth/client-key-secret";
 import { RuleError } from "@/lib/errors";
 import { issueClientKeySchema } from "@/lib/validation/federated-analysis";
-import { ENDED_STATES, requireFederatedAnalysis } from "./federated-rules";
+import { requireFederatedAnalysis } from "./federated-rules";
 
 const DAY_MS = 24 * 60 * 60 * 1000;
 
@@ -24,7 +25,7 @@ export async function issueClientKey(
 ): Promise<{ key: string; keyId: string; client: string; expiresAt: Date }> {
   const { client, lifetimeDays } = issueClientKeySchema.parse(input);
   const analysis = await requireFederatedAnalysis(workspaceId, analysisId);
-  if (ENDED_STATES.includes(analysis.state)) {
+  if (ENDED_FEDERATED_STATES.includes(analysis.state)) {
     throw new RuleError(409, "This analysis has ended; its clients need no more keys.");
   }
   const row = await findFederatedClientByName(analysisId, client);

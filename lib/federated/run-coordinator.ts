@@ -11,6 +11,7 @@ import {
 } from "@/db/queries/federated-analyses";
 import { listFederatedDigests, openExchange } from "@/db/queries/federated-digests";
 import { storeFederatedReport } from "@/db/queries/federated-report";
+import { COORDINATED_FEDERATED_STATES } from "@/db/schema/federated";
 import {
   AnalysisInputError,
   analyzeFromDigests,
@@ -49,13 +50,6 @@ export type CoordinatorOutcome =
   | { outcome: "waiting" }
   | { outcome: "skipped" };
 
-const ACTIVE_STATES: FederatedAnalysisRow["state"][] = [
-  "encoding-ready",
-  "fitting",
-  "collecting-gradients",
-  "merging",
-];
-
 /**
  * The coordinator of one federated analysis, run by the worker once round 1 is merged: the
  * engine's own analyzeFromDigests over the clients that sent round 1 (in name order, the order the
@@ -71,7 +65,11 @@ export async function runFederatedCoordinator(
   settings: CoordinatorSettings,
 ): Promise<CoordinatorOutcome> {
   const analysis = await findFederatedAnalysisById(federatedAnalysisId);
-  if (!analysis || !ACTIVE_STATES.includes(analysis.state) || analysis.encoding === null) {
+  if (
+    !analysis ||
+    !COORDINATED_FEDERATED_STATES.includes(analysis.state) ||
+    analysis.encoding === null
+  ) {
     return { outcome: "skipped" };
   }
   if (!(await claimFederatedCoordinator(federatedAnalysisId, settings.jobId))) {
@@ -130,7 +128,7 @@ async function coordinateAndStore(
       error instanceof AnalysisInputError || error instanceof ClientSilentError
         ? error.message
         : "The coordinator failed on our side; start the analysis again.";
-    await moveFederatedState(federatedAnalysisId, ACTIVE_STATES, {
+    await moveFederatedState(federatedAnalysisId, COORDINATED_FEDERATED_STATES, {
       state: "failed",
       failureMessage: message,
       finishedAt: new Date(),
@@ -205,7 +203,7 @@ async function fitAndMerge(
   let progress = Promise.resolve();
   const move = (state: FederatedAnalysisRow["state"], evaluations?: number) => {
     progress = progress.then(async () => {
-      await moveFederatedState(analysis.id, ACTIVE_STATES, {
+      await moveFederatedState(analysis.id, COORDINATED_FEDERATED_STATES, {
         state,
         ...(evaluations === undefined ? {} : { evaluations }),
       });
@@ -254,10 +252,12 @@ async function mergeFiles(
     });
   }
   if (collected.missing.length > 0) {
-    await moveFederatedState(analysis.id, ACTIVE_STATES, { state: "collecting-gradients" });
+    await moveFederatedState(analysis.id, COORDINATED_FEDERATED_STATES, {
+      state: "collecting-gradients",
+    });
     return null;
   }
-  await moveFederatedState(analysis.id, ACTIVE_STATES, { state: "merging" });
+  await moveFederatedState(analysis.id, COORDINATED_FEDERATED_STATES, { state: "merging" });
   const summary = mergeGradientDigests(analysis.encoding!, collected.digests, {
     lambda: analysis.lambda,
     plan: analysis.plan,
