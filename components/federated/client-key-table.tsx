@@ -1,4 +1,5 @@
 import { revokeFederatedClientKey } from "@/app/(workspace)/w/[workspaceId]/federated/actions";
+import { describeSecretState } from "@/components/tokens/secret-state";
 import { ConfirmActionButton } from "@/components/ui/confirm-action-button";
 import type { FederatedStatus } from "@/lib/federated";
 
@@ -9,15 +10,6 @@ const dateTimeFormat = new Intl.DateTimeFormat("en", {
 });
 
 type ClientKey = FederatedStatus["keys"][number];
-
-function describeKey(key: ClientKey, now: Date): { label: string; live: boolean } {
-  if (key.revokedAt)
-    return { label: `Revoked ${dateTimeFormat.format(key.revokedAt)}`, live: false };
-  if (key.expiresAt <= now) {
-    return { label: `Expired ${dateTimeFormat.format(key.expiresAt)}`, live: false };
-  }
-  return { label: `Expires ${dateTimeFormat.format(key.expiresAt)}`, live: true };
-}
 
 /** The analysis's client keys (never the keys themselves): whose, when used, expiry, Revoke. */
 export function ClientKeyTable({
@@ -52,7 +44,7 @@ export function ClientKeyTable({
         </thead>
         <tbody className="divide-y divide-ink/5">
           {keys.map((key) => {
-            const state = describeKey(key, now);
+            const state = describeSecretState(key, now, dateTimeFormat);
             return (
               <tr key={key.id} className={state.live ? "" : "text-ink-faint"}>
                 <td className="px-3 py-2 font-medium">{key.client}</td>

@@ -1,6 +1,7 @@
 import type { ApiTokenListItem } from "@/db/queries/api-tokens";
 import { revokeApiTokenAction } from "@/app/(workspace)/w/[workspaceId]/tokens/actions";
 import { ConfirmActionButton } from "@/components/ui/confirm-action-button";
+import { describeSecretState } from "./secret-state";
 
 const dateFormat = new Intl.DateTimeFormat("en", { dateStyle: "medium", timeZone: "UTC" });
 const dateTimeFormat = new Intl.DateTimeFormat("en", {
@@ -8,14 +9,6 @@ const dateTimeFormat = new Intl.DateTimeFormat("en", {
   timeStyle: "short",
   timeZone: "UTC",
 });
-
-function describeState(token: ApiTokenListItem, now: Date): { label: string; live: boolean } {
-  if (token.revokedAt)
-    return { label: `Revoked ${dateFormat.format(token.revokedAt)}`, live: false };
-  if (token.expiresAt <= now)
-    return { label: `Expired ${dateFormat.format(token.expiresAt)}`, live: false };
-  return { label: `Expires ${dateFormat.format(token.expiresAt)}`, live: true };
-}
 
 /**
  * Tokens with their last use and state, and Revoke on the live ones. With `holderEmail` on the
@@ -50,7 +43,7 @@ export function TokenTable({
         </thead>
         <tbody className="divide-y divide-ink/5">
           {tokens.map((token) => {
-            const state = describeState(token, now);
+            const state = describeSecretState(token, now, dateFormat);
             return (
               <tr key={token.id} className={state.live ? "" : "text-ink-faint"}>
                 <td className="px-4 py-3">

@@ -11,7 +11,7 @@ import {
   text,
   uniqueIndex,
 } from "drizzle-orm/pg-core";
-import { cascadingReference, createdAt, instant, uuidPrimaryKey } from "./columns";
+import { cascadingReference, createdAt, instant, RUN_STATUSES, uuidPrimaryKey } from "./columns";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
 import type { CsvFormat, PartitionSummary, SimulationProgress } from "@/lib/analysis/browser";
 import { users } from "./auth";
@@ -66,13 +66,7 @@ export const dataFiles = pgTable(
   ],
 );
 
-export const analysisStatus = pgEnum("analysis_status", [
-  "queued",
-  "running",
-  "succeeded",
-  "failed",
-  "cancelled",
-]);
+export const analysisStatus = pgEnum("analysis_status", RUN_STATUSES);
 
 /**
  * One requested run of the engine: its inputs and parameters, and its live state while the worker

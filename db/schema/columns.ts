@@ -17,3 +17,6 @@ export const createdAt = () => instant("created_at").notNull().defaultNow();
 /** A required reference to a row whose deletion takes this one with it. */
 export const cascadingReference = (name: string, target: () => AnyPgColumn) =>
   text(name).notNull().references(target, { onDelete: "cascade" });
+
+/** The states of background work the worker runs (analyses, layout plans and their candidates). */
+export const RUN_STATUSES = ["queued", "running", "succeeded", "failed", "cancelled"] as const;

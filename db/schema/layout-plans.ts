@@ -15,16 +15,10 @@ import type { LayoutSpec, PartitionSummary } from "@/lib/analysis/browser";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
 import { dataFiles } from "./analyses";
 import { users } from "./auth";
-import { cascadingReference, createdAt, instant, uuidPrimaryKey } from "./columns";
+import { cascadingReference, createdAt, instant, RUN_STATUSES, uuidPrimaryKey } from "./columns";
 import { workspaces } from "./workspaces";
 
-export const layoutPlanStatus = pgEnum("layout_plan_status", [
-  "queued",
-  "running",
-  "succeeded",
-  "failed",
-  "cancelled",
-]);
+export const layoutPlanStatus = pgEnum("layout_plan_status", RUN_STATUSES);
 
 /**
  * A layout plan (methods.md §8): candidate splits of one registered dataset into M shards, each

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { RUN_STATUSES } from "@/db/schema/columns";
 import { DECIMAL_MARKS, DELIMITERS, TEXT_ENCODINGS } from "@/lib/analysis/browser";
 import { VERDICTS } from "@/lib/reports/report-filters";
 import { DATA_FILE_KINDS } from "@/lib/uploads/file-rules";
@@ -160,7 +161,7 @@ const ANALYSIS_STAGES = ["reading", "encoding", "fitting", "measuring", "advisin
 
 export const analysisStatusSchema = z
   .object({
-    status: z.enum(["queued", "running", "succeeded", "failed", "cancelled"]),
+    status: z.enum(RUN_STATUSES),
     stage: z.enum(ANALYSIS_STAGES).nullable().meta({
       description:
         "The engine's stage. Always set while running (reading until the worker reports otherwise); null while queued.",
@@ -253,7 +254,7 @@ export const analysisListSchema = z
       z.object({
         id: z.string(),
         title: z.string(),
-        status: z.enum(["queued", "running", "succeeded", "failed", "cancelled"]),
+        status: z.enum(RUN_STATUSES),
         stage: z.string().nullable().meta({ description: "The engine's stage while running." }),
         createdAt: z.iso.datetime(),
         finishedAt: z.iso.datetime().nullable(),
@@ -281,12 +282,10 @@ export const queuedLayoutPlanSchema = z
   })
   .meta({ id: "QueuedLayoutPlan" });
 
-const RUN_STATES = ["queued", "running", "succeeded", "failed", "cancelled"] as const;
-
 export const layoutPlanStatusSchema = z
   .object({
     title: z.string(),
-    status: z.enum(RUN_STATES),
+    status: z.enum(RUN_STATUSES),
     stage: z.enum(["reading", "encoding"]).nullable().meta({
       description:
         "The shared stage before the candidates: read and encode once (each candidate fits its own reference).",
@@ -297,7 +296,7 @@ export const layoutPlanStatusSchema = z
       z.object({
         ordinal: z.number().int(),
         name: z.string().meta({ description: "Generator with its parameter, e.g. dirichlet-0.5." }),
-        status: z.enum(RUN_STATES),
+        status: z.enum(RUN_STATUSES),
         fraction: z.number(),
         failureMessage: z.string().nullable(),
       }),
