@@ -39,11 +39,14 @@ const MAX_LINE_SEARCH_STEPS = 50;
  *
  * Method: the two-loop recursion builds d = −H_k ∇f from the last m pairs sᵢ = x_{i+1} − xᵢ,
  * yᵢ = ∇f_{i+1} − ∇fᵢ (Nocedal & Wright, "Numerical Optimization", 2nd ed., Algorithm 7.4; from
- * memory), with initial matrix γ·P where P is the optional preconditioner and γ = sᵀy / yᵀPy.
- * The step is accepted by the Armijo condition or, once f is flat to rounding near the optimum, by
- * Hager & Zhang's approximate Wolfe conditions (SIAM J. Optim. 16(1), 2005; from memory), which
- * rely on the directional derivative instead of f and so can reach gradients near 1e-8; otherwise it
- * backtracks with safeguarded quadratic interpolation.
+ * memory), with initial matrix γ·P where P is the optional preconditioner and γ = sᵀy / yᵀPy;
+ * before any pair is stored, without P, the direction is −∇f shortened to at most unit length.
+ * Each line search tries the step t = 1 first. The step is accepted by the Armijo condition
+ * f(x + t d) ≤ f(x) + 10⁻⁴ t ∇fᵀd or, once f is flat to rounding near the optimum, by Hager &
+ * Zhang's approximate Wolfe conditions (SIAM J. Optim. 16(1), 2005; from memory), which rely on the
+ * directional derivative instead of f and so can reach gradients near 1e-8; otherwise it backtracks
+ * to the minimizer of the quadratic through f(x), ∇fᵀd and f(x + t d), kept within [0.1 t, 0.5 t]
+ * (safeguarded quadratic interpolation), or to 0.1 t where f(x + t d) is not finite.
  *
  * Example: f(x) = (x₀ − 1)² + 10 (x₁ + 2)² from x = (0, 0) converges to (1, −2) in a handful of
  * iterations.

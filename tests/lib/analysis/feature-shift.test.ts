@@ -55,6 +55,19 @@ print(json.dumps({"sums":[s.tolist() for s in sums],"shift":shift}))`,
     }
   });
 
+  it("sums with compensation, in two shards (identity: 1 + 1e16 + 1 − 1e16 = 2)", () => {
+    // Left to right in doubles the sums are 0 (1e16 + 1 rounds to 1e16); exactly they are 2 and
+    // −2, so each shard's mean is ±½.
+    const x = Float64Array.of(1, 1, 1e16, 1, 1, 1, -1e16, 1, -1, 1, -1e16, 1, -1, 1, 1e16, 1);
+    const design = {
+      x: { rows: 8, cols: 2, data: x },
+      shardIds: ["a", "b"],
+      shardOffsets: Int32Array.of(0, 4, 8),
+    };
+    expect(sumFeaturesPerShard(design).map((sums) => Array.from(sums))).toEqual([[2], [-2]]);
+    expect(measureFeatureShift(design)).toEqual([0.5, 0.5]);
+  });
+
   it("is 0 without features, and 1 for sums [3, −3] over 3 rows (hand-computed)", () => {
     expect(measureFeatureShiftFromSums([], 10)).toBe(0);
     expect(measureFeatureShiftFromSums([3, -3], 3)).toBe(1);

@@ -181,6 +181,12 @@ describe("measureAtPoint (methods.md §3) against per-sample gradients formed in
     expect(quiet.sigma2Pooled).toBeNaN();
     expect(quiet.shards.every((shard) => Number.isNaN(shard.sigma2))).toBe(true);
     expect(quiet.dissimilarity).toBeNull();
+    // A gradient exactly at the optimizer's tolerance has converged (methods.md §2: ‖∇F‖ ≤ tolerance).
+    const atTolerance = measureAtPoint(design, weights, LAMBDA, onePass, {
+      withNoise: false,
+      vanishingGradient: quiet.gradientNorm,
+    });
+    expect(atTolerance.dissimilarity).toBeNull();
     expect(
       measureAtPoint(design, weights, LAMBDA, onePass, {
         withNoise: false,

@@ -94,6 +94,12 @@ print(json.dumps(float(np.exp(r.x))))`,
     // methods.md §4: a relative precision of 1e-6 in α; the likelihood is flat at its top, so both
     // searches agree to about the square root of rounding there.
     expect(Math.abs(measureLabelSkew(counts).dirichletAlpha / alpha - 1)).toBeLessThan(1e-5);
+    // A category no shard holds adds log Γ(0 + 0) − log Γ(0) = 0 to every shard's likelihood
+    // (methods.md §4 fits counts, which handles empty classes), so α̂ does not move.
+    const withEmpty = counts.map((row) => [0, ...row, 0]);
+    expect(measureLabelSkew(withEmpty).dirichletAlpha).toBe(
+      measureLabelSkew(counts).dirichletAlpha,
+    );
   });
 
   it("puts α̂ at the ends of [1e-3, 1e6] for identical shards and for one class per shard (methods.md §4)", () => {
