@@ -95,6 +95,9 @@ export function encodeClientRows(raw: RawDataset, encoding: DigestEncoding): Cli
   const x = createMatrix(rows, width, { shared: true });
   const stride = raw.features.length + 1;
   const sourceIndex = new Map(raw.features.map((feature, index) => [feature.name, index]));
+  const numeric: { column: number; source: number; mean: number; inverseStd: number }[] = [];
+  const levels: { column: number; codes: Int32Array[]; code: number; high: number; low: number }[] =
+    [];
   encoding.columns.forEach((column, j) => {
     const source = sourceIndex.get(column.column);
     if (source === undefined) {
@@ -106,29 +109,41 @@ export function encodeClientRows(raw: RawDataset, encoding: DigestEncoding): Cli
     }
     const inverseStd = 1 / column.std;
     if (column.kind === "numeric") {
-      for (let row = 0; row < rows; row++) {
-        const value = raw.featureValues[row * stride + source];
-        const filled = value === value ? value : column.mean;
-        x.data[position[row] * width + j] = (filled - column.mean) * inverseStd;
-      }
+      numeric.push({ column: j, source, mean: column.mean, inverseStd });
       return;
     }
     const accumulator = raw.features[source];
-    const code = accumulator.hasLevels ? accumulator.levels.indexOf(column.level) : -1;
-    const high = (1 - column.mean) * inverseStd;
-    const low = -column.mean * inverseStd;
-    if (code < 0) {
-      for (let row = 0; row < rows; row++) x.data[position[row] * width + j] = low;
-      return;
-    }
-    accumulator.codeViews().forEach((codes, chunk) => {
-      for (let k = 0; k < codes.length; k++) {
-        const row = chunk * CHUNK_LENGTH + k;
-        x.data[position[row] * width + j] = codes[k] === code ? high : low;
-      }
+    levels.push({
+      column: j,
+      codes: accumulator.hasLevels ? accumulator.codeViews() : [],
+      // -1, a code no row has, when the client never saw the level.
+      code: accumulator.hasLevels ? accumulator.levels.indexOf(column.level) : -1,
+      high: (1 - column.mean) * inverseStd,
+      low: -column.mean * inverseStd,
     });
   });
-  for (let row = 0; row < rows; row++) x.data[row * width + width - 1] = 1;
+  const numericColumns = Int32Array.from(numeric, (entry) => entry.column);
+  const numericSources = Int32Array.from(numeric, (entry) => entry.source);
+  const means = Float64Array.from(numeric, (entry) => entry.mean);
+  const inverseStds = Float64Array.from(numeric, (entry) => entry.inverseStd);
+  const values = raw.featureValues;
+  // Row by row, every column of a row together: the row read and the row written stay in cache.
+  for (let row = 0; row < rows; row++) {
+    const from = row * stride;
+    const to = position[row] * width;
+    for (let k = 0; k < numericColumns.length; k++) {
+      const value = values[from + numericSources[k]];
+      const mean = means[k];
+      const filled = value === value ? value : mean;
+      x.data[to + numericColumns[k]] = (filled - mean) * inverseStds[k];
+    }
+    const chunk = Math.floor(row / CHUNK_LENGTH);
+    const inChunk = row - chunk * CHUNK_LENGTH;
+    for (const { column, codes, code, high, low } of levels) {
+      x.data[to + column] = code >= 0 && codes[chunk][inChunk] === code ? high : low;
+    }
+    x.data[to + width - 1] = 1;
+  }
 
   return {
     fileName: raw.fileName,

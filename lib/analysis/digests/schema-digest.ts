@@ -1,4 +1,4 @@
-import { CompensatedSum } from "../../math/summation";
+import { roundingError } from "../../math/summation";
 import { CHUNK_LENGTH } from "../chunked-arrays";
 import type { ColumnAccumulator } from "../column-accumulator";
 import { MAX_ONE_HOT_LEVELS } from "../column-accumulator";
@@ -65,11 +65,11 @@ export function computeSchemaDigest(raw: RawDataset, options: SchemaDigestOption
   const featureLevels = raw.features.map((feature) =>
     feature.hasLevels ? countLevelsPerShard(feature, raw) : null,
   );
-  const labelValues = raw.label.numeric
-    ? summarizeColumn(raw, (row) => raw.labelValues[row])
-    : null;
+  const labelValues = raw.label.numeric ? summarizeColumns(raw, raw.labelValues, 1, [0])[0] : null;
+  const numericFeatures = raw.features.flatMap((feature, k) => (feature.numeric ? [k] : []));
+  const numericSummaries = summarizeColumns(raw, raw.featureValues, stride, numericFeatures);
   const featureValues = raw.features.map((feature, k) =>
-    feature.numeric ? summarizeColumn(raw, (row) => raw.featureValues[row * stride + k]) : null,
+    feature.numeric ? numericSummaries[numericFeatures.indexOf(k)] : null,
   );
   const shards: ShardSchemaDigest[] = raw.shardIds.map((id, code) => ({
     id,
@@ -106,44 +106,72 @@ export function computeSchemaDigest(raw: RawDataset, options: SchemaDigestOption
 const NO_VALUES = { sum: null, sumSquaredDeviations: null, min: null, max: null };
 
 /**
- * Per shard, the count, Σx, min and max of a column's non-missing values, then (second pass)
- * Σ(x − x̄ₘ)² about the shard's mean: two passes, compensated sums, as the central moments are taken.
+ * Per column and shard, the count, Σx, min and max of the non-missing values, then (second pass)
+ * Σ(x − x̄ₘ)² about the shard's mean: two passes, Neumaier-compensated sums (as CompensatedSum
+ * adds, value by value in row order), as the central moments are taken. `values` is row-major with
+ * `stride` numbers per row; each pass reads the rows once, every column of a row together.
  */
-function summarizeColumn(raw: RawDataset, valueAt: (row: number) => number) {
-  const shards = raw.shardIds.map(() => ({
-    sum: new CompensatedSum(),
-    deviations: new CompensatedSum(),
-    min: Infinity,
-    max: -Infinity,
-    present: 0,
-  }));
+function summarizeColumns(
+  raw: RawDataset,
+  values: Float64Array,
+  stride: number,
+  columns: number[],
+) {
+  const count = columns.length;
+  const cells = raw.shardIds.length * count;
+  const sums = new Float64Array(cells);
+  const sumCompensations = new Float64Array(cells);
+  const deviations = new Float64Array(cells);
+  const deviationCompensations = new Float64Array(cells);
+  const mins = new Float64Array(cells).fill(Infinity);
+  const maxes = new Float64Array(cells).fill(-Infinity);
+  const present = new Float64Array(cells);
+  const offsets = Int32Array.from(columns);
   for (let row = 0; row < raw.keptRows; row++) {
-    const value = valueAt(row);
-    if (value !== value) continue;
-    const shard = shards[raw.shardCodes[row]];
-    shard.sum.add(value);
-    if (value < shard.min) shard.min = value;
-    if (value > shard.max) shard.max = value;
-    shard.present++;
+    const base = row * stride;
+    const first = raw.shardCodes[row] * count;
+    for (let k = 0; k < count; k++) {
+      const value = values[base + offsets[k]];
+      if (value !== value) continue;
+      const cell = first + k;
+      const total = sums[cell];
+      const next = total + value;
+      sumCompensations[cell] += roundingError(total, value, next);
+      sums[cell] = next;
+      if (value < mins[cell]) mins[cell] = value;
+      if (value > maxes[cell]) maxes[cell] = value;
+      present[cell]++;
+    }
   }
-  const means = shards.map((shard) => shard.sum.value / shard.present);
+  const means = sums.map((sum, cell) => (sum + sumCompensations[cell]) / present[cell]);
   for (let row = 0; row < raw.keptRows; row++) {
-    const value = valueAt(row);
-    if (value !== value) continue;
-    const code = raw.shardCodes[row];
-    const deviation = value - means[code];
-    shards[code].deviations.add(deviation * deviation);
+    const base = row * stride;
+    const first = raw.shardCodes[row] * count;
+    for (let k = 0; k < count; k++) {
+      const value = values[base + offsets[k]];
+      if (value !== value) continue;
+      const cell = first + k;
+      const deviation = value - means[cell];
+      const squared = deviation * deviation;
+      const total = deviations[cell];
+      const next = total + squared;
+      deviationCompensations[cell] += roundingError(total, squared, next);
+      deviations[cell] = next;
+    }
   }
-  return shards.map((shard) =>
-    shard.present === 0
-      ? { ...NO_VALUES, present: 0 }
-      : {
-          sum: shard.sum.value,
-          sumSquaredDeviations: shard.deviations.value,
-          min: shard.min,
-          max: shard.max,
-          present: shard.present,
-        },
+  return columns.map((_, k) =>
+    raw.shardIds.map((_id, code) => {
+      const cell = code * count + k;
+      return present[cell] === 0
+        ? { ...NO_VALUES, present: 0 }
+        : {
+            sum: sums[cell] + sumCompensations[cell],
+            sumSquaredDeviations: deviations[cell] + deviationCompensations[cell],
+            min: mins[cell],
+            max: maxes[cell],
+            present: present[cell],
+          };
+    }),
   );
 }
 
