@@ -20,12 +20,17 @@ import { startThrowawayServices } from "../services/throwaway-services";
 const run = promisify(execFile);
 const NODE_ARGS = ["--conditions=react-server", "--import", "tsx"];
 
-/** Worker processes pinned to cores 0 … count − 1, their output gathered to wait on. */
+/**
+ * Worker processes pinned to cores 0 … count − 1, their output gathered to wait on. Each starts in
+ * a session of its own (`setsid`), as a worker on a machine of its own would be: Linux's
+ * scheduler shares the CPU fairly among sessions (autogroups), so workers started in one session
+ * would share one session's part of a busy machine however many cores they are pinned to.
+ */
 function startPinnedWorkers(projectRoot: string, env: NodeJS.ProcessEnv, count: number) {
   const workers = Array.from({ length: count }, (_, core) => {
     const child = spawn(
-      "taskset",
-      ["-c", String(core), process.execPath, ...NODE_ARGS, "scripts/worker.ts"],
+      "setsid",
+      ["taskset", "-c", String(core), process.execPath, ...NODE_ARGS, "scripts/worker.ts"],
       { cwd: projectRoot, env, stdio: ["ignore", "pipe", "pipe"] },
     );
     const worker = { child, output: "" };
