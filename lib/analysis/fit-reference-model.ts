@@ -235,7 +235,7 @@ const preconditioners = new WeakMap<Float64Array, (vector: Float64Array) => void
 /**
  * Least squares' W* (methods.md §2): the normal equations (G + Λ) w = −∇F(0) by Cholesky, then
  * Newton steps on the true gradient (`evaluate`: F and ∇F over all rows) while it exceeds the
- * tolerance. Shared by the central fit and the fit from merged digests (methods.md §9).
+ * tolerance, at most five (`converged` says whether they sufficed). Shared by the central fit and the fit from merged digests (methods.md §9).
  */
 export function solveLeastSquares(
   width: number,
