@@ -12,7 +12,14 @@ const projectRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "
 /** Debian packages each command needs; PostgreSQL for both, the browser and Python references for tests. */
 const systemPackages = {
   start: ["postgresql"],
-  test: ["postgresql", "chromium", "python3-sklearn", "python3-pandas", "python3-scipy"],
+  test: [
+    "postgresql",
+    "chromium",
+    "python3-sklearn",
+    "python3-pandas",
+    "python3-scipy",
+    "python3-mpmath",
+  ],
 };
 
 const entryScripts = { start: "scripts/start.ts", test: "scripts/test.ts" };
