@@ -3,6 +3,7 @@ import { DECIMAL_MARKS, DELIMITERS, TEXT_ENCODINGS } from "@/lib/analysis/browse
 import {
   DEFAULT_SIMULATION_SEEDS,
   MAX_SIMULATION_SEEDS,
+  PLAN_DEFAULTS,
   type AnalysisOptionsInput,
 } from "@/lib/validation/analysis-options";
 import { startAnalysisSchema, type StartAnalysisInput } from "@/lib/validation/start-analysis";
@@ -11,9 +12,6 @@ import { startAnalysisSchema, type StartAnalysisInput } from "@/lib/validation/s
 // ("datasetFileId", "options.labelColumn", …), so an error from startAnalysisSchema — here in the
 // browser or from the server action — lands on the field it is about. A few choices exist only in
 // the form (where the shards come from, which reference point, all shards or a sample).
-
-/** methods.md §5 and §2 defaults: λ = 1e-3, K = 10 local steps, R = 100 rounds, b = 32. */
-export const PLAN_DEFAULTS = { lambda: 1e-3, localSteps: 10, rounds: 100, batchSize: 32 } as const;
 
 const wholeNumber = (what: string) =>
   z

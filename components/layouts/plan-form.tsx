@@ -2,7 +2,7 @@
 
 import { useRouter } from "next/navigation";
 import { useState, useTransition, type FormEvent } from "react";
-import { PLAN_DEFAULTS } from "@/components/analyses/analysis-form-schema";
+import { PLAN_DEFAULTS } from "@/lib/validation/analysis-options";
 import { startLayoutPlan } from "@/app/(workspace)/w/[workspaceId]/layouts/actions";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";

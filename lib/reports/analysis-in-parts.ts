@@ -20,6 +20,7 @@ import {
 import { Doorbell } from "@/lib/doorbell";
 import type { AnalysisPartJob } from "@/lib/jobs";
 import { getObjectStream, isStorageUnreachable } from "@/lib/storage";
+import { PLAN_DEFAULTS } from "@/lib/validation/analysis-options";
 import { StorageUnreachableError, type EngineOutcome } from "./engine-thread";
 import { runAnalysisPart } from "./run-analysis-part";
 import { storedDatasetBytes } from "./stored-dataset-bytes";
@@ -187,13 +188,13 @@ async function runParts(
     const { localSteps, rounds, batchSize, participants } = analysis.parameters;
     const summary = await analyzeFromDigests([whole], {
       task: analysis.parameters.task,
-      lambda: analysis.parameters.lambda ?? 1e-3,
+      lambda: analysis.parameters.lambda ?? PLAN_DEFAULTS.lambda,
       reference: analysis.parameters.reference ?? "optimum",
       plan: {
         participants,
-        localSteps: localSteps ?? 10,
-        rounds: rounds ?? 100,
-        batchSize: batchSize ?? 32,
+        localSteps: localSteps ?? PLAN_DEFAULTS.localSteps,
+        rounds: rounds ?? PLAN_DEFAULTS.rounds,
+        batchSize: batchSize ?? PLAN_DEFAULTS.batchSize,
       },
       minimumShardRows: 1,
       onRound: (round, evaluations) => {

@@ -49,6 +49,9 @@ export const csvFormatChoiceSchema = z.object({
 
 const columnName = z.string().trim().min(1, "a column name cannot be empty");
 
+/** methods.md §5 and §2 defaults of the plan: λ = 1e-3, K = 10 local steps, R = 100 rounds, b = 32. */
+export const PLAN_DEFAULTS = { lambda: 1e-3, localSteps: 10, rounds: 100, batchSize: 32 } as const;
+
 /**
  * Options of one partition analysis, shared by the CLI, the API and the web form. Defaults are those
  * of methods.md and issue 3: λ = 1e-3, K = 10, R = 100, b = 32, M = all shards.
@@ -60,14 +63,14 @@ export const analysisOptionsSchema = z
     shardColumn: columnName.optional(),
     features: z.array(columnName).min(1, "name at least one feature column").optional(),
     task: z.enum(["classification", "regression"]).optional(),
-    lambda: z.number().finite().positive("λ must be positive").default(1e-3),
+    lambda: z.number().finite().positive("λ must be positive").default(PLAN_DEFAULTS.lambda),
     reference: z
       .union([z.literal("optimum"), z.literal("zero"), referenceWeightsSchema])
       .default("optimum"),
     participants: z.number().int().positive().optional(),
-    localSteps: z.number().int().positive().default(10),
-    rounds: z.number().int().positive().default(100),
-    batchSize: z.number().int().positive().default(32),
+    localSteps: z.number().int().positive().default(PLAN_DEFAULTS.localSteps),
+    rounds: z.number().int().positive().default(PLAN_DEFAULTS.rounds),
+    batchSize: z.number().int().positive().default(PLAN_DEFAULTS.batchSize),
     /** The dataset's text encoding (methods.md §1). */
     encoding: z.enum(TEXT_ENCODINGS).default("utf-8"),
     /** The dataset's field delimiter; absent: detected from the header and first rows. */

@@ -9,6 +9,7 @@ import { Notice } from "@/components/ui/notice";
 import { Cautions } from "@/components/workspace/cautions";
 import { roleAllows } from "@/lib/auth/roles";
 import { buildComparisonRows } from "@/lib/layout-plans/comparison-view";
+import { PLAN_DEFAULTS } from "@/lib/validation/analysis-options";
 import { describePlanInput, loadPlanPage, type PlanPageParams } from "../load-plan";
 
 export const metadata: Metadata = { title: "Compare layouts" };
@@ -41,9 +42,10 @@ export default async function CompareLayoutsPage({ params }: { params: PlanPageP
         <h1 className="text-2xl font-semibold tracking-tight break-words">{plan.title}</h1>
         <p className="text-sm text-ink-soft">
           {describePlanInput(plan)}; every candidate scored for the plan K ={" "}
-          {plan.options.localSteps ?? 10}, R = {plan.options.rounds ?? 100}, b ={" "}
-          {plan.options.batchSize ?? 32}. Ranked by ρ (lower favours local updates), then by
-          weighted JS.
+          {plan.options.localSteps ?? PLAN_DEFAULTS.localSteps}, R ={" "}
+          {plan.options.rounds ?? PLAN_DEFAULTS.rounds}, b ={" "}
+          {plan.options.batchSize ?? PLAN_DEFAULTS.batchSize}. Ranked by ρ (lower favours local
+          updates), then by weighted JS.
         </p>
       </header>
       {unfinished > 0 ? (
