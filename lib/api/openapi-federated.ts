@@ -23,6 +23,13 @@ import {
 import { json, operation } from "./openapi-operation";
 
 /** The client key's security scheme: it reaches only the /api/v1/digests routes. */
+
+/** Both rounds' digests answer alike: 201 on first acceptance, 200 when the same digest comes again. */
+const DIGEST_ACCEPTED: [string, string, typeof acceptedDigestSchema] = [
+  "201",
+  "Accepted (200 when the same digest was accepted before).",
+  acceptedDigestSchema,
+];
 export const clientKeyScheme = {
   clientKey: {
     type: "http" as const,
@@ -121,11 +128,7 @@ export function federatedPaths(): ZodOpenApiPathsObject {
         operationId: "sendSchemaDigest",
         summary: "Round 1: the client's schema digest",
         requestBody: json(schemaDigestSchema),
-        success: [
-          "201",
-          "Accepted (200 when the same digest was accepted before).",
-          acceptedDigestSchema,
-        ],
+        success: DIGEST_ACCEPTED,
         failures: ["404", "422"],
         conflict: NOT_NOW,
       }),
@@ -169,11 +172,7 @@ export function federatedPaths(): ZodOpenApiPathsObject {
         operationId: "sendGradientDigest",
         summary: "Round 2: the gradient digest at the points the coordinator asked for",
         requestBody: json(gradientDigestSchema),
-        success: [
-          "201",
-          "Accepted (200 when the same digest was accepted before).",
-          acceptedDigestSchema,
-        ],
+        success: DIGEST_ACCEPTED,
         failures: ["404", "422"],
         conflict: NOT_NOW,
       }),
