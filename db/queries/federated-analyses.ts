@@ -4,6 +4,7 @@ import { db } from "@/db/client";
 import { federatedAnalyses, federatedClients, reports } from "@/db/schema";
 import { COORDINATED_FEDERATED_STATES, type FederatedState } from "@/db/schema/federated";
 import type { DigestEncoding } from "@/lib/analysis";
+import { notifyFederatedState } from "./federated-notices";
 
 // Every function that takes a workspace filters by it: a federated analysis of another workspace
 // is "not found", never "forbidden".
@@ -148,7 +149,9 @@ export async function moveFederatedState(
     .set(values)
     .where(and(eq(federatedAnalyses.id, analysisId), inArray(federatedAnalyses.state, [...from])))
     .returning({ id: federatedAnalyses.id });
-  return moved.length === 1;
+  if (moved.length === 0) return false;
+  await notifyFederatedState(analysisId);
+  return true;
 }
 
 /**

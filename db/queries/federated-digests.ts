@@ -2,6 +2,7 @@ import "server-only";
 import { and, asc, eq, inArray, isNull } from "drizzle-orm";
 import { db } from "@/db/client";
 import { federatedClients, federatedDigests, federatedExchanges } from "@/db/schema";
+import { notifyClient } from "./federated-notices";
 
 type DigestRound = (typeof federatedDigests.$inferSelect)["round"];
 export type FederatedExchangeRow = typeof federatedExchanges.$inferSelect;
@@ -59,7 +60,12 @@ export async function openExchange(values: {
   requestKey: string;
   request: unknown;
 }): Promise<FederatedExchangeRow> {
-  await db().insert(federatedExchanges).values(values).onConflictDoNothing();
+  const asked = await db()
+    .insert(federatedExchanges)
+    .values(values)
+    .onConflictDoNothing()
+    .returning({ id: federatedExchanges.id });
+  if (asked.length === 1) await notifyClient("question", values.clientId);
   const [row] = await db()
     .select()
     .from(federatedExchanges)
@@ -119,7 +125,9 @@ export async function answerExchange(
       ),
     )
     .returning({ id: federatedExchanges.id });
-  return answered.length === 1;
+  if (answered.length === 0) return false;
+  await notifyClient("answer", clientId);
+  return true;
 }
 
 /** Answered exchanges among these ids (the coordinator's wait for a round). */

@@ -4,6 +4,7 @@ import { db } from "@/db/client";
 import { analyses, federatedAnalyses } from "@/db/schema";
 import type { PartitionSummary } from "@/lib/analysis";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
+import { notifyFederatedState } from "./federated-notices";
 import { insertReportWithShards, nextVersionOf } from "./report-store";
 
 export interface FinishedFederatedRun {
@@ -14,16 +15,16 @@ export interface FinishedFederatedRun {
   timings: Record<string, number>;
 }
 
+type StoredOutcome = { stored: true; reportId: string } | { stored: false };
+
 /**
  * Stores a federated analysis's merged summary as a normal report, in one transaction: an
  * analyses row without a dataset file (reports belong to analyses), the report in the lineage of
  * the report it revises, its per-shard table, and the federated analysis marked done. The
  * federated row is locked first, so a retried coordinator stores nothing twice.
  */
-export async function storeFederatedReport(
-  run: FinishedFederatedRun,
-): Promise<{ stored: true; reportId: string } | { stored: false }> {
-  return db().transaction(async (tx) => {
+export async function storeFederatedReport(run: FinishedFederatedRun): Promise<StoredOutcome> {
+  const outcome = await db().transaction(async (tx): Promise<StoredOutcome> => {
     const [federated] = await tx
       .select()
       .from(federatedAnalyses)
@@ -77,4 +78,7 @@ export async function storeFederatedReport(
       );
     return { stored: true, reportId };
   });
+  // After the commit, so a woken client reads the report's id.
+  if (outcome.stored) await notifyFederatedState(run.federatedAnalysisId);
+  return outcome;
 }

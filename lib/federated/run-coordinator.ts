@@ -10,6 +10,7 @@ import {
   type FederatedClientRow,
 } from "@/db/queries/federated-analyses";
 import { listFederatedDigests, openExchange } from "@/db/queries/federated-digests";
+import { listenToFederatedClient } from "@/db/queries/federated-notices";
 import { storeFederatedReport } from "@/db/queries/federated-report";
 import { COORDINATED_FEDERATED_STATES } from "@/db/schema/federated";
 import {
@@ -19,6 +20,7 @@ import {
   schemaDigestSchema,
   type PartitionSummary,
 } from "@/lib/analysis";
+import { Doorbell } from "@/lib/doorbell";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
 import { DIGEST_CAUTION } from "./digest-caution";
 import { orderRoster } from "./federated-rules";
@@ -39,7 +41,6 @@ export interface CoordinatorSettings {
   jobId: string;
   /** How often the coordinator records that it still works (lost-coordinators.ts). */
   heartbeatMs: number;
-  pollMs?: number;
   silenceLimitMs?: number;
 }
 
@@ -175,6 +176,9 @@ interface Participants {
   missing: string[];
 }
 
+/** Looks for a client's answer again after this long without a notification. */
+const LOOK_AGAIN_MS = 1000;
+
 /** Every client online: the fit of W*, round 2 at the reference and along t·W*, the merge. */
 async function fitAndMerge(
   analysis: FederatedAnalysisRow,
@@ -186,15 +190,30 @@ async function fitAndMerge(
   // Ends the other clients' waits once one of them sets the fit aside or fails it.
   const ended = new AbortController();
   const signal = AbortSignal.any([settings.signal, ended.signal]);
+  const clientSchemas = participants.map((client) =>
+    schemaDigestSchema.parse(schemas.get(client.id)),
+  );
+  // Listening before the first question: every answer wakes the coordinator at once.
+  const answers = participants.map(() => new Doorbell());
+  const stopListening = await Promise.all(
+    participants.map((client, index) =>
+      listenToFederatedClient(
+        { analysisId: analysis.id, clientId: client.id },
+        ["answer", "state"],
+        () => answers[index].ring(),
+      ),
+    ),
+  );
   const connections = participants.map(
-    (client) =>
+    (client, index) =>
       new StoredClientConnection({
         analysisId: analysis.id,
         client: { id: client.id, name: client.name },
-        schema: schemaDigestSchema.parse(schemas.get(client.id)),
+        schema: clientSchemas[index],
         encodingHash: encoding.hash,
         signal,
-        pollMs: settings.pollMs ?? 50,
+        answers: answers[index],
+        lookAgainMs: LOOK_AGAIN_MS,
         silenceLimitMs: settings.silenceLimitMs ?? 30 * 60_000,
         filesArrived,
       }),
@@ -227,6 +246,7 @@ async function fitAndMerge(
     return summary;
   } finally {
     ended.abort();
+    for (const stop of stopListening) stop();
     await progress;
   }
 }

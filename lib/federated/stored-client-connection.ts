@@ -18,7 +18,7 @@ import {
   type MeasurementRequest,
   type SchemaDigest,
 } from "@/lib/analysis";
-import { pause } from "@/lib/pause";
+import type { Doorbell } from "@/lib/doorbell";
 
 export interface StoredClientOptions {
   analysisId: string;
@@ -27,7 +27,13 @@ export interface StoredClientOptions {
   /** The stored encoding: the coordinator's own merge must arrive at the same hash. */
   encodingHash: string;
   signal: AbortSignal;
-  pollMs: number;
+  /** Rung on every answer of the client and every change of the analysis's state. */
+  answers: Doorbell;
+  /**
+   * Longest wait without a ring before looking again, and between looks at whether the analysis
+   * ended, round-2 files arrived or the client stayed silent too long.
+   */
+  lookAgainMs: number;
   /** How long a client may leave a question unanswered before the analysis fails. */
   silenceLimitMs: number;
   /**
@@ -63,9 +69,6 @@ export class AnalysisEndedError extends Error {
   }
 }
 
-/** Polls between looks at whether the analysis is still going (about once a second). */
-const POLLS_PER_STATE_CHECK = 20;
-
 /**
  * The coordinator's side of one remote client (a DigestClientConnection over PostgreSQL): each
  * question is stored as an exchange, once (keyed by the request's hash), and answered by the
@@ -100,7 +103,7 @@ export class StoredClientConnection implements DigestClientConnection {
   }
 
   private async ask(encoding: DigestEncoding, kind: ExchangeKind, request: unknown) {
-    const { analysisId, client, signal, pollMs, silenceLimitMs } = this.options;
+    const { analysisId, client, signal, answers, lookAgainMs, silenceLimitMs } = this.options;
     const filesArrived = kind === "gradients" ? undefined : this.options.filesArrived;
     if (encoding.hash !== this.options.encodingHash) {
       throw new Error("the coordinator's encoding differs from the one the clients were sent");
@@ -114,22 +117,24 @@ export class StoredClientConnection implements DigestClientConnection {
     });
     if (exchange.answer !== null) return exchange.answer;
     const giveUpAt = Date.now() + silenceLimitMs;
-    for (let poll = 1; ; poll++) {
+    // The analysis's state is read only after a wait: a ring without the answer is a change of
+    // state, and a timeout is when a lost notice, arrived files or silence would show.
+    for (let waited = false; ; waited = true) {
       signal.throwIfAborted();
-      if (poll % POLLS_PER_STATE_CHECK === 0) {
+      const found = await findAnsweredExchanges([exchange.id]);
+      if (found.has(exchange.id)) return found.get(exchange.id);
+      if (waited) {
         const state = (await findFederatedAnalysisById(analysisId))?.state;
         if (state === undefined || state === "done" || state === "failed") {
           throw new AnalysisEndedError();
         }
         if (filesArrived && (await filesArrived())) throw new FitSetAsideError(client.name);
+        if (Date.now() > giveUpAt) {
+          if (filesArrived) throw new FitSetAsideError(client.name);
+          throw new ClientSilentError(client.name, silenceLimitMs / 60_000);
+        }
       }
-      const answers = await findAnsweredExchanges([exchange.id]);
-      if (answers.has(exchange.id)) return answers.get(exchange.id);
-      if (Date.now() > giveUpAt) {
-        if (filesArrived) throw new FitSetAsideError(client.name);
-        throw new ClientSilentError(client.name, silenceLimitMs / 60_000);
-      }
-      await pause(pollMs, signal);
+      await answers.wait(Math.max(0, Math.min(lookAgainMs, giveUpAt - Date.now())), signal);
     }
   }
 }
