@@ -52,10 +52,11 @@ export function readCsvStream(
   handler: CsvRowHandler,
   part?: CsvPartOptions,
   choice: CsvFormatChoice = {},
+  /** Index in the whole file of the first data row, when the stream is a part read with its header. */
+  firstRowIndex = part?.firstRowIndex ?? 0,
 ): Promise<number> {
   return new Promise((resolve, reject) => {
     let header: string[] | null = part ? part.header : null;
-    const firstRowIndex = part ? part.firstRowIndex : 0;
     let rowIndex = firstRowIndex;
     let charactersRead = 0;
     let failed = false;

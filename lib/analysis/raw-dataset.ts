@@ -60,6 +60,11 @@ export interface ReadDatasetOptions {
     onRow: (values: string[], rowIndex: number) => void;
   };
   /**
+   * Index in the whole file of the source's first data row, when the source is a part of a CSV
+   * file read with its header (table-reader.ts `readTable`): rows are numbered as in the file.
+   */
+  firstRowIndex?: number;
+  /**
    * The memory limit and scratch folder: values read beyond the limit's share go to a scratch file
    * (row-store.ts). Without settings everything stays in memory.
    */

@@ -46,6 +46,7 @@ export async function readDataset(
     format: formatChoice = {},
     keptRowText,
     memory,
+    firstRowIndex,
   }: ReadDatasetOptions,
 ): Promise<RawDataset<Float64Array | StoredMatrix>> {
   // Parts of a file are cut at line feeds, which only UTF-8 (or ASCII) text allows, and take the
@@ -113,6 +114,7 @@ export async function readDataset(
         },
       },
       formatChoice,
+      firstRowIndex,
     );
     const rows = collector as DatasetRowCollector;
     return completeDataset(

@@ -2,6 +2,7 @@
 // waits for where to write them, then reads them with the same rules as a whole-file read.
 import { createReadStream } from "node:fs";
 import { parentPort, workerData } from "node:worker_threads";
+import { countRows } from "./count-rows";
 import { readCsvStream } from "./csv-reader";
 import { DatasetRowCollector, type RowSink } from "./dataset-rows";
 import { AnalysisInputError } from "./errors";
@@ -13,36 +14,8 @@ const part = workerData as ReadPartData;
 const post = (report: ReadPartReport, transfer: ArrayBuffer[] = []) =>
   port.postMessage(report, transfer);
 
-const LINE_FEED = 10;
-const CARRIAGE_RETURN = 13;
-const QUOTE = 34;
 /** Progress is posted every this many bytes. */
 const PROGRESS_BYTES = 16 * 2 ** 20;
-
-/** Rows as papaparse will see them (lines that are not empty) and whether any quote appears. */
-async function countRows(): Promise<{ rows: number; quoted: boolean }> {
-  let rows = 0;
-  let quoted = false;
-  let lineLength = 0;
-  let lastByte = -1;
-  for await (const chunk of createReadStream(part.path, { start: part.start, end: part.end - 1 })) {
-    const bytes = chunk as Buffer;
-    if (!quoted && bytes.includes(QUOTE)) quoted = true;
-    for (let index = 0; index < bytes.length; index++) {
-      const byte = bytes[index];
-      if (byte === LINE_FEED) {
-        // A line of nothing but a carriage return is empty too.
-        if (lineLength > 1 || (lineLength === 1 && lastByte !== CARRIAGE_RETURN)) rows++;
-        lineLength = 0;
-      } else {
-        lineLength++;
-        lastByte = byte;
-      }
-    }
-  }
-  if (lineLength > 1 || (lineLength === 1 && lastByte !== CARRIAGE_RETURN)) rows++;
-  return { rows, quoted };
-}
 
 /** Writes rows into the shared values from the part's first row, never past its share. */
 function createSink(values: Float64Array, firstRow: number, rowLimit: number): RowSink {
@@ -121,7 +94,9 @@ async function readPart(order: ReadPartOrder, countedRows: number): Promise<void
 }
 
 try {
-  const counted = await countRows();
+  const counted = await countRows(
+    createReadStream(part.path, { start: part.start, end: part.end - 1 }),
+  );
   post({ type: "counted", ...counted });
   if (!counted.quoted) {
     const order = await new Promise<ReadPartOrder>((resolve) => port.once("message", resolve));

@@ -51,13 +51,19 @@ export async function readTable(
   handler: TableRowHandler,
   /** A text file's encoding, delimiter and decimal mark as chosen; what is not given is detected. */
   textFormat: CsvFormatChoice = {},
+  /**
+   * Index in the whole file of the first data row, when a CSV source is a part of a file (its
+   * header, then whole lines from further on): rows, and the messages naming them, are numbered as
+   * in the whole file.
+   */
+  firstRowIndex = 0,
 ): Promise<number> {
   if (!(source instanceof Readable)) return readLocalTable(source, fileName, handler, textFormat);
   const { head, stream } = await peekStream(source, SNIFFED_BYTES);
   const format = detectTableFormat(head);
   if (format === "parquet") return readParquetStream(stream, fileName, handler);
   if (format === "csv.gz") return readGzipCsv(stream, fileName, handler, textFormat);
-  return readCsvStream(stream, fileName, handler, undefined, textFormat);
+  return readCsvStream(stream, fileName, handler, undefined, textFormat, firstRowIndex);
 }
 
 export function isLocalFile(source: TableSource): source is LocalFile {

@@ -1,5 +1,4 @@
 import { hostname } from "node:os";
-import { addAbortSignal } from "node:stream";
 import {
   answerPartExchange,
   claimPart,
@@ -18,8 +17,8 @@ import {
   evaluationRequestSchema,
   LocalDigestClient,
   measurementRequestSchema,
-  openDatasetPart,
-  readClientRows,
+  readDatasetPart,
+  withFileRowNumbers,
 } from "@/lib/analysis";
 import { Doorbell } from "@/lib/doorbell";
 import type { AnalysisPartJob } from "@/lib/jobs";
@@ -103,33 +102,35 @@ export async function runAnalysisPart(
     const inputs = await findPartInputs(workspaceId, analysisId);
     if (!inputs) return { outcome: "skipped" };
     const { parameters, dataset } = inputs;
-    const range = { start: part.startByte, end: part.endByte };
-    const raw = await readClientRows({
+    const bytes = storedDatasetBytes(dataset);
+    const plan = {
+      headerBytes: part.headerBytes,
+      parts: [{ start: part.startByte, end: part.endByte }],
+    };
+    const columns = {
+      labelColumn: parameters.labelColumn,
+      idColumn: parameters.idColumn,
+      shardColumn: parameters.shardColumn,
+      features: parameters.features,
+    };
+    // An input error names the row a one-process read of the file names.
+    const read = await withFileRowNumbers(bytes, plan, plan.parts[0], async (firstRowIndex) => {
       // A worker that stops mid-read hands its part back at once, not after the whole range.
-      data: addAbortSignal(
+      const raw = await readDatasetPart(bytes, dataset.name, plan, 0, columns, {
         signal,
-        openDatasetPart(
-          storedDatasetBytes(dataset),
-          { headerBytes: part.headerBytes, parts: [range] },
-          range,
-        ),
-      ),
-      dataName: `${dataset.name} (${name})`,
-      columns: {
-        labelColumn: parameters.labelColumn,
-        idColumn: parameters.idColumn,
-        shardColumn: parameters.shardColumn,
-        features: parameters.features,
-      },
+        firstRowIndex,
+      });
+      // A shard's rows may fall in several parts: the disclosure minimum of federated clients
+      // (methods.md §9) does not apply inside one analysis.
+      const reader = new LocalDigestClient(name, raw, {
+        task: parameters.task,
+        minimumShardRows: 1,
+        threads: settings.threads,
+      });
+      return { client: reader, schema: await reader.schema() };
     });
-    // A shard's rows may fall in several parts: the disclosure minimum of federated clients
-    // (methods.md §9) does not apply inside one analysis.
-    client = new LocalDigestClient(name, raw, {
-      task: parameters.task,
-      minimumShardRows: 1,
-      threads: settings.threads,
-    });
-    await storePartSchema(analysisId, runId, partIndex, await client.schema());
+    client = read.client;
+    await storePartSchema(analysisId, runId, partIndex, read.schema);
     log("read");
     let answered = 0;
     // The run's state is read only after a wait: a ring without a question is its end (or a

@@ -19,6 +19,8 @@ export interface ClientRowsInput {
   shard?: string;
   columns: DatasetColumnChoice;
   dropUnassignedRows?: boolean;
+  /** Index in the whole file of the first data row, when `data` is a part of a CSV file. */
+  firstRowIndex?: number;
 }
 
 /**
@@ -46,6 +48,7 @@ export async function readClientRows(input: ClientRowsInput): Promise<RawDataset
   return readDataset(input.data, input.dataName, input.columns, {
     partition,
     dropUnassignedRows: input.dropUnassignedRows ?? false,
+    firstRowIndex: input.firstRowIndex,
   });
 }
 

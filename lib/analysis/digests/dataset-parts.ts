@@ -1,6 +1,8 @@
 import { createReadStream } from "node:fs";
 import { open, stat } from "node:fs/promises";
-import { Readable } from "node:stream";
+import { addAbortSignal, Readable } from "node:stream";
+import { countRows } from "../count-rows";
+import { AnalysisInputError } from "../errors";
 import { cutSourceIntoParts, type ByteSource } from "../parallel-read";
 import type { DatasetColumnChoice, RawDataset } from "../read-dataset";
 import { detectTableFormat } from "../table-reader";
@@ -85,23 +87,59 @@ export function openDatasetPart(
 }
 
 /**
- * One part's rows, read with the engine's reader as a client's are (methods.md §1); its data row
- * indices count from the part's first line. The shard comes from a shard column (a partition map by
- * row index would need the rows before the part).
+ * One part's rows, read with the engine's reader as a client's are (methods.md §1), named by the
+ * file's name; its data rows are numbered from `firstRowIndex` (by default from the part's first
+ * line: see `withFileRowNumbers`). The shard comes from a shard column (a partition map by row
+ * index would need the rows before the part). A stream stopped by `signal` ends the read.
  */
 export async function readDatasetPart(
   bytes: DatasetBytes,
   fileName: string,
   plan: DatasetPartPlan,
   index: number,
-  columns: DatasetColumnChoice & { shardColumn: string },
+  columns: DatasetColumnChoice,
+  { signal, firstRowIndex = 0 }: { signal?: AbortSignal; firstRowIndex?: number } = {},
 ): Promise<RawDataset> {
+  const data = openDatasetPart(bytes, plan, plan.parts[index]);
   return readClientRows({
-    data: openDatasetPart(bytes, plan, plan.parts[index]),
-    dataName:
-      plan.parts.length === 1
-        ? fileName
-        : `${fileName} (part ${index + 1} of ${plan.parts.length})`,
+    data: signal ? addAbortSignal(signal, data) : data,
+    dataName: fileName,
     columns,
+    firstRowIndex,
   });
+}
+
+/**
+ * The data rows of the file before the part, as the reader counts them (lines that are not empty):
+ * a read of every byte before the part, without parsing.
+ */
+export async function countRowsBefore(
+  bytes: DatasetBytes,
+  plan: DatasetPartPlan,
+  part: DatasetPart,
+): Promise<number> {
+  if (part.start <= plan.headerBytes) return 0;
+  return (await countRows(bytes.stream(plan.headerBytes, part.start))).rows;
+}
+
+/**
+ * Runs `attempt` — a read of the part and what is computed from its rows — numbering rows from the
+ * part's first line; when it fails on bad input, runs it again numbering rows as in the whole file,
+ * so that the message names the row (and rows) a one-process read of the file names. Counting the
+ * rows before the part reads every byte before it: only a failure pays for it.
+ */
+export async function withFileRowNumbers<T>(
+  bytes: DatasetBytes,
+  plan: DatasetPartPlan,
+  part: DatasetPart,
+  attempt: (firstRowIndex: number) => Promise<T>,
+): Promise<T> {
+  try {
+    return await attempt(0);
+  } catch (error) {
+    if (!(error instanceof AnalysisInputError)) throw error;
+    const firstRowIndex = await countRowsBefore(bytes, plan, part);
+    if (firstRowIndex === 0) throw error;
+    return await attempt(firstRowIndex);
+  }
 }

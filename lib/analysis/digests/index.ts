@@ -45,6 +45,7 @@ export {
   openDatasetPart,
   planDatasetParts,
   readDatasetPart,
+  withFileRowNumbers,
 } from "./dataset-parts";
 export type { DatasetBytes, DatasetPart, DatasetPartPlan } from "./dataset-parts";
 export { PartsConnection } from "./parts-connection";

@@ -31,7 +31,12 @@ export class PartsConnection implements DigestClientConnection {
   ) {}
 
   async schema(): Promise<SchemaDigest> {
-    const digests = await Promise.all(this.parts.map((part) => part.schema()));
+    const pending = this.parts.map((part) => part.schema());
+    // A failure is reported in file order, as a one-process read meets the first bad row: a part's
+    // failure waits for the parts before it (each is awaited in turn; none is left unobserved).
+    for (const digest of pending) digest.catch(() => undefined);
+    const digests: SchemaDigest[] = [];
+    for (const digest of pending) digests.push(await digest);
     this.shardRowsOfParts = digests.map(
       (digest) => new Map(digest.shards.map((shard) => [shard.id, shard.rows])),
     );

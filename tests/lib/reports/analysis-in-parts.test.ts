@@ -14,7 +14,7 @@ import PgBoss from "pg-boss";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, db } from "@/db/client";
 import { listAnalysisParts } from "@/db/queries/analysis-parts";
-import { reports } from "@/db/schema";
+import { analysisParts, reports } from "@/db/schema";
 import { analyzePartition, type PartitionSummary } from "@/lib/analysis";
 import { ANALYSIS_PART_JOB_POLICY, ANALYSIS_PART_QUEUE, startBoss } from "@/lib/jobs";
 import type { PartsSettings } from "@/lib/reports/analysis-in-parts";
@@ -154,6 +154,42 @@ describe("one analysis shared by several workers", () => {
     // The report page says it ran in parts, and that none was redone.
     expect(describeRun({ parts: await listAnalysisParts(job.analysisId), rowsSpilledAtLimit: null })).toEqual([
       expect.stringMatching(/^Read in 3 parts, each by whichever worker took it/),
+    ]);
+  }, 600_000);
+
+  it("names the file's row of a bad value in a later part, as a one-process read does", async () => {
+    // A value too large for a double on data row 40 000 (0-based, header excluded), in the last
+    // third of the file's bytes: part 3 of 3 meets it, and counts the rows before it to name it.
+    const badRow = 40_000;
+    const lines = CSV.split("\n");
+    const column = "pixel_3_5";
+    const fields = lines[badRow + 1].split(",");
+    fields[lines[0].split(",").indexOf(column)] = "1e999";
+    lines[badRow + 1] = fields.join(",");
+    const badCsv = lines.join("\n");
+    const inParts = await queueDigitsAnalysis(badCsv);
+    const partsRun = await runAnalysis(inParts, { willRetry: true, parts: partsSettings(3) });
+    const oneProcessRun = await runAnalysis(await queueDigitsAnalysis(badCsv), {
+      willRetry: true,
+      parts: partsSettings(1),
+    });
+    expect(oneProcessRun).toEqual({
+      outcome: "failed",
+      message: expect.stringContaining(
+        `digits.csv, data row ${badRow} (0-based, header excluded; line ${badRow + 2}), column "${column}": the value "1e999" is too large`,
+      ),
+    });
+    expect(partsRun).toEqual(oneProcessRun);
+    // It did run in parts, and the third part is the one that met the value.
+    const failures = await db()
+      .select({ partIndex: analysisParts.partIndex, failure: analysisParts.failureMessage })
+      .from(analysisParts)
+      .where(eq(analysisParts.analysisId, inParts.analysisId))
+      .orderBy(analysisParts.partIndex);
+    expect(failures).toEqual([
+      { partIndex: 0, failure: null },
+      { partIndex: 1, failure: null },
+      { partIndex: 2, failure: oneProcessRun.outcome === "failed" ? oneProcessRun.message : "" },
     ]);
   }, 600_000);
 

@@ -20,11 +20,16 @@ export const DIGITS_OPTIONS = { labelColumn: "digit", shardColumn: "shard", feat
  */
 export const DIGITS_CSV = loadStackedDigitsCsv(23);
 
-/** A queued analysis of the stored digits in a new workspace, as the start action leaves it. */
-export async function queueDigitsAnalysis(): Promise<{ analysisId: string; workspaceId: string }> {
+/**
+ * A queued analysis of the stored digits (or of `csv`, the digits changed) in a new workspace, as
+ * the start action leaves it.
+ */
+export async function queueDigitsAnalysis(
+  csv = DIGITS_CSV,
+): Promise<{ analysisId: string; workspaceId: string }> {
   const team = await createTeam();
   const workspace = { workspaceId: team.workspaceId, uploadedBy: team.owner.id };
-  const dataset = await storeInput(workspace, "dataset", "digits.csv", DIGITS_CSV);
+  const dataset = await storeInput(workspace, "dataset", "digits.csv", csv);
   const [analysis] = await db()
     .insert(analyses)
     .values({
