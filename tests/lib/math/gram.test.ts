@@ -7,6 +7,17 @@ import {
 import { matrixFromValues } from "@/lib/math/matrix";
 import { runPythonJson } from "../analysis/support/run-python";
 
+/**
+ * The kernels' contract: only the upper triangle (j ≤ k) is accumulated, so the lower one is left as
+ * it was (zero here) until `symmetrizeFromUpper` copies the upper one onto it.
+ */
+function expectLowerTriangleZero(values: Float64Array, cols: number) {
+  for (let j = 1; j < cols; j++) {
+    for (let k = 0; k < j; k++)
+      expect({ j, k, value: values[j * cols + k] }).toEqual({ j, k, value: 0 });
+  }
+}
+
 describe("Gram kernels on odd widths and uneven row ranges", () => {
   it("accumulates Xᵀ X and Xᵀ diag(a) X of rows [3, 14) like NumPy, for 5 and 1 columns", () => {
     // An odd width leaves one column outside the kernel's column pairs, and 11 rows leave three
@@ -29,9 +40,11 @@ print(json.dumps({"plain":(X.T@X).ravel().tolist(),"weighted":(X.T@np.diag(a)@X)
       const matrix = matrixFromValues(rows, cols, values);
       const plain = new Float64Array(cols * cols);
       accumulateGramUpper(matrix, 3, 14, plain);
+      expectLowerTriangleZero(plain, cols);
       symmetrizeFromUpper(plain, cols);
       const weighted = new Float64Array(cols * cols);
       accumulateWeightedGramUpper(matrix, Float64Array.from(weights), 3, 14, weighted);
+      expectLowerTriangleZero(weighted, cols);
       symmetrizeFromUpper(weighted, cols);
       plain.forEach((value, k) => expect(value).toBeCloseTo(reference.plain[k], 13));
       weighted.forEach((value, k) => expect(value).toBeCloseTo(reference.weighted[k], 13));
