@@ -1,7 +1,7 @@
 import { createMatrix } from "../../math/matrix";
 import { readTotals } from "../objective-pass";
-import { PARALLEL_MIN_WORK } from "../analyze-partition";
-import { countAvailableThreads, PassPool, type PassResult, type SharedDesign } from "../pass-pool";
+import { countThreadsForWork } from "../choose-threads";
+import { PassPool, type PassResult, type SharedDesign } from "../pass-pool";
 import type { ClientDesign } from "./client-rows";
 import type { EvaluationRequest, EvaluationSums } from "./digest-format";
 
@@ -23,8 +23,10 @@ export class ClientPasses {
     const weightRows =
       design.labels === null ? 1 : design.labels.reduce((a, b) => Math.max(a, b), 0) + 1;
     const work = design.x.rows * design.x.cols * weightRows;
-    const count = threads ?? (work >= PARALLEL_MIN_WORK ? countAvailableThreads() : 1);
-    this.passes = new PassPool(count).share(design, design.shardOffsets);
+    this.passes = new PassPool(threads ?? countThreadsForWork(work)).share(
+      design,
+      design.shardOffsets,
+    );
   }
 
   /**

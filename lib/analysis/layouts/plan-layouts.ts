@@ -1,5 +1,6 @@
 import type { AnalysisOptionsInput } from "../../validation/analysis-options";
-import { analyzeDesign, parseOptions } from "../analyze-partition";
+import { analyzeDesign } from "../analyze-design";
+import { parseOptions } from "../parse-options";
 import type { Design } from "../design";
 import { encodeDesign } from "../encode-design";
 import { AnalysisInputError, listFirst } from "../errors";
