@@ -12,10 +12,10 @@ import {
   recordPartFailure,
   removePartExchanges,
   startPartRun,
-  type PartNotice,
 } from "@/db/queries/analysis-parts";
 import { analyses, dataFiles } from "@/db/schema";
 import { createAccount } from "@/tests/support/accounts";
+import { countNotices } from "@/tests/support/notice-counter";
 
 afterAll(closeDb);
 
@@ -47,37 +47,19 @@ async function insertRunningAnalysis(): Promise<string> {
   return analysis.id;
 }
 
-/** How many notices a listener received, and a wait for a count. */
-async function countNotices(analysisId: string, partIndex: number, notices: PartNotice[]) {
-  let count = 0;
-  let check = () => {};
-  const stop = await listenToPart(analysisId, partIndex, notices, () => {
-    count++;
-    check();
-  });
-  return {
-    stop,
-    get count() {
-      return count;
-    },
-    /** Resolves once `total` notices have arrived in all. */
-    until: (total: number) =>
-      new Promise<void>((resolve) => {
-        check = () => {
-          if (count >= total) resolve();
-        };
-        check();
-      }),
-  };
-}
-
 describe("notifications between the parts of an analysis and their coordinator", () => {
   it("wakes a part on its questions and its run's changes, and the coordinator on its answers", async () => {
     const analysisId = await insertRunningAnalysis();
     const runId = randomUUID();
-    const part = await countNotices(analysisId, 0, ["question", "state"]);
-    const otherPart = await countNotices(analysisId, 1, ["question", "state"]);
-    const coordinator = await countNotices(analysisId, 0, ["answer", "state"]);
+    const part = await countNotices((onNotice) =>
+      listenToPart(analysisId, 0, ["question", "state"], onNotice),
+    );
+    const otherPart = await countNotices((onNotice) =>
+      listenToPart(analysisId, 1, ["question", "state"], onNotice),
+    );
+    const coordinator = await countNotices((onNotice) =>
+      listenToPart(analysisId, 0, ["answer", "state"], onNotice),
+    );
     const span = { headerBytes: 10, startByte: 10, endByte: 50 };
     // A new run concerns every part.
     await startPartRun(analysisId, runId, [span, { ...span, startByte: 50, endByte: 90 }]);

@@ -7,7 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb } from "@/db/client";
 import { findFederatedClientByName, moveFederatedState } from "@/db/queries/federated-analyses";
 import { answerExchange, openExchange } from "@/db/queries/federated-digests";
-import { listenToFederatedClient, type FederatedNotice } from "@/db/queries/federated-notices";
+import { listenToFederatedClient } from "@/db/queries/federated-notices";
 import { stopSendingBoss } from "@/lib/jobs";
 import {
   cancelFederatedAnalysis,
@@ -15,6 +15,7 @@ import {
   waitForClientWork,
 } from "@/lib/federated";
 import { createTeam } from "@/tests/support/accounts";
+import { countNotices } from "@/tests/support/notice-counter";
 
 let team: Awaited<ReturnType<typeof createTeam>>;
 const started: string[] = [];
@@ -43,39 +44,18 @@ async function createAnalysis() {
   return { analysisId, east: await clientId("east"), west: await clientId("west") };
 }
 
-/** How many notices a listener received, and a wait for a count. */
-async function countNotices(
-  client: { analysisId: string; clientId: string },
-  notices: FederatedNotice[],
-) {
-  let count = 0;
-  let check = () => {};
-  const stop = await listenToFederatedClient(client, notices, () => {
-    count++;
-    check();
-  });
-  return {
-    stop,
-    get count() {
-      return count;
-    },
-    /** Resolves once `total` notices have arrived in all. */
-    until: (total: number) =>
-      new Promise<void>((resolve) => {
-        check = () => {
-          if (count >= total) resolve();
-        };
-        check();
-      }),
-  };
-}
-
 describe("notifications between a federated analysis's coordinator and its clients", () => {
   it("wakes a client on its questions and the state, and the coordinator on its answers", async () => {
     const { analysisId, east, west } = await createAnalysis();
-    const eastPoll = await countNotices({ analysisId, clientId: east }, ["question", "state"]);
-    const westPoll = await countNotices({ analysisId, clientId: west }, ["question", "state"]);
-    const eastAnswers = await countNotices({ analysisId, clientId: east }, ["answer", "state"]);
+    const eastPoll = await countNotices((onNotice) =>
+      listenToFederatedClient({ analysisId, clientId: east }, ["question", "state"], onNotice),
+    );
+    const westPoll = await countNotices((onNotice) =>
+      listenToFederatedClient({ analysisId, clientId: west }, ["question", "state"], onNotice),
+    );
+    const eastAnswers = await countNotices((onNotice) =>
+      listenToFederatedClient({ analysisId, clientId: east }, ["answer", "state"], onNotice),
+    );
 
     // A question to west, then one to east. Listeners of this process share one connection,
     // which hears notifications in commit order: once east's has arrived, west's has too.
