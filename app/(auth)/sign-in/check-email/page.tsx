@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import Link from "next/link";
+import { CheckEmailNotice } from "@/components/auth/check-email-notice";
 
 export const metadata: Metadata = { title: "Check your e-mail" };
 
@@ -10,21 +10,11 @@ export default async function CheckEmailPage({
 }) {
   const { email } = await searchParams;
   return (
-    <>
-      <header className="space-y-2">
-        <h1 className="text-2xl font-semibold">Check your e-mail</h1>
-        <p className="text-sm text-ink-soft">
-          We sent a sign-in link to{" "}
-          {email ? <strong className="text-ink">{email}</strong> : "your address"}. It works once
-          and expires in 24 hours.
-        </p>
-      </header>
-      <Link
-        href="/sign-in"
-        className="text-sm font-medium text-indigo underline-offset-2 hover:underline"
-      >
-        Back to sign-in
-      </Link>
-    </>
+    <CheckEmailNotice
+      email={email}
+      link="a sign-in link"
+      afterward="It works once and expires in 24 hours."
+      back={{ href: "/sign-in", label: "Back to sign-in" }}
+    />
   );
 }

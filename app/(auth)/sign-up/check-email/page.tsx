@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import Link from "next/link";
+import { CheckEmailNotice } from "@/components/auth/check-email-notice";
 
 export const metadata: Metadata = { title: "Confirm your address" };
 
@@ -10,21 +10,11 @@ export default async function SignUpCheckEmailPage({
 }) {
   const { email } = await searchParams;
   return (
-    <>
-      <header className="space-y-2">
-        <h1 className="text-2xl font-semibold">Check your e-mail</h1>
-        <p className="text-sm text-ink-soft">
-          We sent a link to {email ? <strong className="text-ink">{email}</strong> : "your address"}
-          . Follow it to confirm the address and create your account; until then nobody can sign in
-          with it. The link works once and expires in 24 hours.
-        </p>
-      </header>
-      <Link
-        href="/sign-up"
-        className="text-sm font-medium text-indigo underline-offset-2 hover:underline"
-      >
-        Wrong address? Sign up again
-      </Link>
-    </>
+    <CheckEmailNotice
+      email={email}
+      link="a link"
+      afterward="Follow it to confirm the address and create your account; until then nobody can sign in with it. The link works once and expires in 24 hours."
+      back={{ href: "/sign-up", label: "Wrong address? Sign up again" }}
+    />
   );
 }
