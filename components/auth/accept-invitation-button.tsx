@@ -1,10 +1,7 @@
 "use client";
 
-import { useRouter } from "next/navigation";
-import { useState, useTransition } from "react";
 import { acceptInvitationAction } from "@/app/invite/[token]/actions";
-import { Button } from "@/components/ui/button";
-import { Notice } from "@/components/ui/notice";
+import { ActionThenGoButton } from "@/components/ui/action-then-go-button";
 
 export function AcceptInvitationButton({
   token,
@@ -13,25 +10,12 @@ export function AcceptInvitationButton({
   token: string;
   workspaceName: string;
 }) {
-  const router = useRouter();
-  const [error, setError] = useState<string>();
-  const [pending, startTransition] = useTransition();
   return (
-    <div className="space-y-3">
-      {error ? <Notice tone="error">{error}</Notice> : null}
-      <Button
-        disabled={pending}
-        className="w-full"
-        onClick={() =>
-          startTransition(async () => {
-            const result = await acceptInvitationAction(token);
-            if (result.ok) router.push(result.data.landing);
-            else setError(result.message);
-          })
-        }
-      >
-        {pending ? "Joining…" : `Join ${workspaceName}`}
-      </Button>
-    </div>
+    <ActionThenGoButton
+      action={() => acceptInvitationAction(token)}
+      destination={(joined) => joined.landing}
+      label={`Join ${workspaceName}`}
+      pendingLabel="Joining…"
+    />
   );
 }
