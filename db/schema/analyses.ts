@@ -11,7 +11,14 @@ import {
   text,
   uniqueIndex,
 } from "drizzle-orm/pg-core";
-import { cascadingReference, createdAt, instant, RUN_STATUSES, uuidPrimaryKey } from "./columns";
+import {
+  cascadingReference,
+  createdAt,
+  instant,
+  runProgressColumns,
+  runStatusEnum,
+  uuidPrimaryKey,
+} from "./columns";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
 import type { CsvFormat, PartitionSummary, SimulationProgress } from "@/lib/analysis/browser";
 import { users } from "./auth";
@@ -66,7 +73,7 @@ export const dataFiles = pgTable(
   ],
 );
 
-export const analysisStatus = pgEnum("analysis_status", RUN_STATUSES);
+export const analysisStatus = runStatusEnum("analysis_status");
 
 /**
  * One requested run of the engine: its inputs and parameters, and its live state while the worker
@@ -85,9 +92,7 @@ export const analyses = pgTable(
     parameters: jsonb("parameters").$type<AnalysisOptionsInput>().notNull(),
     /** The report this run revises, when it is a re-run with other parameters. */
     previousReportId: text("previous_report_id"),
-    status: analysisStatus("status").notNull().default("queued"),
-    stage: text("stage"),
-    fraction: doublePrecision("fraction").notNull().default(0),
+    ...runProgressColumns(analysisStatus),
     /**
      * The simulation's latest progress by algorithm, run and round (methods.md §7), written by the
      * worker once the engine's stages are done; null until then and without a simulation.

@@ -1,4 +1,4 @@
-import { text, timestamp, type AnyPgColumn } from "drizzle-orm/pg-core";
+import { doublePrecision, pgEnum, text, timestamp, type AnyPgColumn } from "drizzle-orm/pg-core";
 
 // Column shapes every table repeats, so a table definition shows what is particular to it.
 
@@ -20,3 +20,16 @@ export const cascadingReference = (name: string, target: () => AnyPgColumn) =>
 
 /** The states of background work the worker runs (analyses, layout plans and their candidates). */
 export const RUN_STATUSES = ["queued", "running", "succeeded", "failed", "cancelled"] as const;
+
+/** A PostgreSQL enum of RUN_STATUSES, one per kind of background work. */
+export const runStatusEnum = (name: string) => pgEnum(name, RUN_STATUSES);
+
+/**
+ * A run's live state, written by the worker and polled by its page: the status, the stage it is in
+ * and how far through it (0 to 1).
+ */
+export const runProgressColumns = (status: ReturnType<typeof runStatusEnum>) => ({
+  status: status("status").notNull().default("queued"),
+  stage: text("stage"),
+  fraction: doublePrecision("fraction").notNull().default(0),
+});

@@ -1,12 +1,10 @@
 import {
   bigint,
   boolean,
-  doublePrecision,
   index,
   integer,
   json,
   jsonb,
-  pgEnum,
   pgTable,
   primaryKey,
   text,
@@ -15,10 +13,17 @@ import type { LayoutSpec, PartitionSummary } from "@/lib/analysis/browser";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
 import { dataFiles } from "./analyses";
 import { users } from "./auth";
-import { cascadingReference, createdAt, instant, RUN_STATUSES, uuidPrimaryKey } from "./columns";
+import {
+  cascadingReference,
+  createdAt,
+  instant,
+  runProgressColumns,
+  runStatusEnum,
+  uuidPrimaryKey,
+} from "./columns";
 import { workspaces } from "./workspaces";
 
-export const layoutPlanStatus = pgEnum("layout_plan_status", RUN_STATUSES);
+export const layoutPlanStatus = runStatusEnum("layout_plan_status");
 
 /**
  * A layout plan (methods.md §8): candidate splits of one registered dataset into M shards, each
@@ -44,9 +49,7 @@ export const layoutPlans = pgTable(
     generators: jsonb("generators").$type<LayoutSpec[]>().notNull(),
     /** The generators' seed, 0 … 2³² − 1. */
     seed: bigint("seed", { mode: "number" }).notNull(),
-    status: layoutPlanStatus("status").notNull().default("queued"),
-    stage: text("stage"),
-    fraction: doublePrecision("fraction").notNull().default(0),
+    ...runProgressColumns(layoutPlanStatus),
     /** Why the plan as a whole failed, written for the user, or null. */
     failureMessage: text("failure_message"),
     jobId: text("job_id"),
@@ -71,9 +74,7 @@ export const layoutCandidates = pgTable(
     name: text("name").notNull(),
     generator: text("generator").$type<LayoutSpec["generator"]>().notNull(),
     parameters: jsonb("parameters").$type<Record<string, number>>().notNull(),
-    status: layoutPlanStatus("status").notNull().default("queued"),
-    stage: text("stage"),
-    fraction: doublePrecision("fraction").notNull().default(0),
+    ...runProgressColumns(layoutPlanStatus),
     /** The §6 summary of this layout; json keeps the engine's key order for the export. */
     summary: json("summary").$type<PartitionSummary>(),
     /** Where the candidate's partition map (row_id,shard CSV) is stored. */
