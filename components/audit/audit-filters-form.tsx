@@ -1,11 +1,5 @@
 import { FilterBar, FilterInput, FilterSelect } from "@/components/ui/filter-bar";
-import { AUDIT_ACTIONS } from "@/db/schema/reviews";
-import { AUDIT_ACTION_LABELS, type AuditFilters } from "@/lib/reviews/audit-filters";
-
-const ACTION_OPTIONS = AUDIT_ACTIONS.map((kind) => ({
-  value: kind,
-  label: AUDIT_ACTION_LABELS[kind],
-}));
+import { AUDIT_ACTION_OPTIONS, type AuditFilters } from "@/lib/reviews/audit-filters";
 
 /** The audit log's filters: event kind, who acted, and a UTC day range. */
 export function AuditFiltersForm({
@@ -25,7 +19,7 @@ export function AuditFiltersForm({
         label="Event"
         anyLabel="Any event"
         value={filters.action}
-        options={ACTION_OPTIONS}
+        options={AUDIT_ACTION_OPTIONS}
       />
       <FilterSelect
         id="audit-actor"

@@ -26,6 +26,12 @@ export const AUDIT_ACTION_LABELS: Record<AuditAction, string> = {
   "federated.cancelled": "Federated analysis stopped",
 };
 
+/** Every kind of audit event with its label, in the log's own order, for the filter's choices. */
+export const AUDIT_ACTION_OPTIONS = AUDIT_ACTIONS.map((kind) => ({
+  value: kind,
+  label: AUDIT_ACTION_LABELS[kind],
+}));
+
 const fields = {
   action: z.enum(AUDIT_ACTIONS),
   actor: z.string().trim().min(1).max(100),
