@@ -75,7 +75,7 @@ export function measureColumnMomentsInBlocks(
     }
   });
   for (let k = 0; k < count; k++) scales[k] = powerOfTwoAtLeast(scales[k]);
-  const inverses = scales.map((scale) => (scale === 0 ? 0 : 1 / scale));
+  const inverses = scales.map((scale) => 1 / scale);
 
   const blocks = new Float64Array(count);
   const totals = columns.map(() => new CompensatedSum());
@@ -107,28 +107,24 @@ export function measureColumnMomentsInBlocks(
       for (let k = 0; k < count; k++) squares[k].add(blocks[k]);
     }
   });
-  return columns.map((_, k) =>
-    scales[k] === 0
-      ? { mean: 0, std: 0 }
-      : {
-          mean: scaledMeans[k] * scales[k],
-          std: Math.sqrt(squares[k].value / rows) * scales[k],
-        },
-  );
+  return columns.map((_, k) => ({
+    mean: scaledMeans[k] * scales[k],
+    std: Math.sqrt(squares[k].value / rows) * scales[k],
+  }));
 }
 
 /** Smallest and largest exponents e whose 2^e and 2^−e are both normal doubles. */
 const NORMAL_EXPONENTS = [-1022, 1022] as const;
 
 /**
- * 2^e ≥ `magnitude` with e clamped to the normal range (0 stays 0): scaling by it and by its
- * inverse is exact, where 1/`magnitude` would round (and overflow for subnormal magnitudes). Values
- * near the largest double scaled by 2^−1022 stay below 4.
+ * 2^e ≥ `magnitude` with e clamped to the normal range: scaling by it and by its inverse is exact,
+ * where 1/`magnitude` would round (and overflow for subnormal magnitudes). Values near the largest
+ * double scaled by 2^−1022 stay below 4. A column of zeros gets 2^−1022 too (log₂ 0 is −∞), so its
+ * scaled terms stay 0 and need no case of their own.
  *
- * Example: powerOfTwoAtLeast(3) is 4; powerOfTwoAtLeast(1e-310) is 2^−1022.
+ * Example: powerOfTwoAtLeast(3) is 4; powerOfTwoAtLeast(1e-310) and powerOfTwoAtLeast(0) are 2^−1022.
  */
 function powerOfTwoAtLeast(magnitude: number): number {
-  if (magnitude === 0) return 0;
   const [lowest, highest] = NORMAL_EXPONENTS;
   return 2 ** Math.min(highest, Math.max(lowest, Math.ceil(Math.log2(magnitude))));
 }
