@@ -2,8 +2,8 @@ import { defineConfig } from "vitest/config";
 import base from "./vitest.config.mjs";
 
 // The tests `npm run mutation` runs against each mutant (stryker.config.json): the unit tests of
-// lib/math, of the engine's statistics, fit and advice, and of the advice's figures, which need no
-// database and take seconds. Modules that run inside worker threads are not mutated: a mutant is
+// lib/math, of the engine's statistics, objective, fit and advice, of the summary's assembly, of the
+// readers and the encoder, and of the advice's figures, which need no database and take seconds. Modules that run inside worker threads are not mutated: a mutant is
 // switched on in the test's thread only, so a worker would compute with the original code.
 export default defineConfig({
   ...base,
@@ -18,6 +18,14 @@ export default defineConfig({
       "tests/lib/analysis/heterogeneity.test.ts",
       "tests/lib/analysis/feature-shift.test.ts",
       "tests/lib/analysis/fit.test.ts",
+      "tests/lib/analysis/loss-only-pass.test.ts",
+      "tests/lib/analysis/assemble-summary.test.ts",
+      "tests/lib/analysis/encode-design.test.ts",
+      "tests/lib/analysis/decode-text.test.ts",
+      "tests/lib/analysis/csv-reader.test.ts",
+      "tests/lib/analysis/column-accumulator.test.ts",
+      "tests/lib/analysis/partition-map.test.ts",
+      "tests/lib/analysis/count-shards.test.ts",
       "tests/lib/reports/bound-curves.test.ts",
       "tests/lib/reports/regime-map.test.ts",
     ],
