@@ -19,6 +19,7 @@ export default defineConfig({
       "tests/lib/analysis/feature-shift.test.ts",
       "tests/lib/analysis/fit.test.ts",
       "tests/lib/analysis/loss-only-pass.test.ts",
+      "tests/lib/analysis/objective-pass.test.ts",
       "tests/lib/analysis/assemble-summary.test.ts",
       "tests/lib/analysis/encode-design.test.ts",
       "tests/lib/analysis/decode-text.test.ts",
