@@ -233,6 +233,60 @@ print(json.dumps({"gradientNorm":float(np.linalg.norm(g)),
     }
   });
 
+  it("takes one Newton step on a quadratic whose Hessian the sample gives exactly, also when the fit is replayed", () => {
+    // F(W) = ½ (W − W°)ᵀ A (W − W°) with A symmetric positive definite, 2 classes × width 3. The
+    // oracle's sample Hessian is A without λ on the biases (the regularizer leaves them out, §2);
+    // the preconditioner adds λ there, so it is A (up to the 1e-10 floor) and preconditioned
+    // L-BFGS's first direction −A⁻¹∇F is Newton's step, which lands on a quadratic's minimum
+    // (standard: Nocedal & Wright, ch. 3, from memory). Any other curvature model needs more steps.
+    const width = 3;
+    const size = 2 * width;
+    const lambda = 0.5;
+    const spread = Array.from({ length: size }, (_, i) =>
+      Array.from({ length: size }, (_, j) => Math.sin(3 * i + 7 * j + 1)),
+    );
+    const curvature = Float64Array.from({ length: size * size }, (_, k) => {
+      const [i, j] = [Math.floor(k / size), k % size];
+      const gram = spread.reduce((sum, row) => sum + row[i] * row[j], 0);
+      return gram + (i === j ? 1 : 0);
+    });
+    const optimum = Float64Array.from({ length: size }, (_, k) => k - 2.5);
+    const evaluate = (weights: Float64Array) => {
+      const offset = weights.map((value, k) => value - optimum[k]);
+      const gradient = Float64Array.from({ length: size }, (_, i) =>
+        offset.reduce((sum, value, j) => sum + curvature[i * size + j] * value, 0),
+      );
+      const value = 0.5 * offset.reduce((sum, v, k) => sum + v * gradient[k], 0);
+      return { value, gradient } as ReturnType<SoftmaxFitOracle["evaluate"]>;
+    };
+    // One array handed over on every call, as the fit from digests does when it replays the fit.
+    const sampleHessian = Float64Array.from(curvature, (value, k) =>
+      Math.floor(k / size) === k % size && (k % size) % width === width - 1
+        ? value - lambda
+        : value,
+    );
+    const oracle: SoftmaxFitOracle = {
+      width,
+      sampleIsAllRows: false,
+      evaluate,
+      evaluateSample: evaluate,
+      computeSampleHessian: () => sampleHessian,
+    };
+    const start = new Float64Array(size);
+    const tolerance = 1e-8 * Math.hypot(...evaluate(start).gradient);
+    const first = fitSoftmax(oracle, start, tolerance, lambda);
+    const replayed = fitSoftmax(oracle, start, tolerance, lambda);
+    for (const fitted of [first, replayed]) {
+      expect(fitted.converged).toBe(true);
+      expect(fitted.iterations).toBe(1);
+      // Counted as documented: the one at zero, the start from the rough point and one step.
+      expect(fitted.evaluations).toBe(3);
+    }
+    expect(replayed.weights).toEqual(first.weights);
+    // The intercepts (the last column) are re-centred: the minimum-norm representative.
+    expect(first.weights[width - 1] + first.weights[2 * width - 1]).toBeCloseTo(0, 14);
+  });
+
   it("solves least squares like numpy.linalg.solve, refining an inexact system by Newton steps", async () => {
     const design = await designFromText(makeCsv(120, 5, { regression: true }), "label", "shard");
     const width = design.x.cols;
@@ -328,6 +382,8 @@ print(json.dumps({"gram":G.ravel().tolist(),"solution":np.linalg.solve(G+L,X.T@y
         const design = await designFromText(makeCsv(rows, 31, { regression }), "label", "shard");
         const passes = pool.share(design, design.shardOffsets);
         const passesOverAllRows = vi.spyOn(passes, "evaluate");
+        const sharedWithPool = vi.spyOn(pool, "share");
+        sharedWithPool.mockClear();
         const progress: number[] = [];
         const lambda = 0.02;
         const fitted = fitReferenceModel(design, passes, passes.computeGram(), lambda, (fraction) =>
@@ -371,6 +427,11 @@ print(json.dumps({"atZero":float(np.linalg.norm(grad(np.zeros_like(W)))),"atOpti
         if (regression) {
           expect(fitted.iterations).toBe(0);
         } else {
+          // Without a progress callback the fit is the same.
+          if (rows < 40_000) {
+            const quiet = fitReferenceModel(design, passes, passes.computeGram(), lambda);
+            expect(quiet.weights).toEqual(fitted.weights);
+          }
           // The progress bar moves within [0, 1] and ends full once the tolerance is met.
           expect(progress.length).toBeGreaterThan(0);
           expect(progress.every((fraction) => fraction >= 0 && fraction <= 1)).toBe(true);
@@ -378,6 +439,23 @@ print(json.dumps({"atZero":float(np.linalg.norm(grad(np.zeros_like(W)))),"atOpti
           expect(progress[0]).toBeLessThan(1);
         }
         if (rows > 40_000) {
+          // The rough solve's sample: every 2nd row (stride ⌊40 010 / 20 000⌋), in shared memory
+          // for the pool's threads, as one chunk.
+          expect(sharedWithPool).toHaveBeenCalledTimes(1);
+          const [sample, sampleOffsets] = sharedWithPool.mock.calls[0];
+          const width = design.x.cols;
+          expect(sample.x.rows).toBe(20_005);
+          expect(sample.x.data.buffer).toBeInstanceOf(SharedArrayBuffer);
+          expect(Array.from(sampleOffsets)).toEqual([0, 20_005]);
+          expect(sample.targets).toBeNull();
+          for (let k = 0; k < 20_005; k++) {
+            expect(sample.labels?.[k]).toBe(design.labels?.[2 * k]);
+            for (let j = 0; j < width; j++) {
+              if (sample.x.data[k * width + j] !== design.x.data[2 * k * width + j]) {
+                expect.fail(`sample row ${k} differs from design row ${2 * k} at column ${j}`);
+              }
+            }
+          }
           // The progress bar moves on a log scale from ‖∇F(0)‖ to the tolerance, so it passes
           // through the middle.
           expect(progress.some((fraction) => fraction > 0.1 && fraction < 0.9)).toBe(true);
