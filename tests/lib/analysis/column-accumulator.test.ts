@@ -165,10 +165,16 @@ print(json.dumps([None if f.strip().lower() in missing else float(f.strip()) for
     expect(beyond.column.distinctCount).toBe(Infinity);
     expect(beyond.column.levels).toEqual([]);
     expect(() => beyond.column.takeCodes()).toThrow("column x has no level codes");
-    // Numbers count as levels too (a numeric label's classes): 1.0 and 1 are distinct tokens.
-    const numbers = accumulate(["1", "1.0", "1", "2"], { levelLimit: 2 });
+    // Numbers count as levels too (a numeric label's classes): 1.0 and 1 are distinct tokens. Values
+    // after the dictionary is dropped are still read and counted.
+    const numbers = accumulate(["1", "1.0", "1", "2", "3", " 4 ", "NA", "w"], { levelLimit: 2 });
     expect(numbers.column.hasLevels).toBe(false);
-    expect(numbers.values).toEqual([1, 1, 1, 2]);
+    expect(numbers.values.slice(0, 6)).toEqual([1, 1, 1, 2, 3, 4]);
+    expect(numbers.column.numberCount).toBe(6);
+    expect(numbers.column.missingCount).toBe(1);
+    expect(numbers.column.nonNumberCount).toBe(1);
+    // Releasing a column whose dictionary was dropped has nothing left to let go.
+    expect(() => numbers.column.release()).not.toThrow();
   });
 
   it("merges parts into what the whole column gives, split anywhere (levels in first-appearance order)", () => {

@@ -109,6 +109,11 @@ describe("reading CSV text (methods.md §1)", () => {
       ]),
     ).toBe(",");
     expect(detectDecimalMark(";", [["+2,5 "]])).toBe(",");
+    expect(detectDecimalMark(";", [["17,99"]])).toBe(",");
+    expect(detectDecimalMark(";", [[" 17,99 "]])).toBe(",");
+    expect(detectDecimalMark(";", [[" 17,99 ", " -12.25 "]])).toBe(".");
+    expect(detectDecimalMark(";", [["17,99", "+12.25"]])).toBe(".");
+    expect(detectDecimalMark(";", [["17,99", ".5"]])).toBe(".");
     expect(detectDecimalMark(";", [["17,99"], ["1.5"]])).toBe(".");
     expect(detectDecimalMark(";", [["1.5"], ["17,99"]])).toBe(".");
     expect(detectDecimalMark(";", [["17"], ["abc"], ["1,2,3"], ["1,"]])).toBe(".");

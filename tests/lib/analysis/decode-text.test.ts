@@ -101,6 +101,28 @@ describe("decodeText against Python's strict codecs (methods.md §1)", () => {
     );
   });
 
+  it("finds a sequence cut off mid-file by a plain byte where Python does, the cut falling anywhere", async () => {
+    for (const sequence of [
+      [0xc3, 0xa9],
+      [0xe2, 0x82, 0xac],
+      [0xf0, 0x9f, 0x98, 0x80],
+    ]) {
+      for (let kept = 1; kept < sequence.length; kept++) {
+        const bytes = Uint8Array.from([
+          ...Buffer.from("id,x\n1,ab\n2,"),
+          ...sequence.slice(0, kept),
+          ...Buffer.from("Z\n3,c\n"),
+        ]);
+        const reference = pythonDecode(bytes, "utf-8") as { start: number; line: number };
+        for (const size of [1, 2, 3, 4, 5, 7]) {
+          await expect(decodeAll(piecesOf(bytes, Array(bytes.length).fill(size)))).rejects.toThrow(
+            `on line ${reference.line} (byte offset ${reference.start} in the file)`,
+          );
+        }
+      }
+    }
+  });
+
   it("reads Windows-1252 as Python's cp1252 codec does", async () => {
     const bytes = Uint8Array.from([0x80, 0x2c, 0xe9, 0x0a, 0x9c, 0x2c, 0xfc, 0x0a]);
     const reference = pythonDecode(bytes, "cp1252") as { text: string };

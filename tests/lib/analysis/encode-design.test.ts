@@ -1,28 +1,45 @@
+import { mkdtempSync, readdirSync } from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
 import { Readable } from "node:stream";
 import { describe, expect, it } from "vitest";
-import type { Design, Task } from "@/lib/analysis/design";
+import { isDesignOnDisk, type Design, type EncodedDesign, type Task } from "@/lib/analysis/design";
 import {
   binIntoDeciles,
   encodeDesign,
   MAX_CLASSES_FOR_NUMERIC_LABEL,
   MIN_FEATURE_STD,
 } from "@/lib/analysis/encode-design";
+import { measureLimitForRows, type MemorySettings } from "@/lib/analysis/memory-limit";
 import { readDataset } from "@/lib/analysis/read-dataset";
 import type { DatasetColumnChoice } from "@/lib/analysis/read-dataset";
+import { forEachStoredBlock } from "@/lib/analysis/stored-matrix";
 import { runPythonJson } from "./support/run-python";
+
+async function readRaw(csv: string, columns: Partial<DatasetColumnChoice> = {}) {
+  return readDataset(
+    Readable.from([csv]),
+    "data.csv",
+    { labelColumn: "label", shardColumn: "shard", ...columns },
+    { partition: null, dropUnassignedRows: false },
+  );
+}
 
 async function encode(
   csv: string,
   columns: Partial<DatasetColumnChoice> = {},
   { task, badNumbersAsMissing }: { task?: Task; badNumbersAsMissing?: boolean } = {},
 ): Promise<Design> {
-  const raw = await readDataset(
-    Readable.from([csv]),
-    "data.csv",
-    { labelColumn: "label", shardColumn: "shard", ...columns },
-    { partition: null, dropUnassignedRows: false },
-  );
-  return encodeDesign(raw, task, { badNumbersAsMissing });
+  return encodeDesign(await readRaw(csv, columns), task, { badNumbersAsMissing });
+}
+
+/** The design's values, read back from its scratch file when it is on disk. */
+function valuesOf(design: EncodedDesign): number[] {
+  if (!isDesignOnDisk(design)) return Array.from(design.x.data);
+  const values: number[] = [];
+  forEachStoredBlock(design.x, (block) => values.push(...block));
+  design.x.file.close();
+  return values;
 }
 
 /** A seeded generator (invented data, for checks against outside references only). */
@@ -131,6 +148,7 @@ describe("encoding the design (methods.md §1) against pandas and scikit-learn",
       { column: "empty", reason: "all-missing" },
     ]);
     expect(design.warnings).toEqual(['column "empty" has no values and was left out']);
+    expect("skewCategoryRanges" in design).toBe(false);
     expect(design.droppedRowsMissingLabel).toBe(1);
     expect(design.droppedRowsUnassigned).toBe(0);
     expect(design.badNumbersCountedMissing).toEqual([]);
@@ -203,6 +221,36 @@ describe("encoding the design (methods.md §1) against pandas and scikit-learn",
       1e-15,
     );
     expect(Array.from(design.labels ?? [])).toEqual([1, 0, 0, 1]);
+  });
+});
+
+describe("a design beyond the memory limit", () => {
+  it("goes to a scratch file with the same values once the values read and the design outgrow the limit", async () => {
+    const scratchDirectory = mkdtempSync(path.join(tmpdir(), "partita-encode-design-"));
+    const memory = (limitBytes: number): MemorySettings => ({ limitBytes, scratchDirectory });
+    // One-hot columns: the design is written anew beside the values read (79 rows, 5 columns + 1).
+    const csv = mixedCsv(80, 4);
+    const expected = await encode(csv);
+    const bytes = (79 * 6 + 79 * expected.x.cols) * Float64Array.BYTES_PER_ELEMENT;
+    const within = await encodeDesign(await readRaw(csv), undefined, {
+      memory: memory(measureLimitForRows(bytes)),
+    });
+    expect(isDesignOnDisk(within)).toBe(false);
+    expect(valuesOf(within)).toEqual(Array.from(expected.x.data));
+    const beyond = await encodeDesign(await readRaw(csv), undefined, {
+      memory: memory(measureLimitForRows(bytes) - 1),
+    });
+    expect(isDesignOnDisk(beyond)).toBe(true);
+    expect(beyond.x.rows).toBe(79);
+    expect(beyond.x.cols).toBe(expected.x.cols);
+    expect(beyond.featureNames).toEqual(expected.featureNames);
+    expect(valuesOf(beyond)).toEqual(Array.from(expected.x.data));
+    expect(readdirSync(scratchDirectory)).toEqual([]);
+    // All-numeric columns are standardized where they were read: no second copy, so no scratch file.
+    const numeric = "a,label,shard\n1,x,p\n2,y,q\n4,x,p\n";
+    const inPlace = await encodeDesign(await readRaw(numeric), undefined, { memory: memory(1) });
+    expect(isDesignOnDisk(inPlace)).toBe(false);
+    expect(valuesOf(inPlace)).toEqual(Array.from((await encode(numeric)).x.data));
   });
 });
 
