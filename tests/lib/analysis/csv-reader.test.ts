@@ -27,7 +27,11 @@ interface ReadResult {
 
 async function readText(
   pieces: string[],
-  { part, choice }: { part?: CsvPartOptions; choice?: CsvFormatChoice } = {},
+  {
+    part,
+    choice,
+    firstRowIndex,
+  }: { part?: CsvPartOptions; choice?: CsvFormatChoice; firstRowIndex?: number } = {},
 ): Promise<ReadResult> {
   const result: ReadResult = {
     header: null,
@@ -55,6 +59,7 @@ async function readText(
     },
     part,
     choice,
+    firstRowIndex,
   );
   return result;
 }
@@ -163,6 +168,16 @@ describe("reading CSV text (methods.md §1)", () => {
     );
     await expect(readText(["1;\u00002\n"], { part })).rejects.toThrow(
       "data.csv: the text holds a NUL character (after byte offset 4096 in the file)",
+    );
+  });
+
+  it("numbers rows from a given index when a part of a file comes with its header", async () => {
+    const read = await readText(["a,b\n1,2\n3,4\n"], { firstRowIndex: 50 });
+    expect(read.header).toEqual(["a", "b"]);
+    expect(read.indices).toEqual([50, 51]);
+    expect(read.count).toBe(2);
+    await expect(readText(["a,b\n1,2\n3\n"], { firstRowIndex: 50 })).rejects.toThrow(
+      "data.csv, data row 51 (0-based, header excluded; line 53): the row has 1 fields",
     );
   });
 
