@@ -5,6 +5,7 @@
  * how many threads ran or which thread ran which task (or whether two ran the same one).
  */
 import { accumulateGramUpper } from "../math/gram";
+import { runKMeansStep, type KMeansStep } from "./layouts/kmeans-steps";
 import type { Matrix } from "../math/matrix";
 import {
   accumulatePass,
@@ -82,6 +83,12 @@ export type Job =
       probabilities: Float64Array;
       classCount: number;
       results: Float64Array;
+    }
+  | {
+      /** A step of the clusters layout's k-means over the design's rows, written in place. */
+      kind: "k-means";
+      designId: number;
+      step: KMeansStep;
     };
 
 /** What the calling thread posts to the pool's worker threads. */
@@ -102,6 +109,7 @@ export interface PassThreadData {
 export function countTasks(job: Job, design: SharedDesignData): number {
   switch (job.kind) {
     case "pass":
+    case "k-means":
       return design.chunkStarts.length - 1;
     case "gram":
       return Math.ceil(design.x.rows / GRAM_CHUNK_ROWS);
@@ -196,6 +204,10 @@ function runTask(job: Job, design: SharedDesignData, task: number, scratch: Task
       job.centres && centresOfTask(job.centres, task, size),
     );
     writeTotals(totals, job.results, task * passSlotSize(size));
+    return;
+  }
+  if (job.kind === "k-means") {
+    runKMeansStep(job.step, design.x, design.chunkStarts[task], design.chunkStarts[task + 1]);
     return;
   }
   if (scratch.block?.length !== width * width) scratch.block = new Float64Array(width * width);

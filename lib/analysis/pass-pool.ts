@@ -19,6 +19,7 @@ import {
   type PassThreadReport,
   type SharedDesignData,
 } from "./pass-jobs";
+import type { KMeansRows } from "./layouts/kmeans-steps";
 import { createTotals, mergeTotals, type PassData, type PassTotals } from "./objective-pass";
 import {
   assembleSoftmaxHessian,
@@ -143,6 +144,35 @@ export class PassPool {
     runTasks(job, design, control, this.scratch);
     completeUnfinishedTasks(job, design, control, this.scratch);
     return control;
+  }
+
+  /**
+   * Runs `job` as `run` does, then waits until no worker thread is inside it: for jobs whose
+   * memory the caller changes or reuses next (a block of rows read from a scratch file, k-means
+   * bounds). A worker still inside runs a task this thread has already run, so the wait is at most
+   * one task's time once the system lets that worker go on.
+   */
+  runUntilSettled(job: Job, design: SharedDesignData): void {
+    const control = this.run(job, design);
+    for (let active; (active = Atomics.load(control, CONTROL_ACTIVE)) !== 0; ) {
+      // Woken by the worker leaving the job; the timeout only guards against a missed wake-up.
+      Atomics.wait(control, CONTROL_ACTIVE, active, 1);
+    }
+  }
+
+  /** Shares rows for the clusters layout's k-means steps, each run over them by every thread. */
+  shareKMeansRows(rows: Matrix): KMeansRows {
+    const data: SharedDesignData = {
+      id: this.reserveDesignId(),
+      x: { rows: rows.rows, cols: rows.cols, data: toShared(rows.data) },
+      labels: null,
+      targets: null,
+      chunkStarts: planChunks(Int32Array.of(0, rows.rows)),
+    };
+    this.shareData(data);
+    return {
+      run: (step) => this.runUntilSettled({ kind: "k-means", designId: data.id, step }, data),
+    };
   }
 
   /** Ends the worker threads. */

@@ -33,6 +33,7 @@ port.on("message", (message: PassThreadMessage) => {
     port.postMessage({ type: "failed", detail } satisfies PassThreadReport);
   } finally {
     Atomics.sub(control, CONTROL_ACTIVE, 1);
+    Atomics.notify(control, CONTROL_ACTIVE);
   }
 });
 port.postMessage({ type: "ready" } satisfies PassThreadReport);

@@ -1,6 +1,5 @@
 import type { DesignOnDisk } from "./design";
 import {
-  CONTROL_ACTIVE,
   GRAM_CHUNK_ROWS,
   passSlotSize,
   planChunks,
@@ -20,9 +19,6 @@ import {
   type PassResult,
 } from "./pass-pool";
 import { readStoredRows, type StoredMatrix } from "./stored-matrix";
-
-/** Something to wait on for a millisecond while a pass thread finishes with a block. */
-const pause = new Int32Array(new SharedArrayBuffer(4));
 
 /**
  * The passes of pass-pool.ts over a design kept in a scratch file: each pass reads the rows one
@@ -138,8 +134,7 @@ export class StoredDesign implements DesignPasses {
    * is read into the same buffer (a thread still running a task would read the wrong rows).
    */
   private runOnBlock(job: Job, data: SharedDesignData): void {
-    const control = this.pool.run(job, data);
-    while (Atomics.load(control, CONTROL_ACTIVE) !== 0) Atomics.wait(pause, 0, 0, 1);
+    this.pool.runUntilSettled(job, data);
   }
 }
 

@@ -1,5 +1,6 @@
 import { SeededRandom } from "../../math/random";
 import { AnalysisInputError } from "../errors";
+import { onThisThread, type ShareKMeansRows } from "./kmeans-steps";
 import type { LayoutRows, ShardAssignment } from "./layout-rows";
 import { splitClusters } from "./split-clusters";
 import { splitClasses, splitDirichlet, splitIid, splitStratified } from "./split-by-label";
@@ -159,13 +160,16 @@ export function nameLayout(spec: LayoutSpec): string {
 
 /**
  * Generates one layout of the rows into `shardCount` shards, seeded with Partita's generator
- * (xoshiro128**, lib/math/random.ts): the same rows, spec and seed give the same layout.
+ * (xoshiro128**, lib/math/random.ts): the same rows, spec and seed give the same layout. `share`
+ * says where the clusters generator's k-means runs (default: on this thread alone); the layout is
+ * the same wherever it runs.
  */
 export function generateLayout(
   spec: LayoutSpec,
   rows: LayoutRows,
   shardCount: number,
   seed: number,
+  share: ShareKMeansRows = onThisThread,
 ): ShardAssignment {
   if (GENERATOR_FACTS[spec.generator].usesGroups && rows.groups === null) {
     throw new AnalysisInputError(`the ${spec.generator} layout needs a group column`, {
@@ -187,7 +191,7 @@ export function generateLayout(
     case "quantity":
       return splitQuantity(rows, shardCount, random, spec.beta);
     case "clusters":
-      return splitClusters(rows, shardCount, random);
+      return splitClusters(rows, shardCount, random, share);
     case "group-hash":
       return splitGroupHash(rows, shardCount);
     case "group-balanced":

@@ -1,13 +1,15 @@
+import {
+  BOUND_MARGIN,
+  createPointBounds,
+  onThisThread,
+  sharedDoubles,
+  type ShareKMeansRows,
+} from "./kmeans-steps";
+
 /** Lloyd iterations stop after this many, converged or not (ml-kmeans's default). */
 export const LLOYD_MAX_ITERATIONS = 100;
 /** Converged when no centre moved by more than this squared distance (ml-kmeans's default). */
 export const LLOYD_TOLERANCE = 1e-6;
-/**
- * A point's nearest centre is taken as unchanged only when its bounds clear the next centre by this
- * relative margin: far above the rounding the bounds gather, so a point is skipped only when
- * recomputing every distance would pick the same centre.
- */
-const BOUND_MARGIN = 1e-9;
 
 export interface LloydResult {
   /** The centres after the last update, k × width row-major. */
@@ -32,94 +34,60 @@ export interface LloydResult {
  * other centre out. On the 100k benchmark (k = 100, 31 features) this measures a small fraction
  * of the distances plain Lloyd does.
  *
- * `values` holds the points, `width` numbers each; `start` the k starting centres (not modified).
+ * The per-point steps (kmeans-steps.ts) run on the rows `share` makes of the points: on this
+ * thread by default, or shared by a pass pool's threads with the same centres bit for bit; the
+ * centre updates sum the points in order on this thread.
+ *
+ * `values` holds the points, `width` numbers each, in a SharedArrayBuffer when `share` hands them
+ * to other threads; `start` the k starting centres (not modified).
  */
 export function runLloydIterations(
   values: Float64Array,
   width: number,
   start: Float64Array,
+  share: ShareKMeansRows = onThisThread,
 ): LloydResult {
   const count = values.length / width;
   const k = start.length / width;
-  let centres = Float64Array.from(start);
-  let next = new Float64Array(start.length);
-  const assigned = new Int32Array(count);
-  /** Squared distance to the own centre as last measured; `upper` bounds the distance since. */
-  const ownDistance = new Float64Array(count);
-  const upper = new Float64Array(count);
+  const points = share({ rows: count, cols: width, data: values });
+  let centres = sharedDoubles(start.length);
+  centres.set(start);
+  let next = sharedDoubles(start.length);
+  // The bounds the last assignment read and the ones it wrote, swapped every iteration.
+  let bounds = createPointBounds(count);
+  let previous = createPointBounds(count);
   // Lower bounds are stored plus the centre's total movement when they were set (`travelled`),
   // so moving centres loosen them without touching every point: the bound is stored − travelled.
-  const lowerPlusTravel = new Float64Array(count * k);
-  const travelled = new Float64Array(k);
+  const lowerPlusTravel = sharedDoubles(count * k);
+  const travelled = sharedDoubles(k);
   const moved = new Float64Array(k);
-  const halfGaps = new Float64Array(k * k);
+  const halfGaps = sharedDoubles(k * k);
   const members = new Int32Array(k);
-
-  const squaredDistance = (point: number, centre: number) => {
-    let distance = 0;
-    for (let j = 0, p = point * width, c = centre * width; j < width; j++, p++, c++) {
-      distance += (values[p] - centres[c]) * (values[p] - centres[c]);
-    }
-    return distance;
-  };
 
   let iterations = 0;
   let converged = false;
   let farthestTravel = 0;
   while (!converged && iterations < LLOYD_MAX_ITERATIONS) {
     iterations++;
+    [previous, bounds] = [bounds, previous];
     if (iterations === 1) {
-      for (let point = 0; point < count; point++) {
-        let best = -1;
-        let bestDistance = Number.MAX_VALUE;
-        for (let centre = 0; centre < k; centre++) {
-          const distance = squaredDistance(point, centre);
-          lowerPlusTravel[point * k + centre] = Math.sqrt(distance);
-          if (distance < bestDistance) {
-            bestDistance = distance;
-            best = centre;
-          }
-        }
-        assigned[point] = best;
-        ownDistance[point] = bestDistance;
-        upper[point] = Math.sqrt(bestDistance);
-      }
+      points.run({ kind: "first-assignment", centres, lowerPlusTravel, into: bounds });
     } else {
       measureHalfGaps(centres, width, halfGaps);
-      // A centre is ruled out only with a margin far above the rounding the bounds gather, so
-      // every centre not ruled out is measured and the nearest is the one a full scan picks.
-      const slack = BOUND_MARGIN * (1 + farthestTravel);
-      for (let point = 0; point < count; point++) {
-        let own = assigned[point];
-        let threshold = upper[point] * (1 + BOUND_MARGIN) + slack;
-        let tight = false;
-        for (let centre = 0, at = point * k; centre < k; centre++, at++) {
-          if (centre === own) continue;
-          if (lowerPlusTravel[at] - travelled[centre] > threshold) continue;
-          if (halfGaps[own * k + centre] > threshold) continue;
-          if (!tight) {
-            // The own centre's distance, measured once a centre is not ruled out by the bound.
-            tight = true;
-            ownDistance[point] = squaredDistance(point, own);
-            upper[point] = Math.sqrt(ownDistance[point]);
-            lowerPlusTravel[point * k + own] = upper[point] + travelled[own];
-            threshold = upper[point] * (1 + BOUND_MARGIN) + slack;
-            if (lowerPlusTravel[at] - travelled[centre] > threshold) continue;
-            if (halfGaps[own * k + centre] > threshold) continue;
-          }
-          const distance = squaredDistance(point, centre);
-          lowerPlusTravel[at] = Math.sqrt(distance) + travelled[centre];
-          if (distance < ownDistance[point] || (distance === ownDistance[point] && centre < own)) {
-            own = centre;
-            assigned[point] = centre;
-            ownDistance[point] = distance;
-            upper[point] = Math.sqrt(distance);
-            threshold = upper[point] * (1 + BOUND_MARGIN) + slack;
-          }
-        }
-      }
+      points.run({
+        kind: "bounded-assignment",
+        centres,
+        halfGaps,
+        travelled,
+        // Rounding of the stored bounds grows with the centres' travel.
+        slack: BOUND_MARGIN * (1 + farthestTravel),
+        lowerPlusTravel,
+        from: previous,
+        into: bounds,
+      });
     }
 
+    const assigned = bounds.assigned;
     next.fill(0);
     members.fill(0);
     for (let point = 0; point < count; point++) {
@@ -141,7 +109,7 @@ export function runLloydIterations(
       travelled[centre] += moved[centre];
       farthestTravel = Math.max(farthestTravel, travelled[centre]);
     }
-    for (let point = 0; point < count; point++) upper[point] += moved[assigned[point]];
+    for (let point = 0; point < count; point++) bounds.upper[point] += moved[assigned[point]];
     [centres, next] = [next, centres];
   }
   return { centres, iterations, converged };

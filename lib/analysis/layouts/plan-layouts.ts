@@ -161,7 +161,9 @@ export async function planLayouts(input: LayoutPlanInput): Promise<LayoutPlanRes
       report("running");
       let scored: { candidate: LayoutCandidate; assignment: ShardAssignment } | undefined;
       try {
-        const assignment = generateLayout(spec, rows, input.shardCount, seed);
+        const assignment = generateLayout(spec, rows, input.shardCount, seed, (points) =>
+          pool.shareKMeansRows(points),
+        );
         const summary = await scoreLayout(design, assignment, raw, input, options, pool, report);
         scored = { candidate: { ...record, shards: summary.shards.length, summary }, assignment };
       } catch (error) {

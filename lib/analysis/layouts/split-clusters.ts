@@ -1,5 +1,12 @@
 import type { SeededRandom } from "../../math/random";
 import { AnalysisInputError } from "../errors";
+import {
+  onThisThread,
+  sharedDoubles,
+  sharedIntegers,
+  type NearestCentres,
+  type ShareKMeansRows,
+} from "./kmeans-steps";
 import type { LayoutRows, ShardAssignment } from "./layout-rows";
 import { runLloydIterations } from "./lloyd-iterations";
 import { randomPermutation } from "./shuffle";
@@ -14,7 +21,12 @@ export const CLUSTER_SAMPLE_ROWS = 50_000;
  * row then goes to its nearest centre (ties to the lower index) and the shard is the cluster — the
  * feature skew of natural groupings. An empty cluster is an input error suggesting a smaller M.
  */
-export function splitClusters(rows: LayoutRows, shardCount: number, random: SeededRandom) {
+export function splitClusters(
+  rows: LayoutRows,
+  shardCount: number,
+  random: SeededRandom,
+  share: ShareKMeansRows = onThisThread,
+): ShardAssignment {
   const { rows: count, cols, data } = rows.features;
   const width = cols - 1; // the bias is the same for every row
   if (width === 0) {
@@ -23,30 +35,18 @@ export function splitClusters(rows: LayoutRows, shardCount: number, random: Seed
     });
   }
   const sample = randomPermutation(count, random).subarray(0, Math.min(count, CLUSTER_SAMPLE_ROWS));
-  const values = new Float64Array(sample.length * width);
+  const values = sharedDoubles(sample.length * width);
   sample.forEach((row, k) => values.set(data.subarray(row * cols, row * cols + width), k * width));
   const { centres } = runLloydIterations(
     values,
     width,
-    seedCentres(values, width, shardCount, random),
+    seedCentres(values, width, shardCount, random, share),
+    share,
   );
-  const shards: ShardAssignment = new Int32Array(count);
+  const shards = sharedIntegers(count);
+  share(rows.features).run({ kind: "nearest-centre", centres, shards });
   const sizes = new Int32Array(shardCount);
-  for (let row = 0; row < count; row++) {
-    const offset = row * cols;
-    let best = 0;
-    let bestDistance = Infinity;
-    for (let m = 0; m < shardCount; m++) {
-      let distance = 0;
-      for (let j = 0; j < width; j++) distance += (data[offset + j] - centres[m * width + j]) ** 2;
-      if (distance < bestDistance) {
-        bestDistance = distance;
-        best = m;
-      }
-    }
-    shards[row] = best;
-    sizes[best]++;
-  }
+  for (const shard of shards) sizes[shard]++;
   const empty = sizes.indexOf(0);
   if (empty >= 0) {
     throw new AnalysisInputError(
@@ -60,13 +60,6 @@ export function splitClusters(rows: LayoutRows, shardCount: number, random: Seed
 }
 
 /**
- * A point is left out of a trial centre's distances only when the triangle inequality puts the
- * centre beyond its nearest one by this relative margin, far above rounding: its distance is then
- * the one measuring would have kept.
- */
-const SEED_BOUND_MARGIN = 1e-9;
-
-/**
  * The k-means++ start (Arthur & Vassilvitskii, SODA 2007, from memory) in its greedy form, as
  * scikit-learn's and ml-kmeans's: the first centre a uniformly random point, then each next one the
  * best of 2 + ⌊ln k⌋ points drawn with probability proportional to their squared distance to the
@@ -74,7 +67,9 @@ const SEED_BOUND_MARGIN = 1e-9;
  * flat array because ml-kmeans's own builds a row object per point and distance. A trial centre
  * at more than twice a point's distance from the point's nearest centre cannot be nearer (triangle
  * inequality), so that distance is not measured: the sums, and so the centres, are those of
- * measuring every distance, in a fraction of the time once a few centres are placed.
+ * measuring every distance, in a fraction of the time once a few centres are placed. The distances
+ * are measured on the rows `share` makes of the points (see runLloydIterations), their sums taken
+ * in point order on this thread.
  * Returns the k centres, k × width row-major.
  */
 export function seedCentres(
@@ -82,17 +77,24 @@ export function seedCentres(
   width: number,
   k: number,
   random: SeededRandom,
+  share: ShareKMeansRows = onThisThread,
 ): Float64Array {
   const count = values.length / width;
   const trials = 2 + Math.floor(Math.log(k));
   const centres = new Float64Array(k * width);
-  const centreToCentre = new Float64Array(k);
+  const centreToCentre = sharedDoubles(k);
+  const points = share({ rows: count, cols: width, data: values });
+  const createNearest = (): NearestCentres => ({
+    distance: sharedDoubles(count),
+    centre: sharedIntegers(count),
+  });
   // Per point the squared distance to its nearest centre so far and that centre's index; the
   // same for the current trial and for the best trial of this round.
-  let nearest = { distance: new Float64Array(count).fill(Infinity), centre: new Int32Array(count) };
-  let candidate = { distance: new Float64Array(count), centre: new Int32Array(count) };
-  let best = { distance: new Float64Array(count), centre: new Int32Array(count) };
-  const distancesTo = (point: number, placed: number, into: typeof nearest) => {
+  let nearest = createNearest();
+  nearest.distance.fill(Infinity);
+  let candidate = createNearest();
+  let best = createNearest();
+  const distancesTo = (point: number, placed: number, into: NearestCentres) => {
     const at = point * width;
     for (let c = 0; c < placed; c++) {
       let distance = 0;
@@ -102,25 +104,9 @@ export function seedCentres(
       }
       centreToCentre[c] = distance;
     }
+    points.run({ kind: "seed-distances", trial: point, placed, centreToCentre, nearest, into });
     let total = 0;
-    for (let other = 0; other < count; other++) {
-      const known = nearest.distance[other];
-      const knownCentre = nearest.centre[other];
-      if (placed > 0 && centreToCentre[knownCentre] > 4 * known * (1 + SEED_BOUND_MARGIN)) {
-        into.distance[other] = known;
-        into.centre[other] = knownCentre;
-      } else {
-        let distance = 0;
-        for (let j = 0, o = other * width; j < width; j++, o++) {
-          const difference = values[o] - values[at + j];
-          distance += difference * difference;
-        }
-        const closer = distance < known;
-        into.distance[other] = closer ? distance : known;
-        into.centre[other] = closer ? placed : knownCentre;
-      }
-      total += into.distance[other];
-    }
+    for (let other = 0; other < count; other++) total += into.distance[other];
     return total;
   };
   const place = (point: number, placed: number) =>

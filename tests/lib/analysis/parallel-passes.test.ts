@@ -164,7 +164,7 @@ print("null")`,
       chunkStarts: planChunks(shardOffsets),
     };
     const weights = seededValues(2 * cols, 9);
-    const jobs = (): Job[] => [
+    const jobs = (): Extract<Job, { results: Float64Array }>[] => [
       {
         kind: "pass",
         designId: 0,
