@@ -154,9 +154,11 @@ export class PassPool {
    */
   runUntilSettled(job: Job, design: SharedDesignData): void {
     const control = this.run(job, design);
-    for (let active; (active = Atomics.load(control, CONTROL_ACTIVE)) !== 0; ) {
-      // Woken by the worker leaving the job; the timeout only guards against a missed wake-up.
+    let active = Atomics.load(control, CONTROL_ACTIVE);
+    while (active !== 0) {
+      // Woken by a worker leaving the job; the timeout only guards against a missed wake-up.
       Atomics.wait(control, CONTROL_ACTIVE, active, 1);
+      active = Atomics.load(control, CONTROL_ACTIVE);
     }
   }
 

@@ -3,8 +3,11 @@
 // bit and the same number of iterations, on open data and on data with exact ties.
 import { kmeans } from "ml-kmeans";
 import { describe, expect, it } from "vitest";
+import { generateLayout } from "@/lib/analysis/layouts/generators";
+import type { ShareKMeansRows } from "@/lib/analysis/layouts/kmeans-steps";
 import { runLloydIterations } from "@/lib/analysis/layouts/lloyd-iterations";
 import { seedCentres } from "@/lib/analysis/layouts/split-clusters";
+import { PassPool } from "@/lib/analysis/pass-pool";
 import { SeededRandom } from "@/lib/math/random";
 import { loadPenguinsRecords } from "../support/open-data";
 
@@ -14,9 +17,14 @@ function rowsOf(values: Float64Array, width: number): number[][] {
   );
 }
 
-function expectSameAsPackage(values: Float64Array, width: number, start: Float64Array): void {
+function expectSameAsPackage(
+  values: Float64Array,
+  width: number,
+  start: Float64Array,
+  share?: ShareKMeansRows,
+): void {
   const k = start.length / width;
-  const ours = runLloydIterations(values, width, start);
+  const ours = runLloydIterations(values, width, start, share);
   const theirs = kmeans(rowsOf(values, width), k, { initialization: rowsOf(start, width) });
   expect(Array.from(ours.centres)).toEqual(theirs.centroids.flat());
   expect(ours.iterations).toBe(theirs.iterations);
@@ -66,4 +74,39 @@ describe("Lloyd iterations", () => {
       expectSameAsPackage(values, 1, start);
     }
   });
+
+  // The pass pool's two threads share the per-point steps, chunk by chunk (4,096 points each):
+  // the start, the centres and the final layout must not depend on it.
+  it("give ml-kmeans's centres when two threads share the steps, and the same clusters layout", async () => {
+    const random = new SeededRandom(8);
+    const width = 6;
+    const values = Float64Array.from({ length: 13_000 * width }, () => random.normal());
+    const pool = new PassPool(2);
+    try {
+      await pool.whenReady();
+      const share: ShareKMeansRows = (rows) => pool.shareKMeansRows(rows);
+      const start = seedCentres(values, width, 40, new SeededRandom(2), share);
+      expect(start).toEqual(seedCentres(values, width, 40, new SeededRandom(2)));
+      expectSameAsPackage(values, width, start, share);
+      // The design's matrix: each point's features, then the bias.
+      const design = new Float64Array(13_000 * (width + 1)).fill(1);
+      for (let row = 0; row < 13_000; row++) {
+        design.set(values.subarray(row * width, (row + 1) * width), row * (width + 1));
+      }
+      const rows = {
+        classes: new Int32Array(13_000),
+        classCount: 1,
+        features: { rows: 13_000, cols: width + 1, data: design },
+        groups: null,
+        groupIds: [],
+      };
+      const threaded = generateLayout({ generator: "clusters" }, rows, 25, 4, share);
+      expect(Array.from(threaded)).toEqual(
+        Array.from(generateLayout({ generator: "clusters" }, rows, 25, 4)),
+      );
+      expect(pool.tasksRunByWorkers).toBeGreaterThan(0);
+    } finally {
+      await pool.close();
+    }
+  }, 60_000);
 });
