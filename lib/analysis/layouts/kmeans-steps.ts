@@ -30,16 +30,17 @@ export interface PointBounds {
 export type KMeansStep =
   | {
       /**
-       * k-means++'s distances to a trial centre (point `trial` of the rows), `placed` centres
-       * placed so far at squared distances `centreToCentre` from it: per point the nearer of its
-       * nearest centre so far and the trial, written to `into`.
+       * k-means++'s distances to the trial centres of a round (points `trials` of the rows),
+       * `placed` centres placed so far at squared distances `centreToCentre` from them (trial t's
+       * from t·k on): per point and trial the nearer of its nearest centre so far and the trial,
+       * written to the trial's `into` (as many trials as `into` has).
        */
       kind: "seed-distances";
-      trial: number;
+      trials: Int32Array;
       placed: number;
       centreToCentre: Float64Array;
       nearest: NearestCentres;
-      into: NearestCentres;
+      into: NearestCentres[];
     }
   | {
       /** Lloyd's first assignment: every distance measured, each a lower bound for later. */
@@ -117,27 +118,31 @@ export function runKMeansStep(step: KMeansStep, rows: Matrix, start: number, end
  * nearer (triangle inequality), so that distance is not measured.
  */
 function measureSeedDistances(
-  { trial, placed, centreToCentre, nearest, into }: Extract<KMeansStep, { kind: "seed-distances" }>,
+  step: Extract<KMeansStep, { kind: "seed-distances" }>,
   { data: values, cols: width }: Matrix,
   start: number,
   end: number,
 ): void {
-  const at = trial * width;
+  const { trials, placed, centreToCentre, nearest, into } = step;
+  const k = centreToCentre.length / trials.length;
   for (let other = start; other < end; other++) {
     const known = nearest.distance[other];
     const knownCentre = nearest.centre[other];
-    if (placed > 0 && centreToCentre[knownCentre] > 4 * known * (1 + BOUND_MARGIN)) {
-      into.distance[other] = known;
-      into.centre[other] = knownCentre;
-    } else {
+    for (let trial = 0; trial < into.length; trial++) {
+      const { distance: intoDistance, centre: intoCentre } = into[trial];
+      if (placed > 0 && centreToCentre[trial * k + knownCentre] > 4 * known * (1 + BOUND_MARGIN)) {
+        intoDistance[other] = known;
+        intoCentre[other] = knownCentre;
+        continue;
+      }
       let distance = 0;
-      for (let j = 0, o = other * width; j < width; j++, o++) {
-        const difference = values[o] - values[at + j];
+      for (let j = 0, o = other * width, at = trials[trial] * width; j < width; j++, o++, at++) {
+        const difference = values[o] - values[at];
         distance += difference * difference;
       }
       const closer = distance < known;
-      into.distance[other] = closer ? distance : known;
-      into.centre[other] = closer ? placed : knownCentre;
+      intoDistance[other] = closer ? distance : known;
+      intoCentre[other] = closer ? placed : knownCentre;
     }
   }
 }

@@ -80,60 +80,61 @@ export function seedCentres(
   share: ShareKMeansRows = onThisThread,
 ): Float64Array {
   const count = values.length / width;
-  const trials = 2 + Math.floor(Math.log(k));
+  const trialCount = 2 + Math.floor(Math.log(k));
   const centres = new Float64Array(k * width);
-  const centreToCentre = sharedDoubles(k);
   const points = share({ rows: count, cols: width, data: values });
   const createNearest = (): NearestCentres => ({
     distance: sharedDoubles(count),
     centre: sharedIntegers(count),
   });
   // Per point the squared distance to its nearest centre so far and that centre's index; the
-  // same for the current trial and for the best trial of this round.
+  // same for each trial of a round (the best one's become the nearest).
   let nearest = createNearest();
   nearest.distance.fill(Infinity);
-  let candidate = createNearest();
-  let best = createNearest();
-  const distancesTo = (point: number, placed: number, into: NearestCentres) => {
-    const at = point * width;
-    for (let c = 0; c < placed; c++) {
-      let distance = 0;
-      for (let j = 0; j < width; j++) {
-        const difference = values[at + j] - centres[c * width + j];
-        distance += difference * difference;
+  const candidates = Array.from({ length: trialCount }, createNearest);
+  const trials = sharedIntegers(trialCount);
+  const centreToCentre = sharedDoubles(trialCount * k);
+  // The distances to every trial of a round in one step (a round's draws do not depend on
+  // them), then each trial's sum in point order.
+  const measureTrials = (placed: number, into: NearestCentres[]): number[] => {
+    trials.forEach((point, trial) => {
+      for (let c = 0; c < placed; c++) {
+        let distance = 0;
+        for (let j = 0; j < width; j++) {
+          const difference = values[point * width + j] - centres[c * width + j];
+          distance += difference * difference;
+        }
+        centreToCentre[trial * k + c] = distance;
       }
-      centreToCentre[c] = distance;
-    }
-    points.run({ kind: "seed-distances", trial: point, placed, centreToCentre, nearest, into });
-    let total = 0;
-    for (let other = 0; other < count; other++) total += into.distance[other];
-    return total;
+    });
+    points.run({ kind: "seed-distances", trials, placed, centreToCentre, nearest, into });
+    return into.map(({ distance }) => {
+      let total = 0;
+      for (let other = 0; other < count; other++) total += distance[other];
+      return total;
+    });
   };
   const place = (point: number, placed: number) =>
     centres.set(values.subarray(point * width, (point + 1) * width), placed * width);
 
   const first = random.integer(count);
-  let total = distancesTo(first, 0, nearest);
+  trials[0] = first;
+  let [total] = measureTrials(0, [nearest]);
   place(first, 0);
   const cumulative = new Float64Array(count);
   for (let placed = 1; placed < k; placed++) {
     let running = 0;
     for (let point = 0; point < count; point++)
       cumulative[point] = running += nearest.distance[point];
-    let bestPoint = -1;
-    let bestTotal = Infinity;
-    for (let trial = 0; trial < trials; trial++) {
-      const point = pickByWeight(cumulative, random.uniform() * total);
-      const trialTotal = distancesTo(point, placed, candidate);
-      if (trialTotal < bestTotal) {
-        bestTotal = trialTotal;
-        bestPoint = point;
-        [best, candidate] = [candidate, best];
-      }
+    for (let trial = 0; trial < trialCount; trial++) {
+      trials[trial] = pickByWeight(cumulative, random.uniform() * total);
     }
-    place(bestPoint, placed);
-    [nearest, best] = [best, nearest];
-    total = bestTotal;
+    const totals = measureTrials(placed, candidates);
+    let best = 0;
+    for (let trial = 1; trial < trialCount; trial++) if (totals[trial] < totals[best]) best = trial;
+    place(trials[best], placed);
+    [nearest, candidates[best]] = [candidates[best], nearest];
+    total = totals[best];
   }
   return centres;
 }
