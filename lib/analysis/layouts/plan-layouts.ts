@@ -21,7 +21,7 @@ import {
 } from "./generators";
 import type { LayoutRows, ShardAssignment } from "./layout-rows";
 import { rankLayouts } from "./rank-layouts";
-import { regroupDesign } from "./regroup-design";
+import { allocateRegroupedRows, regroupDesign } from "./regroup-design";
 
 export interface LayoutPlanInput {
   /** The dataset: CSV, gzip-compressed CSV or Parquet, as a stream or a local file. */
@@ -143,6 +143,8 @@ export async function planLayouts(input: LayoutPlanInput): Promise<LayoutPlanRes
     };
     checkShardCount(input.shardCount, rowIds.length, groupIds.length, specs);
 
+    // Every candidate's rows in the same memory, one candidate after another.
+    const regrouped = allocateRegroupedRows(design);
     const layouts: LayoutCandidate[] = [];
     const failures: LayoutFailure[] = [];
     const assignments = new Map<string, ShardAssignment>();
@@ -164,7 +166,14 @@ export async function planLayouts(input: LayoutPlanInput): Promise<LayoutPlanRes
         const assignment = generateLayout(spec, rows, input.shardCount, seed, (points) =>
           pool.shareKMeansRows(points),
         );
-        const summary = await scoreLayout(design, assignment, raw, input, options, pool, report);
+        const summary = await scoreLayout(
+          regroupDesign(design, assignment, input.shardCount, regrouped),
+          raw,
+          input,
+          options,
+          pool,
+          report,
+        );
         scored = { candidate: { ...record, shards: summary.shards.length, summary }, assignment };
       } catch (error) {
         if (input.signal?.aborted) throw error;
@@ -199,7 +208,6 @@ export async function planLayouts(input: LayoutPlanInput): Promise<LayoutPlanRes
 
 function scoreLayout(
   design: Design,
-  assignment: ShardAssignment,
   { totalRows, format }: Pick<RawDataset, "totalRows" | "format">,
   input: LayoutPlanInput,
   options: ReturnType<typeof parseOptions>,
@@ -207,7 +215,7 @@ function scoreLayout(
   report: (status: "running", analysis: AnalysisProgress) => void,
 ): Promise<PartitionSummary> {
   return analyzeDesign(
-    regroupDesign(design, assignment, input.shardCount),
+    design,
     options,
     {
       pool,

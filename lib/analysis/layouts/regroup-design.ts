@@ -2,15 +2,41 @@ import type { Design } from "../design";
 import { formatShardId, type ShardAssignment } from "./layout-rows";
 
 /**
+ * Shared memory for one candidate's regrouped rows at a time. The planner regroups every
+ * candidate into the same memory: filling pages the process has not touched yet costs more than
+ * the copy itself, and the pass threads keep every design they were shown.
+ */
+export interface RegroupedRows {
+  values: Float64Array;
+  labels: Int32Array | null;
+  targets: Float64Array | null;
+  /** The skew categories when they are not the labels (regression). */
+  categories: Int32Array | null;
+}
+
+export function allocateRegroupedRows(base: Design): RegroupedRows {
+  const rows = base.x.rows;
+  return {
+    values: new Float64Array(new SharedArrayBuffer(rows * base.x.cols * 8)),
+    labels: base.labels && new Int32Array(new SharedArrayBuffer(rows * 4)),
+    targets: base.targets && new Float64Array(new SharedArrayBuffer(rows * 8)),
+    categories: base.labels ? null : new Int32Array(rows),
+  };
+}
+
+/**
  * The design of one candidate layout: the encoded rows (held in file order by the planner's one
  * encoding) regrouped shard by shard, file order kept within a shard — exactly the design the
  * analysis builds when it reads the exported partition map, since encoding depends only on pooled
- * statistics. Shards left empty by a generator are not shards of the layout.
+ * statistics. Shards left empty by a generator are not shards of the layout. The design lives in
+ * `into`, so regrouping into it again replaces it: its analysis must be over by then (a pass
+ * thread still finishing one of its tasks only writes a result no one reads any more).
  */
 export function regroupDesign(
   base: Design,
   assignment: ShardAssignment,
   shardCount: number,
+  into: RegroupedRows,
 ): Design {
   const rows = base.x.rows;
   const width = base.x.cols;
@@ -23,13 +49,10 @@ export function regroupDesign(
     next[m] = shardOffsets[rank];
     shardOffsets[rank + 1] = shardOffsets[rank] + sizes[m];
   });
-  // Shared memory: the pass threads read the candidate's rows without a copy.
-  const values = new Float64Array(new SharedArrayBuffer(rows * width * 8));
+  const { values, labels, targets } = into;
   const source = base.x.data;
-  const labels = base.labels && new Int32Array(new SharedArrayBuffer(rows * 4));
-  const targets = base.targets && new Float64Array(new SharedArrayBuffer(rows * 8));
   // For classification the skew categories are the labels themselves (as in encodeDesign).
-  const skewCategories = labels ?? new Int32Array(rows);
+  const skewCategories = labels ?? (into.categories as Int32Array);
   for (let row = 0; row < rows; row++) {
     const position = next[assignment[row]]++;
     values.set(source.subarray(row * width, (row + 1) * width), position * width);
