@@ -1,12 +1,13 @@
 /**
  * The work that threads share (see pass-pool.ts), written so that any thread can run any task: a
- * job is split into numbered tasks, each task writes only its own slot of a shared result buffer,
- * and the calling thread combines the slots in task order. The result therefore never depends on
- * how many threads ran or which thread ran which task (or whether two ran the same one).
+ * job is split into numbered tasks, each task writes only its own slot of a shared result buffer
+ * (a k-means step: its own points' entries), and the calling thread combines the slots in task
+ * order. The result therefore never depends on how many threads ran or which thread ran which task
+ * (or whether two ran the same one).
  */
 import { accumulateGramUpper } from "../math/gram";
-import { runKMeansStep, type KMeansStep } from "./layouts/kmeans-steps";
 import type { Matrix } from "../math/matrix";
+import { runKMeansStep, type KMeansStep } from "./layouts/kmeans-steps";
 import {
   accumulatePass,
   createTotals,
