@@ -162,6 +162,19 @@ export async function recordPartFailure(
   await notifyPart("state", analysisId, partIndex);
 }
 
+/** Records that the part's rows went to a scratch file past its worker's memory limit. */
+export async function recordPartSpill(
+  analysisId: string,
+  runId: string,
+  partIndex: number,
+  limitBytes: number,
+): Promise<void> {
+  await db()
+    .update(analysisParts)
+    .set({ rowsSpilledAtLimit: limitBytes })
+    .where(partKey(analysisId, runId, partIndex));
+}
+
 /**
  * Where a part's run stands: live while its analysis runs and the run is current, and the part's
  * failure message once its worker gave up on it.
@@ -366,13 +379,19 @@ export async function handBackLostParts(staleAfterMs: number): Promise<LostPart[
 /** The parts of the analysis's last run in parts, in file order; empty when it ran in one process. */
 export async function listAnalysisParts(
   analysisId: string,
-): Promise<Pick<AnalysisPartRow, "partIndex" | "partCount" | "attempts" | "workerLosses">[]> {
+): Promise<
+  Pick<
+    AnalysisPartRow,
+    "partIndex" | "partCount" | "attempts" | "workerLosses" | "rowsSpilledAtLimit"
+  >[]
+> {
   return db()
     .select({
       partIndex: analysisParts.partIndex,
       partCount: analysisParts.partCount,
       attempts: analysisParts.attempts,
       workerLosses: analysisParts.workerLosses,
+      rowsSpilledAtLimit: analysisParts.rowsSpilledAtLimit,
     })
     .from(analysisParts)
     .where(eq(analysisParts.analysisId, analysisId))

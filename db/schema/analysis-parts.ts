@@ -40,6 +40,11 @@ export const analysisParts = pgTable(
     heartbeatAt: instant("heartbeat_at"),
     /** Why the part cannot be read, for the user (the engine's input message); ends the analysis. */
     failureMessage: text("failure_message"),
+    /**
+     * The memory limit of the worker whose read of the part did not fit it, its rows kept in a
+     * scratch file (for the report page); null while they fit.
+     */
+    rowsSpilledAtLimit: bigint("rows_spilled_at_limit", { mode: "number" }),
     schemaDigest: jsonb("schema_digest"),
     createdAt: createdAt(),
   },

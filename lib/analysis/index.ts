@@ -16,6 +16,7 @@ export type { RawDataset } from "./read-dataset";
 export {
   DEFAULT_MEMORY_LIMIT_BYTES,
   readMemorySettings,
+  resolveMemorySettings,
   type MemorySettings,
 } from "./memory-limit";
 export { simulatePlan } from "./simulation/simulate-plan";

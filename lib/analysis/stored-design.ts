@@ -41,7 +41,7 @@ export class StoredDesign implements DesignPasses {
 
   constructor(
     readonly pool: PassPool,
-    design: DesignOnDisk,
+    design: Pick<DesignOnDisk, "x" | "labels" | "targets" | "shardOffsets">,
   ) {
     this.matrix = design.x;
     this.labels = design.labels && toShared(design.labels);

@@ -10,6 +10,9 @@ import { chooseBlockRows, type MemorySettings } from "./memory-limit";
 import { ScratchFile } from "./scratch-file";
 import { forEachStoredBlock, isStoredMatrix, type StoredMatrix } from "./stored-matrix";
 
+/** Rows of values in memory copied at a time when they are kept unchanged (see ValueBlocks). */
+const KEPT_VALUES_BLOCK_ROWS = 1 << 14;
+
 /** A missing value's replacement in one column of the values read (methods.md §1: the mean). */
 export interface ColumnFill {
   /** The column's slot in each row of the values read. */
@@ -29,11 +32,27 @@ export class ValueBlocks {
     readonly values: Float64Array | StoredMatrix,
     readonly rows: number,
     readonly stride: number,
+    /**
+     * Leave values in memory unchanged: fills are applied to a copy of each block of them instead
+     * (values a client keeps for another encoding). Off, they are written into the values.
+     */
+    private readonly options: { keepValues?: boolean } = {},
   ) {}
 
   /** Visits the rows in order; `firstRow` is the block's first row. */
   forEach(visit: (values: Float64Array, firstRow: number, rowCount: number) => void): void {
     const values = this.values;
+    if (!isStoredMatrix(values) && this.options.keepValues && this.fills.length > 0) {
+      const copy = new Float64Array(Math.min(this.rows, KEPT_VALUES_BLOCK_ROWS) * this.stride);
+      for (let first = 0; first < this.rows; first += KEPT_VALUES_BLOCK_ROWS) {
+        const rowCount = Math.min(KEPT_VALUES_BLOCK_ROWS, this.rows - first);
+        const block = copy.subarray(0, rowCount * this.stride);
+        block.set(values.subarray(first * this.stride, (first + rowCount) * this.stride));
+        applyFills(block, rowCount, this.stride, this.fills);
+        visit(block, first, rowCount);
+      }
+      return;
+    }
     if (!isStoredMatrix(values)) {
       visit(values, 0, this.rows);
       return;
@@ -50,7 +69,9 @@ export class ValueBlocks {
 
   fillMissing(fills: ColumnFill[]): void {
     this.fills = fills;
-    if (!isStoredMatrix(this.values)) applyFills(this.values, this.rows, this.stride, fills);
+    if (!isStoredMatrix(this.values) && !this.options.keepValues) {
+      applyFills(this.values, this.rows, this.stride, fills);
+    }
   }
 
   /** Gives back a scratch file's space. */
@@ -69,7 +90,11 @@ function applyFills(values: Float64Array, rows: number, stride: number, fills: C
   }
 }
 
-/** One standardized column of the design, as encode-design.ts plans it. */
+/**
+ * One standardized column of the design, as encode-design.ts (or a federated client's encoding)
+ * plans it. A level's code is −1 when the source never saw the level (a client's rows): no row
+ * matches it.
+ */
 export type StandardizedColumn =
   | { kind: "numeric"; sourceIndex: number; mean: number; std: number }
   | { kind: "level"; source: ColumnAccumulator; code: number; mean: number; std: number };
@@ -97,7 +122,9 @@ export function writeDesignToFile(
   const pendingRows = new Int32Array(shardCount);
   const nextRow = shardOffsets.slice(0, shardCount);
   const inverseStds = columns.map((column) => 1 / column.std);
-  const codes = columns.map((column) => (column.kind === "level" ? column.source.codeViews() : []));
+  const codes = columns.map((column) =>
+    column.kind === "level" && column.code >= 0 ? column.source.codeViews() : [],
+  );
   const file = new ScratchFile(memory.scratchDirectory);
   memory.onScratchFile?.(file.path);
   const flush = (shard: number) => {
@@ -121,11 +148,12 @@ export function writeDesignToFile(
             pending[out + j] =
               (values[k * stride + column.sourceIndex] - column.mean) * inverseStds[j];
           } else {
-            const code = codes[j][Math.floor(row / CHUNK_LENGTH)][row % CHUNK_LENGTH];
-            pending[out + j] =
-              code === column.code
-                ? (1 - column.mean) * inverseStds[j]
-                : -column.mean * inverseStds[j];
+            const matches =
+              column.code >= 0 &&
+              codes[j][Math.floor(row / CHUNK_LENGTH)][row % CHUNK_LENGTH] === column.code;
+            pending[out + j] = matches
+              ? (1 - column.mean) * inverseStds[j]
+              : -column.mean * inverseStds[j];
           }
         }
         pending[out + width - 1] = 1;

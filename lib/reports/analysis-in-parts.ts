@@ -220,7 +220,7 @@ async function runParts(
         },
       ],
       stageSeconds: clock.finish(),
-      // Each part holds its own rows in memory (the memory limit applies to one process).
+      // A part whose rows went past its worker's memory limit is noted part by part (run-notes.ts).
       spilledAtLimit: null,
     };
   } catch (error) {

@@ -8,6 +8,7 @@ import {
   listenToPart,
   recordPartFailure,
   recordPartHeartbeat,
+  recordPartSpill,
   releasePart,
   storePartSchema,
 } from "@/db/queries/analysis-parts";
@@ -18,9 +19,12 @@ import {
   LocalDigestClient,
   measurementRequestSchema,
   readDatasetPart,
+  resolveMemorySettings,
   withFileRowNumbers,
 } from "@/lib/analysis";
 import { Doorbell } from "@/lib/doorbell";
+import { env } from "@/lib/env";
+import { formatBytes } from "@/lib/uploads/file-rules";
 import type { AnalysisPartJob } from "@/lib/jobs";
 import { storedDatasetBytes } from "./stored-dataset-bytes";
 
@@ -98,6 +102,9 @@ export async function runAnalysisPart(
     );
   }, settings.heartbeatMs);
   let client: LocalDigestClient | undefined;
+  /** The memory limit once the part's rows went to a scratch file past it. */
+  let spilled: number | undefined;
+  let spillRecorded = false;
   try {
     const inputs = await findPartInputs(workspaceId, analysisId);
     if (!inputs) return { outcome: "skipped" };
@@ -106,6 +113,20 @@ export async function runAnalysisPart(
     const plan = {
       headerBytes: part.headerBytes,
       parts: [{ start: part.startByte, end: part.endByte }],
+    };
+    // The memory limit applies to the part's worker as to a one-process analysis: rows beyond
+    // its share go to a scratch file (the report page says so).
+    const { PARTITA_MEMORY_LIMIT, PARTITA_SCRATCH_DIR } = env();
+    const memory = resolveMemorySettings({
+      limitBytes: PARTITA_MEMORY_LIMIT,
+      scratchDirectory: PARTITA_SCRATCH_DIR,
+      onScratchFile: () => (spilled ??= memory.limitBytes),
+    });
+    const recordSpill = async () => {
+      if (spilled === undefined || spillRecorded) return;
+      spillRecorded = true;
+      await recordPartSpill(analysisId, runId, partIndex, spilled);
+      log(`rows kept in a scratch file past the memory limit (${formatBytes(spilled)})`);
     };
     const columns = {
       labelColumn: parameters.labelColumn,
@@ -119,6 +140,7 @@ export async function runAnalysisPart(
       const raw = await readDatasetPart(bytes, dataset.name, plan, 0, columns, {
         signal,
         firstRowIndex,
+        memory,
       });
       // A shard's rows may fall in several parts: the disclosure minimum of federated clients
       // (methods.md §9) does not apply inside one analysis.
@@ -126,11 +148,18 @@ export async function runAnalysisPart(
         task: parameters.task,
         minimumShardRows: 1,
         threads: settings.threads,
+        memory,
       });
-      return { client: reader, schema: await reader.schema() };
+      try {
+        return { client: reader, schema: await reader.schema() };
+      } catch (error) {
+        await reader.close();
+        throw error;
+      }
     });
     client = read.client;
     await storePartSchema(analysisId, runId, partIndex, read.schema);
+    await recordSpill();
     log("read");
     let answered = 0;
     // The run's state is read only after a wait: a ring without a question is its end (or a
@@ -141,6 +170,8 @@ export async function runAnalysisPart(
       const open = await findOpenPartExchange(runId, partIndex);
       if (open) {
         await answerPartExchange(open.id, await answer(client, open.kind, open.request));
+        // The rows are encoded at the first question: that is where they may outgrow the limit.
+        await recordSpill();
         answered++;
         if (open.kind !== "evaluate" || answered === 1) log(`answered ${open.kind}`);
         waited = false;

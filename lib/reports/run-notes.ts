@@ -1,7 +1,10 @@
 import type { AnalysisPartRow } from "@/db/queries/analysis-parts";
 import { formatBytes } from "@/lib/uploads/file-rules";
 
-type PartRecord = Pick<AnalysisPartRow, "partIndex" | "partCount" | "attempts" | "workerLosses">;
+type PartRecord = Pick<
+  AnalysisPartRow,
+  "partIndex" | "partCount" | "attempts" | "workerLosses" | "rowsSpilledAtLimit"
+>;
 
 const TIMES = ["", "", "twice", "three times"];
 
@@ -9,7 +12,8 @@ const TIMES = ["", "", "twice", "three times"];
  * What the report page says of how the analysis ran, where it ran differently from one process
  * with its rows in memory: read in parts by several workers (and every part that was redone —
  * after its worker stopped sending heartbeats, or after it was stopped or failed and its job was
- * retried), or its rows kept in a scratch file past the memory limit. Empty otherwise.
+ * retried — or whose rows went to a scratch file past its worker's memory limit), or its rows
+ * kept in a scratch file past the memory limit. Empty otherwise.
  */
 export function describeRun(run: { parts: PartRecord[]; rowsSpilledAtLimit: number | null }) {
   const notes: string[] = [];
@@ -23,6 +27,11 @@ export function describeRun(run: { parts: PartRecord[]; rowsSpilledAtLimit: numb
     `Read in ${run.parts[0].partCount} parts, each by whichever worker took it; the parts' sums were merged into this summary, which equals a one-process analysis of the same file.`,
   );
   for (const part of run.parts) {
+    if (part.rowsSpilledAtLimit !== null) {
+      notes.push(
+        `The rows of part ${part.partIndex + 1} of ${part.partCount} did not fit its worker's memory limit (${formatBytes(part.rowsSpilledAtLimit)}): they were kept in a scratch file on that worker's disk and read back for each pass. The figures are those an analysis in memory gives.`,
+      );
+    }
     const redone = part.attempts - 1;
     if (redone < 1) continue;
     const times = redone < TIMES.length ? TIMES[redone] : `${redone} times`;

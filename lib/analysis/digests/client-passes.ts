@@ -1,17 +1,24 @@
-import { createMatrix } from "../../math/matrix";
+import { createMatrix, type Matrix } from "../../math/matrix";
 import { readTotals } from "../objective-pass";
 import { countThreadsForWork } from "../choose-threads";
 import { PassPool, type PassResult, type SharedDesign } from "../pass-pool";
+import { StoredDesign } from "../stored-design";
+import { forEachStoredBlock, isStoredMatrix, type StoredMatrix } from "../stored-matrix";
 import type { ClientDesign } from "./client-rows";
 import type { EvaluationRequest, EvaluationSums } from "./digest-format";
+
+/** Every row as the fit's subsample: the rows a Hessian over all rows is computed from. */
+const ALL_ROWS: NonNullable<EvaluationRequest["sample"]> = { stride: 1, shardStarts: {} };
 
 /**
  * A client's encoded rows shared with a pool of `threads` threads (1: the calling thread only; by
  * default every core when a pass is as much work as the central analysis's threshold): the passes
- * behind its round-2 digest and its answers to the fit's evaluations. `close` ends the threads.
+ * behind its round-2 digest and its answers to the fit's evaluations. Rows in a scratch file are
+ * read block by block for each pass (stored-design.ts), the same sums. `close` ends the threads
+ * and gives back the scratch file.
  */
 export class ClientPasses {
-  readonly passes: SharedDesign;
+  readonly passes: SharedDesign | StoredDesign;
   private sample: { key: string; passes: SharedDesign } | null = null;
   /** Passes over all rows that round 2 asks for again (see `passAt`), by their point W. */
   private readonly kept = new Map<string, { withSquaredNorms: boolean; result: PassResult }>();
@@ -23,10 +30,11 @@ export class ClientPasses {
     const weightRows =
       design.labels === null ? 1 : design.labels.reduce((a, b) => Math.max(a, b), 0) + 1;
     const work = design.x.rows * design.x.cols * weightRows;
-    this.passes = new PassPool(threads ?? countThreadsForWork(work)).share(
-      design,
-      design.shardOffsets,
-    );
+    const pool = new PassPool(threads ?? countThreadsForWork(work));
+    const { x } = design;
+    this.passes = isStoredMatrix(x)
+      ? new StoredDesign(pool, { ...design, x })
+      : pool.share({ ...design, x }, design.shardOffsets);
   }
 
   /**
@@ -51,10 +59,16 @@ export class ClientPasses {
       // The pass pool's Hessian is a mean over the rows; the coordinator pools sums. A part of a
       // dataset can hold none of the subsample's rows: its sum is zero.
       const size = weights.length;
+      // Over all rows of a design in a scratch file, from a copy of them in memory: the fit asks
+      // for it only when all rows are few (its subsample is then all of them).
+      const hessianTarget = target instanceof StoredDesign ? this.sharedSample(ALL_ROWS) : target;
       hessianSum =
         pooled.rows === 0
           ? new Array<number>(size * size).fill(0)
-          : Array.from(target.computeSoftmaxHessian(weights, 0), (value) => value * pooled.rows);
+          : Array.from(
+              hessianTarget.computeSoftmaxHessian(weights, 0),
+              (value) => value * pooled.rows,
+            );
     }
     return {
       rows: pooled.rows,
@@ -92,6 +106,7 @@ export class ClientPasses {
 
   async close(): Promise<void> {
     await this.passes.pool.close();
+    if (isStoredMatrix(this.design.x)) this.design.x.file.close();
   }
 
   /** The client's rows of the fit's subsample (global row g with g mod stride = 0), shared once. */
@@ -110,9 +125,9 @@ export class ClientPasses {
     const x = createMatrix(picked.length, width, { shared: true });
     const labels = design.labels && new Int32Array(picked.length);
     picked.forEach((row, k) => {
-      x.data.set(design.x.data.subarray(row * width, (row + 1) * width), k * width);
       if (labels && design.labels) labels[k] = design.labels[row];
     });
+    copyRows(design.x, picked, x.data);
     const passes = this.passes.pool.share(
       { x, labels, targets: null },
       Int32Array.of(0, picked.length),
@@ -120,4 +135,22 @@ export class ClientPasses {
     this.sample = { key, passes };
     return passes;
   }
+}
+
+/** Rows `picked` (ascending) of a design in memory or in a scratch file, copied into `into`. */
+function copyRows(x: Matrix | StoredMatrix, picked: number[], into: Float64Array): void {
+  const width = x.cols;
+  if (!isStoredMatrix(x)) {
+    picked.forEach((row, k) => {
+      into.set(x.data.subarray(row * width, (row + 1) * width), k * width);
+    });
+    return;
+  }
+  let k = 0;
+  forEachStoredBlock(x, (values, firstRow, rowCount) => {
+    for (; k < picked.length && picked[k] < firstRow + rowCount; k++) {
+      const row = picked[k] - firstRow;
+      into.set(values.subarray(row * width, (row + 1) * width), k * width);
+    }
+  });
 }

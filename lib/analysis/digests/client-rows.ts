@@ -5,6 +5,10 @@ import { AnalysisInputError } from "../errors";
 import { readPartitionMap, type PartitionMap } from "../partition-map";
 import { readDataset, type DatasetColumnChoice, type RawDataset } from "../read-dataset";
 import type { TableSource } from "../table-reader";
+import type { ColumnAccumulator } from "../column-accumulator";
+import { measureRowBudget, type MemorySettings } from "../memory-limit";
+import { ValueBlocks, writeDesignToFile, type StandardizedColumn } from "../stored-encoding";
+import { isStoredMatrix, type StoredMatrix } from "../stored-matrix";
 import type { DigestEncoding } from "./digest-format";
 
 /** Where a client's rows come from: its data file and how its rows map to shards. */
@@ -21,6 +25,8 @@ export interface ClientRowsInput {
   dropUnassignedRows?: boolean;
   /** Index in the whole file of the first data row, when `data` is a part of a CSV file. */
   firstRowIndex?: number;
+  /** The memory limit: values read beyond its share go to a scratch file (row-store.ts). */
+  memory?: MemorySettings;
 }
 
 /**
@@ -28,7 +34,15 @@ export interface ClientRowsInput {
  * counted, every kept row assigned to a shard by the shard column, the partition map or `shard`).
  * Any row source that yields a RawDataset — a whole file, a part of one — serves as a client.
  */
-export async function readClientRows(input: ClientRowsInput): Promise<RawDataset> {
+export async function readClientRows(
+  input: ClientRowsInput & { memory?: undefined },
+): Promise<RawDataset>;
+export async function readClientRows(
+  input: ClientRowsInput,
+): Promise<RawDataset<Float64Array | StoredMatrix>>;
+export async function readClientRows(
+  input: ClientRowsInput,
+): Promise<RawDataset<Float64Array | StoredMatrix>> {
   const ways = [input.partition, input.columns.shardColumn, input.shard].filter(
     (way) => way !== undefined,
   );
@@ -49,6 +63,7 @@ export async function readClientRows(input: ClientRowsInput): Promise<RawDataset
     partition,
     dropUnassignedRows: input.dropUnassignedRows ?? false,
     firstRowIndex: input.firstRowIndex,
+    memory: input.memory,
   });
 }
 
@@ -67,7 +82,8 @@ export interface ClientDesign {
   totalRows: number;
   droppedRowsMissingLabel: number;
   droppedRowsUnassigned: number;
-  x: Matrix;
+  /** In memory, or in a scratch file when the rows do not fit the memory limit (the caller closes it). */
+  x: Matrix | StoredMatrix;
   labels: Int32Array | null;
   targets: Float64Array | null;
   shardIds: string[];
@@ -78,9 +94,15 @@ export interface ClientDesign {
  * Encodes a client's kept rows with the coordinator's encoding: a numeric column's missing values
  * become the pooled mean, every column is standardized as (x − mean)·(1/std) like the central
  * encoder, one-hot levels take (1 − mean)/std or −mean/std, the bias 1 is appended, and rows are
- * regrouped shard by shard.
+ * regrouped shard by shard. With memory settings, as the central encoder does: values read into a
+ * scratch file, or values and design together beyond the limit's share, give a design written to
+ * a scratch file of its own, the same numbers.
  */
-export function encodeClientRows(raw: RawDataset, encoding: DigestEncoding): ClientDesign {
+export function encodeClientRows(
+  raw: RawDataset<Float64Array | StoredMatrix>,
+  encoding: DigestEncoding,
+  memory?: MemorySettings,
+): ClientDesign {
   const rows = raw.keptRows;
   const order = raw.shardIds
     .map((_, code) => code)
@@ -95,12 +117,9 @@ export function encodeClientRows(raw: RawDataset, encoding: DigestEncoding): Cli
   for (let row = 0; row < rows; row++) position[row] = next[rank[raw.shardCodes[row]]]++;
 
   const width = encoding.columns.length + 1;
-  const x = createMatrix(rows, width, { shared: true });
-  const stride = raw.features.length + 1;
   const sourceIndex = new Map(raw.features.map((feature, index) => [feature.name, index]));
-  const numeric: { column: number; source: number; mean: number; inverseStd: number }[] = [];
-  const levels: { column: number; codes: Int32Array[]; code: number; high: number; low: number }[] =
-    [];
+  const numeric: NumericPlan[] = [];
+  const levels: LevelPlan[] = [];
   encoding.columns.forEach((column, j) => {
     const source = sourceIndex.get(column.column);
     if (source === undefined) {
@@ -112,19 +131,75 @@ export function encodeClientRows(raw: RawDataset, encoding: DigestEncoding): Cli
     }
     const inverseStd = 1 / column.std;
     if (column.kind === "numeric") {
-      numeric.push({ column: j, source, mean: column.mean, inverseStd });
+      numeric.push({ column: j, source, mean: column.mean, std: column.std, inverseStd });
       return;
     }
     const accumulator = raw.features[source];
     levels.push({
       column: j,
+      source: accumulator,
       codes: accumulator.hasLevels ? accumulator.codeViews() : [],
-      // -1, a code no row has, when the client never saw the level.
+      // -1 when the client never saw the level: no row has it (a missing value's code, −1 too,
+      // never counts as a match).
       code: accumulator.hasLevels ? accumulator.levels.indexOf(column.level) : -1,
+      mean: column.mean,
+      std: column.std,
       high: (1 - column.mean) * inverseStd,
       low: -column.mean * inverseStd,
     });
   });
+  const shardOfRow = (row: number) => rank[raw.shardCodes[row]];
+  const x =
+    isStoredMatrix(raw.featureValues) ||
+    (memory !== undefined &&
+      (raw.featureValues.length + rows * width) * Float64Array.BYTES_PER_ELEMENT >
+        measureRowBudget(memory))
+      ? writeClientDesign(raw, numeric, levels, shardOfRow, shardOffsets, memory)
+      : encodeInMemory(raw as RawDataset, width, numeric, levels, position);
+  return {
+    fileName: raw.fileName,
+    totalRows: raw.totalRows,
+    droppedRowsMissingLabel: raw.droppedMissingLabel,
+    droppedRowsUnassigned: raw.droppedUnassigned,
+    x,
+    ...encodeClientTarget(raw, encoding, position),
+    shardIds: order.map((code) => raw.shardIds[code]),
+    shardOffsets,
+  };
+}
+
+/** How one column of the client's encoding is computed from the values read: a number … */
+interface NumericPlan {
+  column: number;
+  source: number;
+  mean: number;
+  std: number;
+  inverseStd: number;
+}
+/** … or one level of a category. */
+interface LevelPlan {
+  column: number;
+  source: ColumnAccumulator;
+  codes: Int32Array[];
+  /** The level's code in the source; −1 when the client never saw the level. */
+  code: number;
+  mean: number;
+  std: number;
+  high: number;
+  low: number;
+}
+
+/** The design in shared memory, every kept row at its shard-ordered `position`. */
+function encodeInMemory(
+  raw: RawDataset,
+  width: number,
+  numeric: NumericPlan[],
+  levels: LevelPlan[],
+  position: Int32Array,
+): Matrix {
+  const rows = raw.keptRows;
+  const x = createMatrix(rows, width, { shared: true });
+  const stride = raw.features.length + 1;
   const numericColumns = Int32Array.from(numeric, (entry) => entry.column);
   const numericSources = Int32Array.from(numeric, (entry) => entry.source);
   const means = Float64Array.from(numeric, (entry) => entry.mean);
@@ -147,21 +222,41 @@ export function encodeClientRows(raw: RawDataset, encoding: DigestEncoding): Cli
     }
     x.data[to + width - 1] = 1;
   }
+  return x;
+}
 
-  return {
-    fileName: raw.fileName,
-    totalRows: raw.totalRows,
-    droppedRowsMissingLabel: raw.droppedMissingLabel,
-    droppedRowsUnassigned: raw.droppedUnassigned,
-    x,
-    ...encodeClientTarget(raw, encoding, position),
-    shardIds: order.map((code) => raw.shardIds[code]),
-    shardOffsets,
-  };
+/**
+ * The design written to a scratch file by the central encoder's writer (stored-encoding.ts): the
+ * values are read block by block (from memory, or from their own scratch file), a numeric column's
+ * missing values filled with the pooled mean in each block read — the values themselves unchanged.
+ */
+function writeClientDesign(
+  raw: RawDataset<Float64Array | StoredMatrix>,
+  numeric: NumericPlan[],
+  levels: LevelPlan[],
+  shardOfRow: (row: number) => number,
+  shardOffsets: Int32Array,
+  memory: MemorySettings | undefined,
+): StoredMatrix {
+  if (memory === undefined) {
+    throw new Error("values kept in a scratch file need the memory settings they were read with");
+  }
+  const blocks = new ValueBlocks(raw.featureValues, raw.keptRows, raw.features.length + 1, {
+    keepValues: true,
+  });
+  blocks.fillMissing(numeric.map(({ source, mean }) => ({ index: source, value: mean })));
+  const columns: StandardizedColumn[] = [];
+  for (const { column, source, mean, std } of numeric) {
+    columns[column] = { kind: "numeric", sourceIndex: source, mean, std };
+  }
+  for (const { column, source, code, mean, std } of levels) {
+    columns[column] = { kind: "level", source, code, mean, std };
+  }
+  return writeDesignToFile(blocks, columns, shardOfRow, shardOffsets, memory);
 }
 
 function encodeClientTarget(
-  raw: RawDataset,
+  raw: RawDataset<Float64Array | StoredMatrix>,
   encoding: DigestEncoding,
   position: Int32Array,
 ): Pick<ClientDesign, "labels" | "targets"> {

@@ -3,8 +3,10 @@ import { open, stat } from "node:fs/promises";
 import { addAbortSignal, Readable } from "node:stream";
 import { countRows } from "../count-rows";
 import { AnalysisInputError } from "../errors";
+import type { MemorySettings } from "../memory-limit";
 import { cutSourceIntoParts, type ByteSource } from "../parallel-read";
 import type { DatasetColumnChoice, RawDataset } from "../read-dataset";
+import type { StoredMatrix } from "../stored-matrix";
 import { detectTableFormat } from "../table-reader";
 import { readClientRows } from "./client-rows";
 
@@ -89,7 +91,8 @@ export function openDatasetPart(
 /**
  * One part's rows, read with the engine's reader as a client's are (methods.md §1), named by the
  * file's name; its data rows are numbered from `firstRowIndex` (by default from the part's first
- * line: see `withFileRowNumbers`). The shard comes from a shard column (a partition map by row
+ * line: see `withFileRowNumbers`); with memory settings, values beyond the limit's share go to a
+ * scratch file (the caller closes it, or the client reading the rows does). The shard comes from a shard column (a partition map by row
  * index would need the rows before the part). A stream stopped by `signal` ends the read.
  */
 export async function readDatasetPart(
@@ -98,14 +101,19 @@ export async function readDatasetPart(
   plan: DatasetPartPlan,
   index: number,
   columns: DatasetColumnChoice,
-  { signal, firstRowIndex = 0 }: { signal?: AbortSignal; firstRowIndex?: number } = {},
-): Promise<RawDataset> {
+  {
+    signal,
+    firstRowIndex = 0,
+    memory,
+  }: { signal?: AbortSignal; firstRowIndex?: number; memory?: MemorySettings } = {},
+): Promise<RawDataset<Float64Array | StoredMatrix>> {
   const data = openDatasetPart(bytes, plan, plan.parts[index]);
   return readClientRows({
     data: signal ? addAbortSignal(signal, data) : data,
     dataName: fileName,
     columns,
     firstRowIndex,
+    memory,
   });
 }
 

@@ -1,4 +1,6 @@
+import type { MemorySettings } from "../memory-limit";
 import type { RawDataset } from "../read-dataset";
+import { isStoredMatrix, type StoredMatrix } from "../stored-matrix";
 import { ClientPasses } from "./client-passes";
 import { encodeClientRows } from "./client-rows";
 import type {
@@ -38,8 +40,12 @@ export class LocalDigestClient implements DigestClientConnection {
 
   constructor(
     readonly name: string,
-    private readonly raw: RawDataset,
-    private readonly options: Omit<SchemaDigestOptions, "client"> & { threads?: number } = {},
+    private readonly raw: RawDataset<Float64Array | StoredMatrix>,
+    private readonly options: Omit<SchemaDigestOptions, "client"> & {
+      threads?: number;
+      /** The memory limit the rows were read under; the encoded rows keep to it too. */
+      memory?: MemorySettings;
+    } = {},
   ) {}
 
   async schema(): Promise<SchemaDigest> {
@@ -58,16 +64,21 @@ export class LocalDigestClient implements DigestClientConnection {
     return computeGradientDigest(this.name, this.encode(encoding), encoding, request);
   }
 
+  /** Ends the threads and gives back the scratch files: the client answers no more. */
   async close(): Promise<void> {
     await this.encoded?.passes.close();
     this.encoded = null;
+    if (isStoredMatrix(this.raw.featureValues)) this.raw.featureValues.file.close();
   }
 
   /** The rows encoded with this encoding and shared with the pass threads (once per encoding). */
   private encode(encoding: DigestEncoding): ClientPasses {
     if (this.encoded?.hash !== encoding.hash) {
       void this.encoded?.passes.close();
-      const passes = new ClientPasses(encodeClientRows(this.raw, encoding), this.options.threads);
+      const passes = new ClientPasses(
+        encodeClientRows(this.raw, encoding, this.options.memory),
+        this.options.threads,
+      );
       this.encoded = { hash: encoding.hash, passes };
     }
     return this.encoded.passes;

@@ -5,6 +5,8 @@ import { MAX_ONE_HOT_LEVELS } from "../column-accumulator";
 import type { Task } from "../design";
 import { AnalysisInputError } from "../errors";
 import type { RawDataset } from "../read-dataset";
+import { ValueBlocks } from "../stored-encoding";
+import type { StoredMatrix } from "../stored-matrix";
 import {
   DEFAULT_MINIMUM_SHARD_ROWS,
   sendsLabelLevels,
@@ -28,7 +30,10 @@ export interface SchemaDigestOptions {
  * and shard) a shard under the minimum rows, and, as the central analysis does, a named feature
  * that is neither numeric nor encodable.
  */
-export function computeSchemaDigest(raw: RawDataset, options: SchemaDigestOptions): SchemaDigest {
+export function computeSchemaDigest(
+  raw: RawDataset<Float64Array | StoredMatrix>,
+  options: SchemaDigestOptions,
+): SchemaDigest {
   const minimum = options.minimumShardRows ?? DEFAULT_MINIMUM_SHARD_ROWS;
   const shardCount = raw.shardIds.length;
   const shardRows = new Array<number>(shardCount).fill(0);
@@ -112,11 +117,13 @@ const NO_VALUES = { sum: null, sumSquaredDeviations: null, min: null, max: null 
  * `stride` numbers per row; each pass reads the rows once, every column of a row together.
  */
 function summarizeColumns(
-  raw: RawDataset,
-  values: Float64Array,
+  raw: RawDataset<Float64Array | StoredMatrix>,
+  values: Float64Array | StoredMatrix,
   stride: number,
   columns: number[],
 ) {
+  // Values in a scratch file are read block by block, the rows in the same order: the same sums.
+  const blocks = new ValueBlocks(values, raw.keptRows, stride);
   const count = columns.length;
   const cells = raw.shardIds.length * count;
   const sums = new Float64Array(cells);
@@ -127,38 +134,42 @@ function summarizeColumns(
   const maxes = new Float64Array(cells).fill(-Infinity);
   const present = new Float64Array(cells);
   const offsets = Int32Array.from(columns);
-  for (let row = 0; row < raw.keptRows; row++) {
-    const base = row * stride;
-    const first = raw.shardCodes[row] * count;
-    for (let k = 0; k < count; k++) {
-      const value = values[base + offsets[k]];
-      if (value !== value) continue;
-      const cell = first + k;
-      const total = sums[cell];
-      const next = total + value;
-      sumCompensations[cell] += roundingError(total, value, next);
-      sums[cell] = next;
-      if (value < mins[cell]) mins[cell] = value;
-      if (value > maxes[cell]) maxes[cell] = value;
-      present[cell]++;
+  blocks.forEach((block, firstRow, rowCount) => {
+    for (let k = 0; k < rowCount; k++) {
+      const base = k * stride;
+      const first = raw.shardCodes[firstRow + k] * count;
+      for (let c = 0; c < count; c++) {
+        const value = block[base + offsets[c]];
+        if (value !== value) continue;
+        const cell = first + c;
+        const total = sums[cell];
+        const next = total + value;
+        sumCompensations[cell] += roundingError(total, value, next);
+        sums[cell] = next;
+        if (value < mins[cell]) mins[cell] = value;
+        if (value > maxes[cell]) maxes[cell] = value;
+        present[cell]++;
+      }
     }
-  }
+  });
   const means = sums.map((sum, cell) => (sum + sumCompensations[cell]) / present[cell]);
-  for (let row = 0; row < raw.keptRows; row++) {
-    const base = row * stride;
-    const first = raw.shardCodes[row] * count;
-    for (let k = 0; k < count; k++) {
-      const value = values[base + offsets[k]];
-      if (value !== value) continue;
-      const cell = first + k;
-      const deviation = value - means[cell];
-      const squared = deviation * deviation;
-      const total = deviations[cell];
-      const next = total + squared;
-      deviationCompensations[cell] += roundingError(total, squared, next);
-      deviations[cell] = next;
+  blocks.forEach((block, firstRow, rowCount) => {
+    for (let k = 0; k < rowCount; k++) {
+      const base = k * stride;
+      const first = raw.shardCodes[firstRow + k] * count;
+      for (let c = 0; c < count; c++) {
+        const value = block[base + offsets[c]];
+        if (value !== value) continue;
+        const cell = first + c;
+        const deviation = value - means[cell];
+        const squared = deviation * deviation;
+        const total = deviations[cell];
+        const next = total + squared;
+        deviationCompensations[cell] += roundingError(total, squared, next);
+        deviations[cell] = next;
+      }
     }
-  }
+  });
   return columns.map((_, k) =>
     raw.shardIds.map((_id, code) => {
       const cell = code * count + k;
@@ -176,7 +187,10 @@ function summarizeColumns(
 }
 
 /** Per shard, the count of each level of a column (its codes, read chunk by chunk). */
-function countLevelsPerShard(column: ColumnAccumulator, raw: RawDataset): Record<string, number>[] {
+function countLevelsPerShard(
+  column: ColumnAccumulator,
+  raw: RawDataset<Float64Array | StoredMatrix>,
+): Record<string, number>[] {
   const levels = column.levels;
   const counts = raw.shardIds.map(() => new Array<number>(levels.length).fill(0));
   column.codeViews().forEach((codes, chunk) => {

@@ -6,8 +6,6 @@
 // one-process analysis being checked against scikit-learn elsewhere. The data is scikit-learn's
 // bundled digits stacked 23 times (41 331 rows, more than the fit's 2 × 20 000-row subsample, so
 // the subsample spans parts), with a seeded label-skewed shard column.
-import { spawn, type ChildProcess } from "node:child_process";
-import path from "node:path";
 import { Readable } from "node:stream";
 import { eq } from "drizzle-orm";
 import PgBoss from "pg-boss";
@@ -16,67 +14,18 @@ import { closeDb, db } from "@/db/client";
 import { listAnalysisParts } from "@/db/queries/analysis-parts";
 import { analysisParts, reports } from "@/db/schema";
 import { analyzePartition, type PartitionSummary } from "@/lib/analysis";
-import { ANALYSIS_PART_JOB_POLICY, ANALYSIS_PART_QUEUE, startBoss } from "@/lib/jobs";
-import type { PartsSettings } from "@/lib/reports/analysis-in-parts";
+import { startBoss } from "@/lib/jobs";
 import { describeRun } from "@/lib/reports/run-notes";
 import { runAnalysis } from "@/lib/reports/run-analysis";
-import { compareSummaries } from "../analysis/digests/support";
+import {
+  expectOneProcessSummary,
+  sendPartsTo,
+  WorkerProcess,
+} from "./support/analysis-in-parts";
 import { DIGITS_CSV, DIGITS_OPTIONS, queueDigitsAnalysis } from "./support/digits-analysis";
-
-const projectRoot = path.resolve(import.meta.dirname, "../../..");
 
 const OPTIONS = DIGITS_OPTIONS;
 const CSV = DIGITS_CSV;
-
-/** A worker process as deployed, its output kept to wait on. */
-class WorkerProcess {
-  readonly process: ChildProcess;
-  output = "";
-
-  constructor(extraEnv: Record<string, string>) {
-    this.process = spawn(
-      process.execPath,
-      ["--conditions=react-server", "--import", "tsx", "scripts/worker.ts"],
-      {
-        cwd: projectRoot,
-        env: { ...process.env, ...extraEnv },
-        stdio: ["ignore", "pipe", "pipe"],
-      },
-    );
-    for (const stream of [this.process.stdout, this.process.stderr]) {
-      stream?.setEncoding("utf8").on("data", (chunk: string) => (this.output += chunk));
-    }
-  }
-
-  /** Resolves with the first match of `pattern` in the output, as soon as it is printed. */
-  waitFor(pattern: RegExp, timeoutMs = 120_000): Promise<RegExpExecArray> {
-    return new Promise((resolve, reject) => {
-      const timer = setTimeout(
-        () => reject(new Error(`worker never printed ${pattern}:\n${this.output}`)),
-        timeoutMs,
-      );
-      const check = () => {
-        const match = pattern.exec(this.output);
-        if (!match) return;
-        clearTimeout(timer);
-        this.process.stdout?.off("data", check);
-        resolve(match);
-      };
-      this.process.stdout?.on("data", check);
-      check();
-    });
-  }
-
-  /** Sends `signal` (SIGKILL by default: no chance to clean up) and waits for the exit. */
-  kill(signal: NodeJS.Signals = "SIGKILL"): Promise<void> {
-    if (this.process.exitCode !== null || this.process.signalCode !== null) {
-      return Promise.resolve();
-    }
-    const exited = new Promise<void>((resolve) => this.process.once("exit", () => resolve()));
-    this.process.kill(signal);
-    return exited;
-  }
-}
 
 // Heartbeats every second; a part silent for 20 s counts as lost — longer than the 10 s between
 // the heartbeats of the suite's own worker, whose runs must never count as lost.
@@ -96,21 +45,7 @@ afterAll(async () => {
   await closeDb();
 });
 
-function partsSettings(parts: number): PartsSettings {
-  return {
-    parts,
-    minBytes: 1,
-    sendPart: (job) =>
-      boss.send(ANALYSIS_PART_QUEUE, job, {
-        ...ANALYSIS_PART_JOB_POLICY,
-        singletonKey: `${job.runId}:${job.partIndex}`,
-      }),
-    heartbeatMs: 1000,
-    staleAfterMs: 20_000,
-    // Parts go to the worker processes; this process takes one only when none is free.
-    takeOverAfterMs: 10_000,
-  };
-}
+const partsSettings = (parts: number) => sendPartsTo(boss, parts);
 
 async function storedSummary(analysisId: string): Promise<PartitionSummary> {
   const stored = await db().select().from(reports).where(eq(reports.analysisId, analysisId));
@@ -128,17 +63,6 @@ function analyzeInOneProcess(): Promise<PartitionSummary> {
     threads: 1,
   });
   return oneProcess;
-}
-
-function expectOneProcessSummary(actual: PartitionSummary, expected: PartitionSummary) {
-  const differences = compareSummaries(expected, actual, false).filter(
-    // ‖∇F(W*)‖ is the optimizer's residual: compared with its tolerance below.
-    (line) => !line.startsWith(".model.gradNorm"),
-  );
-  expect(differences).toEqual([]);
-  expect(actual.model.gradNorm).toBeLessThanOrEqual(actual.model.optimizer.tolerance);
-  expect(actual.preprocessing.warnings).toEqual(expected.preprocessing.warnings);
-  expect(actual.digests).toBeUndefined();
 }
 
 describe("one analysis shared by several workers", () => {

@@ -72,4 +72,53 @@ describe("one analysis in parts", () => {
       await Promise.all(parts.map((part) => part.close()));
     }
   }, 900_000);
+
+  it("gives the same summary with each part's rows in scratch files past a memory limit", async () => {
+    // One copy of the digits (1 797 rows): the fit's subsample is every row, so its Hessian is
+    // asked over all of a part's rows, and the ink category is one-hot encoded from the file.
+    const folder = mkdtempSync(path.join(tmpdir(), "partita-parts-"));
+    const file = path.join(folder, "digits.csv");
+    writeFileSync(file, loadStackedDigitsCsv(1));
+    const bytes = await localDatasetBytes(file);
+    const plan = await planDatasetParts(bytes, "digits.csv", 2);
+    expect(plan.parts).toHaveLength(2);
+    const scratchFiles: string[] = [];
+    const memory = {
+      limitBytes: 2 ** 20,
+      scratchDirectory: folder,
+      onScratchFile: (scratch: string) => scratchFiles.push(scratch),
+    };
+    const parts = await Promise.all(
+      plan.parts.map(
+        async (_, index) =>
+          new LocalDigestClient(
+            `part-${index + 1}`,
+            await readDatasetPart(bytes, "digits.csv", plan, index, COLUMNS, { memory }),
+            { minimumShardRows: 1, threads: 1, memory },
+          ),
+      ),
+    );
+    try {
+      const central = await analyzePartition({
+        data: { path: file },
+        options: COLUMNS,
+        threads: 1,
+      });
+      const merged = await analyzeFromDigests([new PartsConnection("digits.csv", parts)], {
+        lambda: 1e-3,
+        reference: "optimum",
+        plan: PLAN,
+        minimumShardRows: 1,
+      });
+      // Each part's values, then its encoded rows, went to a scratch file of their own.
+      expect(scratchFiles).toHaveLength(4);
+      const differences = compareSummaries(central, merged, false).filter(
+        (line) => !line.startsWith(".model.gradNorm"),
+      );
+      expect(differences).toEqual([]);
+      expect(merged.model.gradNorm).toBeLessThanOrEqual(merged.model.optimizer.tolerance);
+    } finally {
+      await Promise.all(parts.map((part) => part.close()));
+    }
+  }, 300_000);
 });

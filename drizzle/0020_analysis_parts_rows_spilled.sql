@@ -1,0 +1,1 @@
+ALTER TABLE "analysis_parts" ADD COLUMN "rows_spilled_at_limit" bigint;
