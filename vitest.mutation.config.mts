@@ -3,7 +3,9 @@ import base from "./vitest.config.mjs";
 
 // The tests `npm run mutation` runs against each mutant (stryker.config.json): the unit tests of
 // lib/math, of the engine's statistics, objective, fit and advice, of the summary's assembly, of the
-// readers and the encoder, and of the advice's figures, which need no database and take seconds. Modules that run inside worker threads are not mutated: a mutant is
+// readers and the encoder, of the advice's figures and of the layout generators, which need no
+// database and take seconds (the layout planner's own tests run whole analyses and are left out).
+// Modules that run inside worker threads are not mutated: a mutant is
 // switched on in the test's thread only, so a worker would compute with the original code.
 export default defineConfig({
   ...base,
@@ -27,6 +29,11 @@ export default defineConfig({
       "tests/lib/analysis/column-accumulator.test.ts",
       "tests/lib/analysis/partition-map.test.ts",
       "tests/lib/analysis/count-shards.test.ts",
+      "tests/lib/analysis/layouts/generators.test.ts",
+      "tests/lib/analysis/layouts/generator-specs.test.ts",
+      "tests/lib/analysis/layouts/group-balanced.test.ts",
+      "tests/lib/analysis/layouts/layout-pieces.test.ts",
+      "tests/lib/analysis/layouts/lloyd-iterations.test.ts",
       "tests/lib/reports/bound-curves.test.ts",
       "tests/lib/reports/regime-map.test.ts",
     ],
