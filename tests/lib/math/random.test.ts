@@ -46,6 +46,34 @@ describe("SeededRandom (xoshiro128**)", () => {
     ]);
   });
 
+  it("returns the 32 bits themselves for integer(2³²) (no draw is rejected when n divides 2³²)", () => {
+    // The same reference outputs as above (the authors' C code, seed 42).
+    const random = new SeededRandom(42);
+    expect(Array.from({ length: 8 }, () => random.integer(2 ** 32))).toEqual([
+      2837322924, 544945897, 479756282, 3500138142, 339756180, 113173290, 65323186, 1112262688,
+    ]);
+  });
+
+  it("rejects the draws that would bias integer(n) towards small values (n = 3·2³⁰)", () => {
+    // 2³² mod n = 2³⁰: plain `draw % n` would give each value below 2³⁰ twice as often as the
+    // others, so P(value < 2³⁰) would be 1/2 instead of 1/3 (Lemire, "Fast random integer generation
+    // in an interval", ACM TOMS 29(1), 2019, from memory). SciPy's exact binomial test tells them
+    // apart at once on 3000 draws; seeded, so the p-value is fixed.
+    const n = 3 * 2 ** 30;
+    const draws = draw(6, (random) => random.integer(n)).slice(0, 3000);
+    expect(Math.max(...draws)).toBeLessThan(n);
+    const below = draws.filter((value) => value < 2 ** 30).length;
+    const pValues = runPythonJson<[number, number]>(
+      `import json,sys
+from scipy import stats
+k=json.load(sys.stdin)
+print(json.dumps([stats.binomtest(k,3000,1/3).pvalue, stats.binomtest(k,3000,1/2).pvalue]))`,
+      below,
+    );
+    expect(pValues[0]).toBeGreaterThan(1e-3);
+    expect(pValues[1]).toBeLessThan(1e-6);
+  });
+
   it("draws uniforms, normals, gammas and integers that SciPy's tests accept", () => {
     const pValues = runPythonJson<Record<string, number>>(KS_PROGRAM, {
       uniform: draw(1, (random) => random.uniform()),

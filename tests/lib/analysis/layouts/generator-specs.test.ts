@@ -120,3 +120,19 @@ describe("parseLayoutSpec's errors say what was expected", () => {
     expect(parseLayoutSpec("iid")).toEqual({ generator: "iid" });
   });
 });
+
+describe("classes(k)'s input errors say what to change", () => {
+  it("refuses a class with fewer rows than the shards that hold it, and M·k < C", () => {
+    // Class 2 has one row; with k = C = 3 every one of the 3 shards holds it (methods.md §8: each
+    // class's rows split over its holders), so some shard would hold a class without a row of it.
+    const rows = makeRows({ rows: 12, classCount: 2 });
+    const classes = Int32Array.of(0, 0, 0, 0, 1, 1, 1, 1, 0, 1, 0, 2);
+    const skewed = { ...rows, classes, classCount: 3 };
+    expect(() => generateLayout({ generator: "classes", k: 3 }, skewed, 3, 1)).toThrow(
+      "classes(3): a class has 1 rows for 3 shards that hold it (expected at least one row of a class per shard holding it: a smaller k or fewer shards)",
+    );
+    expect(() => generateLayout({ generator: "classes", k: 1 }, skewed, 2, 1)).toThrow(
+      "classes(1) over 2 shards leaves classes unheld (expected shards × k at least the number of classes (3): a larger k or more shards)",
+    );
+  });
+});
