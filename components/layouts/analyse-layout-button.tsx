@@ -2,36 +2,36 @@
 
 import { useRouter } from "next/navigation";
 import { useState, useTransition } from "react";
-import { analyseCandidate } from "@/app/(workspace)/w/[workspaceId]/layouts/actions";
 import { Button } from "@/components/ui/button";
+import type { ActionResult } from "@/lib/actions/result";
 
 /**
  * "Analyse this layout": registers the candidate's map as a layout file and opens the new-analysis
  * form with the dataset, the map and the plan's options filled in.
  */
 export function AnalyseLayoutButton({
-  workspaceId,
-  planId,
-  ordinal,
+  analyse,
+  newAnalysisUrl,
   name,
 }: {
-  workspaceId: string;
-  planId: string;
-  ordinal: number;
+  /** Registers the map (the route's action, bound to the candidate). */
+  analyse: () => Promise<ActionResult<unknown>>;
+  /** The new-analysis form filled in for the candidate, opened once the map is registered. */
+  newAnalysisUrl: string;
   name: string;
 }) {
   const router = useRouter();
   const [pending, startTransition] = useTransition();
   const [error, setError] = useState<string>();
-  const analyse = () => {
+  const open = () => {
     setError(undefined);
     startTransition(async () => {
-      const result = await analyseCandidate(workspaceId, planId, ordinal);
+      const result = await analyse();
       if (!result.ok) {
         setError(result.message);
         return;
       }
-      router.push(`/w/${workspaceId}/analyses/new?layoutPlan=${planId}&candidate=${ordinal}`);
+      router.push(newAnalysisUrl);
     });
   };
   return (
@@ -40,7 +40,7 @@ export function AnalyseLayoutButton({
         type="button"
         tone="quiet"
         className="px-2 py-1 text-xs"
-        onClick={analyse}
+        onClick={open}
         disabled={pending}
         aria-label={`Analyse the layout ${name}`}
       >

@@ -4,6 +4,7 @@ import { useState } from "react";
 import { VerdictChip } from "@/components/reports/verdict-chip";
 import type { ComparisonRow } from "@/lib/layout-plans/comparison-view";
 import { formatFigure } from "@/lib/reports/report-view";
+import type { ActionResult } from "@/lib/actions/result";
 import { AnalyseLayoutButton } from "./analyse-layout-button";
 
 type SortKey = keyof Pick<
@@ -49,12 +50,13 @@ export function CandidateTable({
   rows,
   workspaceId,
   planId,
-  canAnalyse,
+  analyseCandidate,
 }: {
   rows: ComparisonRow[];
   workspaceId: string;
   planId: string;
-  canAnalyse: boolean;
+  /** The route's action that registers a candidate's map for analysis; absent for roles that cannot upload. */
+  analyseCandidate?: (ordinal: number) => Promise<ActionResult<unknown>>;
 }) {
   const [sort, setSort] = useState<{ key: SortKey | "rank"; descending: boolean }>({
     key: "rank",
@@ -149,11 +151,10 @@ export function CandidateTable({
                   >
                     {row.name}.csv
                   </a>
-                  {canAnalyse ? (
+                  {analyseCandidate ? (
                     <AnalyseLayoutButton
-                      workspaceId={workspaceId}
-                      planId={planId}
-                      ordinal={row.ordinal}
+                      analyse={() => analyseCandidate(row.ordinal)}
+                      newAnalysisUrl={`/w/${workspaceId}/analyses/new?layoutPlan=${planId}&candidate=${row.ordinal}`}
                       name={row.name}
                     />
                   ) : null}

@@ -3,11 +3,11 @@
 import { useRouter } from "next/navigation";
 import { useState, useTransition, type FormEvent } from "react";
 import { PLAN_DEFAULTS } from "@/lib/validation/analysis-options";
-import { startLayoutPlan } from "@/app/(workspace)/w/[workspaceId]/layouts/actions";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { SelectField } from "@/components/ui/select-field";
+import type { ActionResult } from "@/lib/actions/result";
 import type { LayoutSpec } from "@/lib/analysis";
 import type { GeneratorChoice } from "@/lib/layout-plans/plan-form-defaults";
 import type { LayoutPlanInput } from "@/lib/validation/layout-plan";
@@ -37,11 +37,14 @@ export function PlanForm({
   datasets,
   choices,
   defaultShards,
+  startLayoutPlan,
 }: {
   workspaceId: string;
   datasets: PlanDataset[];
   choices: GeneratorChoice[];
   defaultShards: number;
+  /** The route's action that queues the plan, bound to the workspace. */
+  startLayoutPlan: (input: LayoutPlanInput) => Promise<ActionResult<{ planId: string }>>;
 }) {
   const router = useRouter();
   const [pending, startTransition] = useTransition();
@@ -135,7 +138,7 @@ export function PlanForm({
     setMessage(null);
     setFieldErrors({});
     startTransition(async () => {
-      const result = await startLayoutPlan(workspaceId, input);
+      const result = await startLayoutPlan(input);
       if (result.ok) {
         router.push(`/w/${workspaceId}/layouts/${result.data.planId}`);
         return;

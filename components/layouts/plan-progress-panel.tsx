@@ -3,10 +3,10 @@
 import { useQuery, useQueryClient } from "@tanstack/react-query";
 import Link from "next/link";
 import { useState, useTransition } from "react";
-import { cancelPlan } from "@/app/(workspace)/w/[workspaceId]/layouts/actions";
 import { ProgressBar } from "@/components/analyses/progress-bar";
 import { Button, buttonClasses } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
+import type { ActionResult } from "@/lib/actions/result";
 import { PLAN_STAGE_LABELS } from "@/lib/layout-plans/plan-progress";
 import type { PlanStatusJson } from "@/lib/layout-plans/plan-status";
 import { isFinished } from "@/lib/reports/analysis-status";
@@ -36,11 +36,14 @@ export function PlanProgressPanel({
   planId,
   initial,
   canRun,
+  cancelPlan,
 }: {
   workspaceId: string;
   planId: string;
   initial: PlanStatusJson;
   canRun: boolean;
+  /** The route's cancel action, bound to this plan. */
+  cancelPlan: () => Promise<ActionResult>;
 }) {
   const queryKey = ["layout-plan-status", workspaceId, planId];
   const queryClient = useQueryClient();
@@ -56,7 +59,7 @@ export function PlanProgressPanel({
   const cancel = () => {
     setCancelError(undefined);
     startCancelling(async () => {
-      const result = await cancelPlan(workspaceId, planId);
+      const result = await cancelPlan();
       if (!result.ok) setCancelError(result.message);
       await queryClient.invalidateQueries({ queryKey });
     });

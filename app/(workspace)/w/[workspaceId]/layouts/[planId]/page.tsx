@@ -3,6 +3,7 @@ import Link from "next/link";
 import { PlanProgressPanel } from "@/components/layouts/plan-progress-panel";
 import { roleAllows } from "@/lib/auth/roles";
 import { toPlanStatusJson } from "@/lib/layout-plans/plan-status";
+import { cancelPlan } from "../actions";
 import { describePlanInput, loadPlanPage, type PlanPageParams } from "./load-plan";
 
 export const metadata: Metadata = { title: "Layout plan" };
@@ -27,6 +28,7 @@ export default async function LayoutPlanPage({ params }: { params: PlanPageParam
         planId={plan.id}
         initial={toPlanStatusJson(plan)}
         canRun={roleAllows(workspace.role, "runAnalysis")}
+        cancelPlan={cancelPlan.bind(null, workspace.id, plan.id)}
       />
     </div>
   );

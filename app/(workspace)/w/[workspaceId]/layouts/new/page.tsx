@@ -5,6 +5,7 @@ import { buttonClasses } from "@/components/ui/button";
 import { listDataFiles } from "@/db/queries/data-files";
 import { guardPage } from "@/lib/auth/page-guard";
 import { DEFAULT_PLANNED_SHARDS, GENERATOR_CHOICES } from "@/lib/layout-plans/plan-form-defaults";
+import { startLayoutPlan } from "../actions";
 
 export const metadata: Metadata = { title: "Plan layouts" };
 
@@ -47,6 +48,7 @@ export default async function NewLayoutPlanPage({
           datasets={datasets}
           choices={GENERATOR_CHOICES}
           defaultShards={DEFAULT_PLANNED_SHARDS}
+          startLayoutPlan={startLayoutPlan.bind(null, workspaceId)}
         />
       )}
     </div>

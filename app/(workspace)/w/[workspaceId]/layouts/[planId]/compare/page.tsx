@@ -10,6 +10,7 @@ import { Cautions } from "@/components/workspace/cautions";
 import { roleAllows } from "@/lib/auth/roles";
 import { buildComparisonRows } from "@/lib/layout-plans/comparison-view";
 import { PLAN_DEFAULTS } from "@/lib/validation/analysis-options";
+import { analyseCandidate } from "../../actions";
 import { describePlanInput, loadPlanPage, type PlanPageParams } from "../load-plan";
 
 export const metadata: Metadata = { title: "Compare layouts" };
@@ -88,7 +89,11 @@ export default async function CompareLayoutsPage({ params }: { params: PlanPageP
               rows={rows}
               workspaceId={workspace.id}
               planId={plan.id}
-              canAnalyse={roleAllows(workspace.role, "uploadData")}
+              analyseCandidate={
+                roleAllows(workspace.role, "uploadData")
+                  ? analyseCandidate.bind(null, workspace.id, plan.id)
+                  : undefined
+              }
             />
             <p className="text-sm text-ink-soft">
               Download a candidate&apos;s partition map to use it in a pipeline, or analyse it to
