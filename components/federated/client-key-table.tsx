@@ -1,6 +1,6 @@
-import { revokeFederatedClientKey } from "@/app/(workspace)/w/[workspaceId]/federated/actions";
 import { describeSecretState } from "@/components/tokens/secret-state";
 import { ConfirmActionButton } from "@/components/ui/confirm-action-button";
+import type { ActionResult } from "@/lib/actions/result";
 import type { FederatedStatus } from "@/lib/federated";
 
 const dateTimeFormat = new Intl.DateTimeFormat("en", {
@@ -13,15 +13,12 @@ type ClientKey = FederatedStatus["keys"][number];
 
 /** The analysis's client keys (never the keys themselves): whose, when used, expiry, Revoke. */
 export function ClientKeyTable({
-  workspaceId,
-  analysisId,
   keys,
-  canRevoke,
+  revokeKey,
 }: {
-  workspaceId: string;
-  analysisId: string;
   keys: ClientKey[];
-  canRevoke: boolean;
+  /** The route's action, bound to this analysis; absent for roles that cannot revoke. */
+  revokeKey?: (keyId: string) => Promise<ActionResult>;
 }) {
   if (keys.length === 0) {
     return <p className="text-sm text-ink-soft">No keys issued yet.</p>;
@@ -54,11 +51,11 @@ export function ClientKeyTable({
                 </td>
                 <td className="px-3 py-2">{state.label}</td>
                 <td className="px-3 py-2 text-right">
-                  {state.live && canRevoke ? (
+                  {state.live && revokeKey ? (
                     <ConfirmActionButton
                       label="Revoke"
                       confirmation={`Revoke this key of “${key.client}”? A client using it can send nothing more with it.`}
-                      action={revokeFederatedClientKey.bind(null, workspaceId, analysisId, key.id)}
+                      action={revokeKey.bind(null, key.id)}
                     />
                   ) : null}
                 </td>

@@ -1,10 +1,11 @@
 "use client";
 
 import { useState, useTransition, type FormEvent } from "react";
-import { issueFederatedClientKey } from "@/app/(workspace)/w/[workspaceId]/federated/actions";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import { SelectField } from "@/components/ui/select-field";
+import type { ActionResult } from "@/lib/actions/result";
+import type { IssueClientKeyInput, IssuedClientKey } from "@/lib/validation/federated-analysis";
 import { CopyButton } from "./copy-button";
 
 const dateTimeFormat = new Intl.DateTimeFormat("en", {
@@ -26,17 +27,16 @@ export function clientCommand(origin: string, key: string, labelColumn: string):
  * runs; Partita keeps only the key's hash.
  */
 export function IssueKeyForm({
-  workspaceId,
-  analysisId,
   clients,
   lifetimes,
   labelColumn,
+  issueKey,
 }: {
-  workspaceId: string;
-  analysisId: string;
   clients: string[];
   lifetimes: readonly number[];
   labelColumn: string;
+  /** The route's action, bound to this analysis. */
+  issueKey: (input: IssueClientKeyInput) => Promise<ActionResult<IssuedClientKey>>;
 }) {
   const [client, setClient] = useState(clients[0] ?? "");
   const [lifetimeDays, setLifetimeDays] = useState(7);
@@ -47,7 +47,7 @@ export function IssueKeyForm({
   function submit(event: FormEvent) {
     event.preventDefault();
     startTransition(async () => {
-      const result = await issueFederatedClientKey(workspaceId, analysisId, {
+      const result = await issueKey({
         client,
         lifetimeDays,
       });

@@ -1,9 +1,9 @@
 "use client";
 
 import { useState, useTransition } from "react";
-import { closeFederatedRoster } from "@/app/(workspace)/w/[workspaceId]/federated/actions";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
+import type { ActionResult } from "@/lib/actions/result";
 
 /** The confirmation that names who will be left out. */
 export function closeRosterQuestion(waitingFor: string[]): string {
@@ -13,13 +13,12 @@ export function closeRosterQuestion(waitingFor: string[]): string {
 
 /** Goes on without the clients that have not sent round 1, after asking, naming them. */
 export function CloseRosterButton({
-  workspaceId,
-  analysisId,
   waitingFor,
+  closeRoster,
 }: {
-  workspaceId: string;
-  analysisId: string;
   waitingFor: string[];
+  /** The route's action, bound to this analysis. */
+  closeRoster: () => Promise<ActionResult<{ missing: string[] }>>;
 }) {
   const [error, setError] = useState<string>();
   const [pending, startTransition] = useTransition();
@@ -32,7 +31,7 @@ export function CloseRosterButton({
         onClick={() => {
           if (!window.confirm(closeRosterQuestion(waitingFor))) return;
           startTransition(async () => {
-            const result = await closeFederatedRoster(workspaceId, analysisId);
+            const result = await closeRoster();
             setError(result.ok ? undefined : result.message);
           });
         }}

@@ -1,11 +1,12 @@
 "use client";
 
 import { useState, useTransition, type FormEvent } from "react";
-import { uploadClientDigest } from "@/app/(workspace)/w/[workspaceId]/federated/actions";
 import { ChoiceOption } from "@/components/analyses/form-controls";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import { SelectField } from "@/components/ui/select-field";
+import type { ActionResult } from "@/lib/actions/result";
+import type { DigestUploadInput } from "@/lib/validation/federated-analysis";
 
 const ROUNDS = [
   {
@@ -30,13 +31,12 @@ const MAX_UPLOAD_BYTES = 7.5 * 1024 * 1024;
  * checked exactly as if the client had sent it. The choices and the file stay after a refusal.
  */
 export function DigestUploadForm({
-  workspaceId,
-  analysisId,
   clients,
+  uploadDigest,
 }: {
-  workspaceId: string;
-  analysisId: string;
   clients: string[];
+  /** The route's action, bound to this analysis. */
+  uploadDigest: (input: DigestUploadInput) => Promise<ActionResult<{ repeated: boolean }>>;
 }) {
   const [client, setClient] = useState(clients[0] ?? "");
   const [round, setRound] = useState<Round>("schema");
@@ -59,7 +59,7 @@ export function DigestUploadForm({
     }
     startTransition(async () => {
       const text = await file.text();
-      const result = await uploadClientDigest(workspaceId, analysisId, {
+      const result = await uploadDigest({
         client,
         round,
         fileName: file.name,

@@ -4,13 +4,13 @@ import { zodResolver } from "@hookform/resolvers/zod";
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { FormProvider, useForm, useWatch, type FieldPath } from "react-hook-form";
-import { createFederatedFromForm } from "@/app/(workspace)/w/[workspaceId]/federated/actions";
 import { ChoiceGroup } from "@/components/analyses/analysis-fields";
 import { FormStep } from "@/components/analyses/form-controls";
 import { PlanFields } from "@/components/analyses/plan-step";
 import { ReferencePointFields } from "@/components/analyses/reference-step";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
+import type { ActionResult } from "@/lib/actions/result";
 import { federatedFormSchema, type FederatedFormValues } from "@/lib/validation/federated-form";
 import { FederatedField, FederatedTextArea } from "./federated-fields";
 import { WeightsFileField } from "./weights-file-field";
@@ -33,9 +33,12 @@ const TASKS = [
 export function FederatedForm({
   workspaceId,
   initialValues,
+  createFederated,
 }: {
   workspaceId: string;
   initialValues: FederatedFormValues;
+  /** The route's action, bound to the workspace. */
+  createFederated: (values: FederatedFormValues) => Promise<ActionResult<{ analysisId: string }>>;
 }) {
   const router = useRouter();
   const [notice, setNotice] = useState<string>();
@@ -48,7 +51,7 @@ export function FederatedForm({
 
   const submit = form.handleSubmit(async (values) => {
     setNotice(undefined);
-    const result = await createFederatedFromForm(workspaceId, values);
+    const result = await createFederated(values);
     if (result.ok) {
       router.push(`/w/${workspaceId}/federated/${result.data.analysisId}`);
       return;

@@ -63,3 +63,21 @@ export const issueClientKeySchema = z.object({
 });
 
 export type IssueClientKeyInput = z.input<typeof issueClientKeySchema>;
+
+/** A key just issued: shown once, with its client and expiry; only its hash is kept. */
+export interface IssuedClientKey {
+  key: string;
+  keyId: string;
+  client: string;
+  expiresAt: Date;
+}
+
+/** A client's digest file uploaded by the analyst on its behalf (the roster page's form). */
+export const digestUploadSchema = z.object({
+  client: z.string().trim().min(1, "Choose the client whose file this is."),
+  round: z.enum(["schema", "gradients"]),
+  fileName: z.string().max(300),
+  text: z.string().min(1, "The file is empty."),
+});
+
+export type DigestUploadInput = z.input<typeof digestUploadSchema>;

@@ -15,7 +15,12 @@ import {
   issueClientKey,
   revokeClientKey,
 } from "@/lib/federated";
-import type { IssueClientKeyInput } from "@/lib/validation/federated-analysis";
+import {
+  digestUploadSchema,
+  type DigestUploadInput,
+  type IssueClientKeyInput,
+  type IssuedClientKey,
+} from "@/lib/validation/federated-analysis";
 import {
   federatedFormSchema,
   formPathOf,
@@ -59,7 +64,7 @@ export async function issueFederatedClientKey(
   workspaceId: string,
   analysisId: string,
   input: IssueClientKeyInput,
-): Promise<ActionResult<{ key: string; keyId: string; client: string; expiresAt: Date }>> {
+): Promise<ActionResult<IssuedClientKey>> {
   try {
     const { user } = await requireRole(workspaceId, "runAnalysis");
     const issued = await issueClientKey(workspaceId, user, analysisId, input);
@@ -115,15 +120,6 @@ export async function cancelFederated(
     return failWith(error, "cancel-federated-analysis");
   }
 }
-
-const digestUploadSchema = z.object({
-  client: z.string().trim().min(1, "Choose the client whose file this is."),
-  round: z.enum(["schema", "gradients"]),
-  fileName: z.string().max(300),
-  text: z.string().min(1, "The file is empty."),
-});
-
-export type DigestUploadInput = z.input<typeof digestUploadSchema>;
 
 /**
  * A client's digest file (what `npm run digest -- schema …` or `gradients …` wrote) uploaded by

@@ -1,7 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
-import { cancelFederated } from "@/app/(workspace)/w/[workspaceId]/federated/actions";
 import { AutoRefresh } from "@/components/federated/auto-refresh";
 import { IssueKeyForm } from "@/components/federated/client-keys-panel";
 import { ClientKeyTable } from "@/components/federated/client-key-table";
@@ -19,6 +18,13 @@ import { roleAllows } from "@/lib/auth/roles";
 import { RuleError } from "@/lib/errors";
 import { getFederatedStatus, type FederatedStatus } from "@/lib/federated";
 import { CLIENT_KEY_LIFETIME_DAYS } from "@/lib/validation/federated-analysis";
+import {
+  cancelFederated,
+  closeFederatedRoster,
+  issueFederatedClientKey,
+  revokeFederatedClientKey,
+  uploadClientDigest,
+} from "../actions";
 
 export const metadata: Metadata = { title: "Federated analysis" };
 
@@ -134,9 +140,8 @@ export default async function FederatedAnalysisPage({
           </div>
           {canRun && roundOneOpen && waitingFor.length > 0 && waitingFor.length < clients.length ? (
             <CloseRosterButton
-              workspaceId={workspace.id}
-              analysisId={status.id}
               waitingFor={waitingFor}
+              closeRoster={closeFederatedRoster.bind(null, workspace.id, status.id)}
             />
           ) : null}
         </div>
@@ -153,18 +158,17 @@ export default async function FederatedAnalysisPage({
         </p>
         {canRun && waiting ? (
           <IssueKeyForm
-            workspaceId={workspace.id}
-            analysisId={status.id}
+            issueKey={issueFederatedClientKey.bind(null, workspace.id, status.id)}
             clients={clients}
             lifetimes={CLIENT_KEY_LIFETIME_DAYS}
             labelColumn={status.labelColumn}
           />
         ) : null}
         <ClientKeyTable
-          workspaceId={workspace.id}
-          analysisId={status.id}
           keys={status.keys}
-          canRevoke={canRun}
+          revokeKey={
+            canRun ? revokeFederatedClientKey.bind(null, workspace.id, status.id) : undefined
+          }
         />
       </section>
 
@@ -187,7 +191,10 @@ export default async function FederatedAnalysisPage({
               Download the encoding
             </a>
           ) : null}
-          <DigestUploadForm workspaceId={workspace.id} analysisId={status.id} clients={clients} />
+          <DigestUploadForm
+            clients={clients}
+            uploadDigest={uploadClientDigest.bind(null, workspace.id, status.id)}
+          />
         </section>
       ) : null}
 

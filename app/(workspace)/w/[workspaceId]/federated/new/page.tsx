@@ -5,6 +5,7 @@ import { DEFAULT_MINIMUM_SHARD_ROWS } from "@/lib/analysis";
 import { guardPage } from "@/lib/auth/page-guard";
 import { findPlanToRevise } from "@/lib/federated";
 import { emptyFederatedForm, federatedFormFrom } from "@/lib/validation/federated-form";
+import { createFederatedFromForm } from "../actions";
 
 export const metadata: Metadata = { title: "New federated analysis" };
 
@@ -45,6 +46,7 @@ export default async function NewFederatedAnalysisPage({
       ) : null}
       <FederatedForm
         workspaceId={workspaceId}
+        createFederated={createFederatedFromForm.bind(null, workspaceId)}
         initialValues={
           earlier && revise
             ? federatedFormFrom(earlier, revise)
