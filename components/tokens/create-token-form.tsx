@@ -1,14 +1,21 @@
 "use client";
 
 import { useState, useTransition, type FormEvent } from "react";
-import { createApiToken } from "@/app/(workspace)/w/[workspaceId]/tokens/actions";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
-import { TOKEN_LIFETIME_DAYS } from "@/lib/auth/api-token-schema";
+import type { ActionResult } from "@/lib/actions/result";
+import { TOKEN_LIFETIME_DAYS, type CreateApiTokenInput } from "@/lib/auth/api-token-schema";
 
 /** Names a new token, picks its lifetime, and shows the token once after it is made. */
-export function CreateTokenForm({ workspaceId }: { workspaceId: string }) {
+export function CreateTokenForm({
+  createToken,
+}: {
+  /** The route's action, bound to the workspace. */
+  createToken: (
+    input: CreateApiTokenInput,
+  ) => Promise<ActionResult<{ token: string; name: string; expiresAt: Date }>>;
+}) {
   const [name, setName] = useState("");
   const [lifetimeDays, setLifetimeDays] = useState<number>(90);
   const [fieldErrors, setFieldErrors] = useState<Record<string, string>>({});
@@ -20,7 +27,7 @@ export function CreateTokenForm({ workspaceId }: { workspaceId: string }) {
   function submit(event: FormEvent) {
     event.preventDefault();
     startTransition(async () => {
-      const result = await createApiToken(workspaceId, { name, lifetimeDays });
+      const result = await createToken({ name, lifetimeDays });
       if (result.ok) {
         setCreated({ token: result.data.token, name: result.data.name });
         setCopied(false);

@@ -1,6 +1,6 @@
 import type { ApiTokenListItem } from "@/db/queries/api-tokens";
-import { revokeApiTokenAction } from "@/app/(workspace)/w/[workspaceId]/tokens/actions";
 import { ConfirmActionButton } from "@/components/ui/confirm-action-button";
+import type { ActionResult } from "@/lib/actions/result";
 import { describeSecretState } from "./secret-state";
 
 const dateFormat = new Intl.DateTimeFormat("en", { dateStyle: "medium", timeZone: "UTC" });
@@ -15,11 +15,12 @@ const dateTimeFormat = new Intl.DateTimeFormat("en", {
  * rows (an owner's view of other members' tokens) a column says whose each one is.
  */
 export function TokenTable({
-  workspaceId,
   tokens,
   label,
+  revokeToken,
 }: {
-  workspaceId: string;
+  /** The route's revoke action, bound to the workspace. */
+  revokeToken: (tokenId: string) => Promise<ActionResult>;
   tokens: (ApiTokenListItem & { holderEmail?: string })[];
   label: string;
 }) {
@@ -62,7 +63,7 @@ export function TokenTable({
                     <ConfirmActionButton
                       label="Revoke"
                       confirmation={`Revoke “${token.name}”? Pipelines using it stop working at once.`}
-                      action={revokeApiTokenAction.bind(null, workspaceId, token.id)}
+                      action={revokeToken.bind(null, token.id)}
                     />
                   ) : null}
                 </td>

@@ -5,6 +5,7 @@ import { listApiTokens, listOthersApiTokens } from "@/db/queries/api-tokens";
 import { API_TOKEN_PREFIX } from "@/lib/auth/api-token-secret";
 import { guardPage } from "@/lib/auth/page-guard";
 import { roleAllows } from "@/lib/auth/roles";
+import { createApiToken, revokeApiTokenAction } from "./actions";
 
 export const metadata: Metadata = { title: "API tokens" };
 
@@ -36,7 +37,11 @@ export default async function TokensPage({ params }: { params: Promise<{ workspa
               You have no tokens in this workspace yet. Create one to run analyses from a pipeline.
             </p>
           ) : (
-            <TokenTable workspaceId={workspace.id} tokens={tokens} label="Your tokens" />
+            <TokenTable
+              tokens={tokens}
+              label="Your tokens"
+              revokeToken={revokeApiTokenAction.bind(null, workspace.id)}
+            />
           )}
         </section>
         {oversees ? (
@@ -53,7 +58,7 @@ export default async function TokensPage({ params }: { params: Promise<{ workspa
               <p className="text-sm text-ink-soft">No other member holds a token here.</p>
             ) : (
               <TokenTable
-                workspaceId={workspace.id}
+                revokeToken={revokeApiTokenAction.bind(null, workspace.id)}
                 tokens={othersTokens}
                 label="Other members' tokens"
               />
@@ -62,7 +67,7 @@ export default async function TokensPage({ params }: { params: Promise<{ workspa
         ) : null}
       </div>
       <aside>
-        <CreateTokenForm workspaceId={workspace.id} />
+        <CreateTokenForm createToken={createApiToken.bind(null, workspace.id)} />
       </aside>
     </div>
   );
