@@ -1,13 +1,21 @@
 "use client";
 
 import { useState, useTransition, type FormEvent } from "react";
-import { inviteMember } from "@/app/(workspace)/w/[workspaceId]/members/actions";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { ROLE_DESCRIPTIONS, ROLE_LABELS, ROLES, type Role } from "@/lib/auth/roles";
+import type { ActionResult } from "@/lib/actions/result";
 
-export function InviteForm({ workspaceId }: { workspaceId: string }) {
+export function InviteForm({
+  inviteMember,
+}: {
+  /** The route's action, bound to the workspace. */
+  inviteMember: (input: {
+    email: string;
+    role: string;
+  }) => Promise<ActionResult<{ email: string }>>;
+}) {
   const [email, setEmail] = useState("");
   const [role, setRole] = useState<Role>("analyst");
   const [fieldErrors, setFieldErrors] = useState<Record<string, string>>({});
@@ -17,7 +25,7 @@ export function InviteForm({ workspaceId }: { workspaceId: string }) {
   function submit(event: FormEvent) {
     event.preventDefault();
     startTransition(async () => {
-      const result = await inviteMember(workspaceId, { email, role });
+      const result = await inviteMember({ email, role });
       if (result.ok) {
         setNotice({ tone: "success", text: `Invitation sent to ${result.data.email}.` });
         setFieldErrors({});

@@ -1,20 +1,23 @@
 "use client";
 
 import { useState, useTransition } from "react";
-import { changeMemberRole, removeMember } from "@/app/(workspace)/w/[workspaceId]/members/actions";
+import type { ActionResult } from "@/lib/actions/result";
 import { ROLE_LABELS, ROLES, type Role } from "@/lib/auth/roles";
 
 /** An owner's controls on one member row: change the role, or remove them. */
 export function MemberControls({
-  workspaceId,
   userId,
   role,
   label,
+  changeMemberRole,
+  removeMember,
 }: {
-  workspaceId: string;
   userId: string;
   role: Role;
   label: string;
+  /** The route's actions, bound to the workspace (and removal to this member). */
+  changeMemberRole: (input: { userId: string; role: string }) => Promise<ActionResult>;
+  removeMember: () => Promise<ActionResult>;
 }) {
   const [error, setError] = useState<string>();
   const [pending, startTransition] = useTransition();
@@ -36,9 +39,7 @@ export function MemberControls({
         id={`role-${userId}`}
         value={role}
         disabled={pending}
-        onChange={(event) =>
-          run(() => changeMemberRole(workspaceId, { userId, role: event.target.value }))
-        }
+        onChange={(event) => run(() => changeMemberRole({ userId, role: event.target.value }))}
         className="rounded-md border border-ink/20 bg-white px-2 py-1 text-sm"
       >
         {ROLES.map((option) => (
@@ -51,8 +52,7 @@ export function MemberControls({
         type="button"
         disabled={pending}
         onClick={() => {
-          if (window.confirm(`Remove ${label} from this workspace?`))
-            run(() => removeMember(workspaceId, userId));
+          if (window.confirm(`Remove ${label} from this workspace?`)) run(() => removeMember());
         }}
         className="rounded px-2 py-1 text-sm text-cadmium hover:bg-cadmium-soft"
       >

@@ -6,7 +6,7 @@ import { listPendingInvitations } from "@/db/queries/invitations";
 import { listMembers } from "@/db/queries/members";
 import { guardPage } from "@/lib/auth/page-guard";
 import { ROLE_LABELS, roleAllows } from "@/lib/auth/roles";
-import { withdrawInvitationAction } from "./actions";
+import { changeMemberRole, inviteMember, removeMember, withdrawInvitationAction } from "./actions";
 
 export const metadata: Metadata = { title: "Members" };
 
@@ -64,7 +64,8 @@ export default async function MembersPage({
                   <td className="px-4 py-3 text-right">
                     {canManage ? (
                       <MemberControls
-                        workspaceId={workspaceId}
+                        changeMemberRole={changeMemberRole.bind(null, workspaceId)}
+                        removeMember={removeMember.bind(null, workspaceId, member.userId)}
                         userId={member.userId}
                         role={member.role}
                         label={member.name ?? member.email}
@@ -105,7 +106,7 @@ export default async function MembersPage({
         ) : null}
       </section>
       {canManage ? (
-        <InviteForm workspaceId={workspaceId} />
+        <InviteForm inviteMember={inviteMember.bind(null, workspaceId)} />
       ) : (
         <p className="text-sm text-ink-soft">Only owners can invite people or change roles.</p>
       )}
