@@ -1,11 +1,11 @@
 "use client";
 
 import { useState, type FormEvent } from "react";
-import { postComment } from "@/app/(workspace)/w/[workspaceId]/reports/[reportId]/review-actions";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import { REPORT_SECTIONS } from "@/lib/reviews/anchors";
 import { TextArea } from "@/components/ui/text-area";
+import type { ReportReviewActions } from "./report-review-actions";
 import { useReviewAction } from "./use-review-action";
 
 /** The pin's value while a shard is named by typing its id (a report with too many to list). */
@@ -17,13 +17,11 @@ const TYPED_SHARD = "typed-shard";
  * report has too many shards for a list: the reader types the id and the server checks it.
  */
 export function CommentForm({
-  workspaceId,
-  reportId,
+  postComment,
   shardIds = [],
   parentId,
 }: {
-  workspaceId: string;
-  reportId: string;
+  postComment: ReportReviewActions["postComment"];
   shardIds?: string[] | null;
   parentId?: string;
 }) {
@@ -42,7 +40,7 @@ export function CommentForm({
       ? { anchorKind: chosen.slice(0, separator), anchor: chosen.slice(separator + 1) }
       : {};
     run(
-      () => postComment(workspaceId, reportId, { body, parentId, ...anchor }),
+      () => postComment({ body, parentId, ...anchor }),
       ({ mentioned }) => {
         setBody("");
         setPin("");

@@ -3,6 +3,7 @@ import { describeAnchor } from "@/lib/reviews/anchors";
 import { formatReportDate } from "@/lib/reports/report-view";
 import { CommentForm } from "./comment-form";
 import { OwnComment } from "./own-comment";
+import type { ReportReviewActions } from "./report-review-actions";
 
 type Thread = { first: ReviewComment; replies: ReviewComment[] };
 
@@ -40,14 +41,12 @@ function CommentBody({ comment }: { comment: ReviewComment }) {
 }
 
 export function CommentThreads({
-  workspaceId,
-  reportId,
+  actions,
   comments,
   canComment,
   viewerId,
 }: {
-  workspaceId: string;
-  reportId: string;
+  actions: Pick<ReportReviewActions, "postComment" | "reviseComment" | "removeComment">;
   comments: ReviewComment[];
   canComment: boolean;
   /** The reader: their own comments get Edit and Delete. */
@@ -57,12 +56,7 @@ export function CommentThreads({
   // The reader's own live comments, while they may still comment, can be changed.
   const showComment = (comment: ReviewComment) =>
     canComment && comment.authorId === viewerId && !comment.deletedAt ? (
-      <OwnComment
-        workspaceId={workspaceId}
-        reportId={reportId}
-        commentId={comment.id}
-        body={comment.body}
-      >
+      <OwnComment actions={actions} commentId={comment.id} body={comment.body}>
         <CommentBody comment={comment} />
       </OwnComment>
     ) : (
@@ -96,7 +90,7 @@ export function CommentThreads({
             ) : null}
             {canComment ? (
               <div className="no-print">
-                <CommentForm workspaceId={workspaceId} reportId={reportId} parentId={first.id} />
+                <CommentForm postComment={actions.postComment} parentId={first.id} />
               </div>
             ) : null}
           </li>

@@ -1,11 +1,11 @@
 "use client";
 
 import { useState, type FormEvent } from "react";
-import { decideReview } from "@/app/(workspace)/w/[workspaceId]/reports/[reportId]/review-actions";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import type { ReviewDecisionKind } from "@/lib/reviews/review-state";
 import { TextArea } from "@/components/ui/text-area";
+import type { ReportReviewActions } from "./report-review-actions";
 import { useReviewAction } from "./use-review-action";
 
 const CHOICES: { value: ReviewDecisionKind; label: string; hint: string }[] = [
@@ -23,12 +23,10 @@ const CHOICES: { value: ReviewDecisionKind; label: string; hint: string }[] = [
 
 /** Endorse this version's layout or return it for rework, with the reason the referrer will read. */
 export function DecisionForm({
-  workspaceId,
-  reportId,
+  decideReview,
   version,
 }: {
-  workspaceId: string;
-  reportId: string;
+  decideReview: ReportReviewActions["decideReview"];
   version: number;
 }) {
   const [decision, setDecision] = useState<ReviewDecisionKind>();
@@ -39,7 +37,7 @@ export function DecisionForm({
     event.preventDefault();
     run(
       // An unchosen decision goes to the server as "", which answers with the field's message.
-      () => decideReview(workspaceId, reportId, { decision: decision ?? "", reason }),
+      () => decideReview({ decision: decision ?? "", reason }),
       () => {
         setReason("");
         setDecision(undefined);

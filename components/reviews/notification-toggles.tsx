@@ -1,9 +1,9 @@
 "use client";
 
 import { useState, useTransition } from "react";
-import { updateNotificationSetting } from "@/app/(workspace)/w/[workspaceId]/settings/notifications/actions";
 import { Notice } from "@/components/ui/notice";
 import type { NotificationKind } from "@/db/schema/reviews";
+import type { ActionResult } from "@/lib/actions/result";
 
 const KINDS: { kind: NotificationKind; label: string; hint: string }[] = [
   {
@@ -26,10 +26,11 @@ const KINDS: { kind: NotificationKind; label: string; hint: string }[] = [
 
 /** One switch per kind of e-mail; each change is saved at once. */
 export function NotificationToggles({
-  workspaceId,
   initial,
+  updateNotificationSetting,
 }: {
-  workspaceId: string;
+  /** The route's action, bound to the workspace. */
+  updateNotificationSetting: (input: { kind: string; enabled: boolean }) => Promise<ActionResult>;
   initial: Record<NotificationKind, boolean>;
 }) {
   const [settings, setSettings] = useState(initial);
@@ -39,7 +40,7 @@ export function NotificationToggles({
   function toggle(kind: NotificationKind, enabled: boolean) {
     setSettings((current) => ({ ...current, [kind]: enabled }));
     startTransition(async () => {
-      const result = await updateNotificationSetting(workspaceId, { kind, enabled });
+      const result = await updateNotificationSetting({ kind, enabled });
       if (result.ok) {
         setError(undefined);
         return;

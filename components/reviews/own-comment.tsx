@@ -1,14 +1,11 @@
 "use client";
 
 import { useState, type FormEvent, type ReactNode } from "react";
-import {
-  removeComment,
-  reviseComment,
-} from "@/app/(workspace)/w/[workspaceId]/reports/[reportId]/review-actions";
 import { Button } from "@/components/ui/button";
 import { ConfirmActionButton } from "@/components/ui/confirm-action-button";
 import { Notice } from "@/components/ui/notice";
 import { TextArea } from "@/components/ui/text-area";
+import type { ReportReviewActions } from "./report-review-actions";
 import { useReviewAction } from "./use-review-action";
 
 /**
@@ -16,14 +13,12 @@ import { useReviewAction } from "./use-review-action";
  * form holding it (Escape or Cancel leaves it unchanged); Delete asks first.
  */
 export function OwnComment({
-  workspaceId,
-  reportId,
+  actions,
   commentId,
   body,
   children,
 }: {
-  workspaceId: string;
-  reportId: string;
+  actions: Pick<ReportReviewActions, "reviseComment" | "removeComment">;
   commentId: string;
   body: string;
   /** The comment as everyone sees it. */
@@ -37,7 +32,7 @@ export function OwnComment({
   function save(event: FormEvent) {
     event.preventDefault();
     run(
-      () => reviseComment(workspaceId, reportId, { commentId, body: draft }),
+      () => actions.reviseComment({ commentId, body: draft }),
       ({ mentioned }) => {
         setEditing(false);
         return mentioned > 0
@@ -98,7 +93,7 @@ export function OwnComment({
         <ConfirmActionButton
           label="Delete"
           confirmation="Delete your comment? Replies to it stay; the audit log keeps what it said."
-          action={() => removeComment(workspaceId, reportId, commentId)}
+          action={() => actions.removeComment(commentId)}
         />
       </div>
     </div>

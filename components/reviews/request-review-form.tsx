@@ -1,22 +1,20 @@
 "use client";
 
 import { useState, type FormEvent } from "react";
-import { requestReview } from "@/app/(workspace)/w/[workspaceId]/reports/[reportId]/review-actions";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import { TextArea } from "@/components/ui/text-area";
+import type { ReportReviewActions } from "./report-review-actions";
 import { useReviewAction } from "./use-review-action";
 
 export type ReviewerOption = { userId: string; label: string; detail: string };
 
 /** Refer this version to owners/reviewers; each gets an e-mail with a link to it. */
 export function RequestReviewForm({
-  workspaceId,
-  reportId,
+  requestReview,
   candidates,
 }: {
-  workspaceId: string;
-  reportId: string;
+  requestReview: ReportReviewActions["requestReview"];
   candidates: ReviewerOption[];
 }) {
   const [chosen, setChosen] = useState<string[]>([]);
@@ -26,7 +24,7 @@ export function RequestReviewForm({
   function submit(event: FormEvent) {
     event.preventDefault();
     run(
-      () => requestReview(workspaceId, reportId, { reviewerIds: chosen, note: note || undefined }),
+      () => requestReview({ reviewerIds: chosen, note: note || undefined }),
       ({ asked }) => {
         setChosen([]);
         setNote("");

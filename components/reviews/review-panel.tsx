@@ -5,6 +5,7 @@ import { DECISION_PAST_TENSE, DECISION_TITLES, latestDecisions } from "@/lib/rev
 import { CommentForm } from "./comment-form";
 import { CommentThreads } from "./comment-threads";
 import { DecisionForm } from "./decision-form";
+import type { ReportReviewActions } from "./report-review-actions";
 import { RequestReviewForm } from "./request-review-form";
 import { ReviewStateChip } from "./review-state-chip";
 
@@ -13,14 +14,14 @@ import { ReviewStateChip } from "./review-state-chip";
  * reasons), the comment threads, and the forms the viewer's role allows.
  */
 export function ReviewPanel({
-  workspaceId,
+  actions,
   report,
   overview,
   candidates,
   viewerId,
   can,
 }: {
-  workspaceId: string;
+  actions: ReportReviewActions;
   /** shardIds: every shard's id, or null when there are too many to pick from a list. */
   report: { id: string; version: number; shardIds: string[] | null };
   overview: ReviewOverview;
@@ -101,29 +102,24 @@ export function ReviewPanel({
 
       <div className="no-print grid gap-6 md:grid-cols-2">
         {can.request ? (
-          <RequestReviewForm workspaceId={workspaceId} reportId={report.id} candidates={askable} />
+          <RequestReviewForm requestReview={actions.requestReview} candidates={askable} />
         ) : null}
         {can.decide ? (
-          <DecisionForm workspaceId={workspaceId} reportId={report.id} version={report.version} />
+          <DecisionForm decideReview={actions.decideReview} version={report.version} />
         ) : null}
       </div>
 
       <div className="space-y-3">
         <h3 className="font-semibold">Comments</h3>
         <CommentThreads
-          workspaceId={workspaceId}
-          reportId={report.id}
+          actions={actions}
           comments={overview.comments}
           canComment={can.comment}
           viewerId={viewerId}
         />
         {can.comment ? (
           <div className="no-print">
-            <CommentForm
-              workspaceId={workspaceId}
-              reportId={report.id}
-              shardIds={report.shardIds}
-            />
+            <CommentForm postComment={actions.postComment} shardIds={report.shardIds} />
           </div>
         ) : null}
       </div>

@@ -25,6 +25,13 @@ import { roleAllows } from "@/lib/auth/roles";
 import { describeRun } from "@/lib/reports/run-notes";
 import { readShardTableView, SHARD_PAGE_SIZE } from "@/lib/reports/shard-table-view";
 import type { SearchParams } from "@/lib/validation/url-filters";
+import {
+  decideReview,
+  postComment,
+  removeComment,
+  requestReview,
+  reviseComment,
+} from "./review-actions";
 
 type PageProps = {
   params: Promise<{ workspaceId: string; reportId: string }>;
@@ -113,7 +120,13 @@ export default async function ReportPage({ params, searchParams }: PageProps) {
       <PreprocessingNotes summary={summary} />
       <MethodsSection summary={summary} />
       <ReviewPanel
-        workspaceId={workspace.id}
+        actions={{
+          requestReview: requestReview.bind(null, workspace.id, report.id),
+          decideReview: decideReview.bind(null, workspace.id, report.id),
+          postComment: postComment.bind(null, workspace.id, report.id),
+          reviseComment: reviseComment.bind(null, workspace.id, report.id),
+          removeComment: removeComment.bind(null, workspace.id, report.id),
+        }}
         report={{
           id: report.id,
           version: report.version,

@@ -4,6 +4,7 @@ import { NotificationToggles } from "@/components/reviews/notification-toggles";
 import { readNotificationSettings } from "@/db/queries/notification-preferences";
 import { guardPage } from "@/lib/auth/page-guard";
 import { notificationSettingsPath } from "@/lib/notifications/links";
+import { updateNotificationSetting } from "./actions";
 
 export const metadata: Metadata = { title: "E-mail notifications" };
 
@@ -34,7 +35,10 @@ export default async function NotificationSettingsPage({
           </Link>
         </p>
       </div>
-      <NotificationToggles workspaceId={workspace.id} initial={settings} />
+      <NotificationToggles
+        initial={settings}
+        updateNotificationSetting={updateNotificationSetting.bind(null, workspace.id)}
+      />
     </div>
   );
 }
