@@ -122,6 +122,118 @@ print(json.dumps(r.x.tolist()))`,
     trial.forEach((value, i) => expect(value).toBeCloseTo(x2.x[i] - hg[i], 12));
   });
 
+  it("steps by −P∇f first, then by the BFGS update of γP with γ = sᵀy / yᵀPy", () => {
+    // f = ½ xᵀAx − bᵀx with A = [[3, 1], [1, 2]], b = (1, −1), and a preconditioner P = diag(¼, ½)
+    // that is not A⁻¹. The doc of minimizeLbfgs: the first direction is −P∇f (unscaled), later
+    // ones −H∇f with H the two-loop recursion's matrix, whose initial matrix is γP (Nocedal &
+    // Wright, "Numerical Optimization", 2nd ed., eqs. 7.20 and 6.17; from memory). Each line search
+    // tries the unit step first, so the trial points follow from the formulas alone.
+    const f = (point: Float64Array, gradient: Float64Array) => {
+      const [x, y] = point;
+      gradient[0] = 3 * x + y - 1;
+      gradient[1] = x + 2 * y + 1;
+      return 0.5 * (3 * x * x + 2 * x * y + 2 * y * y) - x + y;
+    };
+    const evaluated: { x: number[]; g: number[]; value: number }[] = [];
+    const reported: { iteration: number; gradientNorm: number }[] = [];
+    const result = minimizeLbfgs(
+      (point, gradient) => {
+        const value = f(point, gradient);
+        evaluated.push({ x: [...point], g: [...gradient], value });
+        return value;
+      },
+      Float64Array.of(2, 1),
+      {
+        gradientTolerance: 1e-10,
+        precondition: (vector) => {
+          vector[0] *= 0.25;
+          vector[1] *= 0.5;
+        },
+        onIteration: (iteration, gradientNorm) => reported.push({ iteration, gradientNorm }),
+      },
+    );
+    const [x0, firstTrial] = evaluated;
+    expect(firstTrial.x[0]).toBeCloseTo(x0.x[0] - 0.25 * x0.g[0], 14);
+    expect(firstTrial.x[1]).toBeCloseTo(x0.x[1] - 0.5 * x0.g[1], 14);
+
+    // The unit step passes Armijo here (f drops from 8 to −0.125), so the first trial is x₁.
+    const x1 = firstTrial;
+    const dotOf = (a: number[], b: number[]) =>
+      a.reduce((total, value, i) => total + value * b[i], 0);
+    const s = x1.x.map((value, i) => value - x0.x[i]);
+    const y = x1.g.map((value, i) => value - x0.g[i]);
+    const rho = 1 / dotOf(s, y);
+    const py = [0.25 * y[0], 0.5 * y[1]];
+    const gamma = dotOf(s, y) / dotOf(y, py);
+    // H g = (I − ρ s yᵀ) γP (I − ρ y sᵀ) g + ρ s (sᵀ g).
+    const g = x1.g;
+    const v = g.map((value, i) => value - rho * y[i] * dotOf(s, g));
+    const u = [gamma * 0.25 * v[0], gamma * 0.5 * v[1]];
+    const hg = u.map((value, i) => value - rho * s[i] * dotOf(y, u) + rho * s[i] * dotOf(s, g));
+    const secondTrial = evaluated[2].x;
+    secondTrial.forEach((value, i) => expect(value).toBeCloseTo(x1.x[i] - hg[i], 12));
+
+    // Hand-computed optimum A⁻¹b = (0.6, −0.8); the result reports the last accepted point, its
+    // value and gradient, every evaluation, and each iteration's gradient norm in order.
+    expect(result.x[0]).toBeCloseTo(0.6, 10);
+    expect(result.x[1]).toBeCloseTo(-0.8, 10);
+    expect(result.converged).toBe(true);
+    expect(result.evaluations).toBe(evaluated.length);
+    const last = evaluated[evaluated.length - 1];
+    expect(result.value).toBe(last.value);
+    expect(Array.from(result.gradient)).toEqual(last.g);
+    expect(result.gradientNorm).toBeCloseTo(Math.hypot(last.g[0], last.g[1]), 15);
+    expect(reported.map((entry) => entry.iteration)).toEqual(
+      Array.from({ length: result.iterations }, (_, k) => k + 1),
+    );
+    expect(reported[0].gradientNorm).toBeCloseTo(Math.hypot(x1.g[0], x1.g[1]), 15);
+    expect(reported[reported.length - 1].gradientNorm).toBe(result.gradientNorm);
+  });
+
+  it("stops after maxIterations, unconverged, at the last accepted point", () => {
+    let calls = 0;
+    const result = minimizeLbfgs(
+      (x, gradient) => {
+        calls++;
+        gradient[0] = 4 * x[0] ** 3;
+        return x[0] ** 4;
+      },
+      Float64Array.of(3),
+      { gradientTolerance: 1e-12, maxIterations: 2 },
+    );
+    expect(result.iterations).toBe(2);
+    expect(result.converged).toBe(false);
+    expect(result.evaluations).toBe(calls);
+    expect(result.value).toBeCloseTo(result.x[0] ** 4, 15);
+  });
+
+  it("does not search along a direction that is not downhill: it stops where it started", () => {
+    // A "preconditioner" that is negative definite breaks the contract (it must be positive
+    // definite): −P∇f then points uphill, and so does the restart from the preconditioned
+    // gradient. The one evaluation is the start's: no line search runs.
+    let calls = 0;
+    const result = minimizeLbfgs(
+      (x, gradient) => {
+        calls++;
+        gradient[0] = 2 * (x[0] - 1);
+        return (x[0] - 1) ** 2;
+      },
+      Float64Array.of(3),
+      {
+        gradientTolerance: 1e-12,
+        precondition: (vector) => {
+          vector[0] = -vector[0];
+        },
+      },
+    );
+    expect({ calls, iterations: result.iterations, x: result.x[0] }).toEqual({
+      calls: 1,
+      iterations: 0,
+      x: 3,
+    });
+    expect(result.converged).toBe(false);
+  });
+
   it("returns at once when the start is already optimal", () => {
     const result = minimizeLbfgs(
       (x, gradient) => {
