@@ -12,8 +12,9 @@ import { cascadingReference, createdAt, instant, uuidPrimaryKey } from "./column
 import { analyses } from "./analyses";
 
 /**
- * One part of an analysis shared by several workers: bytes [start, end) of whole lines of the
- * dataset (the header's bytes read first), read by whichever worker takes the part's job. `runId`
+ * One part of an analysis shared by several workers: bytes [start, end) of whole lines of a CSV
+ * (the header's bytes read first) or of whole row groups of a Parquet file (those beginning in the
+ * range), read by whichever worker takes the part's job. `runId`
  * is the coordinating job's run: a retried coordinator starts a new run, and the parts of an older
  * run stop. The part's round-1 digest (methods.md §9) is kept here, so a worker that takes the
  * part over computes only what is still asked.

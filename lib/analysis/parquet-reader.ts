@@ -33,6 +33,8 @@ export interface ParquetLayout {
   groupStarts: number[];
   /** Compressed bytes of each row group, for progress. */
   groupBytes: number[];
+  /** Where each row group's bytes begin in the file (its first column chunk's first page). */
+  groupOffsets: number[];
 }
 
 export async function readParquetLayout(
@@ -56,7 +58,15 @@ export async function readParquetLayout(
   const numeric = fields.map((child: SchemaTree) => isNumericElement(child));
   const groupStarts = [0];
   const groupBytes: number[] = [];
+  const groupOffsets: number[] = [];
   for (const group of metadata.row_groups) {
+    groupOffsets.push(
+      Math.min(
+        ...group.columns.map((chunk) =>
+          Number(chunk.meta_data?.dictionary_page_offset ?? chunk.meta_data?.data_page_offset ?? 0),
+        ),
+      ),
+    );
     groupStarts.push(groupStarts[groupStarts.length - 1] + Number(group.num_rows));
     groupBytes.push(
       Number(
@@ -68,7 +78,52 @@ export async function readParquetLayout(
       ),
     );
   }
-  return { metadata, columns, numeric, groupStarts, groupBytes };
+  return { metadata, columns, numeric, groupStarts, groupBytes, groupOffsets };
+}
+
+/**
+ * Up to `count` parts of whole row groups, about equal in compressed bytes, as byte ranges of the
+ * file: a part is the row groups that begin in [start, end). Null when the file cannot be cut so —
+ * one row group, or row groups not laid out in file order.
+ */
+export function cutParquetIntoParts(
+  layout: ParquetLayout,
+  fileSize: number,
+  count: number,
+): { start: number; end: number }[] | null {
+  const offsets = layout.groupOffsets;
+  if (
+    offsets.length < 2 ||
+    offsets.some((offset, group) => group > 0 && offset <= offsets[group - 1])
+  ) {
+    return null;
+  }
+  const total = layout.groupBytes.reduce((sum, bytes) => sum + bytes, 0);
+  const firstGroups = [0];
+  let before = 0;
+  for (let group = 0; group + 1 < offsets.length; group++) {
+    before += layout.groupBytes[group];
+    const part = firstGroups.length;
+    if (part < count && before >= (total * part) / count) firstGroups.push(group + 1);
+  }
+  return firstGroups.map((group, part) => ({
+    start: part === 0 ? 0 : offsets[group],
+    end: part + 1 < firstGroups.length ? offsets[firstGroups[part + 1]] : fileSize,
+  }));
+}
+
+/** The row groups [from, to) that begin in bytes [start, end) of the file. */
+export function findGroupsIn(
+  layout: ParquetLayout,
+  start: number,
+  end: number,
+): { from: number; to: number } {
+  const inRange = layout.groupOffsets.flatMap((offset, group) =>
+    offset >= start && offset < end ? [group] : [],
+  );
+  return inRange.length === 0
+    ? { from: 0, to: 0 }
+    : { from: inRange[0], to: inRange[inRange.length - 1] + 1 };
 }
 
 const NUMERIC_TYPES = new Set(["INT32", "INT64", "FLOAT", "DOUBLE"]);
@@ -155,6 +210,32 @@ export async function readParquetFile(
   handler.onHeader(layout.columns);
   await readParquetRowGroups(file, layout, fileName, handler);
   return layout.groupStarts[layout.groupStarts.length - 1];
+}
+
+/**
+ * A part of a Parquet file read where it lies (by byte ranges: in storage, say): the row groups
+ * that begin in bytes [start, end) (see `cutParquetIntoParts`).
+ */
+export interface ParquetPart {
+  parquet: AsyncBuffer;
+  start: number;
+  end: number;
+}
+
+/**
+ * Reads a part of a Parquet file like a CSV: the header, then the part's rows, numbered as in the
+ * whole file. Resolves with the part's row count.
+ */
+export async function readParquetPart(
+  part: ParquetPart,
+  fileName: string,
+  handler: CsvRowHandler,
+): Promise<number> {
+  const layout = await readParquetLayout(part.parquet, fileName);
+  handler.onHeader(layout.columns);
+  const { from, to } = findGroupsIn(layout, part.start, part.end);
+  await readParquetRowGroups(part.parquet, layout, fileName, handler, from, to);
+  return layout.groupStarts[to] - layout.groupStarts[from];
 }
 
 /**

@@ -5,13 +5,19 @@ import { createGunzip } from "node:zlib";
 import { readCsvStream, type CsvRowHandler } from "./csv-reader";
 import type { CsvFormatChoice } from "./text-format";
 import { AnalysisInputError } from "./errors";
-import { readParquetFile, readParquetStream } from "./parquet-reader";
+import {
+  readParquetFile,
+  readParquetPart,
+  readParquetStream,
+  type ParquetPart,
+} from "./parquet-reader";
 
 /**
- * Where a table's bytes come from: a stream read once from its start (an upload, an S3 object), or
- * a local file, which Parquet reads where it needs to (its footer first) instead of copying it.
+ * Where a table's bytes come from: a stream read once from its start (an upload, an S3 object), a
+ * local file, which Parquet reads where it needs to (its footer first) instead of copying it, or
+ * some row groups of a Parquet file read by byte ranges (a part of an analysis shared by workers).
  */
-export type TableSource = Readable | LocalFile;
+export type TableSource = Readable | LocalFile | ParquetPart;
 
 export interface LocalFile {
   path: string;
@@ -58,7 +64,8 @@ export async function readTable(
    */
   firstRowIndex = 0,
 ): Promise<number> {
-  if (!(source instanceof Readable)) return readLocalTable(source, fileName, handler, textFormat);
+  if (isParquetPart(source)) return readParquetPart(source, fileName, handler);
+  if (isLocalFile(source)) return readLocalTable(source, fileName, handler, textFormat);
   const { head, stream } = await peekStream(source, SNIFFED_BYTES);
   const format = detectTableFormat(head);
   if (format === "parquet") return readParquetStream(stream, fileName, handler);
@@ -67,7 +74,11 @@ export async function readTable(
 }
 
 export function isLocalFile(source: TableSource): source is LocalFile {
-  return !(source instanceof Readable);
+  return !(source instanceof Readable) && "path" in source;
+}
+
+function isParquetPart(source: TableSource): source is ParquetPart {
+  return !(source instanceof Readable) && "parquet" in source;
 }
 
 /** The format of a local file, from its first bytes. */

@@ -77,8 +77,8 @@ const STAGE_OF_ROUND: Record<"schema" | "fit" | "gradients" | "merge", AnalysisS
 };
 
 /**
- * The coordinating side of one analysis shared by several workers: cuts the stored CSV into `count`
- * parts at line ends, sends each part's job (any worker takes it, lib/reports/run-analysis-part.ts),
+ * The coordinating side of one analysis shared by several workers: cuts the stored dataset into
+ * `count` parts (a CSV at line ends, a Parquet file by row groups), sends each part's job (any worker takes it, lib/reports/run-analysis-part.ts),
  * and runs the federated coordinator's own analyzeFromDigests over the parts seen as one client
  * (PartsConnection), so the summary is the one-process summary (methods.md §9's equality).
  * Resolves null when the file cannot be cut (quoted fields, say) or the label turns out numeric:

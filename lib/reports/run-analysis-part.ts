@@ -18,6 +18,7 @@ import {
   evaluationRequestSchema,
   LocalDigestClient,
   measurementRequestSchema,
+  planOnePart,
   readDatasetPart,
   resolveMemorySettings,
   withFileRowNumbers,
@@ -110,10 +111,11 @@ export async function runAnalysisPart(
     if (!inputs) return { outcome: "skipped" };
     const { parameters, dataset } = inputs;
     const bytes = storedDatasetBytes(dataset);
-    const plan = {
+    const plan = await planOnePart(bytes, {
       headerBytes: part.headerBytes,
-      parts: [{ start: part.startByte, end: part.endByte }],
-    };
+      start: part.startByte,
+      end: part.endByte,
+    });
     // The memory limit applies to the part's worker as to a one-process analysis: rows beyond
     // its share go to a scratch file (the report page says so).
     const { PARTITA_MEMORY_LIMIT, PARTITA_SCRATCH_DIR } = env();

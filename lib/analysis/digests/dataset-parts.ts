@@ -7,12 +7,14 @@ import type { MemorySettings } from "../memory-limit";
 import { cutSourceIntoParts, type ByteSource } from "../parallel-read";
 import type { DatasetColumnChoice, RawDataset } from "../read-dataset";
 import type { StoredMatrix } from "../stored-matrix";
-import { detectTableFormat } from "../table-reader";
+import { cutParquetIntoParts, readParquetLayout, type AsyncBuffer } from "../parquet-reader";
+import { detectTableFormat, type TableFormat, type TableSource } from "../table-reader";
 import { readClientRows } from "./client-rows";
 
 /**
- * One part of a dataset file: bytes [start, end) of whole lines. A part starting at 0 is the file
- * from its beginning, header included; any other is read after the header's bytes.
+ * One part of a dataset file: bytes [start, end) of whole lines of a CSV, or of whole row groups
+ * of a Parquet file (those that begin in the range). A CSV part starting at 0 is the file from its
+ * beginning, header included; any other is read after the header's bytes.
  */
 export interface DatasetPart {
   start: number;
@@ -21,7 +23,9 @@ export interface DatasetPart {
 
 /** How a dataset file is split for several workers. */
 export interface DatasetPartPlan {
-  /** Bytes of the header line (with its line end), read before every part. */
+  /** The file's format, from its first bytes: how its parts are read. */
+  format: TableFormat;
+  /** Bytes of a CSV's header line (with its line end), read before every part; 0 for Parquet. */
   headerBytes: number;
   parts: DatasetPart[];
 }
@@ -55,37 +59,82 @@ export async function localDatasetBytes(path: string): Promise<DatasetBytes> {
 const SNIFFED_BYTES = 16;
 
 /**
- * Cuts a CSV into up to `count` parts at line ends, for one analysis shared by several workers. A
- * file that cannot be cut safely — gzip or Parquet (a Parquet file's row groups would serve, but
- * they are not cut here), quoted fields (which may hold line breaks), a header past its first
- * 64 KB — is one part: the whole file.
+ * Cuts a dataset into up to `count` parts, for one analysis shared by several workers: a CSV at
+ * line ends, a Parquet file by whole row groups (read from its footer). A file that cannot be cut
+ * safely — gzip (a compressed stream has no places to start reading but its beginning), a Parquet
+ * file of one row group, a CSV with quoted fields (which may hold line breaks) or a header past its
+ * first 64 KB, a file whose footer or header cannot be read — is one part: the whole file.
  */
 export async function planDatasetParts(
   bytes: DatasetBytes,
   fileName: string,
   count: number,
 ): Promise<DatasetPartPlan> {
-  const layout =
-    count > 1 && detectTableFormat(await bytes.read(0, SNIFFED_BYTES)) === "csv"
-      ? await cutSourceIntoParts(bytes, fileName, count)
-      : null;
-  if (layout === null) return { headerBytes: 0, parts: [{ start: 0, end: bytes.size }] };
-  return { headerBytes: layout.headerBytes, parts: layout.parts };
+  const format = detectTableFormat(await bytes.read(0, SNIFFED_BYTES));
+  const whole = { format, headerBytes: 0, parts: [{ start: 0, end: bytes.size }] };
+  if (count < 2) return whole;
+  if (format === "parquet") {
+    // A footer that cannot be read is the one-process read's error to report.
+    const layout = await readParquetLayout(readByRanges(bytes), fileName).catch(() => null);
+    const parts = layout && cutParquetIntoParts(layout, bytes.size, count);
+    return parts ? { format, headerBytes: 0, parts } : whole;
+  }
+  const layout = format === "csv" ? await cutSourceIntoParts(bytes, fileName, count) : null;
+  if (layout === null) return whole;
+  return { format, headerBytes: layout.headerBytes, parts: layout.parts };
 }
 
-/** The text of one part as a stream: the header's bytes, then the part's lines. */
+/**
+ * The plan of one part as its worker knows it (the part's record: its range and the header's
+ * bytes), the format read from the file's first bytes.
+ */
+export async function planOnePart(
+  bytes: DatasetBytes,
+  part: DatasetPart & { headerBytes: number },
+): Promise<DatasetPartPlan> {
+  return {
+    format: detectTableFormat(await bytes.read(0, SNIFFED_BYTES)),
+    headerBytes: part.headerBytes,
+    parts: [{ start: part.start, end: part.end }],
+  };
+}
+
+/**
+ * One part as a table to read: a CSV part's text as a stream (the header's bytes, then the part's
+ * lines), a Parquet part as its row groups read by byte ranges. Stopped by `signal`, the read
+ * ends at its next chunk or range.
+ */
 export function openDatasetPart(
   bytes: DatasetBytes,
   plan: DatasetPartPlan,
   part: DatasetPart,
-): Readable {
-  if (part.start === 0) return bytes.stream(0, part.end);
-  return Readable.from(
-    (async function* () {
-      yield* bytes.stream(0, plan.headerBytes);
-      yield* bytes.stream(part.start, part.end);
-    })(),
-  );
+  signal?: AbortSignal,
+): TableSource {
+  if (plan.format === "parquet") {
+    return { parquet: readByRanges(bytes, signal), start: part.start, end: part.end };
+  }
+  const text =
+    part.start === 0
+      ? bytes.stream(0, part.end)
+      : Readable.from(
+          (async function* () {
+            yield* bytes.stream(0, plan.headerBytes);
+            yield* bytes.stream(part.start, part.end);
+          })(),
+        );
+  return signal ? addAbortSignal(signal, text) : text;
+}
+
+/** The file as Parquet's reader reads it: by byte ranges, fetched as asked for (none kept). */
+function readByRanges(bytes: DatasetBytes, signal?: AbortSignal): AsyncBuffer {
+  return {
+    byteLength: bytes.size,
+    async slice(start, end = bytes.size) {
+      signal?.throwIfAborted();
+      const read = await bytes.read(start, end - start);
+      return read.buffer.slice(read.byteOffset, read.byteOffset + read.byteLength) as ArrayBuffer;
+    },
+  };
 }
 
 /**
@@ -107,9 +156,8 @@ export async function readDatasetPart(
     memory,
   }: { signal?: AbortSignal; firstRowIndex?: number; memory?: MemorySettings } = {},
 ): Promise<RawDataset<Float64Array | StoredMatrix>> {
-  const data = openDatasetPart(bytes, plan, plan.parts[index]);
   return readClientRows({
-    data: signal ? addAbortSignal(signal, data) : data,
+    data: openDatasetPart(bytes, plan, plan.parts[index], signal),
     dataName: fileName,
     columns,
     firstRowIndex,
@@ -126,7 +174,7 @@ export async function countRowsBefore(
   plan: DatasetPartPlan,
   part: DatasetPart,
 ): Promise<number> {
-  if (part.start <= plan.headerBytes) return 0;
+  if (plan.format === "parquet" || part.start <= plan.headerBytes) return 0;
   return (await countRows(bytes.stream(plan.headerBytes, part.start))).rows;
 }
 
@@ -142,6 +190,8 @@ export async function withFileRowNumbers<T>(
   part: DatasetPart,
   attempt: (firstRowIndex: number) => Promise<T>,
 ): Promise<T> {
+  // Parquet's reader numbers a part's rows from the file's row groups already.
+  if (plan.format === "parquet") return attempt(0);
   try {
     return await attempt(0);
   } catch (error) {

@@ -42,8 +42,8 @@ export {
 } from "./combine-parts";
 export {
   localDatasetBytes,
-  openDatasetPart,
   planDatasetParts,
+  planOnePart,
   readDatasetPart,
   withFileRowNumbers,
 } from "./dataset-parts";

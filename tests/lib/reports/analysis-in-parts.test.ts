@@ -22,6 +22,7 @@ import {
   sendPartsTo,
   WorkerProcess,
 } from "./support/analysis-in-parts";
+import { writeCsvAsParquet } from "../analysis/support/parquet-table";
 import { DIGITS_CSV, DIGITS_OPTIONS, queueDigitsAnalysis } from "./support/digits-analysis";
 
 const OPTIONS = DIGITS_OPTIONS;
@@ -115,6 +116,18 @@ describe("one analysis shared by several workers", () => {
       { partIndex: 1, failure: null },
       { partIndex: 2, failure: oneProcessRun.outcome === "failed" ? oneProcessRun.message : "" },
     ]);
+  }, 600_000);
+
+  it("shares a Parquet dataset by whole row groups, with the CSV's one-process summary", async () => {
+    // The same table as Parquet in row groups of 4 000 rows: each part's worker reads the footer
+    // and its row groups from storage by byte ranges.
+    const job = await queueDigitsAnalysis(writeCsvAsParquet(CSV, 4000), "digits.parquet");
+    const run = await runAnalysis(job, { willRetry: true, parts: partsSettings(3) });
+    expect(run.outcome).toBe("succeeded");
+    expectOneProcessSummary(await storedSummary(job.analysisId), await analyzeInOneProcess());
+    for (const worker of workers) {
+      expect(worker.output).toMatch(new RegExp(`analysis ${job.analysisId}, part \\d of 3: read`));
+    }
   }, 600_000);
 
   it("redoes the part of a worker killed in the middle, and ends with one report", async () => {

@@ -21,15 +21,16 @@ export const DIGITS_OPTIONS = { labelColumn: "digit", shardColumn: "shard", feat
 export const DIGITS_CSV = loadStackedDigitsCsv(23);
 
 /**
- * A queued analysis of the stored digits (or of `csv`, the digits changed) in a new workspace, as
- * the start action leaves it.
+ * A queued analysis of the stored digits (or of `content`, the digits changed or in another
+ * format, stored as `name`) in a new workspace, as the start action leaves it.
  */
 export async function queueDigitsAnalysis(
-  csv = DIGITS_CSV,
+  content: string | Uint8Array = DIGITS_CSV,
+  name = "digits.csv",
 ): Promise<{ analysisId: string; workspaceId: string }> {
   const team = await createTeam();
   const workspace = { workspaceId: team.workspaceId, uploadedBy: team.owner.id };
-  const dataset = await storeInput(workspace, "dataset", "digits.csv", csv);
+  const dataset = await storeInput(workspace, "dataset", name, content);
   const [analysis] = await db()
     .insert(analyses)
     .values({
