@@ -2,11 +2,11 @@
 
 import { useRouter } from "next/navigation";
 import { useState, type FormEvent } from "react";
-import { deleteReport } from "@/app/(workspace)/w/[workspaceId]/reports/[reportId]/delete-actions";
 import { useReviewAction } from "@/components/reviews/use-review-action";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
+import type { ActionResult } from "@/lib/actions/result";
 
 /**
  * Owners' way to delete a report: a closed disclosure first, then the title typed to confirm, since
@@ -14,14 +14,15 @@ import { Notice } from "@/components/ui/notice";
  */
 export function DeleteReportControl({
   workspaceId,
-  reportId,
   title,
   versionCount,
+  deleteReport,
 }: {
   workspaceId: string;
-  reportId: string;
   title: string;
   versionCount: number;
+  /** The route's action, bound to the workspace and report. */
+  deleteReport: (input: { confirmTitle: string }) => Promise<ActionResult<{ title: string }>>;
 }) {
   const router = useRouter();
   const [confirmTitle, setConfirmTitle] = useState("");
@@ -30,7 +31,7 @@ export function DeleteReportControl({
   function submit(event: FormEvent) {
     event.preventDefault();
     run(
-      () => deleteReport(workspaceId, reportId, { confirmTitle }),
+      () => deleteReport({ confirmTitle }),
       (deleted) => {
         router.replace(`/w/${workspaceId}/reports?deleted=${encodeURIComponent(deleted.title)}`);
         return undefined;

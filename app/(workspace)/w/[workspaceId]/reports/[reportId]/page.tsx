@@ -32,6 +32,7 @@ import {
   requestReview,
   reviseComment,
 } from "./review-actions";
+import { deleteReport } from "./delete-actions";
 
 type PageProps = {
   params: Promise<{ workspaceId: string; reportId: string }>;
@@ -144,7 +145,7 @@ export default async function ReportPage({ params, searchParams }: PageProps) {
       {roleAllows(workspace.role, "deleteReport") ? (
         <DeleteReportControl
           workspaceId={workspace.id}
-          reportId={report.id}
+          deleteReport={deleteReport.bind(null, workspace.id, report.id)}
           title={report.title}
           versionCount={report.versions.length}
         />
