@@ -1,18 +1,19 @@
 "use client";
 
-import { acceptInvitationAction } from "@/app/invite/[token]/actions";
 import { ActionThenGoButton } from "@/components/ui/action-then-go-button";
+import type { ActionResult } from "@/lib/actions/result";
 
 export function AcceptInvitationButton({
-  token,
+  accept,
   workspaceName,
 }: {
-  token: string;
+  /** The route's action, bound to the invitation's token. */
+  accept: () => Promise<ActionResult<{ landing: string }>>;
   workspaceName: string;
 }) {
   return (
     <ActionThenGoButton
-      action={() => acceptInvitationAction(token)}
+      action={accept}
       destination={(joined) => joined.landing}
       label={`Join ${workspaceName}`}
       pendingLabel="Joining…"

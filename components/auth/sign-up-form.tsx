@@ -3,20 +3,23 @@
 import Link from "next/link";
 import { useRouter } from "next/navigation";
 import { useState, useTransition, type FormEvent } from "react";
-import { signUp } from "@/app/(auth)/sign-up/actions";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
-import { MIN_PASSWORD_LENGTH } from "@/lib/validation/auth";
+import type { ActionResult } from "@/lib/actions/result";
+import { MIN_PASSWORD_LENGTH, type SignUpInput } from "@/lib/validation/auth";
 
 type Values = { name: string; email: string; password: string; workspaceName: string };
 
 export function SignUpForm({
   invitedEmail,
   invitationToken,
+  signUp,
 }: {
   invitedEmail?: string;
   invitationToken?: string;
+  /** The route's action. */
+  signUp: (input: SignUpInput) => Promise<ActionResult<{ email: string }>>;
 }) {
   const router = useRouter();
   const [values, setValues] = useState<Values>({

@@ -1,6 +1,7 @@
 import type { Metadata } from "next";
 import { SignUpForm } from "@/components/auth/sign-up-form";
 import { findInvitationByToken } from "@/db/queries/invitations";
+import { signUp } from "./actions";
 
 export const metadata: Metadata = { title: "Create an account" };
 
@@ -22,7 +23,11 @@ export default async function SignUpPage({
             : "You get a workspace of your own to upload datasets and partition maps into."}
         </p>
       </header>
-      <SignUpForm invitedEmail={pending?.email} invitationToken={pending ? token : undefined} />
+      <SignUpForm
+        invitedEmail={pending?.email}
+        invitationToken={pending ? token : undefined}
+        signUp={signUp}
+      />
     </>
   );
 }

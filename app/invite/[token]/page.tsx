@@ -7,6 +7,7 @@ import { Notice } from "@/components/ui/notice";
 import { describeInvitationState, findInvitationByToken } from "@/db/queries/invitations";
 import { getSessionUser } from "@/lib/auth/session";
 import { ROLE_DESCRIPTIONS, ROLE_LABELS } from "@/lib/auth/roles";
+import { acceptInvitationAction } from "./actions";
 
 export const metadata: Metadata = { title: "Invitation" };
 
@@ -35,7 +36,10 @@ export default async function InvitationPage({ params }: { params: Promise<{ tok
             </p>
           </header>
           {user ? (
-            <AcceptInvitationButton token={token} workspaceName={invitation.workspaceName} />
+            <AcceptInvitationButton
+              accept={acceptInvitationAction.bind(null, token)}
+              workspaceName={invitation.workspaceName}
+            />
           ) : (
             <div className="flex flex-col gap-3">
               <Link
