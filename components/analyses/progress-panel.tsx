@@ -4,7 +4,6 @@ import { useQuery, useQueryClient } from "@tanstack/react-query";
 import Link from "next/link";
 import { useRouter } from "next/navigation";
 import { useEffect, useRef, useState, useTransition } from "react";
-import { cancelAnalysis } from "@/app/(workspace)/w/[workspaceId]/analyses/actions";
 import { Button, buttonClasses } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import {
@@ -18,6 +17,7 @@ import {
 import { ProgressBar } from "./progress-bar";
 import { ProgressStages } from "./progress-stages";
 import { SimulationProgressLine } from "./simulation-progress-line";
+import type { ActionResult } from "@/lib/actions/result";
 
 const POLL_MS = 1000;
 
@@ -50,10 +50,13 @@ export function ProgressPanel({
   analysisId,
   initial,
   canRun,
+  cancelAnalysis,
 }: {
   workspaceId: string;
   analysisId: string;
   initial: AnalysisStatusJson;
+  /** The route's cancel action, bound to this analysis. */
+  cancelAnalysis: () => Promise<ActionResult>;
   /** Owners and analysts may cancel and run again; reviewers only watch. */
   canRun: boolean;
 }) {
@@ -81,7 +84,7 @@ export function ProgressPanel({
   const cancel = () => {
     setCancelError(undefined);
     startCancelling(async () => {
-      const result = await cancelAnalysis(workspaceId, analysisId);
+      const result = await cancelAnalysis();
       if (!result.ok) setCancelError(result.message);
       await queryClient.invalidateQueries({ queryKey });
     });

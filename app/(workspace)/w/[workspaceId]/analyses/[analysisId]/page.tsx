@@ -6,6 +6,7 @@ import { findAnalysisStatus } from "@/db/queries/analyses";
 import { guardPage } from "@/lib/auth/page-guard";
 import { roleAllows } from "@/lib/auth/roles";
 import { toStatusJson } from "@/lib/reports/analysis-status";
+import { cancelAnalysis } from "../actions";
 
 export const metadata: Metadata = { title: "Analysis" };
 
@@ -39,6 +40,7 @@ export default async function AnalysisPage({
         analysisId={analysisId}
         initial={toStatusJson(status)}
         canRun={roleAllows(workspace.role, "runAnalysis")}
+        cancelAnalysis={cancelAnalysis.bind(null, workspace.id, analysisId)}
       />
     </div>
   );
