@@ -1,6 +1,6 @@
 // The project's imports run one way (DEVELOPERS.md, "Where things live"): no module imports itself
-// back through others, type-only imports included, and code outside the engine reaches it only
-// through its two entries. The graph comes from TypeScript's own import scanner over the source
+// back through others, type-only imports included, code outside the engine reaches it only
+// through its two entries, and nothing below the routes imports from app/. The graph comes from TypeScript's own import scanner over the source
 // folders; "@/" and relative paths are resolved as tsconfig.json maps them.
 import { readdirSync, readFileSync } from "node:fs";
 import path from "node:path";
@@ -129,5 +129,17 @@ describe("the import graph", () => {
             .map((target) => `${file} → ${target}`),
     );
     expect(pastTheEntries).toEqual([]);
+  });
+
+  it("never leads from components, lib or db back into app/", () => {
+    // Routes hand their server actions to components as props (style.md 13).
+    const intoApp = [...graph].flatMap(([file, targets]) =>
+      /^(components|lib|db)\//.test(file)
+        ? targets
+            .filter((target) => target.startsWith("app/"))
+            .map((target) => `${file} → ${target}`)
+        : [],
+    );
+    expect(intoApp).toEqual([]);
   });
 });

@@ -4,13 +4,16 @@ import { zodResolver } from "@hookform/resolvers/zod";
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { FormProvider, useForm } from "react-hook-form";
-import { startAnalysis } from "@/app/(workspace)/w/[workspaceId]/analyses/actions";
 import {
   analysisFormSchema,
   toStartAnalysisInput,
   withDefaultFeatures,
   type AnalysisFormValues,
 } from "@/components/analyses/analysis-form-schema";
+import {
+  AnalysisFormActionsProvider,
+  type AnalysisFormActions,
+} from "@/components/analyses/analysis-form-actions";
 import { AnalysisSteps, type WorkspaceFiles } from "@/components/analyses/analysis-steps";
 import { placeServerErrors } from "@/components/analyses/server-field-errors";
 import { Notice } from "@/components/ui/notice";
@@ -24,11 +27,13 @@ export function AnalysisForm({
   maxBytes,
   initialFiles,
   initialValues,
+  actions,
 }: {
   workspaceId: string;
   maxBytes: number;
   initialFiles: WorkspaceFiles;
   initialValues: AnalysisFormValues;
+  actions: AnalysisFormActions;
 }) {
   const router = useRouter();
   const [notice, setNotice] = useState<string>();
@@ -45,7 +50,7 @@ export function AnalysisForm({
 
   const submit = form.handleSubmit(async (formValues) => {
     setNotice(undefined);
-    const result = await startAnalysis(workspaceId, toStartAnalysisInput(formValues));
+    const result = await actions.startAnalysis(toStartAnalysisInput(formValues));
     if (result.ok) {
       router.push(`/w/${workspaceId}/analyses/${result.data.analysisId}`);
       return;
@@ -56,22 +61,24 @@ export function AnalysisForm({
   });
 
   return (
-    <FormProvider {...form}>
-      <form onSubmit={submit} noValidate className="space-y-6" aria-label="New analysis">
-        {notice ? <Notice tone="error">{notice}</Notice> : null}
-        {initialValues.previousReportId ? (
-          <Notice>
-            This run revises an earlier report: its result becomes the report&apos;s next version.
-          </Notice>
-        ) : null}
-        <AnalysisSteps
-          workspaceId={workspaceId}
-          maxBytes={maxBytes}
-          initialFiles={initialFiles}
-          // A re-run that names its features keeps them; otherwise they follow the other columns.
-          featuresInitiallyChosen={initialValues.options.features.length > 0}
-        />
-      </form>
-    </FormProvider>
+    <AnalysisFormActionsProvider actions={actions}>
+      <FormProvider {...form}>
+        <form onSubmit={submit} noValidate className="space-y-6" aria-label="New analysis">
+          {notice ? <Notice tone="error">{notice}</Notice> : null}
+          {initialValues.previousReportId ? (
+            <Notice>
+              This run revises an earlier report: its result becomes the report&apos;s next version.
+            </Notice>
+          ) : null}
+          <AnalysisSteps
+            workspaceId={workspaceId}
+            maxBytes={maxBytes}
+            initialFiles={initialFiles}
+            // A re-run that names its features keeps them; otherwise they follow the other columns.
+            featuresInitiallyChosen={initialValues.options.features.length > 0}
+          />
+        </form>
+      </FormProvider>
+    </AnalysisFormActionsProvider>
   );
 }

@@ -1,7 +1,7 @@
 "use client";
 
 import { useState } from "react";
-import { deleteDataFile } from "@/app/(workspace)/w/[workspaceId]/analyses/new/actions";
+import { useAnalysisFormActions } from "@/components/analyses/analysis-form-actions";
 import { FileDrop } from "@/components/uploads/file-drop";
 import { ConfirmActionButton } from "@/components/ui/confirm-action-button";
 import type { DataFileSummary } from "@/db/queries/data-files";
@@ -44,6 +44,7 @@ export function FileChoice({
   groupLabel: string;
   error?: string;
 }) {
+  const { registerDataFile, deleteDataFile } = useAnalysisFormActions();
   const errorId = `${kind}-choice-error`;
   const [deletedIds, setDeletedIds] = useState<string[]>([]);
   const shown = files.filter((file) => !deletedIds.includes(file.id));
@@ -55,6 +56,7 @@ export function FileChoice({
         maxBytes={maxBytes}
         inputLabel={inputLabel}
         onRegistered={onRegistered}
+        registerDataFile={registerDataFile}
       />
       <fieldset
         className="min-w-0 space-y-2"
@@ -94,7 +96,7 @@ export function FileChoice({
                   <ConfirmActionButton
                     label="Delete"
                     confirmation={`Delete "${file.name}"? No analysis reads it; it is removed from storage too.`}
-                    action={() => deleteDataFile(workspaceId, file.id)}
+                    action={() => deleteDataFile(file.id)}
                     onDone={() => {
                       setDeletedIds((ids) => [...ids, file.id]);
                       if (selectedId === file.id) onSelect("");

@@ -1,7 +1,7 @@
 "use client";
 
 import { useQuery } from "@tanstack/react-query";
-import { previewDatasetAs } from "@/app/(workspace)/w/[workspaceId]/analyses/new/actions";
+import { useAnalysisFormActions } from "@/components/analyses/analysis-form-actions";
 import type { AnalysisFormValues } from "@/components/analyses/analysis-form-schema";
 import type { DataFileSummary } from "@/db/queries/data-files";
 import type { CsvFormatChoice } from "@/lib/analysis/browser";
@@ -36,11 +36,12 @@ export function useDatasetPreview(
   dataset: DataFileSummary | undefined,
   options: AnalysisFormValues["options"],
 ) {
+  const { previewDatasetAs } = useAnalysisFormActions();
   const override = formatOverride(dataset, options);
   const query = useQuery({
     queryKey: ["dataset-preview", workspaceId, dataset?.id, override],
     queryFn: async () => {
-      const result = await previewDatasetAs(workspaceId, dataset!.id, override!);
+      const result = await previewDatasetAs(dataset!.id, override!);
       if (!result.ok) throw new Error(result.message);
       return result.data;
     },

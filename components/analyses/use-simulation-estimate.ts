@@ -1,7 +1,7 @@
 "use client";
 
 import { keepPreviousData, useQuery } from "@tanstack/react-query";
-import { estimateSimulation } from "@/app/(workspace)/w/[workspaceId]/analyses/actions";
+import { useAnalysisFormActions } from "@/components/analyses/analysis-form-actions";
 import {
   toStartAnalysisInput,
   type AnalysisFormValues,
@@ -14,11 +14,12 @@ import {
  * one loads.
  */
 export function useSimulationEstimate(workspaceId: string, values: AnalysisFormValues) {
+  const { estimateSimulation } = useAnalysisFormActions();
   const request = values.options.simulate.enabled ? toStartAnalysisInput(values) : null;
   return useQuery({
     queryKey: ["simulation-estimate", workspaceId, request],
     queryFn: async () => {
-      const result = await estimateSimulation(workspaceId, request!);
+      const result = await estimateSimulation(request!);
       if (!result.ok) throw new Error(result.message);
       return result.data;
     },

@@ -2,9 +2,9 @@
 
 import { useEffect, useRef, useState } from "react";
 import { useDropzone, type Accept } from "react-dropzone";
-import { registerDataFile } from "@/app/(workspace)/w/[workspaceId]/analyses/new/actions";
 import { Button } from "@/components/ui/button";
 import type { DataFileSummary } from "@/db/queries/data-files";
+import type { ActionResult } from "@/lib/actions/result";
 import { uploadToStorage } from "@/lib/uploads/browser-upload";
 import {
   FORMAT_RULES,
@@ -13,6 +13,8 @@ import {
   formatBytes,
   type DataFileKind,
 } from "@/lib/uploads/file-rules";
+import type { RegisteredFile } from "@/lib/uploads/register-upload";
+import type { RegisterDataFileInput } from "@/lib/validation/upload";
 
 type UploadState =
   | { phase: "idle" }
@@ -45,8 +47,11 @@ export function FileDrop({
   maxBytes,
   inputLabel,
   onRegistered,
+  registerDataFile,
 }: {
   workspaceId: string;
+  /** The page's action that registers an uploaded object as a file of the workspace. */
+  registerDataFile: (input: RegisterDataFileInput) => Promise<ActionResult<RegisteredFile>>;
   kind: DataFileKind;
   maxBytes: number;
   /** The accessible name of the file input, e.g. "Dataset file". */
@@ -85,7 +90,7 @@ export function FileDrop({
         onProgress: (loaded) => setState({ phase: "uploading", file, loaded }),
       });
       setState({ phase: "checking", file });
-      const result = await registerDataFile(workspaceId, { key, name: file.name, kind });
+      const result = await registerDataFile({ key, name: file.name, kind });
       if (!result.ok) {
         setState({
           phase: "failed",

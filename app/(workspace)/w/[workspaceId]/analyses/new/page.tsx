@@ -10,6 +10,8 @@ import {
 import { findDataFile, listDataFiles, type DataFileSummary } from "@/db/queries/data-files";
 import { guardPage } from "@/lib/auth/page-guard";
 import { env } from "@/lib/env";
+import { estimateSimulation, startAnalysis } from "../actions";
+import { deleteDataFile, previewDatasetAs, registerDataFile } from "./actions";
 
 export const metadata: Metadata = { title: "New analysis" };
 
@@ -109,6 +111,13 @@ export default async function NewAnalysisPage({
         maxBytes={env().UPLOAD_MAX_BYTES}
         initialFiles={{ datasets, layouts, weights }}
         initialValues={initialValues}
+        actions={{
+          startAnalysis: startAnalysis.bind(null, workspaceId),
+          estimateSimulation: estimateSimulation.bind(null, workspaceId),
+          registerDataFile: registerDataFile.bind(null, workspaceId),
+          deleteDataFile: deleteDataFile.bind(null, workspaceId),
+          previewDatasetAs: previewDatasetAs.bind(null, workspaceId),
+        }}
       />
     </div>
   );
