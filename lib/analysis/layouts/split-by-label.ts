@@ -37,7 +37,8 @@ export function splitStratified(rows: LayoutRows, shardCount: number, random: Se
  * their rows one at a time — a class drawn from qₘ restricted to the classes with rows left
  * (renormalized), then a uniformly random remaining row of it. The scheme of Hsu et al.,
  * arXiv:1909.06335, 2019 (from memory). When a very small α leaves all of qₘ's mass on exhausted
- * classes (it underflows to zero elsewhere), the class is drawn in proportion to the rows left.
+ * classes (it underflows to zero elsewhere) or none anywhere (every gamma draw underflowed), the
+ * class is drawn in proportion to the rows left.
  */
 export function splitDirichlet(
   rows: LayoutRows,
@@ -70,8 +71,12 @@ export function splitDirichlet(
 function drawClassWithRowsLeft(mix: Float64Array, left: Int32Array, random: SeededRandom): number {
   let mass = 0;
   for (let c = 0; c < mix.length; c++) if (left[c] > 0) mass += mix[c];
+  // No mass is 0 (the mix sits on exhausted classes) or NaN (every gamma draw underflowed, 0/0).
   const useCounts = !(mass > 0);
-  if (useCounts) for (let c = 0; c < mix.length; c++) mass += left[c];
+  if (useCounts) {
+    mass = 0;
+    for (let c = 0; c < mix.length; c++) mass += left[c];
+  }
   let target = random.uniform() * mass;
   let last = -1;
   for (let c = 0; c < mix.length; c++) {

@@ -11,6 +11,7 @@ import { seedCentres } from "@/lib/analysis/layouts/split-clusters";
 import { SeededRandom } from "@/lib/math/random";
 import { measureLabelSkew } from "@/lib/analysis/measure-label-skew";
 import { measureQuantitySkew } from "@/lib/analysis/measure-quantity-skew";
+import { runPythonJson } from "../support/run-python";
 import { countByShard, makeRows, shardsPerGroup } from "./support";
 
 const sizesOf = (assignment: Int32Array, shardCount: number) => {
@@ -68,6 +69,25 @@ describe("dirichlet(α)", () => {
     const fitted = measureLabelSkew(countByShard(rows, assignment, 20)).dirichletAlpha;
     expect(fitted).toBeGreaterThan(alpha / 2);
     expect(fitted).toBeLessThan(alpha * 2);
+  });
+
+  // When α is so small that every Dir(α·p) draw underflows (0/0), the class of each next row is
+  // drawn in proportion to the rows left (splitDirichlet's doc): a uniformly random row, so the
+  // shards are a random equal-sized split whose label counts SciPy's χ² test of independence
+  // (scipy.stats.chi2_contingency) accepts. Drawing from the underflowed mix instead would fill
+  // the shards class by class (p ≈ 0). Seeded, so the p-value is fixed.
+  it("falls back to the rows left when α underflows: label counts independent of the shard", () => {
+    const rows = makeRows({ rows: 1200, classCount: 4, seed: 3 });
+    const assignment = generateLayout({ generator: "dirichlet", alpha: 1e-300 }, rows, 6, 5);
+    const counts = countByShard(rows, assignment, 6);
+    for (const row of counts) expect(row.reduce((a, b) => a + b, 0)).toBe(200);
+    const pValue = runPythonJson<number>(
+      `import json,sys
+from scipy import stats
+print(json.dumps(stats.chi2_contingency(json.load(sys.stdin)).pvalue))`,
+      counts,
+    );
+    expect(pValue).toBeGreaterThan(1e-3);
   });
 
   it("β per class is α = β·C: the same layout for the same seed", () => {
