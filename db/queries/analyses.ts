@@ -336,16 +336,40 @@ export async function recordRowsSpilled(
     .where(and(eq(analyses.workspaceId, workspaceId), eq(analyses.id, analysisId)));
 }
 
-/** The memory limit under which the analysis's rows went to a scratch file, or null. */
-export async function findRowsSpilledAtLimit(
+/**
+ * Records why an analysis meant to be shared among workers was read whole by one (null: it was
+ * shared).
+ */
+export async function recordReadWhole(
   workspaceId: string,
   analysisId: string,
-): Promise<number | null> {
+  because: string | null,
+): Promise<void> {
+  await db()
+    .update(analyses)
+    .set({ readWholeBecause: because })
+    .where(and(eq(analyses.workspaceId, workspaceId), eq(analyses.id, analysisId)));
+}
+
+/**
+ * How the analysis's last run went where the report says so: the memory limit under which its rows
+ * went to a scratch file, and why it was read whole when it was meant to be shared (null when not).
+ */
+export async function findRunCircumstances(
+  workspaceId: string,
+  analysisId: string,
+): Promise<{ rowsSpilledAtLimit: number | null; readWholeBecause: string | null }> {
   const [row] = await db()
-    .select({ limit: analyses.rowsSpilledAtLimit })
+    .select({
+      rowsSpilledAtLimit: analyses.rowsSpilledAtLimit,
+      readWholeBecause: analyses.readWholeBecause,
+    })
     .from(analyses)
     .where(and(eq(analyses.workspaceId, workspaceId), eq(analyses.id, analysisId)));
-  return row?.limit ?? null;
+  return {
+    rowsSpilledAtLimit: row?.rowsSpilledAtLimit ?? null,
+    readWholeBecause: row?.readWholeBecause ?? null,
+  };
 }
 
 /** Marks the run as waiting for storage since now, unless it already was; returns since when. */

@@ -117,6 +117,11 @@ export const analyses = pgTable(
      * disk, for the report to say so; null when they stayed in memory.
      */
     rowsSpilledAtLimit: bigint("rows_spilled_at_limit", { mode: "number" }),
+    /**
+     * Why an analysis meant to be shared among several workers was read whole by one (a gzip file
+     * cannot be cut, say), for the report to say so; null otherwise.
+     */
+    readWholeBecause: text("read_whole_because"),
     /** Since when the current run has been waiting for storage to answer again; null when it answers. */
     storageUnreachableSince: instant("storage_unreachable_since"),
   },

@@ -7,7 +7,7 @@ import {
   removePartRun,
   startPartRun,
 } from "@/db/queries/analysis-parts";
-import type { ClaimedAnalysis } from "@/db/queries/analyses";
+import { recordReadWhole, type ClaimedAnalysis } from "@/db/queries/analyses";
 import {
   analyzeFromDigests,
   mergeSchemaDigests,
@@ -81,8 +81,8 @@ const STAGE_OF_ROUND: Record<"schema" | "fit" | "gradients" | "merge", AnalysisS
  * `count` parts (a CSV at line ends, a Parquet file by row groups), sends each part's job (any worker takes it, lib/reports/run-analysis-part.ts),
  * and runs the federated coordinator's own analyzeFromDigests over the parts seen as one client
  * (PartsConnection), so the summary is the one-process summary (methods.md §9's equality).
- * Resolves null when the file cannot be cut (quoted fields, say) or the label turns out numeric:
- * the caller then runs the analysis in one process.
+ * Resolves null when the file cannot be cut (gzip, quoted fields, say) or the label turns out
+ * numeric: the caller then runs the analysis in one process, and the report says why.
  */
 export async function runAnalysisInParts(
   analysis: ClaimedAnalysis,
@@ -108,6 +108,8 @@ async function coordinateParts(
 ): Promise<EngineOutcome | null> {
   const { dataset } = analysis;
   const plan = await planDatasetParts(storedDatasetBytes(dataset), dataset.name, count);
+  // The report says why a file meant to be shared was read whole (a gzip file, say).
+  await recordReadWhole(analysis.workspaceId, analysis.id, plan.wholeBecause ?? null);
   if (plan.parts.length < 2) return null;
   const runId = randomUUID();
   // Listening before the first question: every answer wakes the coordinator at once.
@@ -183,6 +185,11 @@ async function runParts(
     });
     if (encoding.task === "regression") {
       await removePartRun(analysis.id);
+      await recordReadWhole(
+        analysis.workspaceId,
+        analysis.id,
+        "the label is numeric, and a regression's label skew needs all its rows in one place",
+      );
       return null;
     }
     const { localSteps, rounds, batchSize, participants } = analysis.parameters;

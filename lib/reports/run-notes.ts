@@ -13,10 +13,18 @@ const TIMES = ["", "", "twice", "three times"];
  * with its rows in memory: read in parts by several workers (and every part that was redone —
  * after its worker stopped sending heartbeats, or after it was stopped or failed and its job was
  * retried — or whose rows went to a scratch file past its worker's memory limit), or its rows
- * kept in a scratch file past the memory limit. Empty otherwise.
+ * kept in a scratch file past the memory limit, or read by one worker though meant to be shared
+ * (and why). Empty otherwise.
  */
-export function describeRun(run: { parts: PartRecord[]; rowsSpilledAtLimit: number | null }) {
+export function describeRun(run: {
+  parts: PartRecord[];
+  rowsSpilledAtLimit: number | null;
+  readWholeBecause: string | null;
+}) {
   const notes: string[] = [];
+  if (run.readWholeBecause !== null) {
+    notes.push(`Read by one worker, not shared among several: ${run.readWholeBecause}.`);
+  }
   if (run.rowsSpilledAtLimit !== null) {
     notes.push(
       `The rows did not fit the worker's memory limit (${formatBytes(run.rowsSpilledAtLimit)}): they were kept in a scratch file on its disk and read back for each pass. The figures are those an analysis in memory gives.`,

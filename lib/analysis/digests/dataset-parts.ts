@@ -28,6 +28,8 @@ export interface DatasetPartPlan {
   /** Bytes of a CSV's header line (with its line end), read before every part; 0 for Parquet. */
   headerBytes: number;
   parts: DatasetPart[];
+  /** Why the file is one part though several were asked for, in words for the report. */
+  wholeBecause?: string;
 }
 
 /** A dataset's bytes, read by ranges: a local file, or an object in storage. */
@@ -71,16 +73,36 @@ export async function planDatasetParts(
   count: number,
 ): Promise<DatasetPartPlan> {
   const format = detectTableFormat(await bytes.read(0, SNIFFED_BYTES));
-  const whole = { format, headerBytes: 0, parts: [{ start: 0, end: bytes.size }] };
-  if (count < 2) return whole;
+  const whole = (wholeBecause?: string): DatasetPartPlan => ({
+    format,
+    headerBytes: 0,
+    parts: [{ start: 0, end: bytes.size }],
+    wholeBecause,
+  });
+  if (count < 2) return whole();
+  if (format === "csv.gz") {
+    return whole(
+      "the file is gzip-compressed, and compressed data can only be read from its start",
+    );
+  }
   if (format === "parquet") {
     // A footer that cannot be read is the one-process read's error to report.
     const layout = await readParquetLayout(readByRanges(bytes), fileName).catch(() => null);
-    const parts = layout && cutParquetIntoParts(layout, bytes.size, count);
-    return parts ? { format, headerBytes: 0, parts } : whole;
+    if (layout === null) return whole("the Parquet file's footer cannot be read");
+    const parts = cutParquetIntoParts(layout, bytes.size, count);
+    if (parts) return { format, headerBytes: 0, parts };
+    return whole(
+      layout.groupOffsets.length < 2
+        ? "the Parquet file has one row group, and a Parquet file is cut between row groups"
+        : "the Parquet file's row groups are not stored in row order",
+    );
   }
-  const layout = format === "csv" ? await cutSourceIntoParts(bytes, fileName, count) : null;
-  if (layout === null) return whole;
+  const layout = await cutSourceIntoParts(bytes, fileName, count);
+  if (layout === null) {
+    return whole(
+      "the CSV has quoted fields (a quoted field may hold a line break, so a line end may not end a row) or a header longer than 64 KB",
+    );
+  }
   return { format, headerBytes: layout.headerBytes, parts: layout.parts };
 }
 

@@ -69,7 +69,7 @@ describe("an analysis in parts past the workers' memory limit", () => {
       );
     }
     const parts = await listAnalysisParts(job.analysisId);
-    expect(describeRun({ parts, rowsSpilledAtLimit: null })).toEqual([
+    expect(describeRun({ parts, rowsSpilledAtLimit: null, readWholeBecause: null })).toEqual([
       expect.stringMatching(/^Read in 2 parts, each by whichever worker took it/),
       ...heldHere.map(
         (part) =>

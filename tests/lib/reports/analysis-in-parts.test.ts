@@ -7,10 +7,12 @@
 // bundled digits stacked 23 times (41 331 rows, more than the fit's 2 × 20 000-row subsample, so
 // the subsample spans parts), with a seeded label-skewed shard column.
 import { Readable } from "node:stream";
+import { gzipSync } from "node:zlib";
 import { eq } from "drizzle-orm";
 import PgBoss from "pg-boss";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, db } from "@/db/client";
+import { findRunCircumstances } from "@/db/queries/analyses";
 import { listAnalysisParts } from "@/db/queries/analysis-parts";
 import { analysisParts, reports } from "@/db/schema";
 import { analyzePartition, type PartitionSummary } from "@/lib/analysis";
@@ -77,7 +79,7 @@ describe("one analysis shared by several workers", () => {
       expect(worker.output).toMatch(new RegExp(`analysis ${job.analysisId}, part \\d of 3: read`));
     }
     // The report page says it ran in parts, and that none was redone.
-    expect(describeRun({ parts: await listAnalysisParts(job.analysisId), rowsSpilledAtLimit: null })).toEqual([
+    expect(describeRun({ parts: await listAnalysisParts(job.analysisId), rowsSpilledAtLimit: null, readWholeBecause: null })).toEqual([
       expect.stringMatching(/^Read in 3 parts, each by whichever worker took it/),
     ]);
   }, 600_000);
@@ -130,6 +132,19 @@ describe("one analysis shared by several workers", () => {
     }
   }, 600_000);
 
+  it("reads a gzip file whole, and the report page says why", async () => {
+    const job = await queueDigitsAnalysis(gzipSync(CSV), "digits.csv.gz");
+    const run = await runAnalysis(job, { willRetry: true, parts: partsSettings(3) });
+    expect(run.outcome).toBe("succeeded");
+    expectOneProcessSummary(await storedSummary(job.analysisId), await analyzeInOneProcess());
+    const parts = await listAnalysisParts(job.analysisId);
+    expect(parts).toEqual([]);
+    const circumstances = await findRunCircumstances(job.workspaceId, job.analysisId);
+    expect(describeRun({ parts, ...circumstances })).toEqual([
+      "Read by one worker, not shared among several: the file is gzip-compressed, and compressed data can only be read from its start.",
+    ]);
+  }, 600_000);
+
   it("redoes the part of a worker killed in the middle, and ends with one report", async () => {
     const job = await queueDigitsAnalysis();
     const run = runAnalysis(job, { willRetry: true, parts: partsSettings(3) });
@@ -146,7 +161,7 @@ describe("one analysis shared by several workers", () => {
     );
     expectOneProcessSummary(await storedSummary(job.analysisId), await analyzeInOneProcess());
     // The report page says what happened.
-    expect(describeRun({ parts: await listAnalysisParts(job.analysisId), rowsSpilledAtLimit: null })).toEqual([
+    expect(describeRun({ parts: await listAnalysisParts(job.analysisId), rowsSpilledAtLimit: null, readWholeBecause: null })).toEqual([
       expect.stringMatching(/^Read in 3 parts/),
       `Part ${part} of 3 was redone after its worker stopped.`,
     ]);
@@ -175,7 +190,7 @@ describe("one analysis shared by several workers", () => {
     // report page says the part was redone after its worker was stopped.
     const parts = await listAnalysisParts(job.analysisId);
     expect(parts.map((record) => record.workerLosses)).toEqual([0, 0, 0]);
-    expect(describeRun({ parts, rowsSpilledAtLimit: null })).toEqual([
+    expect(describeRun({ parts, rowsSpilledAtLimit: null, readWholeBecause: null })).toEqual([
       expect.stringMatching(/^Read in 3 parts/),
       `Part ${part} of 3 was redone after its worker was stopped or failed.`,
     ]);

@@ -10,7 +10,7 @@ vi.hoisted(() => {
 
 import { closeDb } from "@/db/client";
 import { listAnalysisParts } from "@/db/queries/analysis-parts";
-import { findRowsSpilledAtLimit } from "@/db/queries/analyses";
+import { findRunCircumstances } from "@/db/queries/analyses";
 import { runAnalysis } from "@/lib/reports/run-analysis";
 import { describeRun } from "@/lib/reports/run-notes";
 import { queueDigitsAnalysis } from "./support/digits-analysis";
@@ -21,15 +21,17 @@ describe("how the analysis ran, on the report page", () => {
   it("says the rows went to a scratch file past the memory limit", async () => {
     const job = await queueDigitsAnalysis();
     expect((await runAnalysis(job, { willRetry: true })).outcome).toBe("succeeded");
-    const rowsSpilledAtLimit = await findRowsSpilledAtLimit(job.workspaceId, job.analysisId);
-    expect(rowsSpilledAtLimit).toBe(2 ** 20);
+    const circumstances = await findRunCircumstances(job.workspaceId, job.analysisId);
+    expect(circumstances).toEqual({ rowsSpilledAtLimit: 2 ** 20, readWholeBecause: null });
     const parts = await listAnalysisParts(job.analysisId);
-    expect(describeRun({ parts, rowsSpilledAtLimit })).toEqual([
+    expect(describeRun({ parts, ...circumstances })).toEqual([
       "The rows did not fit the worker's memory limit (1 MB): they were kept in a scratch file on its disk and read back for each pass. The figures are those an analysis in memory gives.",
     ]);
   }, 300_000);
 
   it("says nothing of a run in one process with its rows in memory", () => {
-    expect(describeRun({ parts: [], rowsSpilledAtLimit: null })).toEqual([]);
+    expect(describeRun({ parts: [], rowsSpilledAtLimit: null, readWholeBecause: null })).toEqual(
+      [],
+    );
   });
 });

@@ -7,6 +7,7 @@
 import { mkdtempSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
+import { gzipSync } from "node:zlib";
 import { describe, expect, it } from "vitest";
 import {
   analyzeFromDigests,
@@ -173,4 +174,27 @@ describe("one analysis in parts", () => {
       await Promise.all(parts.map((part) => part.close()));
     }
   }, 900_000);
+
+  it("keeps whole, saying why, a gzip file and a Parquet file of one row group", async () => {
+    const folder = mkdtempSync(path.join(tmpdir(), "partita-parts-"));
+    const csv = loadStackedDigitsCsv(1);
+    const gzipFile = path.join(folder, "digits.csv.gz");
+    writeFileSync(gzipFile, gzipSync(csv));
+    const gzipPlan = await planDatasetParts(await localDatasetBytes(gzipFile), "digits.csv.gz", 3);
+    expect(gzipPlan.parts).toHaveLength(1);
+    expect(gzipPlan.wholeBecause).toBe(
+      "the file is gzip-compressed, and compressed data can only be read from its start",
+    );
+    const parquetFile = path.join(folder, "digits.parquet");
+    writeFileSync(parquetFile, writeCsvAsParquet(csv, 10_000));
+    const parquetPlan = await planDatasetParts(
+      await localDatasetBytes(parquetFile),
+      "digits.parquet",
+      3,
+    );
+    expect(parquetPlan.parts).toHaveLength(1);
+    expect(parquetPlan.wholeBecause).toBe(
+      "the Parquet file has one row group, and a Parquet file is cut between row groups",
+    );
+  });
 });

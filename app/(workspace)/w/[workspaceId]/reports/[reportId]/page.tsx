@@ -17,7 +17,7 @@ import { ReviewStateChip } from "@/components/reviews/review-state-chip";
 import { VerdictPanel } from "@/components/reports/verdict-panel";
 import { Cautions } from "@/components/workspace/cautions";
 import { listAnalysisParts } from "@/db/queries/analysis-parts";
-import { findRowsSpilledAtLimit } from "@/db/queries/analyses";
+import { findRunCircumstances } from "@/db/queries/analyses";
 import { findReport, findShardPage, listShardIds } from "@/db/queries/reports";
 import { findReviewOverview, listReviewerCandidates } from "@/db/queries/reviews";
 import { guardPage } from "@/lib/auth/page-guard";
@@ -68,14 +68,14 @@ export default async function ReportPage({ params, searchParams }: PageProps) {
   const { user, workspace, report } = await loadReport(workspaceId, reportId);
   const { summary } = report;
   const shardView = readShardTableView(await searchParams);
-  const [review, reviewerCandidates, shardPage, shardIds, parts, rowsSpilledAtLimit] =
+  const [review, reviewerCandidates, shardPage, shardIds, parts, circumstances] =
     await Promise.all([
     findReviewOverview(workspace.id, report.id),
     listReviewerCandidates(workspace.id),
     findShardPage(report.id, shardView),
     listShardIds(report.id, PICKABLE_SHARDS),
     listAnalysisParts(report.analysisId),
-    findRowsSpilledAtLimit(workspace.id, report.analysisId),
+    findRunCircumstances(workspace.id, report.analysisId),
   ]);
   return (
     <article
@@ -96,7 +96,7 @@ export default async function ReportPage({ params, searchParams }: PageProps) {
       <KeyFigures summary={summary} shardCount={report.shardCount} />
       {summary.digests ? <DigestProvenance digests={summary.digests} /> : null}
       <ReportProvenance report={report} />
-      <RunNotes notes={describeRun({ parts, rowsSpilledAtLimit })} />
+      <RunNotes notes={describeRun({ parts, ...circumstances })} />
       <Cautions sharing digests={summary.digests !== undefined} />
       <ReportEvidence summary={summary} shardCount={report.shardCount} />
       <SimulationSection summary={summary} />
