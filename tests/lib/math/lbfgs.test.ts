@@ -234,6 +234,44 @@ print(json.dumps(r.x.tolist()))`,
     expect(result.converged).toBe(false);
   });
 
+  // Near an optimum f is flat to rounding, so f(x + t d) can sit a few ulps above f(x) even at a
+  // better point, and Armijo fails for every t. Hager & Zhang's approximate Wolfe conditions (SIAM
+  // J. Optim. 16(1), 2005; from memory) accept such a step from the directional derivative when f
+  // rose by at most 1e-10·|f|. Modelled here: f = 1 + ½(x − 1)² plus a bump away from the start
+  // standing in for rounding, with the exact gradient; from 1 + 10⁻⁶ the unit step lands on x = 1.
+  const bumpy =
+    (bump: number, calls: { count: number }) => (x: Float64Array, gradient: Float64Array) => {
+      calls.count++;
+      gradient[0] = x[0] - 1;
+      return 1 + 0.5 * (x[0] - 1) ** 2 + (calls.count > 1 ? bump : 0);
+    };
+
+  it("accepts a step by the approximate Wolfe conditions when f rose by rounding only", () => {
+    const calls = { count: 0 };
+    const result = minimizeLbfgs(bumpy(5e-11, calls), Float64Array.of(1 + 1e-6), {
+      gradientTolerance: 1e-12,
+    });
+    expect({
+      converged: result.converged,
+      iterations: result.iterations,
+      calls: calls.count,
+    }).toEqual({ converged: true, iterations: 1, calls: 2 });
+    expect(result.x[0]).toBeCloseTo(1, 15);
+  });
+
+  it("refuses a step whose f rose by more than 1e-10·|f|, trying 50 steps before it gives up", () => {
+    const calls = { count: 0 };
+    const result = minimizeLbfgs(bumpy(2e-10, calls), Float64Array.of(1 + 1e-6), {
+      gradientTolerance: 1e-12,
+    });
+    expect({
+      converged: result.converged,
+      iterations: result.iterations,
+      calls: calls.count,
+    }).toEqual({ converged: false, iterations: 0, calls: 51 });
+    expect(result.x[0]).toBe(1 + 1e-6);
+  });
+
   it("returns at once when the start is already optimal", () => {
     const result = minimizeLbfgs(
       (x, gradient) => {
