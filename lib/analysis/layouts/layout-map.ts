@@ -10,10 +10,18 @@ export function writeLayoutMap(
   assignment: ShardAssignment,
   shardCount: number,
 ): string {
-  const names = Array.from({ length: shardCount }, (_, m) => formatShardId(m, shardCount));
-  const lines = ["row_id,shard"];
-  rowIds.forEach((id, row) => lines.push(`${quoteField(id)},${names[assignment[row]]}`));
-  return `${lines.join("\n")}\n`;
+  // Each line's end: the comma, the shard's name, the line feed.
+  const lineEnds = Array.from(
+    { length: shardCount },
+    (_, m) => `,${formatShardId(m, shardCount)}\n`,
+  );
+  // One growing string: a few times faster than an array of lines joined (the CLI writes eight
+  // maps of the whole dataset).
+  let text = "row_id,shard\n";
+  for (let row = 0; row < rowIds.length; row++) {
+    text += quoteField(rowIds[row]) + lineEnds[assignment[row]];
+  }
+  return text;
 }
 
 function quoteField(value: string): string {
