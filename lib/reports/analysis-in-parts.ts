@@ -10,6 +10,7 @@ import {
 import { recordReadWhole, type ClaimedAnalysis } from "@/db/queries/analyses";
 import {
   analyzeFromDigests,
+  findColumnsNeedingAllRows,
   mergeSchemaDigests,
   PartsConnection,
   planDatasetParts,
@@ -179,7 +180,19 @@ async function runParts(
   try {
     clock.enter("reading");
     hooks.onProgress({ stage: "reading", fraction: 0 });
-    const encoding = mergeSchemaDigests([await whole.schema()], {
+    const schema = await whole.schema();
+    // Methods.md §1's rule for numeric columns with bad values needs every row of the column.
+    const needAllRows = findColumnsNeedingAllRows(schema);
+    if (needAllRows.length > 0) {
+      await removePartRun(analysis.id);
+      await recordReadWhole(
+        analysis.workspaceId,
+        analysis.id,
+        `${needAllRows.length === 1 ? "column" : "columns"} ${needAllRows.map((name) => `"${name}"`).join(", ")} ${needAllRows.length === 1 ? "mixes" : "mix"} numbers with other values, which only a read of all the rows can judge`,
+      );
+      return null;
+    }
+    const encoding = mergeSchemaDigests([schema], {
       task: analysis.parameters.task,
       minimumShardRows: 1,
     });

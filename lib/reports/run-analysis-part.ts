@@ -149,6 +149,8 @@ export async function runAnalysisPart(
       const reader = new LocalDigestClient(name, raw, {
         task: parameters.task,
         minimumShardRows: 1,
+        // The coordinator judges a column that is not numeric in this part over all parts.
+        refuseUnencodable: false,
         threads: settings.threads,
         memory,
       });

@@ -8,6 +8,7 @@ import {
   type ShardGradientDigest,
   type ShardSchemaDigest,
 } from "./digest-format";
+import { parseNumberToken } from "../tokens";
 import { poolMoments } from "./merge-schemas";
 
 /**
@@ -171,4 +172,22 @@ function sumOf<Item>(items: Item[], value: (item: Item) => number): number {
   let total = 0;
   for (const item of items) total += value(item);
   return total;
+}
+
+/**
+ * Feature columns of a dataset read in parts that only a read of all its rows can judge by methods.md
+ * §1's rule for numeric columns with bad values (at least 95% numbers over the whole column): a
+ * column some part saw non-numbers in, whose values mix numbers with other tokens or whose distinct
+ * values a part did not count (more than 32). A part cannot tell a numeric column with a few bad
+ * values from a category; one process can.
+ */
+export function findColumnsNeedingAllRows(schema: SchemaDigest): string[] {
+  return schema.features.filter((_, k) => {
+    if (schema.columnsNumeric[k]) return false;
+    const levels = schema.shards.map((shard) => shard.columns[k].levels);
+    if (levels.some((counts) => counts === null)) return true;
+    const tokens = levels.flatMap((counts) => Object.keys(counts ?? {}));
+    const isNumber = (token: string) => Number.isFinite(parseNumberToken(token));
+    return tokens.some(isNumber) && !tokens.every(isNumber);
+  });
 }

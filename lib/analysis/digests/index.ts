@@ -39,6 +39,7 @@ export {
   combineEvaluationSums,
   combineGradientDigests,
   combineSchemaDigests,
+  findColumnsNeedingAllRows,
 } from "./combine-parts";
 export {
   localDatasetBytes,

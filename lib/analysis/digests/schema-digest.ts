@@ -21,6 +21,11 @@ export interface SchemaDigestOptions {
   task?: Task;
   /** Shards with fewer kept rows are refused (methods.md §9; default 10). */
   minimumShardRows?: number;
+  /**
+   * Whether a named feature that is neither numeric nor encodable is refused here (default); a
+   * part of one dataset leaves that to its coordinator, which judges the column over all rows.
+   */
+  refuseUnencodable?: boolean;
 }
 
 /**
@@ -46,7 +51,7 @@ export function computeSchemaDigest(
       );
     }
   });
-  if (raw.featuresNamed) {
+  if (raw.featuresNamed && options.refuseUnencodable !== false) {
     for (const feature of raw.features) {
       if (!feature.numeric && !feature.hasLevels) {
         const first = feature.firstNonNumeric as { row: number; token: string };

@@ -120,6 +120,36 @@ describe("one analysis shared by several workers", () => {
     ]);
   }, 600_000);
 
+  it("leaves a column with a value that is not a number to one process, which judges it", async () => {
+    // A word among the numbers of a pixel column, in part 3 of 3: whether the column is numeric
+    // with a bad value or a category is decided over all its values (methods.md §1's 95% rule),
+    // so the analysis is read whole, with the one-process outcome.
+    const badRow = 40_000;
+    const lines = CSV.split("\n");
+    const column = "pixel_3_5";
+    const fields = lines[badRow + 1].split(",");
+    fields[lines[0].split(",").indexOf(column)] = "abc";
+    lines[badRow + 1] = fields.join(",");
+    const badCsv = lines.join("\n");
+    const inParts = await queueDigitsAnalysis(badCsv);
+    const partsRun = await runAnalysis(inParts, { willRetry: true, parts: partsSettings(3) });
+    const oneProcessRun = await runAnalysis(await queueDigitsAnalysis(badCsv), {
+      willRetry: true,
+      parts: partsSettings(1),
+    });
+    expect(oneProcessRun).toEqual({
+      outcome: "failed",
+      message: expect.stringContaining(
+        `digits.csv, data row ${badRow} (0-based, header excluded; line ${badRow + 2}), column "${column}": 1 of the column's`,
+      ),
+    });
+    expect(partsRun).toEqual(oneProcessRun);
+    const circumstances = await findRunCircumstances(inParts.workspaceId, inParts.analysisId);
+    expect(circumstances.readWholeBecause).toBe(
+      `column "${column}" mixes numbers with other values, which only a read of all the rows can judge`,
+    );
+  }, 600_000);
+
   it("shares a Parquet dataset by whole row groups, with the CSV's one-process summary", async () => {
     // The same table as Parquet in row groups of 4 000 rows: each part's worker reads the footer
     // and its row groups from storage by byte ranges.
