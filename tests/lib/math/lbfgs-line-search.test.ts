@@ -38,9 +38,23 @@ describe("minimizeLbfgs's first line search", () => {
     expectPoints(trialPoints(parabola(10, 0.7), 1, 3), [1, 0, 0.7]);
   });
 
+  it("demands a decrease of 10⁻⁴ t |∇fᵀd|: 0.99999 x² from 0.25 refuses −0.249995, then halves", () => {
+    // ∇f(0.25) = 0.499995, so d = −0.499995 and x₀ + d = −0.249995, where f fell by only 2.5e-6,
+    // less than 10⁻⁴ · 0.499995² ≈ 2.5e-5 (and the new slope is about −1 times the first, so the
+    // approximate Wolfe test refuses it too). The quadratic's minimizer t ≈ 0.500005 is cut to
+    // 0.5: x = 0.0000025.
+    expectPoints(trialPoints(parabola(0.99999, 0), 0.25, 3), [0.25, -0.249995, 0.0000025]);
+  });
+
   it("keeps the backtrack at least 0.1 t: 10 (x − 0.93)² from 1 tries 0, then 0.9", () => {
     // The parabola's minimizer t = 0.07 is below 0.1, so t = 0.1 (x = 0.9), which passes Armijo.
     expectPoints(trialPoints(parabola(10, 0.93), 1, 3), [1, 0, 0.9]);
+  });
+
+  it("cuts the step tenfold where f is NaN too: the same f through Math.log", () => {
+    const barrier = (x: number): [number, number] => [-Math.log(x) + 10 * x, -1 / x + 10];
+    expect(Number.isNaN(barrier(-0.5)[0])).toBe(true);
+    expectPoints(trialPoints(barrier, 0.5, 3), [0.5, -0.5, 0.4]);
   });
 
   it("cuts the step tenfold where f is not finite: −log x + 10x from 0.5 tries −0.5, then 0.4", () => {

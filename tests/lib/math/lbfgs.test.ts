@@ -236,40 +236,62 @@ print(json.dumps(r.x.tolist()))`,
 
   // Near an optimum f is flat to rounding, so f(x + t d) can sit a few ulps above f(x) even at a
   // better point, and Armijo fails for every t. Hager & Zhang's approximate Wolfe conditions (SIAM
-  // J. Optim. 16(1), 2005; from memory) accept such a step from the directional derivative when f
-  // rose by at most 1e-10·|f|. Modelled here: f = 1 + ½(x − 1)² plus a bump away from the start
-  // standing in for rounding, with the exact gradient; from 1 + 10⁻⁶ the unit step lands on x = 1.
-  const bumpy =
-    (bump: number, calls: { count: number }) => (x: Float64Array, gradient: Float64Array) => {
-      calls.count++;
-      gradient[0] = x[0] - 1;
-      return 1 + 0.5 * (x[0] - 1) ** 2 + (calls.count > 1 ? bump : 0);
-    };
-
-  it("accepts a step by the approximate Wolfe conditions when f rose by rounding only", () => {
-    const calls = { count: 0 };
-    const result = minimizeLbfgs(bumpy(5e-11, calls), Float64Array.of(1 + 1e-6), {
-      gradientTolerance: 1e-12,
-    });
-    expect({
+  // J. Optim. 16(1), 2005; from memory) accept such a step from the directional derivative d·∇f:
+  // when f rose by at most 1e-10·|f| and 0.9·slope ≤ d·∇f(x + t d) ≤ −0.8·slope. Modelled here:
+  // f = 4 + ½k(x − 1)² plus a bump away from the start standing in for rounding, with the exact
+  // gradient, from x₀ = 1 + 10⁻⁶. The first step is −∇f, so at step t the ratio of the new slope
+  // to the first is 1 − kt (hand-derived): k = 1 lands on the optimum (ratio 0), k = 0.05 falls
+  // short (ratio ≥ 0.95 > 0.9 at every t ≤ 1), k = 1.9 overshoots (ratio −0.9 < −0.8 at t = 1).
+  function searchBumpy(k: number, bump: number) {
+    const points: number[] = [];
+    const result = minimizeLbfgs(
+      (x, gradient) => {
+        gradient[0] = k * (x[0] - 1);
+        points.push(x[0]);
+        return 4 + 0.5 * k * (x[0] - 1) ** 2 + (points.length > 1 ? bump : 0);
+      },
+      Float64Array.of(1 + 1e-6),
+      { gradientTolerance: 1e-12 },
+    );
+    return {
       converged: result.converged,
       iterations: result.iterations,
-      calls: calls.count,
-    }).toEqual({ converged: true, iterations: 1, calls: 2 });
-    expect(result.x[0]).toBeCloseTo(1, 15);
+      calls: points.length,
+      points,
+    };
+  }
+
+  it("accepts a step by the approximate Wolfe conditions when f rose by rounding only", () => {
+    const { points, ...outcome } = searchBumpy(1, 2e-10);
+    expect(outcome).toEqual({ converged: true, iterations: 1, calls: 2 });
+    expect(points[1]).toBeCloseTo(1, 15);
   });
 
   it("refuses a step whose f rose by more than 1e-10·|f|, trying 50 steps before it gives up", () => {
-    const calls = { count: 0 };
-    const result = minimizeLbfgs(bumpy(2e-10, calls), Float64Array.of(1 + 1e-6), {
-      gradientTolerance: 1e-12,
+    const { converged, iterations, calls } = searchBumpy(1, 6e-10);
+    expect({ converged, iterations, calls }).toEqual({
+      converged: false,
+      iterations: 0,
+      calls: 51,
     });
-    expect({
-      converged: result.converged,
-      iterations: result.iterations,
-      calls: calls.count,
-    }).toEqual({ converged: false, iterations: 0, calls: 51 });
-    expect(result.x[0]).toBe(1 + 1e-6);
+  });
+
+  it("refuses steps that leave the slope above 0.9 of the first (too short)", () => {
+    const { converged, iterations, calls } = searchBumpy(0.05, 2e-10);
+    expect({ converged, iterations, calls }).toEqual({
+      converged: false,
+      iterations: 0,
+      calls: 51,
+    });
+  });
+
+  it("refuses a step whose new slope passes −0.8 of the first, then takes 0.1 of it", () => {
+    // At t = 1 the ratio is −0.9: refused. The quadratic through f(x₀), slope and the bumped
+    // f(x₀ + d) has its minimizer far below 0.1, so t = 0.1 (ratio 0.81, accepted).
+    const { points } = searchBumpy(1.9, 2e-10);
+    [1 + 1e-6, 1 - 0.9e-6, 1 + 0.81e-6].forEach((expected, k) =>
+      expect(points[k]).toBeCloseTo(expected, 14),
+    );
   });
 
   it("returns at once when the start is already optimal", () => {
