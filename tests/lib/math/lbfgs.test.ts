@@ -190,6 +190,64 @@ print(json.dumps(r.x.tolist()))`,
     expect(reported[reported.length - 1].gradientNorm).toBe(result.gradientNorm);
   });
 
+  it("steps by the BFGS matrix of its two newest pairs, updated oldest first", () => {
+    // f(x) = Σ (xᵢ − i)⁴ + ½ Σ xᵢ² + x₀x₁/4 in three dimensions (not quadratic, so the fit takes many
+    // steps). L-BFGS's matrix after pairs (s₁, y₁), (s₂, y₂) is H = U₂ U₁ (γ₂ I) with each
+    // U: H ↦ (I − ρ s yᵀ) H (I − ρ y sᵀ) + ρ s sᵀ applied to the dense matrix, oldest pair first,
+    // and γ₂ = s₂ᵀy₂ / y₂ᵀy₂ (Nocedal & Wright, "Numerical Optimization", 2nd ed., eqs. 6.17, 7.19
+    // and 7.20; from memory): the third direction is −H ∇f.
+    const f = (x: Float64Array, gradient: Float64Array) => {
+      let value = (x[0] * x[1]) / 4;
+      for (let i = 0; i < 3; i++) {
+        value += (x[i] - i) ** 4 + 0.5 * x[i] * x[i];
+        gradient[i] = 4 * (x[i] - i) ** 3 + x[i];
+      }
+      gradient[0] += x[1] / 4;
+      gradient[1] += x[0] / 4;
+      return value;
+    };
+    const evaluated: { x: number[]; g: number[] }[] = [];
+    const accepted: number[] = [];
+    minimizeLbfgs(
+      (point, gradient) => {
+        const value = f(point, gradient);
+        evaluated.push({ x: [...point], g: [...gradient] });
+        return value;
+      },
+      Float64Array.of(2, -1, 0.5),
+      { gradientTolerance: 1e-10, onIteration: () => accepted.push(evaluated.length - 1) },
+    );
+    const [p0, p1, p2] = [evaluated[0], evaluated[accepted[0]], evaluated[accepted[1]]];
+    const minus = (a: number[], b: number[]) => a.map((value, i) => value - b[i]);
+    const dotOf = (a: number[], b: number[]) =>
+      a.reduce((total, value, i) => total + value * b[i], 0);
+    const pairs = [
+      [minus(p1.x, p0.x), minus(p1.g, p0.g)],
+      [minus(p2.x, p1.x), minus(p2.g, p1.g)],
+    ];
+    for (const [s, y] of pairs) expect(dotOf(s, y)).toBeGreaterThan(0);
+    const identity = (i: number, j: number) => (i === j ? 1 : 0);
+    const [s2, y2] = pairs[1];
+    let h = [0, 1, 2].map((i) =>
+      [0, 1, 2].map((j) => (identity(i, j) * dotOf(s2, y2)) / dotOf(y2, y2)),
+    );
+    for (const [s, y] of pairs) {
+      const rho = 1 / dotOf(s, y);
+      const left = [0, 1, 2].map((i) => [0, 1, 2].map((j) => identity(i, j) - rho * s[i] * y[j]));
+      const product = (a: number[][], b: number[][]) =>
+        a.map((row) =>
+          [0, 1, 2].map((j) => row.reduce((total, value, k) => total + value * b[k][j], 0)),
+        );
+      const right = left.map((_, i) => left.map((row) => row[i]));
+      h = product(product(left, h), right).map((row, i) =>
+        row.map((value, j) => value + rho * s[i] * s[j]),
+      );
+    }
+    const direction = h.map((row) => -dotOf(row, p2.g));
+    const trial = evaluated[accepted[1] + 1].x;
+    trial.forEach((value, i) => expect(value).toBeCloseTo(p2.x[i] + direction[i], 12));
+  });
+
   it("stops after maxIterations, unconverged, at the last accepted point", () => {
     let calls = 0;
     const result = minimizeLbfgs(
