@@ -8,17 +8,17 @@ const read = (text: string, byRowIndex = false) =>
   readPartitionMap(Readable.from([text]), "map.csv", { byRowIndex });
 
 describe("reading a partition map (methods.md §1)", () => {
-  it("maps the penguins' rows to their islands as pandas reads the same map", async () => {
+  it("maps the penguins' rows to their islands as Python's csv module reads the same map", async () => {
     // Open data: the vega-datasets penguins with a row_id,shard map by island.
     const { islandMap } = loadPenguinsCsv();
     const map = await read(islandMap, true);
-    // Outside reference: pandas reads the map; shards in first-appearance order, as the map lists them.
+    // Outside reference: CPython's csv module reads the map; shards in first-appearance order, as
+    // the map lists them.
     const reference = runPythonJson<{ shards: string[]; codes: number[] }>(
-      `import sys, io, json
-import pandas as pd
-frame = pd.read_csv(io.StringIO(json.load(sys.stdin)), dtype=str)
-shards = list(dict.fromkeys(frame["shard"].str.strip()))
-print(json.dumps({"shards": shards, "codes": [shards.index(s.strip()) for s in frame["shard"]]}))`,
+      `import sys, io, csv, json
+rows = list(csv.DictReader(io.StringIO(json.load(sys.stdin))))
+shards = list(dict.fromkeys(row["shard"].strip() for row in rows))
+print(json.dumps({"shards": shards, "codes": [shards.index(row["shard"].strip()) for row in rows]}))`,
       islandMap,
     );
     expect(map.shardIds).toEqual(reference.shards);
