@@ -357,6 +357,31 @@ describe("encoding the design (methods.md §1) against pandas and scikit-learn",
     );
   });
 
+  it("writes a one-hot design of several 512-row blocks as NumPy computes it", async () => {
+    const rows = 1300;
+    const lines = Array.from(
+      { length: rows },
+      (_, i) => `${["a", "b", "c"][i % 3]},${(i * 7) % 11},${i % 2},s${(i * 5) % 3}`,
+    );
+    const csv = `k,x,label,shard\n${lines.join("\n")}\n`;
+    const design = await encode(csv);
+    // Outside reference: one-hot columns and x standardized with the population deviation (NumPy's
+    // default ddof=0), the bias appended, rows grouped by shard keeping their order (a stable sort).
+    const reference = runPythonJson<number[]>(
+      `import sys, json
+import numpy as np
+n = json.load(sys.stdin); i = np.arange(n)
+k = i % 3; shard = (i * 5) % 3
+X = np.column_stack([(k == 0), (k == 1), (k == 2), (i * 7) % 11]).astype(float)
+X = (X - X.mean(0)) / X.std(0)
+X = np.column_stack([X[:, :3], X[:, 3], np.ones(n)])[np.argsort(shard, kind="stable")]
+print(json.dumps(X.ravel().tolist()))`,
+      rows,
+    );
+    expect(design.featureNames).toEqual(["k=a", "k=b", "k=c", "x"]);
+    expectClose(design.x.data, reference, 1e-12);
+  });
+
   it("keeps rows in file order when they already are grouped by shard", async () => {
     const csv = "x,label,shard\n1,a,p\n3,b,p\n2,a,q\n6,b,q\n";
     const design = await encode(csv);
