@@ -2,7 +2,7 @@ import { Readable } from "node:stream";
 import { describe, expect, it } from "vitest";
 import { decodeText, describeNonText, findInvalidUtf8 } from "@/lib/analysis/decode-text";
 import type { TextEncodingName } from "@/lib/analysis/text-format";
-import { runPythonJson } from "./support/run-python";
+import { pythonUtf8ErrorStarts, runPythonJson } from "./support/run-python";
 
 /** The stream's bytes in pieces of the given sizes (the last piece takes the rest). */
 function piecesOf(bytes: Uint8Array, sizes: number[]): Buffer[] {
@@ -256,17 +256,7 @@ describe("findInvalidUtf8 (the Unicode Standard, table 3-7) against Python", () 
       [0x41, 0xf0, 0x9f, 0x98],
       [0x41, 0xc3],
     ];
-    const reference = runPythonJson<number[]>(
-      `import sys, json
-out = []
-for case in json.load(sys.stdin):
-    try:
-        bytes(case).decode("utf-8"); out.append(len(case))
-    except UnicodeDecodeError as error:
-        out.append(error.start)
-print(json.dumps(out))`,
-      cases,
-    );
+    const reference = pythonUtf8ErrorStarts(cases);
     expect(cases.map((bytes) => findInvalidUtf8(Uint8Array.from(bytes), true))).toEqual(reference);
     // Mid-file, a sequence cut off by the end of the bytes read so far is not (yet) invalid.
     expect(findInvalidUtf8(Uint8Array.from([0x41, 0xe2, 0x82]), false)).toBe(3);

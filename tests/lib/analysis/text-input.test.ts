@@ -8,7 +8,7 @@ import type { CsvFormatChoice } from "@/lib/analysis/text-format";
 import { MAX_QUOTED_CHARACTERS, showValue } from "@/lib/analysis/quote-value";
 import { readCsvHead } from "@/lib/uploads/csv-preview";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
-import { runPythonJson } from "./support/run-python";
+import { pythonUtf8ErrorStarts, runPythonJson } from "./support/run-python";
 
 /** Streams bytes in odd-sized pieces, so chunk borders fall inside characters and rows. */
 function streamBytes(bytes: Uint8Array, piece = 997): Readable {
@@ -98,17 +98,7 @@ except UnicodeDecodeError as error:
       [[0xf4, 0x90, 0x80, 0x80], 0], // above U+10FFFF
       [[0x61, 0xe2, 0x82], 1], // cut short at the end of the file
     ];
-    const reference = runPythonJson<number[]>(
-      `import sys, json
-out = []
-for case in json.load(sys.stdin):
-    try:
-        bytes(case).decode("utf-8"); out.append(len(case))
-    except UnicodeDecodeError as error:
-        out.append(error.start)
-print(json.dumps(out))`,
-      cases.map(([bytes]) => bytes),
-    );
+    const reference = pythonUtf8ErrorStarts(cases.map(([bytes]) => bytes));
     expect(cases.map(([bytes]) => findInvalidUtf8(Uint8Array.from(bytes), true))).toEqual(
       reference,
     );

@@ -18,3 +18,21 @@ export function runPythonJson<Result>(program: string, input: unknown = null): R
   });
   return JSON.parse(output) as Result;
 }
+
+/**
+ * Where CPython's strict UTF-8 decoder first fails in each byte sequence (UnicodeDecodeError's
+ * `start`), or the sequence's length when it decodes: the outside reference for invalid UTF-8.
+ */
+export function pythonUtf8ErrorStarts(cases: number[][]): number[] {
+  return runPythonJson<number[]>(
+    `import sys, json
+out = []
+for case in json.load(sys.stdin):
+    try:
+        bytes(case).decode("utf-8"); out.append(len(case))
+    except UnicodeDecodeError as error:
+        out.append(error.start)
+print(json.dumps(out))`,
+    cases,
+  );
+}
