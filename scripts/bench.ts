@@ -16,7 +16,8 @@
  * the beyond-memory case: 10M rows under the default 2 GiB memory limit, so the encoded rows live in
  * a scratch file, against the 1M case in the same run (targets: peak ≤ 2 GiB, wall ≤ 12× the 1M's).
  * `--workers`, never part of a plain run either, times one analysis of the 1M data by one worker
- * process pinned to a core against two pinned workers sharing it in parts (scripts/bench/bench-workers.ts).
+ * process pinned to a core against two pinned workers sharing it in parts (scripts/bench/bench-workers.ts);
+ * `--workers-huge` does the same on the 10M data, the case the target (two ≥ 1.7× faster) is set on.
  */
 import { spawn } from "node:child_process";
 import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from "node:fs";
@@ -467,6 +468,7 @@ async function main(): Promise<void> {
     "--layouts",
     "--huge",
     "--workers",
+    "--workers-huge",
   ].find((flag) => process.argv.includes(flag));
   if (only === undefined || only === "--small") await benchCase(CASES[0]);
   if (only === undefined || only === "--large") await benchCase(CASES[1]);
@@ -475,9 +477,12 @@ async function main(): Promise<void> {
   if (only === undefined || only === "--digests") await benchDigests(CASES[1], CASES[0]);
   if (only === undefined || only === "--layouts") await benchLayouts(CASES[0]);
   if (only === "--huge") await benchHuge();
-  // Never part of a plain run: it pins workers to both cores for minutes.
+  // Never part of a plain run: they pin workers to both cores for minutes (10M: most of an hour).
   if (only === "--workers") {
     await benchWorkers(root, await prepareData(CASES[1], "workers, one analysis in parts: "));
+  }
+  if (only === "--workers-huge") {
+    await benchWorkers(root, await prepareData(HUGE_CASE, "workers, one analysis in parts: "));
   }
 }
 
