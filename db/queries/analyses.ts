@@ -236,6 +236,9 @@ export async function claimAnalysis(
       failureMessage: null,
       heartbeatAt: sql`now()`,
       storageUnreachableSince: null,
+      // What the report says of how the run went is this run's alone, not an earlier attempt's.
+      rowsSpilledAtLimit: null,
+      readWholeBecause: null,
     })
     .where(
       and(

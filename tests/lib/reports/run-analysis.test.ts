@@ -55,7 +55,13 @@ vi.mock("@/db/queries/report-store", async (importOriginal) => {
 
 import { cancelAnalysis, startAnalysis } from "@/app/(workspace)/w/[workspaceId]/analyses/actions";
 import { closeDb, db } from "@/db/client";
-import { claimAnalysis, findAnalysisStatus } from "@/db/queries/analyses";
+import {
+  claimAnalysis,
+  findAnalysisStatus,
+  findRunCircumstances,
+  recordReadWhole,
+  recordRowsSpilled,
+} from "@/db/queries/analyses";
 import { analyses, dataFiles, reports, reportShards } from "@/db/schema";
 import { analyzePartition, type PartitionSummary } from "@/lib/analysis";
 import { runAnalysis } from "@/lib/reports/run-analysis";
@@ -191,6 +197,19 @@ describe("running an analysis job", () => {
       expect(shard).toEqual({ reportId: report.id, ordinal, shardId: id, ...measures });
       // Identity: a shard's label counts add up to its rows.
       expect(shard.labelCounts.reduce((sum, count) => sum + count, 0)).toBe(shard.rows);
+    });
+  });
+
+  it("forgets an earlier attempt's circumstances: the report names only its own run's", async () => {
+    const { team, job, analysisId } = await startPenguinAnalysis();
+    // An earlier attempt, shared among workers, spilled its rows and was read whole; this worker
+    // runs the retry in one process, in memory.
+    await recordRowsSpilled(team.workspaceId, analysisId, 1024 * 1024);
+    await recordReadWhole(team.workspaceId, analysisId, "the file is gzip-compressed");
+    expect(await runAnalysis(job, { willRetry: false })).toMatchObject({ outcome: "succeeded" });
+    expect(await findRunCircumstances(team.workspaceId, analysisId)).toEqual({
+      rowsSpilledAtLimit: null,
+      readWholeBecause: null,
     });
   });
 
