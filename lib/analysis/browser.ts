@@ -18,7 +18,7 @@ export {
 export { MAX_AGREEMENT_SHARDS } from "./assemble-summary";
 export { compareCodePoints } from "./code-point-order";
 export { MAX_ONE_HOT_LEVELS } from "./column-accumulator";
-export { AnalysisInputError } from "./errors";
+export { AnalysisInputError, type InputProblemLocation } from "./errors";
 export { parseMemorySize } from "./memory-size";
 export { PATH_POINTS } from "./path-points";
 export { quoteValue, showValue } from "./quote-value";

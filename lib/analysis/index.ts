@@ -12,7 +12,8 @@ export { DECIMAL_MARK_SAMPLE_ROWS, detectDecimalMark, readHeader } from "./csv-r
 export { describeNonText } from "./decode-text";
 export { readParquetHead, readParquetLayout, type AsyncBuffer } from "./parquet-reader";
 export { detectTableFormat } from "./table-reader";
-export type { RawDataset } from "./read-dataset";
+export type { DatasetColumnChoice, RawDataset } from "./read-dataset";
+export type { Task } from "./design";
 export {
   DEFAULT_MEMORY_LIMIT_BYTES,
   readMemorySettings,

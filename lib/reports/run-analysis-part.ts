@@ -12,22 +12,12 @@ import {
   releasePart,
   storePartSchema,
 } from "@/db/queries/analysis-parts";
-import {
-  AnalysisInputError,
-  encodingSchema,
-  evaluationRequestSchema,
-  LocalDigestClient,
-  measurementRequestSchema,
-  planOnePart,
-  readDatasetPart,
-  resolveMemorySettings,
-  withFileRowNumbers,
-} from "@/lib/analysis";
+import { AnalysisInputError, resolveMemorySettings } from "@/lib/analysis";
 import { Doorbell } from "@/lib/doorbell";
 import { env } from "@/lib/env";
 import { formatBytes } from "@/lib/uploads/file-rules";
 import type { AnalysisPartJob } from "@/lib/jobs";
-import { storedDatasetBytes } from "./stored-dataset-bytes";
+import { PartRowsThread } from "./part-rows-thread";
 
 /** This process, as the parts it holds name it. */
 export const PART_HOLDER = `${hostname()}:${process.pid}`;
@@ -102,7 +92,7 @@ export async function runAnalysisPart(
         log(`could not record a heartbeat: ${error instanceof Error ? error.message : error}`),
     );
   }, settings.heartbeatMs);
-  let client: LocalDigestClient | undefined;
+  let rows: PartRowsThread | undefined;
   /** The memory limit once the part's rows went to a scratch file past it. */
   let spilled: number | undefined;
   let spillRecorded = false;
@@ -110,19 +100,12 @@ export async function runAnalysisPart(
     const inputs = await findPartInputs(workspaceId, analysisId);
     if (!inputs) return { outcome: "skipped" };
     const { parameters, dataset } = inputs;
-    const bytes = storedDatasetBytes(dataset);
-    const plan = await planOnePart(bytes, {
-      headerBytes: part.headerBytes,
-      start: part.startByte,
-      end: part.endByte,
-    });
     // The memory limit applies to the part's worker as to a one-process analysis: rows beyond
     // its share go to a scratch file (the report page says so).
     const { PARTITA_MEMORY_LIMIT, PARTITA_SCRATCH_DIR } = env();
     const memory = resolveMemorySettings({
       limitBytes: PARTITA_MEMORY_LIMIT,
       scratchDirectory: PARTITA_SCRATCH_DIR,
-      onScratchFile: () => (spilled ??= memory.limitBytes),
     });
     const recordSpill = async () => {
       if (spilled === undefined || spillRecorded) return;
@@ -130,39 +113,25 @@ export async function runAnalysisPart(
       await recordPartSpill(analysisId, runId, partIndex, spilled);
       log(`rows kept in a scratch file past the memory limit (${formatBytes(spilled)})`);
     };
-    const columns = {
-      labelColumn: parameters.labelColumn,
-      idColumn: parameters.idColumn,
-      shardColumn: parameters.shardColumn,
-      features: parameters.features,
-    };
-    // An input error names the row a one-process read of the file names.
-    const read = await withFileRowNumbers(bytes, plan, plan.parts[0], async (firstRowIndex) => {
-      // A worker that stops mid-read hands its part back at once, not after the whole range.
-      const raw = await readDatasetPart(bytes, dataset.name, plan, 0, columns, {
-        signal,
-        firstRowIndex,
-        memory,
-      });
-      // A shard's rows may fall in several parts: the disclosure minimum of federated clients
-      // (methods.md §9) does not apply inside one analysis.
-      const reader = new LocalDigestClient(name, raw, {
+    rows = new PartRowsThread(
+      {
+        name,
+        dataset,
+        range: { headerBytes: part.headerBytes, start: part.startByte, end: part.endByte },
+        columns: {
+          labelColumn: parameters.labelColumn,
+          idColumn: parameters.idColumn,
+          shardColumn: parameters.shardColumn,
+          features: parameters.features,
+        },
         task: parameters.task,
-        minimumShardRows: 1,
-        // The coordinator judges a column that is not numeric in this part over all parts.
-        refuseUnencodable: false,
         threads: settings.threads,
-        memory,
-      });
-      try {
-        return { client: reader, schema: await reader.schema() };
-      } catch (error) {
-        await reader.close();
-        throw error;
-      }
-    });
-    client = read.client;
-    await storePartSchema(analysisId, runId, partIndex, read.schema);
+        memory: { limitBytes: memory.limitBytes, scratchDirectory: memory.scratchDirectory },
+      },
+      // A worker that stops mid-read hands its part back at once, not after the whole range.
+      { signal, onSpill: () => (spilled ??= memory.limitBytes) },
+    );
+    await storePartSchema(analysisId, runId, partIndex, await rows.schema);
     await recordSpill();
     log("read");
     let answered = 0;
@@ -173,7 +142,7 @@ export async function runAnalysisPart(
       signal.throwIfAborted();
       const open = await findOpenPartExchange(runId, partIndex);
       if (open) {
-        await answerPartExchange(open.id, await answer(client, open.kind, open.request));
+        await answerPartExchange(open.id, await rows.ask(open.kind, open.request));
         // The rows are encoded at the first question: that is where they may outgrow the limit.
         await recordSpill();
         answered++;
@@ -213,17 +182,6 @@ export async function runAnalysisPart(
   } finally {
     stopListening();
     clearInterval(heartbeat);
-    await client?.close();
+    await rows?.close();
   }
-}
-
-/** One question of the coordinator (stored-part-connection.ts), answered from the part's rows. */
-async function answer(client: LocalDigestClient, kind: string, question: unknown) {
-  const { encoding, request } = question as { encoding: unknown; request?: unknown };
-  const parsedEncoding = encodingSchema.parse(encoding);
-  if (kind === "gram") return client.gram(parsedEncoding);
-  if (kind === "evaluate") {
-    return client.evaluate(parsedEncoding, evaluationRequestSchema.parse(request));
-  }
-  return client.gradients(parsedEncoding, measurementRequestSchema.parse(request));
 }
