@@ -3,8 +3,9 @@ import base from "./vitest.config.mjs";
 
 // The tests `npm run mutation` runs against each mutant (stryker.config.json): the unit tests of
 // lib/math, of the engine's statistics, objective, fit and advice, of the summary's assembly, of the
-// readers and the encoder, of the advice's figures and of the layout generators, which need no
-// database and take seconds (the layout planner's own tests run whole analyses and are left out).
+// readers and the encoder, of the advice's figures, of the layout generators, and the focused
+// tests of the digests and the simulation, which need no database and take seconds (the layout
+// planner's own tests and the digests' equality test run whole analyses and are left out).
 // Modules that run inside worker threads are not mutated: a mutant is
 // switched on in the test's thread only, so a worker would compute with the original code.
 export default defineConfig({
@@ -34,6 +35,17 @@ export default defineConfig({
       "tests/lib/analysis/layouts/group-balanced.test.ts",
       "tests/lib/analysis/layouts/layout-pieces.test.ts",
       "tests/lib/analysis/layouts/lloyd-iterations.test.ts",
+      "tests/lib/analysis/digests/histogram-deciles.test.ts",
+      "tests/lib/analysis/digests/schema-digest.test.ts",
+      "tests/lib/analysis/digests/merge-schemas.test.ts",
+      "tests/lib/analysis/digests/gradient-digest.test.ts",
+      "tests/lib/analysis/digests/merge-gradients.test.ts",
+      "tests/lib/analysis/digests/fit-pooled-optimum.test.ts",
+      "tests/lib/analysis/digests/combine-parts.test.ts",
+      "tests/lib/analysis/simulation-batch-gradient.test.ts",
+      "tests/lib/analysis/simulation-run-algorithm.test.ts",
+      "tests/lib/analysis/simulation-cost.test.ts",
+      "tests/lib/analysis/simulation-schedule.test.ts",
       "tests/lib/reports/bound-curves.test.ts",
       "tests/lib/reports/regime-map.test.ts",
     ],

@@ -18,12 +18,11 @@ export function binHistogramIntoDeciles(histograms: [number, number][][]): {
   const total = pooled.reduce((a, b) => a + b, 0);
   const cutCells = Array.from({ length: 9 }, (_, k) => {
     const position = Math.floor(((k + 1) / 10) * (total - 1));
-    let seen = 0;
-    for (let cell = 0; cell < TARGET_HISTOGRAM_CELLS; cell++) {
-      seen += pooled[cell];
-      if (seen > position) return cell;
-    }
-    return TARGET_HISTOGRAM_CELLS - 1;
+    // The counts add up to total > position, so the walk ends inside the cells.
+    let cell = 0;
+    let seen = pooled[0];
+    while (seen <= position) seen += pooled[++cell];
+    return cell;
   });
   const rawBin = new Int32Array(TARGET_HISTOGRAM_CELLS);
   const used = new Uint8Array(10);

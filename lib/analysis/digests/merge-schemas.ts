@@ -68,13 +68,14 @@ export function mergeSchemaDigests(
   const omittedColumns: OmittedColumn[] = [];
   for (const name of first.features) {
     const parts = shards.map((shard) => shard.columns[shard.columnOf(name)]);
-    const present = parts.reduce((total, part) => total + part.present, 0);
-    if (present === 0) {
+    const numeric = digests.every((digest) => digest.columnsNumeric[columnIndexOf(digest)(name)]);
+    // A text column holds a token somewhere; one whose levels a client stopped counting (over 32)
+    // sends no count of its values, so only a numeric column's count tells it is all missing.
+    if (numeric && parts.every((part) => part.present === 0)) {
       omittedColumns.push({ column: name, reason: "all-missing" });
       warnings.push(`column "${name}" has no values and was left out`);
       continue;
     }
-    const numeric = digests.every((digest) => digest.columnsNumeric[columnIndexOf(digest)(name)]);
     if (numeric) {
       const moments = poolMoments(parts);
       const mean = moments.sum / moments.present;

@@ -75,7 +75,12 @@ export function computeSchemaDigest(
   const featureLevels = raw.features.map((feature) =>
     feature.hasLevels ? countLevelsPerShard(feature, raw) : null,
   );
-  const labelValues = raw.label.numeric ? summarizeColumns(raw, raw.labelValues, 1, [0])[0] : null;
+  // The label's count of values is the shard's rows: it is not sent twice.
+  const labelValues = raw.label.numeric
+    ? summarizeColumns(raw, raw.labelValues, 1, [0])[0].map(
+        ({ sum, sumSquaredDeviations, min, max }) => ({ sum, sumSquaredDeviations, min, max }),
+      )
+    : null;
   const numericFeatures = raw.features.flatMap((feature, k) => (feature.numeric ? [k] : []));
   const numericSummaries = summarizeColumns(raw, raw.featureValues, stride, numericFeatures);
   const featureValues = raw.features.map((feature, k) =>

@@ -1,0 +1,264 @@
+import { Readable } from "node:stream";
+import { describe, expect, it } from "vitest";
+import {
+  ClientPasses,
+  combineEvaluationSums,
+  combineGradientDigests,
+  combineSchemaDigests,
+  computeGradientDigest,
+  computeSchemaDigest,
+  encodeClientRows,
+  findColumnsNeedingAllRows,
+  mergeSchemaDigests,
+  readClientRows,
+  type EvaluationRequest,
+  type MeasurementRequest,
+  type SchemaDigest,
+} from "@/lib/analysis/digests";
+import type { Task } from "@/lib/analysis/design";
+import { loadPenguinsCsv } from "../support/open-data";
+
+// The identity behind one analysis in parts (methods.md §9): every digest quantity is a count, a
+// sum, a minimum, a maximum or a second moment merged by Chan's update, so the digests of the parts
+// of a file, combined shard by shard, equal the digest of the whole file — here the vega-datasets
+// penguins cut into three runs of rows, so each island's shard spans parts.
+
+// The first part holds 15 Torgersen penguins: fewer than 21 distinct flipper lengths.
+const CUTS = [0, 15, 190, 344];
+
+/** The penguins' rows [from, to) as a CSV of their own, or all of them. */
+function penguinsRows(from = 0, to = 344): string {
+  const [header, ...lines] = loadPenguinsCsv().csv.trimEnd().split("\n");
+  return `${[header, ...lines.slice(from, to)].join("\n")}\n`;
+}
+
+function readRows(csv: string, labelColumn: string) {
+  return readClientRows({
+    data: Readable.from([Buffer.from(csv, "utf8")]),
+    dataName: "penguins.csv",
+    columns: { labelColumn, shardColumn: "Island", idColumn: "row" },
+  });
+}
+
+async function partsAndWhole(labelColumn: string, task?: Task) {
+  const partRaws = await Promise.all(
+    CUTS.slice(1).map((to, k) => readRows(penguinsRows(CUTS[k], to), labelColumn)),
+  );
+  const wholeRaw = await readRows(penguinsRows(), labelColumn);
+  // A part may hold a shard's few rows: the minimum applies to the combined shard.
+  const options = { client: "part", task, minimumShardRows: 1 };
+  return {
+    partRaws,
+    wholeRaw,
+    parts: partRaws.map((raw) => computeSchemaDigest(raw, options)),
+    whole: computeSchemaDigest(wholeRaw, { ...options, client: "whole" }),
+  };
+}
+
+/**
+ * Equal, numbers within 1e-12 relative of the larger (counts and extremes are exact alike); a vector
+ * (an array of numbers) relative to its largest entry, as a vector is compared.
+ */
+function expectSame(actual: unknown, expected: unknown, path = "", vectorScale = 0): void {
+  if (typeof expected === "number") {
+    const scale = Math.max(Math.abs(expected), Math.abs(actual as number), vectorScale);
+    expect(Math.abs((actual as number) - expected), path).toBeLessThanOrEqual(1e-12 * scale);
+  } else if (Array.isArray(expected)) {
+    expect((actual as unknown[]).length, path).toBe(expected.length);
+    const numbers = expected.every((item) => typeof item === "number");
+    const scale = numbers ? Math.max(0, ...expected.map((item: number) => Math.abs(item))) : 0;
+    expected.forEach((item, k) =>
+      expectSame((actual as unknown[])[k], item, `${path}[${k}]`, scale),
+    );
+  } else if (expected !== null && typeof expected === "object") {
+    expect(Object.keys(actual as object).sort(), path).toEqual(Object.keys(expected).sort());
+    for (const [key, item] of Object.entries(expected)) {
+      expectSame((actual as Record<string, unknown>)[key], item, `${path}.${key}`);
+    }
+  } else {
+    expect(actual, path).toBe(expected);
+  }
+}
+
+/** Shards in one order, for a comparison that does not depend on which part saw one first. */
+function byShard<Digest extends { shards: { id: string }[] }>(digest: Digest): Digest {
+  return { ...digest, shards: [...digest.shards].sort((a, b) => a.id.localeCompare(b.id)) };
+}
+
+/**
+ * The combined digest without the level counts of the columns the whole file stopped counting
+ * (more than 32 distinct values in all its rows): the parts each counted theirs, and the combined
+ * digest keeps them so a text column can be judged over all rows (`findColumnsNeedingAllRows`).
+ */
+function withoutUncounted(combined: SchemaDigest, whole: SchemaDigest): SchemaDigest {
+  const counted = whole.features.map((_, k) =>
+    whole.shards.every((s) => s.columns[k].levels !== null),
+  );
+  return {
+    ...combined,
+    shards: combined.shards.map((shard) => ({
+      ...shard,
+      columns: shard.columns.map((column, k) =>
+        counted[k] ? column : { ...column, levels: null },
+      ),
+    })),
+  };
+}
+
+describe("digests of a file's parts combined (methods.md §9)", () => {
+  it("schema: the parts' digests combine into the whole file's, counts, moments, extremes and levels", async () => {
+    const { parts, whole } = await partsAndWhole("Species");
+    // Each island appears in more than one part.
+    expect(parts.filter((part) => part.shards.some((shard) => shard.id === "Dream")).length).toBe(
+      2,
+    );
+    const combined = combineSchemaDigests("whole", parts, undefined);
+    expectSame(byShard(withoutUncounted(combined, whole)), byShard(whole));
+    // Numeric columns with more than 32 values over all rows: the parts' counts are kept.
+    expect(
+      whole.shards[0].columns.filter((column) => column.levels === null).length,
+    ).toBeGreaterThan(0);
+  });
+
+  it("schema with a numeric label: level counts dropped when the whole has more than 20 values though a part has fewer", async () => {
+    const { parts, whole } = await partsAndWhole("Flipper Length (mm)");
+    expect(parts[0].shards.every((shard) => shard.label.levels !== null)).toBe(true);
+    expect(whole.shards.every((shard) => shard.label.levels === null)).toBe(true);
+    expectSame(
+      byShard(withoutUncounted(combineSchemaDigests("whole", parts, undefined), whole)),
+      byShard(whole),
+    );
+    // Classification fixed by the analysis: the counts are kept, as one client keeps them.
+    const forced = await partsAndWhole("Flipper Length (mm)", "classification");
+    expectSame(
+      byShard(
+        withoutUncounted(
+          combineSchemaDigests("whole", forced.parts, "classification"),
+          forced.whole,
+        ),
+      ),
+      byShard(forced.whole),
+    );
+  });
+
+  it("schema: a column numeric in one part and not in another is not numeric; counts of a part that could not count are null", async () => {
+    const { parts } = await partsAndWhole("Species");
+    const sex = parts[1].features.indexOf("Sex");
+    const numericHere = {
+      ...parts[1],
+      columnsNumeric: parts[1].columnsNumeric.map((numeric, k) => numeric || k === sex),
+      shards: parts[1].shards.map((shard) => ({
+        ...shard,
+        columns: shard.columns.map((column, k) =>
+          k === sex ? { ...column, levels: null } : column,
+        ),
+      })),
+    };
+    const combined = combineSchemaDigests("whole", [parts[0], numericHere, parts[2]], undefined);
+    expect(combined.columnsNumeric[sex]).toBe(false);
+    const dream = combined.shards.find((shard) => shard.id === "Dream")!;
+    expect(dream.columns[sex].levels).toBeNull();
+    expect(dream.columns[sex].sum).toBeNull();
+    expect(combined.totalRows).toBe(344);
+  });
+
+  it("gradients and evaluations: the parts' sums add up to the whole file's", async () => {
+    const { partRaws, wholeRaw, whole } = await partsAndWhole("Species");
+    const encoding = mergeSchemaDigests([whole]);
+    const width = encoding.columns.length + 1;
+    const point = (scale: number) =>
+      Array.from({ length: 3 }, (_, c) =>
+        Array.from({ length: width }, (_, j) => scale * Math.sin(2 + 3 * c + j)),
+      );
+    const request: MeasurementRequest = {
+      encodingHash: encoding.hash,
+      reference: "given",
+      referenceWeights: point(0.3),
+      pathEnd: point(0.8),
+    };
+    const evaluation: EvaluationRequest = {
+      encodingHash: encoding.hash,
+      weights: point(0.5).flat(),
+      sample: null,
+      hessian: true,
+    };
+    const partPasses = partRaws.map((raw) => new ClientPasses(encodeClientRows(raw, encoding), 1));
+    const wholePasses = new ClientPasses(encodeClientRows(wholeRaw, encoding), 1);
+    try {
+      const combined = combineGradientDigests(
+        "whole",
+        partPasses.map((passes) => computeGradientDigest("part", passes, encoding, request)),
+      );
+      expectSame(
+        byShard(combined),
+        byShard(computeGradientDigest("whole", wholePasses, encoding, request)),
+      );
+      expectSame(
+        combineEvaluationSums(partPasses.map((passes) => passes.evaluate(evaluation))),
+        wholePasses.evaluate(evaluation),
+      );
+      const withoutHessian = { ...evaluation, hessian: false };
+      expect(
+        combineEvaluationSums(partPasses.map((passes) => passes.evaluate(withoutHessian)))
+          .hessianSum,
+      ).toBeNull();
+    } finally {
+      await Promise.all([...partPasses, wholePasses].map((passes) => passes.close()));
+    }
+  });
+
+  it("regression: the target histograms of the parts add up cell by cell", async () => {
+    const { partRaws, wholeRaw, whole } = await partsAndWhole("Body Mass (g)", "regression");
+    const encoding = mergeSchemaDigests([whole], { task: "regression" });
+    const width = encoding.columns.length + 1;
+    const weights = [Array.from({ length: width }, (_, j) => 0.1 * j)];
+    const request: MeasurementRequest = {
+      encodingHash: encoding.hash,
+      reference: "zero",
+      referenceWeights: weights,
+      pathEnd: weights,
+    };
+    const partPasses = partRaws.map((raw) => new ClientPasses(encodeClientRows(raw, encoding), 1));
+    const wholePasses = new ClientPasses(encodeClientRows(wholeRaw, encoding), 1);
+    try {
+      const combined = combineGradientDigests(
+        "whole",
+        partPasses.map((passes) => computeGradientDigest("part", passes, encoding, request)),
+      );
+      expectSame(
+        byShard(combined),
+        byShard(computeGradientDigest("whole", wholePasses, encoding, request)),
+      );
+    } finally {
+      await Promise.all([...partPasses, wholePasses].map((passes) => passes.close()));
+    }
+  });
+});
+
+describe("columns only a read of all rows can judge (methods.md §1's 95% rule)", () => {
+  it("lists a column mixing numbers with other tokens, or whose levels a part did not count", () => {
+    const shard = (levels: (Record<string, number> | null)[]) => ({
+      id: "a",
+      rows: 10,
+      label: { sum: null, sumSquaredDeviations: null, min: null, max: null, levels: { x: 10 } },
+      columns: levels.map((counts) => ({
+        present: 10,
+        sum: null,
+        sumSquaredDeviations: null,
+        min: null,
+        max: null,
+        levels: counts,
+      })),
+    });
+    const schema = {
+      features: ["numbers", "mixed", "text", "uncounted", "spelled"],
+      columnsNumeric: [true, false, false, false, false],
+      shards: [
+        shard([{ "1": 10 }, { "1.5": 4, abc: 6 }, { x: 10 }, null, { Inf: 2, "2": 8 }]),
+        shard([{ "2": 10 }, { "7": 10 }, { y: 10 }, { z: 10 }, { "3": 10 }]),
+      ],
+    } as unknown as SchemaDigest;
+    // "Inf" is not a finite number (methods.md §1): that column mixes numbers and another token.
+    expect(findColumnsNeedingAllRows(schema)).toEqual(["mixed", "uncounted", "spelled"]);
+  });
+});

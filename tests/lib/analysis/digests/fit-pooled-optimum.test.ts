@@ -1,0 +1,183 @@
+import { Readable } from "node:stream";
+import { describe, expect, it } from "vitest";
+import {
+  ClientPasses,
+  computeSchemaDigest,
+  encodeClientRows,
+  fitPooledOptimum,
+  mergeEvaluationSums,
+  mergeSchemaDigests,
+  readClientRows,
+  type EvaluationRequest,
+} from "@/lib/analysis/digests";
+import type { Task } from "@/lib/analysis/design";
+import type { Matrix } from "@/lib/math/matrix";
+import { loadPenguinsCsv } from "../support/open-data";
+import { runPythonJson } from "../support/run-python";
+
+const LAMBDA = 1e-3;
+
+/**
+ * Outside reference for methods.md §2's W* from the clients' encoded rows pooled: softmax by
+ * scikit-learn's `LogisticRegression(C = 1/(λN), solver="newton-cg")` on the standardized features
+ * with the intercepts re-centred (methods.md §2's check), least squares by NumPy's solve of the
+ * normal equations; and ∇F at the fitted W and at 0 in NumPy, for §2's stopping rule
+ * ‖∇F(W*)‖ ≤ 1e-8·max(1, ‖∇F(0)‖).
+ */
+const REFERENCE = `import json, sys
+import numpy as np
+from scipy.special import softmax
+from sklearn.linear_model import LogisticRegression
+d = json.load(sys.stdin); lam = d["lam"]
+X = np.array(d["x"]).reshape(-1, d["cols"]); N = len(X)
+def gradient(W):
+    mask = np.ones_like(W); mask[:, -1] = 0
+    if d["labels"] is not None:
+        Y = np.eye(W.shape[0])[d["labels"]]
+        return (softmax(X @ W.T, axis=1) - Y).T @ X / N + lam * W * mask
+    return ((X @ W[0] - np.array(d["targets"]))[:, None]).T @ X / N + lam * W * mask
+if d["labels"] is not None:
+    model = LogisticRegression(C=1 / (lam * N), solver="newton-cg", tol=1e-12, max_iter=1000)
+    model.fit(X[:, :-1], np.array(d["labels"]))
+    b = model.intercept_ - model.intercept_.mean()
+    W = np.hstack([model.coef_, b[:, None]])
+else:
+    P = np.eye(d["cols"]) * lam; P[-1, -1] = 0
+    W = np.linalg.solve(X.T @ X / N + P, X.T @ np.array(d["targets"]) / N)[None, :]
+fitted = np.array(d["fitted"]).reshape(W.shape)
+print(json.dumps({"weights": W.ravel().tolist(), "fittedGradient": float(np.linalg.norm(gradient(fitted))),
+                  "zeroGradient": float(np.linalg.norm(gradient(np.zeros_like(W))))}))`;
+
+/** The penguins (vega-datasets) split between two clients by island, encoded with their encoding. */
+async function twoClients(labelColumn: string, task: Task) {
+  const [header, ...lines] = loadPenguinsCsv().csv.trimEnd().split("\n");
+  const island = header.split(",").indexOf("Island");
+  const parts = [
+    lines.filter((line) => line.split(",")[island] === "Biscoe"),
+    lines.filter((line) => line.split(",")[island] !== "Biscoe"),
+  ];
+  const raws = await Promise.all(
+    parts.map((part, c) =>
+      readClientRows({
+        data: Readable.from([Buffer.from(`${[header, ...part].join("\n")}\n`, "utf8")]),
+        dataName: `client-${c}.csv`,
+        columns: { labelColumn, shardColumn: "Island", idColumn: "row" },
+      }),
+    ),
+  );
+  const schemas = raws.map((raw, c) => computeSchemaDigest(raw, { client: `client-${c}`, task }));
+  const encoding = mergeSchemaDigests(schemas, { task });
+  const passes = raws.map((raw) => new ClientPasses(encodeClientRows(raw, encoding), 1));
+  return { schemas, encoding, passes };
+}
+
+async function checkFit(labelColumn: string, task: Task) {
+  const { schemas, encoding, passes } = await twoClients(labelColumn, task);
+  try {
+    const requests: EvaluationRequest[] = [];
+    const progress: number[] = [];
+    const width = encoding.columns.length + 1;
+    const gram =
+      task === "regression"
+        ? Float64Array.from(
+            passes
+              .map((client) => client.computeGramSum().flat())
+              .reduce((sum, part) => sum.map((value, k) => value + part[k])),
+          )
+        : undefined;
+    const fit = await fitPooledOptimum(
+      encoding,
+      async (request) => {
+        requests.push(request);
+        return mergeEvaluationSums(passes.map((client) => client.evaluate(request)));
+      },
+      { lambda: LAMBDA, schemas, gram, onEvaluation: (count) => progress.push(count) },
+    );
+    const designs = passes.map((client) => client.design);
+    const reference = runPythonJson<{
+      weights: number[];
+      fittedGradient: number;
+      zeroGradient: number;
+    }>(REFERENCE, {
+      lam: LAMBDA,
+      cols: width,
+      x: designs.flatMap((design) => Array.from((design.x as Matrix).data)),
+      labels:
+        task === "classification" ? designs.flatMap((design) => Array.from(design.labels!)) : null,
+      targets:
+        task === "regression" ? designs.flatMap((design) => Array.from(design.targets!)) : null,
+      fitted: Array.from(fit.weights),
+    });
+    expect(fit.converged).toBe(true);
+    const tolerance = 1e-8 * Math.max(1, reference.zeroGradient);
+    expect(Math.abs(fit.tolerance - tolerance)).toBeLessThanOrEqual(1e-12 * tolerance);
+    // §2's stopping rule, checked by NumPy's gradient at the returned point.
+    expect(reference.fittedGradient).toBeLessThanOrEqual(1.01 * tolerance);
+    expect(Math.abs(fit.gradientNorm - reference.fittedGradient)).toBeLessThanOrEqual(
+      1e-3 * tolerance,
+    );
+    const scale = Math.max(...reference.weights.map(Math.abs));
+    const gap = Math.max(...reference.weights.map((value, k) => Math.abs(value - fit.weights[k])));
+    expect(gap / scale).toBeLessThan(1e-6);
+    // Each round is asked once, and counted as it is answered.
+    expect(new Set(requests.map((request) => JSON.stringify(request))).size).toBe(requests.length);
+    expect(progress).toEqual(requests.map((_, k) => k + 1));
+    expect(requests.every((request) => request.encodingHash === encoding.hash)).toBe(true);
+    return { fit, requests };
+  } finally {
+    await Promise.all(passes.map((client) => client.close()));
+  }
+}
+
+describe("the pooled optimum fitted from the clients' sums (methods.md §2, §9)", () => {
+  it("softmax on two clients' penguins: scikit-learn's optimum, and NumPy's gradient within §2's tolerance", async () => {
+    const { requests } = await checkFit("Species", "classification");
+    // The preconditioner's Hessian is asked for over all rows (fewer than 40 000: no subsample).
+    expect(requests.some((request) => request.hessian)).toBe(true);
+    expect(requests.every((request) => request.sample === null)).toBe(true);
+  });
+
+  it("least squares from the merged Σx̃x̃ᵀ: NumPy's normal equations", async () => {
+    await checkFit("Body Mass (g)", "regression");
+  });
+
+  it("a least-squares fit without the Gram matrix is a defect, said so", async () => {
+    const { schemas, encoding, passes } = await twoClients("Body Mass (g)", "regression");
+    try {
+      await expect(
+        fitPooledOptimum(
+          encoding,
+          async (request) => mergeEvaluationSums(passes.map((client) => client.evaluate(request))),
+          { lambda: LAMBDA, schemas },
+        ),
+      ).rejects.toThrow("a least-squares fit needs the merged Gram matrix");
+    } finally {
+      await Promise.all(passes.map((client) => client.close()));
+    }
+  });
+});
+
+describe("merging the clients' answers to one evaluation", () => {
+  it("adds rows and sums with compensation (math.fsum's values, by hand: plain addition gives 0)", () => {
+    const part = (loss: number, hessian: number[] | null) => ({
+      rows: 3,
+      lossSum: loss,
+      gradientSum: [loss, -loss],
+      hessianSum: hessian,
+    });
+    const merged = mergeEvaluationSums([
+      part(1e16, [1e16]),
+      part(1, [1]),
+      part(1, [1]),
+      part(-1e16, [-1e16]),
+    ]);
+    expect(merged).toEqual({ rows: 12, lossSum: 2, gradientSum: [2, -2], hessianSum: [2] });
+    expect(mergeEvaluationSums([part(1, null), part(2, null)]).hessianSum).toBeNull();
+    expect(mergeEvaluationSums([])).toEqual({
+      rows: 0,
+      lossSum: 0,
+      gradientSum: [],
+      hessianSum: null,
+    });
+  });
+});
