@@ -144,7 +144,6 @@ async function handlePlanJob(job: PgBoss.JobWithMetadata<LayoutPlanJob>): Promis
   try {
     const result = await runLayoutPlan(parsed.data, {
       willRetry: job.retryCount < job.retryLimit,
-      retried: job.retryCount > 0,
       signal: shutdown.signal,
     });
     const detail =

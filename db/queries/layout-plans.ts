@@ -1,5 +1,5 @@
 import "server-only";
-import { and, asc, desc, eq, exists, inArray, isNull, sql } from "drizzle-orm";
+import { and, asc, desc, eq, exists, inArray, isNull, or, sql } from "drizzle-orm";
 import { db } from "@/db/client";
 import { dataFiles, layoutCandidates, layoutPlans } from "@/db/schema";
 import {
@@ -171,25 +171,38 @@ export type ClaimedLayoutPlan = LayoutPlan & {
   finishedOrdinals: number[];
 };
 
+/** A running plan whose worker sent no heartbeat for `staleAfterMs` (it died). */
+function isLostPlan(staleAfterMs: number) {
+  return and(
+    eq(layoutPlans.status, "running"),
+    sql`coalesce(${layoutPlans.heartbeatAt}, ${layoutPlans.startedAt}) < now() - make_interval(secs => ${staleAfterMs / 1000})`,
+  );
+}
+
 /**
  * Marks a queued plan running and returns it with its dataset; undefined when it was cancelled or
- * already taken. A retried job (`retried`) also takes a plan left running: pg-boss retries a job
- * once its worker failed it or stopped answering, so a plan still running then has no worker left
- * (it died before it could hand the plan back).
+ * is held by a live worker. A plan left running by a worker that died (no heartbeat for
+ * `staleAfterMs`) is taken too, so the job's retry goes on from the candidates already scored.
  */
 export async function claimLayoutPlan(
   workspaceId: string,
   planId: string,
-  { retried }: { retried: boolean },
+  staleAfterMs: number,
 ): Promise<ClaimedLayoutPlan | undefined> {
   const [claimed] = await db()
     .update(layoutPlans)
-    .set({ status: "running", startedAt: sql`now()`, stage: null, fraction: 0 })
+    .set({
+      status: "running",
+      startedAt: sql`now()`,
+      heartbeatAt: sql`now()`,
+      stage: null,
+      fraction: 0,
+    })
     .where(
       and(
         eq(layoutPlans.workspaceId, workspaceId),
         eq(layoutPlans.id, planId),
-        inArray(layoutPlans.status, retried ? ["queued", "running"] : ["queued"]),
+        or(eq(layoutPlans.status, "queued"), isLostPlan(staleAfterMs)),
       ),
     )
     .returning();
@@ -239,12 +252,34 @@ export async function recordLayoutPlanProgress(
   return rows.length > 0;
 }
 
-export async function isLayoutPlanRunning(workspaceId: string, planId: string): Promise<boolean> {
-  const [row] = await db()
-    .select({ status: layoutPlans.status })
-    .from(layoutPlans)
-    .where(planIs(workspaceId, planId));
-  return row?.status === "running";
+/** Records that a worker still runs the plan; false when it is no longer running (cancelled). */
+export async function recordLayoutPlanHeartbeat(
+  workspaceId: string,
+  planId: string,
+): Promise<boolean> {
+  const rows = await db()
+    .update(layoutPlans)
+    .set({ heartbeatAt: sql`now()` })
+    .where(planRunning(workspaceId, planId))
+    .returning({ id: layoutPlans.id });
+  return rows.length > 0;
+}
+
+/**
+ * Hands every plan whose worker died (no heartbeat for `staleAfterMs`) back to the queue and
+ * returns them with their jobs. Across all workspaces: this is the workers' housekeeping, not a
+ * user's request.
+ */
+export async function handBackLostPlans(staleAfterMs: number) {
+  return db()
+    .update(layoutPlans)
+    .set({ status: "queued", heartbeatAt: null })
+    .where(isLostPlan(staleAfterMs))
+    .returning({
+      planId: layoutPlans.id,
+      workspaceId: layoutPlans.workspaceId,
+      jobId: layoutPlans.jobId,
+    });
 }
 
 /**

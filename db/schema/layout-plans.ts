@@ -53,6 +53,11 @@ export const layoutPlans = pgTable(
     /** Why the plan as a whole failed, written for the user, or null. */
     failureMessage: text("failure_message"),
     jobId: text("job_id"),
+    /**
+     * Set every heartbeat interval while a worker runs the plan: a running plan whose heartbeat went
+     * stale has lost its worker and is handed back to the queue (lib/reports/lost-runs.ts).
+     */
+    heartbeatAt: instant("heartbeat_at"),
     createdBy: text("created_by")
       .notNull()
       .references(() => users.id),

@@ -2,10 +2,11 @@ import { Worker } from "node:worker_threads";
 import {
   claimLayoutPlan,
   endLayoutPlan,
-  isLayoutPlanRunning,
+  recordLayoutPlanHeartbeat,
   recordLayoutPlanProgress,
   updateLayoutCandidate,
 } from "@/db/queries/layout-plans";
+import { env } from "@/lib/env";
 import type { LayoutPlanJob } from "@/lib/jobs";
 import { createCoalescedWrites } from "./coalesced-writes";
 import type { PlanThreadInput, PlanThreadMessage } from "./plan-thread-protocol";
@@ -22,12 +23,13 @@ export type PlanOutcome =
 export interface PlanRunOptions {
   /** Whether the job will be tried again if this run throws. */
   willRetry: boolean;
-  /** Whether this is a retry of the job (an earlier run failed or its worker died). */
-  retried?: boolean;
   /** Aborted when the worker shuts down: the run stops and its job is handed back to the queue. */
   signal?: AbortSignal;
-  /** How often a cancellation is looked for while nothing else is written. */
-  pollMs?: number;
+  /**
+   * How often the run records its heartbeat, which also tells it when the plan was cancelled
+   * (default 1 s, so a cancellation stops the thread within about a second).
+   */
+  heartbeatMs?: number;
   /** At least this long between two progress writes of one candidate. */
   progressIntervalMs?: number;
 }
@@ -52,9 +54,7 @@ export async function runLayoutPlan(
   job: LayoutPlanJob,
   options: PlanRunOptions,
 ): Promise<PlanOutcome> {
-  const plan = await claimLayoutPlan(job.workspaceId, job.planId, {
-    retried: options.retried ?? false,
-  });
+  const plan = await claimLayoutPlan(job.workspaceId, job.planId, env().WORKER_STALE_AFTER_MS);
   if (!plan) return { outcome: "skipped" };
   if (plan.finishedOrdinals.length === plan.generators.length) {
     // An earlier run finished every candidate and stopped before it could end the plan.
@@ -78,12 +78,13 @@ export async function runLayoutPlan(
   };
   const writes = createWriteQueue(job, options.progressIntervalMs ?? 500);
   const cancelled = new AbortController();
-  const poll = setInterval(() => {
-    void isLayoutPlanRunning(job.workspaceId, job.planId).then(
+  // The planner computes in a thread, so this thread's beats go on however long a candidate takes.
+  const heartbeat = setInterval(() => {
+    void recordLayoutPlanHeartbeat(job.workspaceId, job.planId).then(
       (running) => running || cancelled.abort(),
       () => {},
     );
-  }, options.pollMs ?? 1000);
+  }, options.heartbeatMs ?? 1000);
   let scored = 0;
   let failed = 0;
   try {
@@ -157,7 +158,7 @@ export async function runLayoutPlan(
     });
     throw error;
   } finally {
-    clearInterval(poll);
+    clearInterval(heartbeat);
   }
 }
 

@@ -43,14 +43,14 @@ import {
   cancelPlan,
   startLayoutPlan,
 } from "@/app/(workspace)/w/[workspaceId]/layouts/actions";
-import { eq } from "drizzle-orm";
+import { eq, sql, type SQL } from "drizzle-orm";
 import { closeDb, db } from "@/db/client";
 import { layoutPlans } from "@/db/schema";
 import { createHash } from "node:crypto";
 import { deleteDataFile } from "@/app/(workspace)/w/[workspaceId]/analyses/new/actions";
 import { findInputFiles } from "@/db/queries/analyses";
 import { listDataFiles } from "@/db/queries/data-files";
-import { findLayoutPlan } from "@/db/queries/layout-plans";
+import { findLayoutPlan, handBackLostPlans } from "@/db/queries/layout-plans";
 import { analyzePartition, type PartitionSummary } from "@/lib/analysis";
 import { runLayoutPlan } from "@/lib/layout-plans/run-layout-plan";
 import { getObjectStream } from "@/lib/storage";
@@ -216,7 +216,7 @@ describe("running a layout plan job", () => {
     candidateHook.afterEnd = async (id, ordinal) => {
       if (id === planId && ordinal === 0) await cancelPlan(team.workspaceId, planId);
     };
-    const outcome = await runLayoutPlan(job, { willRetry: false, pollMs: 20 });
+    const outcome = await runLayoutPlan(job, { willRetry: false, heartbeatMs: 20 });
     expect(outcome).toEqual({ outcome: "cancelled" });
     const plan = (await findLayoutPlan(team.workspaceId, planId))!;
     expect(plan.status).toBe("cancelled");
@@ -244,7 +244,12 @@ describe("running a layout plan job", () => {
     await expect(runLayoutPlan(job, { willRetry: true, signal: died.signal })).rejects.toThrow(
       "worker died",
     );
-    await db().update(layoutPlans).set({ status: "running" }).where(eq(layoutPlans.id, planId));
+    const leftRunning = (heartbeatAt: SQL) =>
+      db()
+        .update(layoutPlans)
+        .set({ status: "running", heartbeatAt })
+        .where(eq(layoutPlans.id, planId));
+    await leftRunning(sql`now()`);
     const before = (await findLayoutPlan(team.workspaceId, planId))!;
     expect(before.candidates[0].status).toBe("succeeded");
     for (const candidate of before.candidates.slice(1)) {
@@ -252,11 +257,17 @@ describe("running a layout plan job", () => {
     }
     candidateHook.afterEnd = undefined;
 
-    // A second delivery of the job while the first run could still be alive does not take it.
+    // A second delivery of the job while the first run's heartbeat is fresh does not take it.
     expect(await runLayoutPlan(job, { willRetry: true })).toEqual({ outcome: "skipped" });
+    // Its heartbeat goes stale: the workers' sweep hands the plan back to the queue.
+    await leftRunning(sql`now() - interval '1 hour'`);
+    expect(await handBackLostPlans(30_000)).toEqual([
+      expect.objectContaining({ planId, workspaceId: team.workspaceId }),
+    ]);
+    expect(await handBackLostPlans(30_000)).toEqual([]);
 
     candidateHook.writes.length = 0;
-    const outcome = await runLayoutPlan(job, { willRetry: false, retried: true });
+    const outcome = await runLayoutPlan(job, { willRetry: false });
     expect(outcome).toEqual({ outcome: "succeeded", scored: 2, failed: 0 });
     const written = candidateHook.writes.filter((write) => write.planId === planId);
     expect(written.map((write) => write.ordinal)).not.toContain(0);

@@ -1,0 +1,1 @@
+ALTER TABLE "layout_plans" ADD COLUMN "heartbeat_at" timestamp with time zone;
