@@ -20,9 +20,9 @@ import {
   findInvitationByToken,
   listPendingInvitations,
 } from "@/db/queries/invitations";
-import { findMessagesTo } from "@/lib/mail/dev-inbox";
 import { createAccount, createTeam, uniqueEmail } from "@/tests/support/accounts";
 import { actAs } from "@/tests/support/fake-session";
+import { waitForMessage } from "@/tests/support/mailbox";
 
 afterAll(closeDb);
 
@@ -30,13 +30,10 @@ const statusOf = (result: { ok: boolean; status?: number }) => (result.ok ? 200 
 
 /** The link in an invitation e-mail, read from the SMTP fake's mailbox as a user would. */
 async function invitationLinkFor(email: string): Promise<string> {
-  for (let attempt = 0; attempt < 50; attempt += 1) {
-    const [message] = await findMessagesTo(email);
-    const link = message?.text.match(/https?:\/\/\S+\/invite\/[\w-]+/)?.[0];
-    if (link) return link;
-    await new Promise((resolve) => setTimeout(resolve, 100));
-  }
-  throw new Error(`no invitation e-mail reached ${email}`);
+  const message = await waitForMessage(email, / invited you to /);
+  const link = message.text.match(/https?:\/\/\S+\/invite\/[\w-]+/)?.[0];
+  if (!link) throw new Error(`the invitation e-mail to ${email} holds no link:\n${message.text}`);
+  return link;
 }
 
 describe("member actions: role matrix", () => {
