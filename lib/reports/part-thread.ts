@@ -62,8 +62,10 @@ async function readPart(input: PartThreadInput, signal: AbortSignal): Promise<Lo
     const client = new LocalDigestClient(input.name, raw, {
       task: input.task,
       minimumShardRows: 1,
-      // The coordinator judges a column that is not numeric in this part over all parts.
+      // The coordinator judges a column that is not numeric in this part over all parts, from
+      // each part's count of its numbers and other values.
       refuseUnencodable: false,
+      countValueKinds: true,
       threads: input.threads,
       memory,
     });

@@ -1,3 +1,4 @@
+import { MAX_ONE_HOT_LEVELS, MIN_NUMERIC_SHARE } from "../column-accumulator";
 import type { Task } from "../design";
 import {
   sendsLabelLevels,
@@ -46,6 +47,7 @@ export function combineSchemaDigests(
     columnsNumeric: first.columnsNumeric.map((_, k) =>
       parts.every((part) => part.columnsNumeric[k]),
     ),
+    ...combineValueKinds(parts),
     totalRows: sumOf(parts, (part) => part.totalRows),
     droppedRowsMissingLabel: sumOf(parts, (part) => part.droppedRowsMissingLabel),
     droppedRowsUnassigned: sumOf(parts, (part) => part.droppedRowsUnassigned),
@@ -174,20 +176,44 @@ function sumOf<Item>(items: Item[], value: (item: Item) => number): number {
   return total;
 }
 
+/** The parts' counts of numbers and other values per column, summed; none if a part has none. */
+function combineValueKinds(parts: SchemaDigest[]): Pick<SchemaDigest, "columnsValueKinds"> {
+  const counted = parts.map((part) => part.columnsValueKinds);
+  if (counted.some((kinds) => kinds === undefined)) return {};
+  return {
+    columnsValueKinds: parts[0].features.map((_, k) => ({
+      numbers: sumOf(counted, (kinds) => kinds![k].numbers),
+      others: sumOf(counted, (kinds) => kinds![k].others),
+    })),
+  };
+}
+
 /**
- * Feature columns of a dataset read in parts that only a read of all its rows can judge by methods.md
- * §1's rule for numeric columns with bad values (at least 95% numbers over the whole column): a
- * column some part saw non-numbers in, whose values mix numbers with other tokens or whose distinct
- * values a part did not count (more than 32). A part cannot tell a numeric column with a few bad
- * values from a category; one process can.
+ * Feature columns of a dataset read in parts that only a read of all its rows can answer for as one
+ * process does. By methods.md §1, a column with some values that are not numbers is a numeric column
+ * with bad values when at least 95% of its values are numbers — an error naming its first bad rows,
+ * or (the user's choice) bad values counted as missing — and otherwise a category, or left out past
+ * 32 distinct values; a named feature past 32 is an error naming the row of its first non-number.
+ * With the parts' counts of numbers and other values (`columnsValueKinds`) only the numeric columns
+ * with bad values and the named features past 32 values need every row; without them, any column
+ * whose tokens mix numbers with other values or whose distinct values a part did not count.
  */
 export function findColumnsNeedingAllRows(schema: SchemaDigest): string[] {
   return schema.features.filter((_, k) => {
     if (schema.columnsNumeric[k]) return false;
     const levels = schema.shards.map((shard) => shard.columns[k].levels);
-    if (levels.some((counts) => counts === null)) return true;
-    const tokens = levels.flatMap((counts) => Object.keys(counts ?? {}));
+    const allCounted = levels.every((counts) => counts !== null);
+    const distinct = new Set(levels.flatMap((counts) => Object.keys(counts ?? {})));
+    if (schema.featuresNamed && (!allCounted || distinct.size > MAX_ONE_HOT_LEVELS)) return true;
+    const kinds = schema.columnsValueKinds?.[k];
+    if (kinds) {
+      return (
+        kinds.others > 0 && kinds.numbers >= MIN_NUMERIC_SHARE * (kinds.numbers + kinds.others)
+      );
+    }
+    if (!allCounted) return true;
     const isNumber = (token: string) => Number.isFinite(parseNumberToken(token));
+    const tokens = [...distinct];
     return tokens.some(isNumber) && !tokens.every(isNumber);
   });
 }

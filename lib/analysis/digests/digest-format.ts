@@ -64,6 +64,13 @@ export const schemaDigestSchema = z.object({
   /** Whether every non-missing value of the label, and of each feature, parsed as a number. */
   labelNumeric: z.boolean(),
   columnsNumeric: z.array(z.boolean()),
+  /**
+   * Per feature column, how many of the non-missing values parse as finite numbers and how many do
+   * not, so that methods.md §1's 95% rule can be judged over all rows of a column whose distinct
+   * values were not all counted. Sent by the parts of one dataset (`countValueKinds`); a client's
+   * digest leaves it out.
+   */
+  columnsValueKinds: z.array(z.object({ numbers: count, others: count })).optional(),
   totalRows: count,
   droppedRowsMissingLabel: count,
   droppedRowsUnassigned: count,

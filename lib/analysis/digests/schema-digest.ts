@@ -26,6 +26,8 @@ export interface SchemaDigestOptions {
    * part of one dataset leaves that to its coordinator, which judges the column over all rows.
    */
   refuseUnencodable?: boolean;
+  /** Whether the digest counts each column's numbers and other values (`columnsValueKinds`). */
+  countValueKinds?: boolean;
 }
 
 /**
@@ -111,6 +113,12 @@ export function computeSchemaDigest(
     featuresNamed: raw.featuresNamed,
     labelNumeric: raw.label.numeric,
     columnsNumeric: raw.features.map((feature) => feature.numeric),
+    ...(options.countValueKinds && {
+      columnsValueKinds: raw.features.map((feature) => ({
+        numbers: feature.numberCount,
+        others: feature.nonNumberCount,
+      })),
+    }),
     totalRows: raw.totalRows,
     droppedRowsMissingLabel: raw.droppedMissingLabel,
     droppedRowsUnassigned: raw.droppedUnassigned,

@@ -150,6 +150,32 @@ describe("one analysis shared by several workers", () => {
     );
   }, 600_000);
 
+  it("shares a dataset with a text column of many values, left out as one process leaves it", async () => {
+    // Methods.md §1: a text column with more than 32 distinct values is left out with a warning.
+    // Every part meets more than 32 of the column's 50 values, so none can list them all; the
+    // parts' counts of numbers and other values tell it is text, not a numeric column with a few
+    // bad values, so the analysis stays shared.
+    const lines = CSV.trimEnd().split("\n");
+    const withNotes = `${lines.map((line, k) => `${line},${k === 0 ? "note" : `note ${k % 50}`}`).join("\n")}\n`;
+    const options = { labelColumn: "digit", shardColumn: "shard" };
+    const job = await queueDigitsAnalysis(withNotes, "digits.csv", options);
+    const run = await runAnalysis(job, { willRetry: true, parts: partsSettings(3) });
+    expect(run.outcome).toBe("succeeded");
+    const expected = await analyzePartition({
+      data: Readable.from([Buffer.from(withNotes, "utf8")]),
+      dataName: "digits.csv",
+      options,
+      threads: 1,
+    });
+    expect(expected.preprocessing.warnings).toContain(
+      'column "note" is not numeric and has more than 32 distinct values; it was left out',
+    );
+    expectOneProcessSummary(await storedSummary(job.analysisId), expected);
+    expect(await listAnalysisParts(job.analysisId)).toHaveLength(3);
+    const circumstances = await findRunCircumstances(job.workspaceId, job.analysisId);
+    expect(circumstances.readWholeBecause).toBeNull();
+  }, 600_000);
+
   it("shares a Parquet dataset by whole row groups, with the CSV's one-process summary", async () => {
     // The same table as Parquet in row groups of 4 000 rows: each part's worker reads the footer
     // and its row groups from storage by byte ranges.

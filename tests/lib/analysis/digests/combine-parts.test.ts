@@ -46,7 +46,8 @@ async function partsAndWhole(labelColumn: string, task?: Task) {
   );
   const wholeRaw = await readRows(penguinsRows(), labelColumn);
   // A part may hold a shard's few rows: the minimum applies to the combined shard.
-  const options = { client: "part", task, minimumShardRows: 1 };
+  // Parts of one dataset also count each column's numbers and other values (§1's 95% rule).
+  const options = { client: "part", task, minimumShardRows: 1, countValueKinds: true };
   return {
     partRaws,
     wholeRaw,
@@ -260,5 +261,69 @@ describe("columns only a read of all rows can judge (methods.md §1's 95% rule)"
     } as unknown as SchemaDigest;
     // "Inf" is not a finite number (methods.md §1): that column mixes numbers and another token.
     expect(findColumnsNeedingAllRows(schema)).toEqual(["mixed", "uncounted", "spelled"]);
+  });
+});
+
+describe("columns only a read of all rows can judge, from the parts' counts of numbers and other values", () => {
+  // Methods.md §1: a column where at least 95% of the non-missing values parse as finite numbers
+  // but some do not is a numeric column with bad values (an error naming its first rows, which only
+  // a read of all rows has); any other non-numeric column is a category, or left out past 32
+  // distinct values — which the parts' merged digest decides as one process does.
+  const column = (levels: Record<string, number> | null) => ({
+    present: 100,
+    sum: null,
+    sumSquaredDeviations: null,
+    min: null,
+    max: null,
+    levels,
+  });
+  const schemaOf = (featuresNamed: boolean) =>
+    ({
+      features: ["bad-numbers", "mostly-text", "many-words", "mixed-category", "many-named"],
+      featuresNamed,
+      columnsNumeric: [false, false, false, false, false],
+      columnsValueKinds: [
+        { numbers: 95, others: 5 },
+        { numbers: 94, others: 6 },
+        { numbers: 0, others: 100 },
+        { numbers: 50, others: 50 },
+        { numbers: 0, others: 100 },
+      ],
+      shards: [
+        {
+          id: "a",
+          rows: 100,
+          label: {
+            sum: null,
+            sumSquaredDeviations: null,
+            min: null,
+            max: null,
+            levels: { x: 100 },
+          },
+          columns: [
+            column(null),
+            column(null),
+            column(null),
+            column({ "1": 50, b: 50 }),
+            column(Object.fromEntries(Array.from({ length: 33 }, (_, k) => [`w${k}`, 3]))),
+          ],
+        },
+      ],
+    }) as unknown as SchemaDigest;
+
+  it("needs every row only for a numeric column with bad values (95% or more numbers)", () => {
+    // 95 of 100 is exactly the share; 94 of 100 is under it, a text column (left out past 32
+    // values, as "many-words" and "many-named" are), and a category mixing a number and a word
+    // is one-hot encoded by its counted levels.
+    expect(findColumnsNeedingAllRows(schemaOf(false))).toEqual(["bad-numbers"]);
+  });
+
+  it("needs every row for a named feature past 32 distinct values, whose error names its first row", () => {
+    expect(findColumnsNeedingAllRows(schemaOf(true))).toEqual([
+      "bad-numbers",
+      "mostly-text",
+      "many-words",
+      "many-named",
+    ]);
   });
 });

@@ -22,11 +22,13 @@ export const DIGITS_CSV = loadStackedDigitsCsv(23);
 
 /**
  * A queued analysis of the stored digits (or of `content`, the digits changed or in another
- * format, stored as `name`) in a new workspace, as the start action leaves it.
+ * format, stored as `name`, with other `parameters`) in a new workspace, as the start action
+ * leaves it.
  */
 export async function queueDigitsAnalysis(
   content: string | Uint8Array = DIGITS_CSV,
   name = "digits.csv",
+  parameters: typeof analyses.$inferInsert.parameters = DIGITS_OPTIONS,
 ): Promise<{ analysisId: string; workspaceId: string }> {
   const team = await createTeam();
   const workspace = { workspaceId: team.workspaceId, uploadedBy: team.owner.id };
@@ -37,7 +39,7 @@ export async function queueDigitsAnalysis(
       workspaceId: team.workspaceId,
       title: "Digits",
       datasetFileId: dataset.id,
-      parameters: DIGITS_OPTIONS,
+      parameters,
       createdBy: team.owner.id,
     })
     .returning({ id: analyses.id });
