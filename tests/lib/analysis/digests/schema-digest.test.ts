@@ -144,11 +144,13 @@ async function checkAgainstPandas(
  * text column with one shard all missing; the label is numeric with two values.
  */
 function cancellingCsv(): string {
-  const lines = ["y,shard,x,z,tag"];
+  const lines = ["y,shard,x,z,tag,w"];
   const s1x = ["1e16", "1", "1", "1", "1", "-1e16", "", "", "", "", "", ""];
-  s1x.forEach((x, i) => lines.push(`${i % 2},s1,${x},${i},`));
+  s1x.forEach((x, i) => lines.push(`${i % 2},s1,${x},${i},,`));
   const s2z = ["3e8", "-3e8", ...Array.from({ length: 40 }, (_, i) => (i % 2 ? "-1" : "1"))];
-  s2z.forEach((z, i) => lines.push(`${(i * 7) % 3 === 0 ? 1 : 0},s2,${i % 5},${z},t${i % 3}`));
+  s2z.forEach((z, i) =>
+    lines.push(`${(i * 7) % 3 === 0 ? 1 : 0},s2,${i % 5},${z},t${i % 3},${i / 4}`),
+  );
   return `${lines.join("\n")}\n`;
 }
 
@@ -159,6 +161,13 @@ describe("the schema digest (methods.md §9 round 1)", () => {
       labelColumn: "Species",
       shardColumn: "Island",
       idColumn: "row",
+    });
+    expect(digest).toMatchObject({
+      kind: "partita-schema-digest",
+      version: 1,
+      client: "north",
+      labelColumn: "Species",
+      featuresNamed: false,
     });
     expect(digest.shards).toHaveLength(3);
     expect(digest.labelNumeric).toBe(false);
@@ -197,6 +206,16 @@ describe("the schema digest (methods.md §9 round 1)", () => {
       max: null,
       levels: {},
     });
+    // A numeric column with no value in one shard: no sums for it, not sums of nothing.
+    expect(digest.columnsNumeric[3]).toBe(true);
+    expect(s1.columns[3]).toEqual({
+      present: 0,
+      sum: null,
+      sumSquaredDeviations: null,
+      min: null,
+      max: null,
+      levels: null,
+    });
     // A numeric label with two values: its counts are sent (the task is chosen from them later).
     expect(s2.label.levels).not.toBeNull();
   });
@@ -205,9 +224,13 @@ describe("the schema digest (methods.md §9 round 1)", () => {
     const { csv } = loadPenguinsCsv();
     const columns = { labelColumn: "Species", shardColumn: "Island", idColumn: "row" };
     // Torgersen holds 52 penguins (pandas' count above).
-    await expect(digestOf(csv, columns, { minimumShardRows: 53 })).rejects.toThrow(
-      'client "north", shard "Torgersen" has 52 rows, under the minimum of 53',
-    );
+    await expect(digestOf(csv, columns, { minimumShardRows: 53 })).rejects.toMatchObject({
+      message: expect.stringContaining(
+        'client "north", shard "Torgersen" has 52 rows, under the minimum of 53',
+      ),
+      file: "client.csv",
+      expected: "at least 53 kept rows per shard",
+    });
     await expect(digestOf(csv, columns, { minimumShardRows: 52 })).resolves.toBeDefined();
     // The default minimum of methods.md §9 is 10 rows.
     const small = [
@@ -226,7 +249,16 @@ describe("the schema digest (methods.md §9 round 1)", () => {
     const columns = { labelColumn: "y", shardColumn: "shard", features: ["code", "x"] };
     const refusal = digestOf(csv, columns);
     await expect(refusal).rejects.toThrow('the feature is not numeric ("k0")');
-    await expect(refusal).rejects.toMatchObject({ column: "code", row: expect.any(Number) });
+    await expect(refusal).rejects.toMatchObject({
+      column: "code",
+      row: expect.any(Number),
+      file: "client.csv",
+      expected: "numbers, or at most 32 distinct categories",
+    });
+    // A named numeric feature passes, though with 40 distinct numbers its levels are not counted.
+    const numeric = await digestOf(csv, { ...columns, features: ["x"] });
+    expect(numeric.featuresNamed).toBe(true);
+    expect(numeric.shards[0].columns[0].levels).toBeNull();
     const kept = await digestOf(csv, columns, { refuseUnencodable: false });
     expect(kept.columnsNumeric).toEqual([false, true]);
     expect(kept.shards[0].columns[0].levels).toBeNull();
