@@ -29,14 +29,37 @@ export function parseOptions(options: AnalysisOptionsInput): AnalysisOptions {
 function describeExpected(issue: z.core.$ZodIssue): string {
   switch (issue.code) {
     case "too_small":
-      return `${issue.origin === "number" ? "a number" : "at least"} ${issue.inclusive ? "≥" : ">"} ${String(issue.minimum)}${issue.origin === "array" ? " items" : ""}`;
+      return issue.origin === "number"
+        ? `a number ${issue.inclusive ? "≥" : ">"} ${String(issue.minimum)}`
+        : `${issue.inclusive ? "at least" : "more than"} ${countOf(issue.minimum, issue.origin)}`;
     case "too_big":
-      return `${issue.origin === "number" ? "a number" : "at most"} ${issue.inclusive ? "≤" : "<"} ${String(issue.maximum)}${issue.origin === "array" ? " items" : ""}`;
+      return issue.origin === "number"
+        ? `a number ${issue.inclusive ? "≤" : "<"} ${String(issue.maximum)}`
+        : `${issue.inclusive ? "at most" : "fewer than"} ${countOf(issue.maximum, issue.origin)}`;
     case "invalid_type":
-      return issue.expected === "int" ? "a whole number" : `a ${issue.expected}`;
+      return issue.expected === "int" ? "a whole number" : withArticle(issue.expected);
     case "invalid_value":
       return `one of ${issue.values.map((value) => JSON.stringify(value)).join(", ")}`;
+    case "invalid_union":
+      // Each alternative's first complaint says what that alternative takes.
+      return `one of ${issue.errors
+        .map(([first]) =>
+          first.code === "invalid_value"
+            ? first.values.map((value) => JSON.stringify(value)).join(", ")
+            : describeExpected(first),
+        )
+        .join(", ")}`;
     default:
       return issue.message;
   }
+}
+
+/** "1 character", "3 items": the length limit of a text or a list, in words. */
+function countOf(limit: number | bigint, origin: string): string {
+  const unit = origin === "array" || origin === "set" ? "item" : "character";
+  return `${String(limit)} ${unit}${Number(limit) === 1 ? "" : "s"}`;
+}
+
+function withArticle(noun: string): string {
+  return `${/^[aeiou]/.test(noun) ? "an" : "a"} ${noun}`;
 }
