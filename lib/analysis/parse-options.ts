@@ -29,24 +29,22 @@ export function parseOptions(options: AnalysisOptionsInput): AnalysisOptions {
 function describeExpected(issue: z.core.$ZodIssue): string {
   switch (issue.code) {
     case "too_small":
+      // A text's or a list's least length (zod's length limits are inclusive).
       return issue.origin === "number"
         ? `a number ${issue.inclusive ? "≥" : ">"} ${String(issue.minimum)}`
-        : `${issue.inclusive ? "at least" : "more than"} ${countOf(issue.minimum, issue.origin)}`;
+        : `at least ${String(issue.minimum)} ${issue.origin === "array" ? "item" : "character"}${Number(issue.minimum) === 1 ? "" : "s"}`;
     case "too_big":
-      return issue.origin === "number"
-        ? `a number ${issue.inclusive ? "≤" : "<"} ${String(issue.maximum)}`
-        : `${issue.inclusive ? "at most" : "fewer than"} ${countOf(issue.maximum, issue.origin)}`;
+      // Every upper bound of the options is on a number.
+      return `a number ${issue.inclusive ? "≤" : "<"} ${String(issue.maximum)}`;
     case "invalid_type":
       return issue.expected === "int" ? "a whole number" : withArticle(issue.expected);
     case "invalid_value":
-      return `one of ${issue.values.map((value) => JSON.stringify(value)).join(", ")}`;
+      return `one of ${listValues(issue.values)}`;
     case "invalid_union":
       // Each alternative's first complaint says what that alternative takes.
       return `one of ${issue.errors
         .map(([first]) =>
-          first.code === "invalid_value"
-            ? first.values.map((value) => JSON.stringify(value)).join(", ")
-            : describeExpected(first),
+          first.code === "invalid_value" ? listValues(first.values) : describeExpected(first),
         )
         .join(", ")}`;
     default:
@@ -54,10 +52,8 @@ function describeExpected(issue: z.core.$ZodIssue): string {
   }
 }
 
-/** "1 character", "3 items": the length limit of a text or a list, in words. */
-function countOf(limit: number | bigint, origin: string): string {
-  const unit = origin === "array" || origin === "set" ? "item" : "character";
-  return `${String(limit)} ${unit}${Number(limit) === 1 ? "" : "s"}`;
+function listValues(values: readonly unknown[]): string {
+  return values.map((value) => JSON.stringify(value)).join(", ");
 }
 
 function withArticle(noun: string): string {

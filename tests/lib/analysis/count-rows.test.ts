@@ -46,4 +46,17 @@ describe("rows counted without parsing", () => {
     counter.add(new TextEncoder().encode('1,"a\nb"\n'));
     expect(counter.finish().quoted).toBe(true);
   });
+
+  it("tells of a quote in any chunk, and of none when there is none", () => {
+    const bytes = new TextEncoder().encode('1,a\n2,b\n3,"c"\n4,d\n');
+    const counter = new RowCounter();
+    for (let start = 0; start < bytes.length; start += 4) {
+      counter.add(bytes.subarray(start, start + 4));
+    }
+    expect(counter.finish()).toEqual({ rows: 4, quoted: true });
+    const plain = new RowCounter();
+    plain.add(new TextEncoder().encode("1,a\n2,b\n"));
+    plain.add(new TextEncoder().encode("3,c\n"));
+    expect(plain.finish()).toEqual({ rows: 3, quoted: false });
+  });
 });
