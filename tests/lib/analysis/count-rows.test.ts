@@ -4,7 +4,7 @@
 // cut into chunks.
 import Papa from "papaparse";
 import { describe, expect, it } from "vitest";
-import { RowCounter } from "@/lib/analysis/count-rows";
+import { countRows, RowCounter } from "@/lib/analysis/count-rows";
 
 /**
  * Lines of the kinds the reader meets: rows, empty lines, CRLF ends (an empty line of a CRLF file
@@ -58,5 +58,14 @@ describe("rows counted without parsing", () => {
     plain.add(new TextEncoder().encode("1,a\n2,b\n"));
     plain.add(new TextEncoder().encode("3,c\n"));
     expect(plain.finish()).toEqual({ rows: 3, quoted: false });
+  });
+
+  it("count a stream of chunks as the counter does", async () => {
+    const text = "1,a\n\n2,b\r\n3,c";
+    async function* chunks() {
+      const bytes = new TextEncoder().encode(text);
+      for (let start = 0; start < bytes.length; start += 3) yield bytes.subarray(start, start + 3);
+    }
+    expect(await countRows(chunks())).toEqual({ rows: papaparseRows(text), quoted: false });
   });
 });

@@ -58,9 +58,27 @@ describe("RowStore in memory", () => {
     }
   });
 
+  it("grows in place up to its growable maximum, then moves to plain buffers keeping every row", () => {
+    const small = new RowStore(WIDTH);
+    fill(small, 10);
+    const inPlace = small.finish() as Float64Array;
+    // Growable (reserved up to 4 GiB): the rows are never copied while it grows.
+    expect((inPlace.buffer as SharedArrayBuffer).growable).toBe(true);
+    expect((inPlace.buffer as SharedArrayBuffer).maxByteLength).toBe(2 ** 32);
+
+    // A maximum of 2¹⁷ rows of 3 numbers: the third growth no longer fits it.
+    const store = new RowStore(WIDTH, { maxGrowableBytes: WIDTH * 8 * 2 ** 17 });
+    const rows = 300_001;
+    fill(store, rows);
+    const values = store.finish() as Float64Array;
+    expect((values.buffer as SharedArrayBuffer).growable).toBe(false);
+    expect(values.length).toBe(rows * WIDTH);
+    expect(values.every((v, i) => v === cell(Math.floor(i / WIDTH), i % WIDTH))).toBe(true);
+  });
+
   it("stays in memory while the rows fit the limit's share", () => {
-    // 40% of 8 MiB holds 2¹⁷ rows of 3 numbers (3 MiB); 70 000 rows need 1.6 MiB.
-    const { store, paths } = storeOver(70_000, 8 * 2 ** 20);
+    // 40% of 8 MiB (3.2 MiB) holds the 2¹⁷ rows of 3 numbers (3 MiB) the store grows to for these.
+    const { store, paths } = storeOver(100_000, 8 * 2 ** 20);
     expect(isStoredMatrix(store.finish())).toBe(false);
     expect(paths).toEqual([]);
   });
@@ -113,8 +131,27 @@ describe("RowStore past the memory limit", () => {
     }
   });
 
-  it("gives the file back when the rows are discarded", () => {
-    const { store } = storeOver(20_000, LIMIT);
+  it("writes the rows it held in memory to the file when it moves there", () => {
+    // 40% of 4 MiB holds the first 65 536 rows (1.5 MiB), not the 131 072 of the next growth.
+    const scratchDirectory = mkdtempSync(path.join(tmpdir(), "row-store-test-"));
+    const store = new RowStore(WIDTH, { memory: { limitBytes: 4 * LIMIT, scratchDirectory } });
+    const rows = 70_000;
+    fill(store, rows);
+    const stored = store.finish() as StoredMatrix;
+    expect(isStoredMatrix(stored)).toBe(true);
+    const all = readStoredRows(stored, 0, rows, new Float64Array(rows * WIDTH));
+    expect(all.every((v, i) => v === cell(Math.floor(i / WIDTH), i % WIDTH))).toBe(true);
+    // Blocks of whole tasks end exactly at the last row when the rows fill them: 2 × 32 768.
+    const blocks: number[] = [];
+    forEachStoredBlock({ ...stored, rows: 65_536 }, (_, firstRow) => blocks.push(firstRow));
+    expect(blocks).toEqual([0, 32_768]);
+    stored.file.close();
+  });
+
+  it("gives the file back when the rows are discarded (no one asked to hear of the file)", () => {
+    const scratchDirectory = mkdtempSync(path.join(tmpdir(), "row-store-test-"));
+    const store = new RowStore(WIDTH, { memory: { limitBytes: LIMIT, scratchDirectory } });
+    fill(store, 20_000);
     const matrix = store.finish() as StoredMatrix;
     store.discard();
     expect(() => readStoredRows(matrix, 0, 1, new Float64Array(WIDTH))).toThrow(/closed/);
