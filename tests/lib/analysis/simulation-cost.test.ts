@@ -64,6 +64,23 @@ describe("the simulation's cost (methods.md §7)", () => {
     );
   });
 
+  it("says in the singular what fits at one, and asks for less of everything when nothing alone fits", () => {
+    const plan = { participants: 10, localSteps: 1, rounds: 10, batchSize: 1 };
+    // Share 0.15: ⌊1.5⌋ = 1 round and 1 participant; 11 × 0.15 − 8 < 1 seed.
+    expect(() => checkSimulationBudget(1e6, 1.5e5, plan, 3)).toThrow(
+      "the simulation would take about 1.00e6 multiply-adds, above the budget of 1.50e5 " +
+        "(expected at most 1 round, or at most 1 participant per round, or a larger budget)",
+    );
+    // Share 0.86: ⌊8.6⌋ = 8 rounds, 8 participants; ⌊11 × 0.86 − 8⌋ = ⌊1.46⌋ = 1 seed.
+    expect(() => checkSimulationBudget(1e6, 8.6e5, plan, 3)).toThrow(
+      "(expected at most 8 rounds, or at most 8 participants per round, or at most 1 seed, or a larger budget)",
+    );
+    // Share 0.05: ⌊0.5⌋ = 0 rounds and participants, no seeds.
+    expect(() => checkSimulationBudget(1e6, 5e4, plan, 3)).toThrow(
+      "(expected fewer rounds, participants, local steps or a smaller batch together, or a larger budget)",
+    );
+  });
+
   it("says 1 round, 2 rounds", () => {
     expect(countOf(1, "round")).toBe("1 round");
     expect(countOf(2, "round")).toBe("2 rounds");

@@ -2,7 +2,6 @@ import { Readable } from "node:stream";
 import { describe, expect, it } from "vitest";
 import { AnalysisInputError, analyzePartition, type PartitionSummary } from "@/lib/analysis";
 import {
-  checkSimulationBudget,
   chooseCurveRounds,
   estimateSimulationCost,
   simulatePlan,
@@ -150,34 +149,6 @@ describe("the simulation of methods.md §7", () => {
       "the simulation would take about 1.05e9 multiply-adds, above the budget of 1.00e8 " +
         "(expected at most 95 rounds, or a larger budget)",
     );
-  });
-
-  it("names what alone would fit the budget, in the singular where it is one", () => {
-    // The cost is linear in R and M and in 8 + S (methods.md §7): with the budget a share q of the
-    // cost, R ≤ ⌊q·R⌋, M ≤ ⌊q·M⌋ and S ≤ ⌊q·(8 + S) − 8⌋, each alone (by hand below).
-    const plan = { participants: 10, localSteps: 1, rounds: 10, batchSize: 1 };
-    const refusal = (share: number) => {
-      try {
-        checkSimulationBudget(1e6, share * 1e6, plan, 3);
-      } catch (error) {
-        return (error as Error).message;
-      }
-      return "within the budget";
-    };
-    // q = 0.15: ⌊1.5⌋ = 1 round, 1 participant; 11 × 0.15 − 8 < 1, so no seeds.
-    expect(refusal(0.15)).toBe(
-      "the simulation would take about 1.00e6 multiply-adds, above the budget of 1.50e5 " +
-        "(expected at most 1 round, or at most 1 participant per round, or a larger budget)",
-    );
-    // q = 0.86: ⌊8.6⌋ = 8 rounds, 8 participants; ⌊11 × 0.86 − 8⌋ = ⌊1.46⌋ = 1 seed.
-    expect(refusal(0.86)).toContain(
-      "(expected at most 8 rounds, or at most 8 participants per round, or at most 1 seed, or a larger budget)",
-    );
-    // q = 0.05: nothing alone fits.
-    expect(refusal(0.05)).toContain(
-      "(expected fewer rounds, participants, local steps or a smaller batch together, or a larger budget)",
-    );
-    expect(refusal(1)).toBe("within the budget");
   });
 
   it("reports progress by run and round and stops when cancelled", async () => {
