@@ -1,3 +1,5 @@
+import os from "node:os";
+import path from "node:path";
 import { defineConfig } from "vitest/config";
 import base from "./vitest.config.mjs";
 
@@ -15,6 +17,8 @@ export default defineConfig({
     ...base.test,
     // Python references start slowly on a busy machine.
     testTimeout: 180_000,
+    // Each reference is computed once per scoring run, not once per mutant (run-python.ts).
+    env: { PARTITA_REFERENCE_DIR: path.join(os.tmpdir(), "partita-mutation-references") },
     include: [
       "tests/lib/math/**/*.test.ts",
       "tests/lib/analysis/advice.test.ts",

@@ -158,6 +158,27 @@ describe("the run schedule (schedule-runs.ts)", () => {
     expect(seen.at(-1)?.fraction).toBe(14 / 16);
   });
 
+  it("counts a dropped run's rounds as done and starts the runs that wait for it, with or without a listener", async () => {
+    for (const listening of [true, false]) {
+      const local = manualExecutor();
+      const seen: SimulationProgress[] = [];
+      const runs = [
+        planned("local", 1),
+        planned("local", 2, [0], () => null),
+        planned("local", 3, [1]),
+      ];
+      const done = new RunSchedule(runs, ROUNDS, local.execute, {
+        onProgress: listening ? (progress) => seen.push(progress) : undefined,
+      }).perform();
+      await local.finish(0, outcome(0.5));
+      // Run 2 is dropped at once; run 3, which waits for it, starts.
+      expect(local.started.map((run) => run.request.seed)).toEqual([1, 3]);
+      if (listening) expect(seen.at(-1)).toMatchObject({ run: 3, fraction: 8 / 12 });
+      await local.finish(1, outcome(0.25));
+      await expect(done).resolves.toEqual([outcome(0.5), null, outcome(0.25)]);
+    }
+  });
+
   it("counts a diverged run's missing rounds as done", async () => {
     const local = manualExecutor();
     const seen: SimulationProgress[] = [];

@@ -1,4 +1,7 @@
 import { execFileSync } from "node:child_process";
+import { createHash } from "node:crypto";
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from "node:fs";
+import path from "node:path";
 
 /**
  * Debian's python3 with NumPy, SciPy, pandas and scikit-learn (python3-sklearn). The `python3`
@@ -11,12 +14,32 @@ export const REFERENCE_PYTHON = "/usr/bin/python3";
  * the program prints. Used to compute reference values live with an outside library.
  */
 export function runPythonJson<Result>(program: string, input: unknown = null): Result {
+  const text = JSON.stringify(input);
+  const kept = keptReferencePath(program, text);
+  if (kept !== null && existsSync(kept)) return JSON.parse(readFileSync(kept, "utf8")) as Result;
   const output = execFileSync(REFERENCE_PYTHON, ["-c", program], {
-    input: JSON.stringify(input),
+    input: text,
     encoding: "utf8",
     maxBuffer: 512 * 1024 * 1024,
   });
+  if (kept !== null) {
+    mkdirSync(path.dirname(kept), { recursive: true });
+    writeFileSync(kept, output);
+  }
   return JSON.parse(output) as Result;
+}
+
+/**
+ * Where a reference is kept when PARTITA_REFERENCE_DIR names a folder (the mutation runs set it,
+ * vitest.mutation.config.mts): a mutant changes the code under test, not a reference's program or
+ * input, so each reference is computed once per scoring run instead of once per mutant. Keyed by
+ * the program and the whole input, so a different question never gets a kept answer.
+ */
+function keptReferencePath(program: string, input: string): string | null {
+  const folder = process.env.PARTITA_REFERENCE_DIR;
+  if (!folder) return null;
+  const key = createHash("sha256").update(program).update("\0").update(input).digest("hex");
+  return path.join(folder, `${key}.json`);
 }
 
 /**
