@@ -56,6 +56,7 @@ describe("readGivenWeights", () => {
         { classes: ["a", "b", "c"], features, weights: [[0, 0, 0]] },
         CLASSIFICATION,
       );
+      expect(error.problem).toBe("the reference weights are for other features");
       expect(error.column).toBe("features");
       expect(error.file).toBe("reference weights");
       expect(error.expected).toBe(
@@ -116,6 +117,7 @@ describe("readGivenWeights", () => {
         { classes: ["a", "b", "c"], features: ["x", "colour=red"], weights },
         CLASSIFICATION,
       );
+      expect(error.problem).toBe("the reference weights have the wrong shape");
       expect(error.column).toBe("weights");
       expect(error.expected).toBe("3 rows of 3 numbers (features, then the bias)");
     }
