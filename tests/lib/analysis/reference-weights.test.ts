@@ -78,6 +78,7 @@ describe("readGivenWeights", () => {
         shape,
         "w.json",
       );
+      expect(error.problem).toBe("the reference weights are for other classes");
       expect({ classes, column: error.column, file: error.file, expected: error.expected }).toEqual(
         {
           classes,
