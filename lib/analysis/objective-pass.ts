@@ -301,17 +301,11 @@ function accumulateSoftmaxBlock(
       loss += softmaxInPlace(scores, offset, classCount) - labelScore;
       if (!withGradient) continue;
       scores[label] -= 1;
-      if (withSquaredNorms && centres === null) {
-        squaredNorms += squaredResidualTimesRowNorm(
-          scores,
-          offset,
-          classCount,
-          x,
-          (row + k) * width,
-          width,
-        );
-      } else if (withSquaredNorms && centres !== null) {
-        const base = (row + k) * width;
+      if (!withSquaredNorms) continue;
+      const base = (row + k) * width;
+      if (centres === null) {
+        squaredNorms += squaredResidualTimesRowNorm(scores, offset, classCount, x, base, width);
+      } else {
         squaredNorms += squaredDeviation(scores, offset, classCount, x, base, centres.shard);
         pooledDeviations += squaredDeviation(scores, offset, classCount, x, base, centres.pooled);
       }
@@ -367,11 +361,13 @@ function accumulateSoftmaxBlock(
     loss += softmaxInPlace(scores, 0, classCount) - labelScore;
     if (!withGradient) continue;
     scores[label] -= 1;
-    if (withSquaredNorms && centres === null) {
-      squaredNorms += squaredResidualTimesRowNorm(scores, 0, classCount, x, base, width);
-    } else if (withSquaredNorms && centres !== null) {
-      squaredNorms += squaredDeviation(scores, 0, classCount, x, base, centres.shard);
-      pooledDeviations += squaredDeviation(scores, 0, classCount, x, base, centres.pooled);
+    if (withSquaredNorms) {
+      if (centres === null) {
+        squaredNorms += squaredResidualTimesRowNorm(scores, 0, classCount, x, base, width);
+      } else {
+        squaredNorms += squaredDeviation(scores, 0, classCount, x, base, centres.shard);
+        pooledDeviations += squaredDeviation(scores, 0, classCount, x, base, centres.pooled);
+      }
     }
     for (let c = 0; c < classCount; c++) {
       const residual = scores[c];
@@ -453,14 +449,16 @@ function accumulateLeastSquaresBlock(
     for (let j = 0; j < width; j++) residual += weights[j] * x[base + j];
     loss += 0.5 * residual * residual;
     if (!withGradient) continue;
-    if (withSquaredNorms && centres === null) {
-      let rowNorm = 0;
-      for (let j = 0; j < width; j++) rowNorm += x[base + j] * x[base + j];
-      squaredNorms += residual * residual * rowNorm;
-    } else if (withSquaredNorms && centres !== null) {
-      residuals[0] = residual;
-      squaredNorms += squaredDeviation(residuals, 0, 1, x, base, centres.shard);
-      pooledDeviations += squaredDeviation(residuals, 0, 1, x, base, centres.pooled);
+    if (withSquaredNorms) {
+      if (centres === null) {
+        let rowNorm = 0;
+        for (let j = 0; j < width; j++) rowNorm += x[base + j] * x[base + j];
+        squaredNorms += residual * residual * rowNorm;
+      } else {
+        residuals[0] = residual;
+        squaredNorms += squaredDeviation(residuals, 0, 1, x, base, centres.shard);
+        pooledDeviations += squaredDeviation(residuals, 0, 1, x, base, centres.pooled);
+      }
     }
     for (let j = 0; j < width; j++) gradient[j] += residual * x[base + j];
   }
