@@ -54,6 +54,49 @@ describe("SeededRandom (xoshiro128**)", () => {
     ]);
   });
 
+  it("turns two 32-bit draws into a double as CPython's random.random() does", () => {
+    // Outside reference: CPython's random.random() (genrand_res53: the top 27 bits of one 32-bit
+    // word and the top 26 of the next, over 2⁵³) fed the same words. Its Mersenne Twister state is
+    // set so that its next outputs are these words (each stored untempered; getrandbits(32) reads
+    // them back first, so a wrong untempering fails here rather than passing).
+    const source = new SeededRandom(42);
+    const words = Array.from({ length: 8 }, () => source.nextUint32());
+    const reference = runPythonJson<{ words: number[]; doubles: number[] }>(
+      `import json, random, sys
+words = json.load(sys.stdin)
+def untemper(y):
+    def right(y, s):
+        x = y
+        for _ in range(32 // s + 1): x = y ^ (x >> s)
+        return x
+    def left(y, s, mask):
+        x = y
+        for _ in range(32 // s + 1): x = (y ^ ((x << s) & mask)) & 0xFFFFFFFF
+        return x
+    return right(left(left(right(y, 18), 15, 0xEFC60000), 7, 0x9D2C5680), 11)
+state = (3, tuple([untemper(w) for w in words] + [0] * (624 - len(words)) + [0]), None)
+twister = random.Random(); twister.setstate(state)
+read_back = [twister.getrandbits(32) for _ in words]
+twister.setstate(state)
+print(json.dumps({"words": read_back, "doubles": [twister.random() for _ in range(len(words) // 2)]}))`,
+      words,
+    );
+    expect(reference.words).toEqual(words);
+    const random = new SeededRandom(42);
+    expect(Array.from({ length: 4 }, () => random.uniform())).toEqual(reference.doubles);
+  });
+
+  it("gives 0 for integer(1) and refuses n outside 1 … 2³²", () => {
+    const random = new SeededRandom(3);
+    expect(Array.from({ length: 5 }, () => random.integer(1))).toEqual([0, 0, 0, 0, 0]);
+    expect(() => random.integer(2 ** 32 + 1)).toThrow(
+      "integer(n) needs 1 ≤ n ≤ 2³², got 4294967297",
+    );
+    expect(() => random.integer(0.5)).toThrow("integer(n) needs 1 ≤ n ≤ 2³², got 0.5");
+    expect(() => random.integer(Number.NaN)).toThrow(RangeError);
+    expect(() => random.gamma(-1)).toThrow("gamma(shape) needs shape > 0, got -1");
+  });
+
   it("rejects the draws that would bias integer(n) towards small values (n = 3·2³⁰)", () => {
     // 2³² mod n = 2³⁰: plain `draw % n` would give each value below 2³⁰ twice as often as the
     // others, so P(value < 2³⁰) would be 1/2 instead of 1/3 (Lemire, "Fast random integer generation
