@@ -134,10 +134,25 @@ const NUMERIC_CSV = (() => {
   return `${lines.join("\n")}\n`;
 })();
 
+/**
+ * A text column with one level and missing values beside a numeric one: as many kept columns as
+ * feature columns read, the first a one-hot level, so the design is written anew, not in place.
+ */
+const ONE_LEVEL_CSV = (() => {
+  const random = seeded(23);
+  const lines = ["t,x,label,shard"];
+  for (let i = 0; i < 40; i++) {
+    const t = random() < 0.3 ? "" : "on";
+    const x = (random() * 8 - 2).toFixed(3);
+    lines.push([t, x, ["u", "v"][i % 2], i % 3 === 0 ? "q" : "p"].join(","));
+  }
+  return `${lines.join("\n")}\n`;
+})();
+
 let preprocessed: PreprocessReference[] | null = null;
 
 /** Both datasets through the reference pipeline, in one Python run (scikit-learn loads slowly). */
-function preprocessReference(which: "mixed" | "numeric"): PreprocessReference {
+function preprocessReference(which: "mixed" | "numeric" | "one-level"): PreprocessReference {
   preprocessed ??= runPythonJson<PreprocessReference[]>(PREPROCESS_PROGRAM, [
     {
       csv: MIXED_CSV,
@@ -155,8 +170,15 @@ function preprocessReference(which: "mixed" | "numeric"): PreprocessReference {
         ["b", "numeric"],
       ],
     },
+    {
+      csv: ONE_LEVEL_CSV,
+      columns: [
+        ["t", "categorical"],
+        ["x", "numeric"],
+      ],
+    },
   ]);
-  return preprocessed[which === "mixed" ? 0 : 1];
+  return preprocessed[["mixed", "numeric", "one-level"].indexOf(which)];
 }
 
 describe("a design beyond the memory limit", () => {
@@ -355,6 +377,22 @@ describe("encoding the design (methods.md §1) against pandas and scikit-learn",
       Array.from({ length: 100 }, (_, k) => design.x.data[Math.floor(k / 2) * width + (k % 2) + 1]),
       1e-15,
     );
+  });
+
+  it("writes the design anew when a one-hot level stands where a feature column was read", async () => {
+    const design = await encode(ONE_LEVEL_CSV);
+    const reference = preprocessReference("one-level");
+    expect(design.featureNames).toEqual(["t=on", "x"]);
+    expect(design.featureNames).toEqual(reference.names);
+    expect(Array.from(design.shardOffsets)).toEqual([...reference.offsets, 40]);
+    expectClose(design.x.data, reference.x, 1e-12);
+  });
+
+  it("puts the design in shared memory, so pass threads read it without a copy", async () => {
+    // Written anew (one-hot columns) and standardized in place (numbers only).
+    for (const csv of [MIXED_CSV, NUMERIC_CSV]) {
+      expect((await encode(csv)).x.data.buffer).toBeInstanceOf(SharedArrayBuffer);
+    }
   });
 
   it("writes a one-hot design of several 512-row blocks as NumPy computes it", async () => {
