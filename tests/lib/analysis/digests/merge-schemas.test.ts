@@ -79,16 +79,22 @@ type Reference = Pick<DigestEncoding, "rows" | "shardCount" | "task" | "classes"
 
 /**
  * The vega-datasets penguins (without their id) with a shard column of five shards by row index,
- * and three invented columns that exercise §1's rules: one constant, one all missing, and one text
- * column with 40 distinct values. The label's missing values (none here) would be dropped.
+ * and invented columns that exercise §1's rules: one constant, one all missing, a text column with
+ * 40 distinct values and one with exactly 32, one level in every row, a number missing in one
+ * shard, and a column of numbers for one client and text for the others (a text column pooled).
  */
 function penguinsCsv(): string {
   const records = loadPenguinsRecords();
   const names = Object.keys(records[0]);
-  const lines = [[...names, "shard", "constant", "empty", "code"].join(",")];
+  const extra = ["shard", "constant", "empty", "code", "kind", "partial", "mix", "code32"];
+  const lines = [[...names, ...extra].join(",")];
   records.forEach((record, i) => {
     const fields = names.map((name) => (record[name] === null ? "" : String(record[name])));
-    lines.push([...fields, `s${i % 5}`, "5", "", `k${i % 40}`].join(","));
+    const partial = i % 5 === 0 ? "" : String((i * 7) % 13);
+    const mix = i % 5 < 2 ? String(i % 3) : `t${i % 3}`;
+    lines.push(
+      [...fields, `s${i % 5}`, "5", "", `k${i % 40}`, "x", partial, mix, `c${i % 32}`].join(","),
+    );
   });
   return `${lines.join("\n")}\n`;
 }
@@ -171,8 +177,11 @@ describe("merging schema digests into the encoding (methods.md §1, §9)", () =>
     const csv = penguinsCsv();
     const { encoding } = await mergeSplit(csv, "Species");
     expectEncoding(encoding, reference(csv, "Species"));
-    expect(encoding.warnings).toContain('column "empty" has no values and was left out');
-    expect(encoding.warnings.some((w) => w.includes('column "code" is not numeric'))).toBe(true);
+    expect(encoding.kind).toBe("partita-encoding");
+    expect(encoding.warnings).toEqual([
+      'column "empty" has no values and was left out',
+      'column "code" is not numeric and has more than 32 distinct values; it was left out',
+    ]);
     // The identity of §9: the same encoding, hash included, from all rows as one client.
     const whole = mergeSchemaDigests([await schemaOf("all", csv, "Species")]);
     expect(whole).toEqual(encoding);
@@ -199,6 +208,47 @@ describe("merging schema digests into the encoding (methods.md §1, §9)", () =>
   });
 });
 
+/** 150 rows whose label takes, per client, the values first … first + count − 1 in turn. */
+function labelsPerClient(first: number[], count: number[]): string {
+  const lines = ["y,shard,x"];
+  for (let i = 0; i < 150; i++) {
+    const client = CLIENT_SHARDS.findIndex((shards) => shards.includes(`s${i % 5}`));
+    const value = first[client] + (Math.floor(i / 5) % count[client]);
+    lines.push(`${value},s${i % 5},${(i * 37) % 11}`);
+  }
+  return `${lines.join("\n")}\n`;
+}
+
+describe("the task from a numeric label's values over all clients (methods.md §1)", () => {
+  it("is regression past 20 values, though each client holds fewer, and classification at 20", async () => {
+    // Each client holds 10 values (each sends its counts); together 30.
+    const thirty = labelsPerClient([0, 10, 20], [10, 10, 10]);
+    const { encoding } = await mergeSplit(thirty, "y");
+    expect(encoding.task).toBe("regression");
+    expectEncoding(encoding, reference(thirty, "y"));
+    const twenty = labelsPerClient([0, 7, 14], [7, 7, 6]);
+    expect((await mergeSplit(twenty, "y")).encoding.task).toBe("classification");
+  });
+
+  it("warns when no feature column is left: only the bias", async () => {
+    const lines = ["y,shard,c"];
+    for (let i = 0; i < 60; i++) lines.push(`${i % 2 ? "a" : "b"},s${i % 5},5`);
+    const { encoding } = await mergeSplit(`${lines.join("\n")}\n`, "y");
+    expect(encoding.columns).toEqual([]);
+    expect(encoding.warnings).toEqual(["no usable feature columns: the model has only the bias"]);
+  });
+});
+
+/** The refusal `merge` throws (the test fails when it throws none). */
+function refusalOf(merge: () => unknown): unknown {
+  try {
+    merge();
+  } catch (error) {
+    return error;
+  }
+  throw new Error("no refusal");
+}
+
 describe("refusing schema digests that do not belong together (methods.md §9)", () => {
   async function twoClients(): Promise<SchemaDigest[]> {
     const csv = penguinsCsv();
@@ -210,27 +260,46 @@ describe("refusing schema digests that do not belong together (methods.md §9)",
 
   it("names the client, shard and what was expected", async () => {
     const [north, south] = await twoClients();
-    expect(() => mergeSchemaDigests([])).toThrow("no schema digests were given");
-    expect(() => mergeSchemaDigests([north, { ...south, client: "north" }])).toThrow(
-      'client "north" sent two schema digests',
-    );
-    expect(() => mergeSchemaDigests([north, { ...south, labelColumn: "Island" }])).toThrow(
-      'client "south" used the label column "Island"',
-    );
-    expect(() =>
-      mergeSchemaDigests([north, { ...south, features: [...south.features.slice(1), "other"] }]),
-    ).toThrow('client "south" has other feature columns');
+    expect(refusalOf(() => mergeSchemaDigests([]))).toMatchObject({
+      problem: "no schema digests were given",
+      expected: "one schema digest per client",
+    });
+    expect(
+      refusalOf(() => mergeSchemaDigests([north, { ...south, client: "north" }])),
+    ).toMatchObject({
+      problem: 'client "north" sent two schema digests',
+      expected: "one schema digest per client",
+    });
+    expect(
+      refusalOf(() => mergeSchemaDigests([north, { ...south, labelColumn: "Island" }])),
+    ).toMatchObject({
+      problem: 'client "south" used the label column "Island"',
+      column: "Island",
+      expected: 'the label column "Species"',
+    });
+    expect(
+      refusalOf(() =>
+        mergeSchemaDigests([north, { ...south, features: [...south.features.slice(1), "other"] }]),
+      ),
+    ).toMatchObject({
+      problem: 'client "south" has other feature columns',
+      expected: `the feature columns ${north.features.join(", ")}`,
+    });
     // The same features in another order agree.
     const reordered = { ...south, features: [...south.features].reverse() };
     expect(() => mergeSchemaDigests([north, reordered])).not.toThrow(/feature columns/);
     const twice = { ...south, shards: [{ ...south.shards[0], id: "s1" }] };
-    expect(() => mergeSchemaDigests([north, twice])).toThrow(
-      'shard "s1" was sent twice (by client "north" and by client "south")',
-    );
+    expect(refusalOf(() => mergeSchemaDigests([north, twice]))).toMatchObject({
+      problem: 'shard "s1" was sent twice (by client "north" and by client "south")',
+      expected: "every shard held by exactly one client",
+    });
     const few = { ...south, shards: [{ ...south.shards[0], rows: 12 }] };
-    expect(() => mergeSchemaDigests([north, few], { minimumShardRows: 13 })).toThrow(
-      'client "south", shard "s2" has 12 rows, under the minimum of 13',
-    );
+    expect(
+      refusalOf(() => mergeSchemaDigests([north, few], { minimumShardRows: 13 })),
+    ).toMatchObject({
+      problem: 'client "south", shard "s2" has 12 rows, under the minimum of 13',
+      expected: "at least 13 kept rows per shard",
+    });
     expect(() => mergeSchemaDigests([north, few], { minimumShardRows: 12 })).not.toThrow();
     const small = { ...south, shards: [{ ...south.shards[0], rows: 9 }] };
     expect(() => mergeSchemaDigests([north, small])).toThrow("under the minimum of 10");
@@ -238,7 +307,12 @@ describe("refusing schema digests that do not belong together (methods.md §9)",
 
   it("refuses one shard, one class, a text label for regression, a constant label and an unusable named feature", async () => {
     const [north, south] = await twoClients();
-    expect(() => mergeSchemaDigests([{ ...south }])).toThrow("the clients sent 1 shard");
+    expect(refusalOf(() => mergeSchemaDigests([{ ...south }]))).toMatchObject({
+      problem: "the clients sent 1 shard",
+      expected: "at least two shards over all clients",
+    });
+    // Two shards suffice (north holds two).
+    expect(mergeSchemaDigests([north]).shardCount).toBe(2);
     const adelie = (digest: SchemaDigest): SchemaDigest => ({
       ...digest,
       shards: digest.shards.map((shard) => ({
@@ -246,12 +320,34 @@ describe("refusing schema digests that do not belong together (methods.md §9)",
         label: { ...shard.label, levels: { Adelie: shard.rows } },
       })),
     });
-    expect(() => mergeSchemaDigests([adelie(north), adelie(south)])).toThrow(
-      'the label has a single class ("Adelie")',
-    );
-    expect(() => mergeSchemaDigests([north, south], { task: "regression" })).toThrow(
-      "regression needs a numeric label",
-    );
+    expect(refusalOf(() => mergeSchemaDigests([adelie(north), adelie(south)]))).toMatchObject({
+      problem: 'the label has a single class ("Adelie")',
+      column: "Species",
+      expected: "at least two classes",
+    });
+    // Two classes suffice; a level counted 0 times is no class.
+    const twoClasses = (digest: SchemaDigest): SchemaDigest => ({
+      ...digest,
+      shards: digest.shards.map((shard) => ({
+        ...shard,
+        label: { ...shard.label, levels: { Adelie: shard.rows - 1, Gentoo: 1, Chinstrap: 0 } },
+      })),
+    });
+    expect(mergeSchemaDigests([twoClasses(north), twoClasses(south)]).classes).toEqual([
+      "Adelie",
+      "Gentoo",
+    ]);
+    expect(
+      refusalOf(() => mergeSchemaDigests([north, south], { task: "regression" })),
+    ).toMatchObject({
+      problem: "regression needs a numeric label",
+      column: "Species",
+      expected: "a number on every kept row of every client",
+    });
+    // Numeric for one client is not numeric for all.
+    expect(() =>
+      mergeSchemaDigests([{ ...north, labelNumeric: true }, south], { task: "regression" }),
+    ).toThrow("regression needs a numeric label");
     const numericLabel = (digest: SchemaDigest, value: number): SchemaDigest => ({
       ...digest,
       labelNumeric: true,
@@ -266,19 +362,50 @@ describe("refusing schema digests that do not belong together (methods.md §9)",
         },
       })),
     });
-    expect(() =>
-      mergeSchemaDigests([numericLabel(north, 3), numericLabel(south, 3)], { task: "regression" }),
-    ).toThrow("the label is constant");
-    expect(() =>
-      mergeSchemaDigests([numericLabel(north, 3), numericLabel(south, 3)], {
-        task: "classification",
-      }),
-    ).toThrow("a client did not count the label's values");
+    expect(
+      refusalOf(() =>
+        mergeSchemaDigests([numericLabel(north, 3), numericLabel(south, 3)], {
+          task: "regression",
+        }),
+      ),
+    ).toMatchObject({
+      problem: "the label is constant",
+      column: "Species",
+      expected: "a label that varies",
+    });
+    expect(
+      refusalOf(() =>
+        mergeSchemaDigests([numericLabel(north, 3), numericLabel(south, 3)], {
+          task: "classification",
+        }),
+      ),
+    ).toMatchObject({
+      problem: "a client did not count the label's values",
+      column: "Species",
+      expected: "schema digests made with the task set to classification",
+    });
     // Over all five shards the invented "code" column has 40 values.
     const { digests } = await mergeSplit(penguinsCsv(), "Species");
     const named = (digest: SchemaDigest): SchemaDigest => ({ ...digest, featuresNamed: true });
-    expect(() => mergeSchemaDigests(digests.map(named))).toThrow(
-      "the feature is not numeric and has more than 32 distinct values over all clients",
+    expect(refusalOf(() => mergeSchemaDigests(digests.map(named)))).toMatchObject({
+      problem: "the feature is not numeric and has more than 32 distinct values over all clients",
+      column: "code",
+      expected: "numbers, or at most 32 distinct categories",
+    });
+    // A level a digest counts 0 times adds no column.
+    const withZero = digests.map((digest) => ({
+      ...digest,
+      shards: digest.shards.map((shard) => ({
+        ...shard,
+        columns: shard.columns.map((column, k) =>
+          digest.features[k] === "Sex"
+            ? { ...column, levels: { ...column.levels, none: 0 } }
+            : column,
+        ),
+      })),
+    }));
+    expect(mergeSchemaDigests(withZero).featureNames).toEqual(
+      mergeSchemaDigests(digests).featureNames,
     );
   });
 });
