@@ -55,7 +55,8 @@ describe("iid and stratified (exact checks of methods.md §8)", () => {
 
 describe("dirichlet(α)", () => {
   it("makes equal sizes (±1)", () => {
-    const rows = makeRows({ rows: 1001, classCount: 3 });
+    // 1003 = 10 · 100 + 3: three shards take one row more, and no row is left unplaced.
+    const rows = makeRows({ rows: 1003, classCount: 3 });
     const sizes = sizesOf(generateLayout({ generator: "dirichlet", alpha: 0.5 }, rows, 10, 2), 10);
     for (const size of sizes) expect([100, 101]).toContain(size);
   });
