@@ -9,7 +9,7 @@ import {
 } from "@/lib/analysis/simulation/batch-gradient";
 import { SeededRandom } from "@/lib/math/random";
 import { runPythonJson } from "./support/run-python";
-import { designOf, exportDesign, penguinsWithShards } from "./support/simulation-data";
+import { exportDesign, penguinDesigns } from "./support/simulation-data";
 
 const LAMBDA = 0.05;
 
@@ -41,10 +41,7 @@ let classification: Design;
 let regression: Design;
 
 beforeAll(async () => {
-  // Open data: the vega-datasets penguins, one shard per island.
-  const csv = penguinsWithShards((_, record) => record.Island);
-  classification = await designOf(csv, "Species");
-  regression = await designOf(csv, "Flipper Length (mm)", "regression");
+  ({ classification, regression } = await penguinDesigns());
 });
 
 /** Invented weights with entries of both signs, bias column included. */

@@ -8,7 +8,7 @@ import {
 } from "@/lib/analysis/simulation/run-algorithm";
 import { SeededRandom } from "@/lib/math/random";
 import { runPythonJson } from "./support/run-python";
-import { designOf, exportDesign, penguinsWithShards } from "./support/simulation-data";
+import { exportDesign, penguinDesigns } from "./support/simulation-data";
 
 /**
  * Outside reference: the three algorithms of methods.md §7 written out in NumPy/SciPy from the
@@ -99,10 +99,7 @@ let classification: Design;
 let regression: Design;
 
 beforeAll(async () => {
-  // Open data: the vega-datasets penguins, one shard per island (168, 124 and 52 rows).
-  const csv = penguinsWithShards((_, record) => record.Island);
-  classification = await designOf(csv, "Species");
-  regression = await designOf(csv, "Flipper Length (mm)", "regression");
+  ({ classification, regression } = await penguinDesigns());
 });
 
 afterEach(() => {

@@ -11,10 +11,12 @@ import {
   findColumnsNeedingAllRows,
   mergeSchemaDigests,
   readClientRows,
+  type DigestEncoding,
   type EvaluationRequest,
   type MeasurementRequest,
   type SchemaDigest,
 } from "@/lib/analysis/digests";
+import type { RawDataset } from "@/lib/analysis/read-dataset";
 import type { Task } from "@/lib/analysis/design";
 import { loadPenguinsCsv } from "../support/open-data";
 
@@ -106,6 +108,39 @@ function withoutUncounted(combined: SchemaDigest, whole: SchemaDigest): SchemaDi
   };
 }
 
+/** Passes over each part's rows and over the whole file's, all closed after `check`. */
+async function withPasses(
+  partRaws: RawDataset[],
+  wholeRaw: RawDataset,
+  encoding: DigestEncoding,
+  check: (partPasses: ClientPasses[], wholePasses: ClientPasses) => void,
+): Promise<void> {
+  const partPasses = partRaws.map((raw) => new ClientPasses(encodeClientRows(raw, encoding), 1));
+  const wholePasses = new ClientPasses(encodeClientRows(wholeRaw, encoding), 1);
+  try {
+    check(partPasses, wholePasses);
+  } finally {
+    await Promise.all([...partPasses, wholePasses].map((passes) => passes.close()));
+  }
+}
+
+/** The parts' round-2 digests, combined, equal the whole file's shard by shard. */
+function expectGradientsAddUp(
+  partPasses: ClientPasses[],
+  wholePasses: ClientPasses,
+  encoding: DigestEncoding,
+  request: MeasurementRequest,
+) {
+  const combined = combineGradientDigests(
+    "whole",
+    partPasses.map((passes) => computeGradientDigest("part", passes, encoding, request)),
+  );
+  expectSame(
+    byShard(combined),
+    byShard(computeGradientDigest("whole", wholePasses, encoding, request)),
+  );
+}
+
 describe("digests of a file's parts combined (methods.md §9)", () => {
   it("schema: the parts' digests combine into the whole file's, counts, moments, extremes and levels", async () => {
     const { parts, whole } = await partsAndWhole("Species");
@@ -183,17 +218,8 @@ describe("digests of a file's parts combined (methods.md §9)", () => {
       sample: null,
       hessian: true,
     };
-    const partPasses = partRaws.map((raw) => new ClientPasses(encodeClientRows(raw, encoding), 1));
-    const wholePasses = new ClientPasses(encodeClientRows(wholeRaw, encoding), 1);
-    try {
-      const combined = combineGradientDigests(
-        "whole",
-        partPasses.map((passes) => computeGradientDigest("part", passes, encoding, request)),
-      );
-      expectSame(
-        byShard(combined),
-        byShard(computeGradientDigest("whole", wholePasses, encoding, request)),
-      );
+    await withPasses(partRaws, wholeRaw, encoding, (partPasses, wholePasses) => {
+      expectGradientsAddUp(partPasses, wholePasses, encoding, request);
       expectSame(
         combineEvaluationSums(partPasses.map((passes) => passes.evaluate(evaluation))),
         wholePasses.evaluate(evaluation),
@@ -203,9 +229,7 @@ describe("digests of a file's parts combined (methods.md §9)", () => {
         combineEvaluationSums(partPasses.map((passes) => passes.evaluate(withoutHessian)))
           .hessianSum,
       ).toBeNull();
-    } finally {
-      await Promise.all([...partPasses, wholePasses].map((passes) => passes.close()));
-    }
+    });
   });
 
   it("regression: the target histograms of the parts add up cell by cell", async () => {
@@ -219,20 +243,9 @@ describe("digests of a file's parts combined (methods.md §9)", () => {
       referenceWeights: weights,
       pathEnd: weights,
     };
-    const partPasses = partRaws.map((raw) => new ClientPasses(encodeClientRows(raw, encoding), 1));
-    const wholePasses = new ClientPasses(encodeClientRows(wholeRaw, encoding), 1);
-    try {
-      const combined = combineGradientDigests(
-        "whole",
-        partPasses.map((passes) => computeGradientDigest("part", passes, encoding, request)),
-      );
-      expectSame(
-        byShard(combined),
-        byShard(computeGradientDigest("whole", wholePasses, encoding, request)),
-      );
-    } finally {
-      await Promise.all([...partPasses, wholePasses].map((passes) => passes.close()));
-    }
+    await withPasses(partRaws, wholeRaw, encoding, (partPasses, wholePasses) =>
+      expectGradientsAddUp(partPasses, wholePasses, encoding, request),
+    );
   });
 });
 

@@ -10,7 +10,7 @@ import {
 } from "@/lib/analysis/digests";
 import type { Task } from "@/lib/analysis/design";
 import { loadPenguinsRecords } from "../support/open-data";
-import { runPythonJson } from "../support/run-python";
+import { PYTHON_TOKEN_RULES, runPythonJson } from "../support/run-python";
 
 /**
  * The coordinator's merge of round 1 (methods.md §9) against pandas on the pooled rows: the
@@ -27,14 +27,7 @@ import numpy as np
 import pandas as pd
 d = json.load(sys.stdin)
 frame = pd.read_csv(io.StringIO(d["csv"]), dtype=str, keep_default_na=False)
-MISSING = {"", "na", "n/a", "nan", "null", "none"}
-def missing(token): return token.strip().lower() in MISSING
-def number(token):
-    try:
-        value = float(token)
-    except ValueError:
-        return None
-    return value if math.isfinite(value) else None
+${PYTHON_TOKEN_RULES}
 def numbers(tokens):
     values = [None if missing(t) else number(t) for t in tokens]
     ok = all(v is not None for v, t in zip(values, tokens) if not missing(t))

@@ -8,7 +8,7 @@ import {
 } from "@/lib/analysis/digests";
 import type { DatasetColumnChoice } from "@/lib/analysis/read-dataset";
 import { loadPenguinsCsv } from "../support/open-data";
-import { runPythonJson } from "../support/run-python";
+import { PYTHON_TOKEN_RULES, runPythonJson } from "../support/run-python";
 
 /**
  * Round 1 of methods.md §9 checked against pandas and math.fsum. Outside reference: the CSV read by
@@ -23,14 +23,7 @@ from collections import Counter
 import pandas as pd
 d = json.load(sys.stdin)
 frame = pd.read_csv(io.StringIO(d["csv"]), dtype=str, keep_default_na=False)
-MISSING = {"", "na", "n/a", "nan", "null", "none"}
-def missing(token): return token.strip().lower() in MISSING
-def number(token):
-    try:
-        value = float(token)
-    except ValueError:
-        return None
-    return value if math.isfinite(value) else None
+${PYTHON_TOKEN_RULES}
 total = len(frame)
 frame = frame[~frame[d["label"]].map(missing)]
 def describe(tokens, always_levels):

@@ -10,6 +10,21 @@ import path from "node:path";
 export const REFERENCE_PYTHON = "/usr/bin/python3";
 
 /**
+ * Methods.md §1's token rules in Python, for reference programs that read a CSV as text (they
+ * import math): `missing(token)` for the missing-value tokens (trimmed, any case) and `number(token)`
+ * for a finite number by Python's float(), None otherwise.
+ */
+export const PYTHON_TOKEN_RULES = `MISSING = {"", "na", "n/a", "nan", "null", "none"}
+def missing(token): return token.strip().lower() in MISSING
+def number(token):
+    try:
+        value = float(token)
+    except ValueError:
+        return None
+    return value if math.isfinite(value) else None
+`;
+
+/**
  * Runs a Python program with `/usr/bin/python3`, passes `input` as JSON on stdin and returns the JSON
  * the program prints. Used to compute reference values live with an outside library.
  */

@@ -46,6 +46,18 @@ export function designOf(csv: string, label: string, task?: Task): Promise<Desig
   return designFromText(csv, label, "part", task);
 }
 
+/**
+ * Open data: the vega-datasets penguins, one shard per island (168, 124 and 52 rows), as a
+ * classification design (the species) and a regression design (the flipper length).
+ */
+export async function penguinDesigns(): Promise<{ classification: Design; regression: Design }> {
+  const csv = penguinsWithShards((_, record) => record.Island);
+  return {
+    classification: await designOf(csv, "Species"),
+    regression: await designOf(csv, "Flipper Length (mm)", "regression"),
+  };
+}
+
 /** The design as plain arrays for a NumPy reference. */
 export function exportDesign(design: Design) {
   return {
