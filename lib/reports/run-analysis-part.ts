@@ -116,7 +116,11 @@ export async function runAnalysisPart(
     rows = new PartRowsThread(
       {
         name,
-        dataset,
+        // A gzip dataset's parts read its plain copy; messages still name the dataset.
+        dataset:
+          part.sourceObjectKey !== null && part.sourceSizeBytes !== null
+            ? { ...dataset, objectKey: part.sourceObjectKey, sizeBytes: part.sourceSizeBytes }
+            : dataset,
         range: { headerBytes: part.headerBytes, start: part.startByte, end: part.endByte },
         columns: {
           labelColumn: parameters.labelColumn,

@@ -22,6 +22,7 @@ export {
   abortMultipartUpload,
   completeMultipartUpload,
   createMultipartUpload,
+  putObjectFromStream,
   type UploadedPart,
 } from "./multipart";
 export { isStorageUnreachable } from "./unreachable";
