@@ -179,7 +179,8 @@ function sumOf<Item>(items: Item[], value: (item: Item) => number): number {
 /** The parts' counts of numbers and other values per column, summed; none if a part has none. */
 function combineValueKinds(parts: SchemaDigest[]): Pick<SchemaDigest, "columnsValueKinds"> {
   const counted = parts.map((part) => part.columnsValueKinds);
-  if (counted.some((kinds) => kinds === undefined)) return {};
+  // Stated as undefined, not left out: the first part's own counts are spread into the whole first.
+  if (counted.some((kinds) => kinds === undefined)) return { columnsValueKinds: undefined };
   return {
     columnsValueKinds: parts[0].features.map((_, k) => ({
       numbers: sumOf(counted, (kinds) => kinds![k].numbers),

@@ -18,7 +18,7 @@ import {
 } from "@/lib/analysis/digests";
 import type { RawDataset } from "@/lib/analysis/read-dataset";
 import type { Task } from "@/lib/analysis/design";
-import { loadPenguinsCsv } from "../support/open-data";
+import { loadPenguinsCsv, loadPenguinsRecords } from "../support/open-data";
 
 // The identity behind one analysis in parts (methods.md §9): every digest quantity is a count, a
 // sum, a minimum, a maximum or a second moment merged by Chan's update, so the digests of the parts
@@ -28,25 +28,45 @@ import { loadPenguinsCsv } from "../support/open-data";
 // The first part holds 15 Torgersen penguins: fewer than 21 distinct flipper lengths.
 const CUTS = [0, 15, 190, 344];
 
-/** The penguins' rows [from, to) as a CSV of their own, or all of them. */
-function penguinsRows(from = 0, to = 344): string {
-  const [header, ...lines] = loadPenguinsCsv().csv.trimEnd().split("\n");
+/** The penguins CSV's lines: the header, then one line per row. */
+function penguinsLines(): string[] {
+  return loadPenguinsCsv().csv.trimEnd().split("\n");
+}
+
+/** Data rows [from, to) of CSV lines as a CSV of their own. */
+function csvRows([header, ...lines]: string[], from: number, to: number): string {
   return `${[header, ...lines.slice(from, to)].join("\n")}\n`;
 }
 
-function readRows(csv: string, labelColumn: string) {
+function readRows(csv: string, labelColumn: string, shardColumn: string) {
   return readClientRows({
     data: Readable.from([Buffer.from(csv, "utf8")]),
     dataName: "penguins.csv",
-    columns: { labelColumn, shardColumn: "Island", idColumn: "row" },
+    columns: { labelColumn, shardColumn, idColumn: "row" },
   });
 }
 
-async function partsAndWhole(labelColumn: string, task?: Task) {
+interface PartsSource {
+  /** The file's lines (default: the penguins). */
+  lines?: string[];
+  /** The parts' first rows, then the end: the whole file is the rows from the first to the end. */
+  cuts?: number[];
+  shardColumn?: string;
+}
+
+async function partsAndWhole(
+  labelColumn: string,
+  task?: Task,
+  { lines = penguinsLines(), cuts = CUTS, shardColumn = "Island" }: PartsSource = {},
+) {
   const partRaws = await Promise.all(
-    CUTS.slice(1).map((to, k) => readRows(penguinsRows(CUTS[k], to), labelColumn)),
+    cuts.slice(1).map((to, k) => readRows(csvRows(lines, cuts[k], to), labelColumn, shardColumn)),
   );
-  const wholeRaw = await readRows(penguinsRows(), labelColumn);
+  const wholeRaw = await readRows(
+    csvRows(lines, cuts[0], cuts[cuts.length - 1]),
+    labelColumn,
+    shardColumn,
+  );
   // A part may hold a shard's few rows: the minimum applies to the combined shard.
   // Parts of one dataset also count each column's numbers and other values (§1's 95% rule).
   const options = { client: "part", task, minimumShardRows: 1, countValueKinds: true };
@@ -175,6 +195,56 @@ describe("digests of a file's parts combined (methods.md §9)", () => {
       ),
       byShard(forced.whole),
     );
+    // A part whose labels hold a word: by methods.md §1 the label is then not numeric.
+    const withWord = [parts[0], { ...parts[1], labelNumeric: false }, parts[2]];
+    expect(combineSchemaDigests("whole", withWord, undefined).labelNumeric).toBe(false);
+  });
+
+  it("schema with a numeric label: level counts as the whole file has them, whether every part counted or one stopped", async () => {
+    // The vega-datasets flipper lengths: rows 0–19 (all of Torgersen's there) hold 13 distinct
+    // values and rows 20–49 18, so both parts count; rows 20–67 hold 22, past the 20 a client
+    // counts. Rows 0–49 (22 values) and rows 0–67 (24) are past it as a whole.
+    for (const cuts of [
+      [0, 20, 50],
+      [0, 20, 68],
+    ]) {
+      const { parts, whole } = await partsAndWhole("Flipper Length (mm)", undefined, { cuts });
+      const counted = parts.map((part) =>
+        part.shards.every((shard) => shard.label.levels !== null),
+      );
+      expect(counted).toEqual([true, cuts[2] === 50]);
+      expect(whole.shards.every((shard) => shard.label.levels === null)).toBe(true);
+      expectSame(
+        byShard(withoutUncounted(combineSchemaDigests("whole", parts, undefined), whole)),
+        byShard(whole),
+      );
+    }
+  });
+
+  it("schema: a part with no values of a column in a shard's rows, and a shard with none at all", async () => {
+    // The vega-datasets penguins of rows 3 and 339 have no measurements. Row 3 gets a colony of
+    // its own ("Unmeasured"); row 339, on Biscoe, is a part of its own.
+    const records = loadPenguinsRecords();
+    const [header, ...lines] = penguinsLines();
+    const withColonies = [
+      `${header},Colony`,
+      ...lines.map((line, i) => `${line},${i === 3 ? "Unmeasured" : records[i].Island}`),
+    ];
+    const { parts, whole } = await partsAndWhole("Species", undefined, {
+      lines: withColonies,
+      cuts: [0, 3, 4, 339, 340, 344],
+      shardColumn: "Colony",
+    });
+    const beak = whole.features.indexOf("Beak Length (mm)");
+    expect(parts[3].shards.map((shard) => [shard.id, shard.columns[beak].present])).toEqual([
+      ["Biscoe", 0],
+    ]);
+    const unmeasured = whole.shards.find((shard) => shard.id === "Unmeasured")!;
+    expect(unmeasured.columns[beak]).toMatchObject({ present: 0, sum: null });
+    expectSame(
+      byShard(withoutUncounted(combineSchemaDigests("whole", parts, undefined), whole)),
+      byShard(whole),
+    );
   });
 
   it("schema: a column numeric in one part and not in another is not numeric; counts of a part that could not count are null", async () => {
@@ -196,6 +266,36 @@ describe("digests of a file's parts combined (methods.md §9)", () => {
     expect(dream.columns[sex].levels).toBeNull();
     expect(dream.columns[sex].sum).toBeNull();
     expect(combined.totalRows).toBe(344);
+
+    // A numeric column read as text in one part (a word among its values there): by methods.md §1
+    // not numeric over all rows, so no sums, though the other parts sent theirs.
+    const beak = parts[0].features.indexOf("Beak Length (mm)");
+    const textHere = {
+      ...parts[0],
+      columnsNumeric: parts[0].columnsNumeric.map((numeric, k) => numeric && k !== beak),
+      shards: parts[0].shards.map((shard) => ({
+        ...shard,
+        columns: shard.columns.map((column, k) =>
+          k === beak
+            ? { ...column, sum: null, sumSquaredDeviations: null, min: null, max: null }
+            : column,
+        ),
+      })),
+    };
+    const mixed = combineSchemaDigests("whole", [textHere, parts[1], parts[2]], undefined);
+    const torgersen = mixed.shards.find((shard) => shard.id === "Torgersen")!;
+    expect(mixed.columnsNumeric[beak]).toBe(false);
+    expect(torgersen.columns[beak]).toMatchObject({ sum: null, min: null, max: null });
+
+    // The counts of numbers and other values judge §1's 95% share over all rows: a part that did
+    // not count them (a client's digest leaves them out) leaves the whole without them.
+    const uncounted = { ...parts[2], columnsValueKinds: undefined };
+    for (const order of [
+      [uncounted, parts[1], parts[0]],
+      [parts[0], parts[1], uncounted],
+    ]) {
+      expect(combineSchemaDigests("whole", order, undefined).columnsValueKinds).toBeUndefined();
+    }
   });
 
   it("gradients and evaluations: the parts' sums add up to the whole file's", async () => {
@@ -292,14 +392,24 @@ describe("columns only a read of all rows can judge, from the parts' counts of n
   });
   const schemaOf = (featuresNamed: boolean) =>
     ({
-      features: ["bad-numbers", "mostly-text", "many-words", "mixed-category", "many-named"],
+      features: [
+        "bad-numbers",
+        "mostly-text",
+        "many-words",
+        "mixed-category",
+        "many-named",
+        "many-numbers",
+        "32-words",
+      ],
       featuresNamed,
-      columnsNumeric: [false, false, false, false, false],
+      columnsNumeric: [false, false, false, false, false, true, false],
       columnsValueKinds: [
         { numbers: 95, others: 5 },
         { numbers: 94, others: 6 },
         { numbers: 0, others: 100 },
         { numbers: 50, others: 50 },
+        { numbers: 0, others: 100 },
+        { numbers: 100, others: 0 },
         { numbers: 0, others: 100 },
       ],
       shards: [
@@ -319,6 +429,10 @@ describe("columns only a read of all rows can judge, from the parts' counts of n
             column(null),
             column({ "1": 50, b: 50 }),
             column(Object.fromEntries(Array.from({ length: 33 }, (_, k) => [`w${k}`, 3]))),
+            // A numeric column's levels are not counted past 32 values: its numbers judge it.
+            column(null),
+            // At most 32 distinct values are one-hot encoded (methods.md §1), named or not.
+            column(Object.fromEntries(Array.from({ length: 32 }, (_, k) => [`w${k}`, 3]))),
           ],
         },
       ],

@@ -21,29 +21,34 @@ import { compareSummaries, createTextClient, splitAmongClients } from "./support
 const PLAN = { localSteps: 10, rounds: 100, batchSize: 32 };
 
 /**
- * The penguins with a shard column (the row number mod 6; whole shards dealt to clients) and an
- * invented text column of 40 distinct values, which both sides leave out as having too many.
+ * The penguins with a shard column (the row number mod 6; whole shards dealt to clients, none for
+ * the rows in `unassigned`) and an invented text column of 40 distinct values, which both sides
+ * leave out as having too many.
  */
-function penguinsCsv(): string {
+function penguinsCsv(unassigned: ReadonlySet<number> = new Set()): string {
   const [header, ...lines] = loadPenguinsCsv().csv.trimEnd().split("\n");
-  const rows = lines.map((line, i) => `${line},p${i % 6},k${i % 40}`);
+  const rows = lines.map((line, i) => `${line},${unassigned.has(i) ? "" : `p${i % 6}`},k${i % 40}`);
   return `${[`${header},shard,code`, ...rows].join("\n")}\n`;
 }
 
-async function clientsFor(labelColumn: string, count: number): Promise<LocalDigestClient[]> {
-  const columns = { labelColumn, shardColumn: "shard", idColumn: "row" };
-  const parts = splitAmongClients(penguinsCsv(), "shard", count, 5);
-  return Promise.all(
-    parts.map((part, c) => createTextClient(`client-${c + 1}`, part, columns, { threads: 1 })),
-  );
+interface ClientsSetup {
+  csv: string;
+  labelColumn: string;
+  count: number;
+  dropUnassignedRows?: boolean;
 }
 
 async function withClients<Result>(
-  labelColumn: string,
-  count: number,
+  { csv, labelColumn, count, dropUnassignedRows }: ClientsSetup,
   body: (clients: LocalDigestClient[]) => Promise<Result>,
 ): Promise<Result> {
-  const clients = await clientsFor(labelColumn, count);
+  const columns = { labelColumn, shardColumn: "shard", idColumn: "row" };
+  const parts = splitAmongClients(csv, "shard", count, 5);
+  const clients = await Promise.all(
+    parts.map((part, c) =>
+      createTextClient(`client-${c + 1}`, part, columns, { threads: 1 }, { dropUnassignedRows }),
+    ),
+  );
   try {
     return await body(clients);
   } finally {
@@ -61,10 +66,14 @@ describe("the merged summary equals the central analysis (methods.md §9)", () =
       weights: optimum.model.optimum.weights.map((row) => row.map((v, j) => 0.5 * v - 0.02 * j)),
     };
     const central = await analyzeText(csv, { ...columns, reference: supplied });
-    const merged = await withClients("Species", 3, (clients) =>
+    const merged = await withClients({ csv, labelColumn: "Species", count: 3 }, (clients) =>
       analyzeFromDigests(clients, { lambda: 1e-3, reference: supplied, plan: PLAN }),
     );
     expect(compareSummaries(central, merged, false)).toEqual([]);
+    // The same notes as the central analysis (the left-out "code" column): W* was fitted and the
+    // labels are classes, so neither the stand-in point nor the histogram is noted.
+    expect(merged.preprocessing.warnings).toEqual(central.preprocessing.warnings);
+    expect(merged.digests?.missingClients).toEqual([]);
     expect(merged.preprocessing.omittedColumns).toContainEqual({
       column: "code",
       reason: "too-many-levels",
@@ -75,18 +84,32 @@ describe("the merged summary equals the central analysis (methods.md §9)", () =
     expect(merged.digests?.clients.reduce((rows, client) => rows + client.rows, 0)).toBe(344);
   });
 
-  it("least squares, 2 clients, at zero: equal but for the label skew from the 4096-cell histogram", async () => {
-    const csv = penguinsCsv();
-    const columns = { labelColumn: "Flipper Length (mm)", shardColumn: "shard", idColumn: "row" };
-    const central = await analyzeText(csv, { ...columns, reference: "zero" });
-    const merged = await withClients("Flipper Length (mm)", 2, (clients) =>
-      analyzeFromDigests(clients, { lambda: 1e-3, reference: "zero", plan: PLAN }),
+  it("least squares, 2 clients, at zero, 7 rows without a shard dropped: equal but for the label skew from the 4096-cell histogram", async () => {
+    // Rows with a flipper length (methods.md §1: only a row with a label can be unassigned).
+    const csv = penguinsCsv(new Set([7, 57, 107, 157, 207, 257, 307]));
+    const labelColumn = "Flipper Length (mm)";
+    const columns = { labelColumn, shardColumn: "shard", idColumn: "row" };
+    const dropUnassignedRows = true;
+    const central = await analyzeText(csv, { ...columns, reference: "zero", dropUnassignedRows });
+    const merged = await withClients(
+      { csv, labelColumn, count: 2, dropUnassignedRows },
+      (clients) => analyzeFromDigests(clients, { lambda: 1e-3, reference: "zero", plan: PLAN }),
     );
     expect(compareSummaries(central, merged, true)).toEqual([]);
+    expect(merged.preprocessing.droppedRowsUnassigned).toBe(7);
     expect(merged.digests?.labelSkewFromHistogram).toBe(true);
-    expect(
-      merged.preprocessing.warnings.some((warning) => warning.includes("4096-cell histogram")),
-    ).toBe(true);
+    const histogramNote = (warning: string) => warning.includes("4096-cell histogram");
+    expect(merged.preprocessing.warnings.some(histogramNote)).toBe(true);
+    expect(merged.preprocessing.warnings.filter((warning) => !histogramNote(warning))).toEqual(
+      central.preprocessing.warnings,
+    );
+    // The decile bins partition each shard's rows: its counts are rows, and add up to them.
+    merged.shards.forEach((shard, m) => {
+      expect(shard.labelCounts.every((count) => count >= 0)).toBe(true);
+      expect(shard.labelCounts.reduce((total, count) => total + count, 0)).toBe(
+        central.shards[m].rows,
+      );
+    });
     // The histogram's bins move only rows of the cells that hold a cut point.
     expect(Math.abs(merged.labelSkew.tv - central.labelSkew.tv)).toBeLessThan(0.02);
   });
@@ -94,7 +117,14 @@ describe("the merged summary equals the central analysis (methods.md §9)", () =
 
 describe("refusing gradient digests that do not belong together (methods.md §9)", () => {
   it("names the client and shard, and what was expected", async () => {
-    await withClients("Species", 2, async (clients) => {
+    const csv = penguinsCsv();
+    // The central analysis of the same rows, for the optimizer's tolerance (methods.md §2).
+    const central = await analyzeText(csv, {
+      labelColumn: "Species",
+      shardColumn: "shard",
+      idColumn: "row",
+    });
+    await withClients({ csv, labelColumn: "Species", count: 2 }, async (clients) => {
       const schemas = await Promise.all(clients.map((client) => client.schema()));
       const encoding = mergeSchemaDigests(schemas);
       const request = createMeasurementRequest(encoding, "zero", null);
@@ -108,7 +138,8 @@ describe("refusing gradient digests that do not belong together (methods.md §9)
           missingClients: ["late"],
         });
 
-      // Without a fit, the supplied point stands in for W*, and the report says so.
+      // Without a fit, the supplied point stands in for W*, and the report says so; the tolerance
+      // is still 1e-8·max(1, ‖∇F(0)‖) over all rows, as the central analysis states it.
       const summary = merge([first, second]);
       expect(
         summary.preprocessing.warnings.some((warning) => warning.includes("without a fit")),
@@ -118,44 +149,61 @@ describe("refusing gradient digests that do not belong together (methods.md §9)
         iterations: 0,
         evaluations: 0,
       });
+      const tolerance = central.model.optimizer.tolerance;
+      expect(Math.abs(summary.model.optimizer.tolerance - tolerance)).toBeLessThan(
+        1e-9 * tolerance,
+      );
       expect(summary.digests).toMatchObject({ fitted: false, missingClients: ["late"] });
       expect(summary.digests?.clients.map((client) => client.client)).toEqual([
         "client-1",
         "client-2",
       ]);
+      // Each client's shards in code-point order of their ids (methods.md §1), as sent or not.
+      const ids = second.shards.map((shard) => shard.id);
+      const reversed = { ...second, shards: [...second.shards].reverse() };
+      expect(merge([first, reversed]).digests?.clients[1].shards).toEqual([...ids].sort());
 
-      expect(() => merge([])).toThrow("no gradient digests were given");
+      // Each refusal's whole message: the problem, then what was expected.
+      expect(() => merge([])).toThrow(
+        "no gradient digests were given (expected one gradient digest per client)",
+      );
       expect(() => merge([first, { ...second, encodingHash: "0".repeat(64) }])).toThrow(
-        'client "client-2" sent digests for encoding 000000000000…',
+        `client "client-2" sent digests for encoding 000000000000…, not this analysis's ${encoding.hash.slice(0, 12)}… (expected digests computed with this analysis's encoding)`,
       );
       expect(() =>
         merge([first, { ...second, request: { ...second.request, encodingHash: "0".repeat(64) } }]),
       ).toThrow('client "client-2" sent digests for encoding');
       expect(() =>
         merge([first, { ...second, request: { ...request, reference: "given" } }]),
-      ).toThrow('client "client-2" measured at other points than client "client-1"');
+      ).toThrow(
+        'client "client-2" measured at other points than client "client-1" (expected every client\'s digest made for the same reference and path)',
+      );
       expect(() => merge([first, { ...second, client: "client-1" }])).toThrow(
-        'client "client-1" sent two gradient digests',
+        'client "client-1" sent two gradient digests (expected one gradient digest per client)',
       );
       const stolen = {
         ...second,
         shards: [{ ...second.shards[0], id: first.shards[0].id }, ...second.shards.slice(1)],
       };
       expect(() => merge([first, stolen])).toThrow(
-        `shard "${first.shards[0].id}" was sent twice (by client "client-1" and by client "client-2")`,
+        `shard "${first.shards[0].id}" was sent twice (by client "client-1" and by client "client-2") (expected every shard held by exactly one client)`,
       );
-      const small = {
-        ...second,
-        shards: [{ ...second.shards[0], rows: 9 }, ...second.shards.slice(1)],
-      };
+      const [head, next, ...others] = second.shards;
+      const small = { ...second, shards: [{ ...head, rows: 9 }, next, ...others] };
       expect(() => merge([first, small])).toThrow(
-        `client "client-2", shard "${second.shards[0].id}" has 9 rows, under the minimum of 10`,
+        `client "client-2", shard "${head.id}" has 9 rows, under the minimum of 10 (expected at least 10 kept rows per shard)`,
       );
+      // Exactly the minimum is enough (methods.md §9: fewer than 10 rows are refused).
+      const atMinimum = {
+        ...second,
+        shards: [{ ...head, rows: 10 }, { ...next, rows: next.rows + head.rows - 10 }, ...others],
+      };
+      expect(merge([first, atMinimum]).shards.find((shard) => shard.id === head.id)?.rows).toBe(10);
       expect(() => merge([first])).toThrow(
-        `the gradient digests cover ${first.shards.length} shards and ${first.shards.reduce((n, s) => n + s.rows, 0)} rows, round 1 had 6 shards and 344 rows`,
+        `the gradient digests cover ${first.shards.length} shards and ${first.shards.reduce((n, s) => n + s.rows, 0)} rows, round 1 had 6 shards and 344 rows (expected a gradient digest from every client of round 1)`,
       );
       // The rows of round 1 in 7 shards, then 6 shards with one row more.
-      const [head, ...rest] = second.shards;
+      const rest = second.shards.slice(1);
       const split = {
         ...second,
         shards: [{ ...head, rows: 20 }, { ...head, id: "extra", rows: head.rows - 20 }, ...rest],
@@ -165,49 +213,44 @@ describe("refusing gradient digests that do not belong together (methods.md §9)
       );
       const grown = { ...second, shards: [{ ...head, rows: head.rows + 1 }, ...rest] };
       expect(() => merge([first, grown])).toThrow("cover 6 shards and 345 rows");
+      // Methods.md §9's shapes: 5 path points, C×(d+1) gradient sums and d feature sums.
+      const d = encoding.featureNames.length;
       const shorter = {
         ...second,
-        shards: [
-          { ...second.shards[0], alongPath: second.shards[0].alongPath.slice(1) },
-          ...second.shards.slice(1),
-        ],
+        shards: [{ ...head, alongPath: head.alongPath.slice(1) }, ...rest],
       };
       expect(() => merge([first, shorter])).toThrow(
-        `client "client-2", shard "${second.shards[0].id}": the digest's sums have the wrong shape`,
+        `client "client-2", shard "${head.id}": the digest's sums have the wrong shape (expected 5 path points, gradients of ${3 * (d + 1)} numbers and ${d} feature sums)`,
       );
       const noNoise = {
         ...second,
         shards: [
-          {
-            ...second.shards[0],
-            atReference: { ...second.shards[0].atReference, squaredGradientNormSum: null },
-          },
-          ...second.shards.slice(1),
+          { ...head, atReference: { ...head.atReference, squaredGradientNormSum: null } },
+          ...rest,
         ],
       };
       expect(() => merge([first, noNoise])).toThrow("the digest's sums have the wrong shape");
       const narrow = {
         ...second,
-        shards: [
-          { ...second.shards[0], featureSums: second.shards[0].featureSums.slice(1) },
-          ...second.shards.slice(1),
-        ],
+        shards: [{ ...head, featureSums: head.featureSums.slice(1) }, ...rest],
       };
       expect(() => merge([first, narrow])).toThrow("the digest's sums have the wrong shape");
       const shortGradient = {
         ...second,
         shards: [
           {
-            ...second.shards[0],
-            alongPath: second.shards[0].alongPath.map((sums, t) =>
+            ...head,
+            alongPath: head.alongPath.map((sums, t) =>
               t === 4 ? { ...sums, gradientSum: sums.gradientSum.slice(1) } : sums,
             ),
           },
-          ...second.shards.slice(1),
+          ...rest,
         ],
       };
       expect(() => merge([first, shortGradient])).toThrow("the digest's sums have the wrong shape");
-      expect(() => merge([first, second], 7)).toThrow("the plan has 7 participants per round");
+      expect(() => merge([first, second], 7)).toThrow(
+        'column "participants": the plan has 7 participants per round (expected at most the number of shards (6))',
+      );
       expect(merge([first, second], 6).advice).toBeDefined();
     });
   });

@@ -32,11 +32,13 @@ export async function createTextClient(
   csv: string,
   columns: { labelColumn: string; shardColumn: string; idColumn?: string },
   options: ConstructorParameters<typeof LocalDigestClient>[2] = {},
+  { dropUnassignedRows = false }: { dropUnassignedRows?: boolean } = {},
 ): Promise<LocalDigestClient> {
   const raw = await readClientRows({
     data: Readable.from([Buffer.from(csv, "utf8")]),
     dataName: `${name}.csv`,
     columns,
+    dropUnassignedRows,
   });
   return new LocalDigestClient(name, raw, options);
 }
