@@ -1,5 +1,5 @@
 import { Readable } from "node:stream";
-import { describe, expect, it } from "vitest";
+import { describe, expect, it, vi } from "vitest";
 import {
   ClientPasses,
   computeSchemaDigest,
@@ -10,8 +10,10 @@ import {
   readClientRows,
   type EvaluationRequest,
 } from "@/lib/analysis/digests";
-import type { Task } from "@/lib/analysis/design";
-import type { Matrix } from "@/lib/math/matrix";
+import type { Design, Task } from "@/lib/analysis/design";
+import { fitReferenceModel } from "@/lib/analysis/fit-reference-model";
+import { PassPool } from "@/lib/analysis/pass-pool";
+import { matrixFromValues, type Matrix } from "@/lib/math/matrix";
 import { loadPenguinsCsv } from "../support/open-data";
 import { runPythonJson } from "../support/run-python";
 
@@ -159,11 +161,110 @@ describe("the pooled optimum fitted from the clients' sums (methods.md §2, §9)
       stride: 2,
       shardStarts: { Biscoe: 0, Dream: 168, Torgersen: 292 },
     });
-    expect(sampled.some((request) => request.hessian)).toBe(true);
+    // The rough solve's evaluations are sampled, and the preconditioner's Hessian is asked once,
+    // of the same subsample (fit-reference-model.ts's three steps).
+    expect(sampled.some((request) => !request.hessian)).toBe(true);
+    expect(requests.filter((request) => request.hessian)).toEqual([
+      expect.objectContaining({ sample: sampled[0].sample }),
+    ]);
   });
 
   it("least squares from the merged Σx̃x̃ᵀ: NumPy's normal equations", async () => {
     await checkFit("Body Mass (g)", "regression");
+  });
+
+  it("takes the central fit's steps on the same rows: its iterations, evaluations and points (methods.md §9)", async () => {
+    // methods.md §9: W* from digests is the §2 optimizer run on the coordinator, each evaluation a
+    // round. On the clients' rows pooled (344 penguins: no subsample) the central fit must ask for
+    // F and ∇F at the same points in the same order, and for the preconditioner's Hessian at the
+    // same point, as the pooled fit asks its rounds. Only the order of summation differs (a pass
+    // over the pooled rows against per-client sums merged), so the points agree to §9's 1e-9
+    // relative, and the counts exactly.
+    const { schemas, encoding, passes } = await twoClients("Species", "classification");
+    const pool = new PassPool(1);
+    try {
+      const designs = passes.map((client) => client.design);
+      const width = encoding.columns.length + 1;
+      const labels = Int32Array.from(designs.flatMap((design) => Array.from(design.labels!)));
+      const shardIds = designs.flatMap((design) => design.shardIds);
+      // Client 0 holds Biscoe, client 1 Dream and Torgersen: shards stay in code-point order.
+      const offsets = [0];
+      let before = 0;
+      for (const design of designs) {
+        for (const end of design.shardOffsets.subarray(1)) offsets.push(before + end);
+        before += design.x.rows;
+      }
+      const x = matrixFromValues(
+        labels.length,
+        width,
+        designs.flatMap((design) => Array.from((design.x as Matrix).data)),
+      );
+      const pooledDesign: Design = {
+        x,
+        task: "classification",
+        classes: encoding.classes,
+        labels,
+        targets: null,
+        skewCategories: labels,
+        skewCategoryCount: encoding.classes!.length,
+        shardIds,
+        shardOffsets: Int32Array.from(offsets),
+        featureNames: encoding.featureNames,
+        omittedColumns: [],
+        droppedRowsMissingLabel: 0,
+        droppedRowsUnassigned: 0,
+        badNumbersCountedMissing: [],
+        warnings: [],
+      };
+      const central = pool.share(pooledDesign, pooledDesign.shardOffsets);
+      const centralPoints: number[][] = [];
+      const centralHessianPoints: number[][] = [];
+      const evaluate = central.evaluate.bind(central);
+      vi.spyOn(central, "evaluate").mockImplementation((weights, withSquaredNorms, centres) => {
+        centralPoints.push(Array.from(weights));
+        return evaluate(weights, withSquaredNorms, centres);
+      });
+      const computeHessian = central.computeSoftmaxHessian.bind(central);
+      vi.spyOn(central, "computeSoftmaxHessian").mockImplementation((weights, lambda) => {
+        centralHessianPoints.push(Array.from(weights));
+        return computeHessian(weights, lambda);
+      });
+      const reference = fitReferenceModel(pooledDesign, central, central.computeGram(), LAMBDA);
+
+      const requests: EvaluationRequest[] = [];
+      const fit = await fitPooledOptimum(
+        encoding,
+        async (request) => {
+          requests.push(request);
+          return mergeEvaluationSums(passes.map((client) => client.evaluate(request)));
+        },
+        { lambda: LAMBDA, schemas },
+      );
+      expect(reference.converged).toBe(true);
+      expect(fit.iterations).toBe(reference.iterations);
+      expect(fit.evaluations).toBe(reference.evaluations);
+      // The central fit evaluates W = 0 for its tolerance and again as the rough solve's start,
+      // and the full solve's start again where the rough solve ended; a round is asked once.
+      const distinct = centralPoints.filter(
+        (point, k) =>
+          centralPoints.findIndex((other) => other.every((value, j) => value === point[j])) === k,
+      );
+      const scale = Math.max(...reference.weights.map(Math.abs));
+      const gapBetween = (a: number[], b: number[]) =>
+        Math.max(...a.map((value, j) => Math.abs(value - b[j]))) / scale;
+      const asked = requests.filter((request) => !request.hessian);
+      expect(asked.length).toBe(distinct.length);
+      const gaps = asked.map((request, k) => gapBetween(request.weights, distinct[k]));
+      expect(Math.max(...gaps)).toBeLessThan(1e-9);
+      const hessianRequests = requests.filter((request) => request.hessian);
+      expect(hessianRequests.length).toBe(1);
+      expect(centralHessianPoints.length).toBe(1);
+      expect(gapBetween(hessianRequests[0].weights, centralHessianPoints[0])).toBeLessThan(1e-9);
+      expect(gapBetween(Array.from(fit.weights), Array.from(reference.weights))).toBeLessThan(1e-9);
+    } finally {
+      await pool.close();
+      await Promise.all(passes.map((client) => client.close()));
+    }
   });
 
   it("a least-squares fit without the Gram matrix is a defect, said so", async () => {
