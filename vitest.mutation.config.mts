@@ -58,6 +58,7 @@ export default defineConfig({
       "tests/lib/analysis/digests/merge-gradients.test.ts",
       "tests/lib/analysis/digests/fit-pooled-optimum.test.ts",
       "tests/lib/analysis/digests/combine-parts.test.ts",
+      "tests/lib/analysis/digests/digest-format.test.ts",
       "tests/lib/analysis/simulation-batch-gradient.test.ts",
       "tests/lib/analysis/simulation-run-algorithm.test.ts",
       "tests/lib/analysis/simulation-cost.test.ts",
