@@ -5,7 +5,7 @@ import {
 } from "@aws-sdk/client-s3";
 import type { Readable } from "node:stream";
 import { Upload } from "@aws-sdk/lib-storage";
-import { storage } from "./client";
+import { storage, storageForLargeUploads } from "./client";
 
 /**
  * Large uploads go in parts: the server starts the upload, the browser PUTs each part to a
@@ -79,7 +79,7 @@ export async function putObjectFromStream(request: {
   contentType?: string;
   signal?: AbortSignal;
 }): Promise<void> {
-  const { client, bucket } = storage();
+  const { client, bucket } = storageForLargeUploads();
   const upload = new Upload({
     client,
     params: {
