@@ -18,24 +18,11 @@
  * `--workers`, never part of a plain run either, times one analysis of the 1M data by one worker
  * process pinned to a core against two pinned workers sharing it in parts (scripts/bench/bench-workers.ts);
  * `--workers-huge` does the same on the 10M data, the case the target (two ≥ 1.7× faster) is set on.
- * With `--gzip` either workers case runs on the same data gzip-compressed (`.csv.gz`, made once
- * beside the CSV), which the coordinator decompresses into a plain copy before the parts read it.
  */
 import { spawn } from "node:child_process";
-import {
-  createReadStream,
-  createWriteStream,
-  existsSync,
-  mkdirSync,
-  readFileSync,
-  renameSync,
-  statSync,
-  writeFileSync,
-} from "node:fs";
+import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from "node:fs";
 import { availableParallelism, loadavg } from "node:os";
 import path from "node:path";
-import { pipeline } from "node:stream/promises";
-import { createGzip } from "node:zlib";
 import { countAvailableThreads, type DigestEncoding, type PartitionSummary } from "../lib/analysis";
 import { splitBenchFile, timeDigestFit } from "./bench/bench-digests";
 import { benchWorkers } from "./bench/bench-workers";
@@ -179,19 +166,6 @@ async function prepareData(spec: BenchDataSpec, heading = ""): Promise<string> {
     `\n== ${heading}${spec.rows} rows × ${spec.features} features × ${spec.classes} classes, ${spec.shards} shards (${megabytes.toFixed(0)} MB)\n`,
   );
   return file;
-}
-
-/** The bench file gzip-compressed beside it (zlib's default level), made on the first call. */
-async function gzipped(file: string): Promise<string> {
-  const compressed = `${file}.gz`;
-  if (!existsSync(compressed)) {
-    process.stdout.write(`compressing into ${compressed} …\n`);
-    const partial = `${compressed}.partial`;
-    await pipeline(createReadStream(file), createGzip(), createWriteStream(partial));
-    renameSync(partial, compressed);
-  }
-  process.stdout.write(`gzip-compressed: ${(statSync(compressed).size / 2 ** 20).toFixed(0)} MB\n`);
-  return compressed;
 }
 
 /** The analyze CLI on a bench file, timed by the stages it reports on stderr. */
@@ -504,12 +478,11 @@ async function main(): Promise<void> {
   if (only === undefined || only === "--layouts") await benchLayouts(CASES[0]);
   if (only === "--huge") await benchHuge();
   // Never part of a plain run: they pin workers to both cores for minutes (10M: most of an hour).
-  if (only === "--workers" || only === "--workers-huge") {
-    const csv = await prepareData(
-      only === "--workers" ? CASES[1] : HUGE_CASE,
-      "workers, one analysis in parts: ",
-    );
-    await benchWorkers(root, process.argv.includes("--gzip") ? await gzipped(csv) : csv);
+  if (only === "--workers") {
+    await benchWorkers(root, await prepareData(CASES[1], "workers, one analysis in parts: "));
+  }
+  if (only === "--workers-huge") {
+    await benchWorkers(root, await prepareData(HUGE_CASE, "workers, one analysis in parts: "));
   }
 }
 

@@ -59,9 +59,6 @@ export interface PlannedPart {
   headerBytes: number;
   startByte: number;
   endByte: number;
-  /** The object read instead of the dataset's own (a gzip dataset's plain copy), with its size. */
-  sourceObjectKey?: string;
-  sourceSizeBytes?: number;
 }
 
 /**
@@ -385,12 +382,7 @@ export async function listAnalysisParts(
 ): Promise<
   Pick<
     AnalysisPartRow,
-    | "partIndex"
-    | "partCount"
-    | "attempts"
-    | "workerLosses"
-    | "rowsSpilledAtLimit"
-    | "sourceObjectKey"
+    "partIndex" | "partCount" | "attempts" | "workerLosses" | "rowsSpilledAtLimit"
   >[]
 > {
   return db()
@@ -400,7 +392,6 @@ export async function listAnalysisParts(
       attempts: analysisParts.attempts,
       workerLosses: analysisParts.workerLosses,
       rowsSpilledAtLimit: analysisParts.rowsSpilledAtLimit,
-      sourceObjectKey: analysisParts.sourceObjectKey,
     })
     .from(analysisParts)
     .where(eq(analysisParts.analysisId, analysisId))

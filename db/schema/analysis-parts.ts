@@ -29,13 +29,6 @@ export const analysisParts = pgTable(
     headerBytes: bigint("header_bytes", { mode: "number" }).notNull(),
     startByte: bigint("start_byte", { mode: "number" }).notNull(),
     endByte: bigint("end_byte", { mode: "number" }).notNull(),
-    /**
-     * The object the part's bytes are read from when it is not the dataset's own: the plain copy
-     * the coordinator made of a gzip dataset (compressed data reads only from its start). Null
-     * for the dataset itself.
-     */
-    sourceObjectKey: text("source_object_key"),
-    sourceSizeBytes: bigint("source_size_bytes", { mode: "number" }),
     /** Runs of the part's job that took it; more than one means it was redone. */
     attempts: integer("attempts").notNull().default(0),
     /** Times the part was taken over after the worker holding it stopped sending heartbeats. */

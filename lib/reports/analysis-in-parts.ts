@@ -10,7 +10,6 @@ import {
 import { recordReadWhole, type ClaimedAnalysis } from "@/db/queries/analyses";
 import {
   analyzeFromDigests,
-  detectTableFormat,
   findColumnsNeedingAllRows,
   mergeSchemaDigests,
   PartsConnection,
@@ -24,8 +23,6 @@ import type { AnalysisPartJob } from "@/lib/jobs";
 import { getObjectStream, isStorageUnreachable } from "@/lib/storage";
 import { PLAN_DEFAULTS } from "@/lib/validation/analysis-options";
 import { StorageUnreachableError, type EngineOutcome } from "./engine-thread";
-import type { StoredFile } from "./hashed-object";
-import { storePlainCopy } from "./plain-copy";
 import { runAnalysisPart } from "./run-analysis-part";
 import { storedDatasetBytes } from "./stored-dataset-bytes";
 import { PartFailedError, StoredPartConnection } from "./stored-part-connection";
@@ -82,11 +79,10 @@ const STAGE_OF_ROUND: Record<"schema" | "fit" | "gradients" | "merge", AnalysisS
 
 /**
  * The coordinating side of one analysis shared by several workers: cuts the stored dataset into
- * `count` parts (a CSV at line ends, a Parquet file by row groups, a gzip file's plain copy at line
- * ends), sends each part's job (any worker takes it, lib/reports/run-analysis-part.ts),
+ * `count` parts (a CSV at line ends, a Parquet file by row groups), sends each part's job (any worker takes it, lib/reports/run-analysis-part.ts),
  * and runs the federated coordinator's own analyzeFromDigests over the parts seen as one client
  * (PartsConnection), so the summary is the one-process summary (methods.md §9's equality).
- * Resolves null when the file cannot be cut (quoted fields, say) or the label turns out
+ * Resolves null when the file cannot be cut (gzip, quoted fields, say) or the label turns out
  * numeric: the caller then runs the analysis in one process, and the report says why.
  */
 export async function runAnalysisInParts(
@@ -112,78 +108,31 @@ async function coordinateParts(
   hooks: { signal: AbortSignal; onProgress(progress: AnalysisProgress): void },
 ): Promise<EngineOutcome | null> {
   const { dataset } = analysis;
-  const clock = createStageClock();
-  clock.enter("reading");
-  hooks.onProgress({ stage: "reading", fraction: 0 });
-  const copy = (await isGzip(dataset))
-    ? await storePlainCopy(
-        dataset,
-        { workspaceId: analysis.workspaceId, analysisId: analysis.id },
-        {
-          signal: hooks.signal,
-          // The parts' reads that follow report nothing until their digests come: the copy
-          // fills the first half of the reading bar.
-          onProgress: (fraction) => hooks.onProgress({ stage: "reading", fraction: fraction / 2 }),
-        },
-      )
-    : undefined;
-  // Data that cannot be decompressed: the one-process read reports it with its own message.
-  if (copy === null) return null;
+  const plan = await planDatasetParts(storedDatasetBytes(dataset), dataset.name, count);
+  // The report says why a file meant to be shared was read whole (a gzip file, say).
+  await recordReadWhole(analysis.workspaceId, analysis.id, plan.wholeBecause ?? null);
+  if (plan.parts.length < 2) return null;
+  const runId = randomUUID();
+  // Listening before the first question: every answer wakes the coordinator at once.
+  const answers = plan.parts.map(() => new Doorbell());
+  const stopListening = await Promise.all(
+    answers.map((bell, partIndex) =>
+      listenToPart(analysis.id, partIndex, ["answer", "state"], () => bell.ring()),
+    ),
+  );
   try {
-    const source = copy?.file ?? dataset;
-    if (copy) settings.log?.(`analysis ${analysis.id}: gzip data decompressed for its parts`);
-    const plan = await planDatasetParts(storedDatasetBytes(source), dataset.name, count);
-    // The report says why a file meant to be shared was read whole (quoted fields, say).
-    await recordReadWhole(analysis.workspaceId, analysis.id, plan.wholeBecause ?? null);
-    if (plan.parts.length < 2) return null;
-    const runId = randomUUID();
-    // Listening before the first question: every answer wakes the coordinator at once.
-    const answers = plan.parts.map(() => new Doorbell());
-    const stopListening = await Promise.all(
-      answers.map((bell, partIndex) =>
-        listenToPart(analysis.id, partIndex, ["answer", "state"], () => bell.ring()),
-      ),
-    );
-    try {
-      return await runParts(
-        analysis,
-        { plan, copy: copy?.file, clock },
-        runId,
-        answers,
-        settings,
-        hooks,
-      );
-    } finally {
-      for (const stop of stopListening) stop();
-    }
+    return await runParts(analysis, plan, runId, answers, settings, hooks);
   } finally {
-    await copy?.remove();
+    for (const stop of stopListening) stop();
   }
 }
-
-/** Whether the stored dataset is gzip-compressed, from its first bytes as the reader tells. */
-async function isGzip(dataset: StoredFile): Promise<boolean> {
-  const head = await storedDatasetBytes(dataset).read(0, GZIP_MAGIC_BYTES);
-  return detectTableFormat(head) === "csv.gz";
-}
-
-/** gzip's magic number is its first two bytes. */
-const GZIP_MAGIC_BYTES = 2;
 
 /** Looks for a part's answer again after this long without a notification. */
 const LOOK_AGAIN_MS = 1000;
 
 async function runParts(
   analysis: ClaimedAnalysis,
-  /**
-   * The parts, the plain copy they read when the dataset is gzip-compressed, and the clock of the
-   * run's stages, started before the copy was made.
-   */
-  {
-    plan,
-    copy,
-    clock,
-  }: { plan: DatasetPartPlan; copy: StoredFile | undefined; clock: StageClock },
+  plan: DatasetPartPlan,
   runId: string,
   answers: Doorbell[],
   settings: PartsSettings,
@@ -197,8 +146,6 @@ async function runParts(
       headerBytes: plan.headerBytes,
       startByte: part.start,
       endByte: part.end,
-      sourceObjectKey: copy?.objectKey,
-      sourceSizeBytes: copy?.sizeBytes,
     })),
   );
   const jobOf = (partIndex: number): AnalysisPartJob => ({
@@ -216,6 +163,7 @@ async function runParts(
   // Awaited once the summary is ready; a failure before then is the run's failure, not a crash.
   sha256.catch(() => undefined);
   const takeOver = takeOverWaitingParts(analysis.id, runId, jobOf, settings, hooks.signal);
+  const clock = createStageClock();
   const connections = plan.parts.map(
     (_, partIndex) =>
       new StoredPartConnection({
@@ -230,6 +178,8 @@ async function runParts(
   );
   const whole = new PartsConnection(dataset.name, connections, analysis.parameters.task);
   try {
+    clock.enter("reading");
+    hooks.onProgress({ stage: "reading", fraction: 0 });
     const schema = await whole.schema();
     // Methods.md §1's rule for numeric columns with bad values needs every row of the column.
     const needAllRows = findColumnsNeedingAllRows(schema);
@@ -365,8 +315,6 @@ async function hashObject(objectKey: string): Promise<string> {
   for await (const chunk of object.body as AsyncIterable<Buffer>) hash.update(chunk);
   return hash.digest("hex");
 }
-
-type StageClock = ReturnType<typeof createStageClock>;
 
 /** Seconds per stage, from each stage's first report to the next stage's. */
 function createStageClock() {

@@ -116,11 +116,7 @@ export async function runAnalysisPart(
     rows = new PartRowsThread(
       {
         name,
-        // A gzip dataset's parts read its plain copy; messages still name the dataset.
-        dataset:
-          part.sourceObjectKey !== null && part.sourceSizeBytes !== null
-            ? { ...dataset, objectKey: part.sourceObjectKey, sizeBytes: part.sourceSizeBytes }
-            : dataset,
+        dataset,
         range: { headerBytes: part.headerBytes, start: part.startByte, end: part.endByte },
         columns: {
           labelColumn: parameters.labelColumn,

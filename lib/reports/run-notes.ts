@@ -3,15 +3,14 @@ import { formatBytes } from "@/lib/uploads/file-rules";
 
 type PartRecord = Pick<
   AnalysisPartRow,
-  "partIndex" | "partCount" | "attempts" | "workerLosses" | "rowsSpilledAtLimit" | "sourceObjectKey"
+  "partIndex" | "partCount" | "attempts" | "workerLosses" | "rowsSpilledAtLimit"
 >;
 
 const TIMES = ["", "", "twice", "three times"];
 
 /**
  * What the report page says of how the analysis ran, where it ran differently from one process
- * with its rows in memory: read in parts by several workers (from a plain copy, for a gzip file;
- * and every part that was redone —
+ * with its rows in memory: read in parts by several workers (and every part that was redone —
  * after its worker stopped sending heartbeats, or after it was stopped or failed and its job was
  * retried — or whose rows went to a scratch file past its worker's memory limit), or its rows
  * kept in a scratch file past the memory limit, or read by one worker though meant to be shared
@@ -35,11 +34,6 @@ export function describeRun(run: {
   notes.push(
     `Read in ${run.parts[0].partCount} parts, each by whichever worker took it; the parts' sums were merged into this summary, which equals a one-process analysis of the same file.`,
   );
-  if (run.parts[0].sourceObjectKey !== null) {
-    notes.push(
-      "The file is gzip-compressed, and compressed data reads only from its start: it was decompressed once into a copy in storage, which the parts read and which was then deleted.",
-    );
-  }
   for (const part of run.parts) {
     if (part.rowsSpilledAtLimit !== null) {
       notes.push(

@@ -28,11 +28,7 @@ type StorageSettings = Pick<
  * frozen storage server costs a caller about two timeouts instead of hanging it. The wait is on
  * idleness, not on the whole transfer, so a large object that keeps flowing is never cut off.
  */
-export function createStorageTarget(
-  settings: StorageSettings,
-  /** The idle deadline, when a call may rightly wait longer than STORAGE_TIMEOUT_MS. */
-  idleTimeoutMs = settings.STORAGE_TIMEOUT_MS,
-): StorageTarget {
+export function createStorageTarget(settings: StorageSettings): StorageTarget {
   const client = new S3Client({
     region: settings.S3_REGION,
     endpoint: settings.S3_ENDPOINT,
@@ -46,7 +42,7 @@ export function createStorageTarget(
     maxAttempts: 2,
     requestHandler: {
       connectionTimeout: settings.STORAGE_TIMEOUT_MS,
-      socketTimeout: idleTimeoutMs,
+      socketTimeout: settings.STORAGE_TIMEOUT_MS,
     },
   });
   return { client, bucket: settings.S3_BUCKET };
@@ -58,23 +54,4 @@ let cached: StorageTarget | undefined;
 export function storage(): StorageTarget {
   cached ??= createStorageTarget(env());
   return cached;
-}
-
-/**
- * Finishing a multipart upload of many gigabytes can take minutes, with nothing to read until the
- * answer: S3 keeps the connection open meanwhile, and an S3-compatible server (the local fake)
- * may send nothing at all. Uploads of that size wait this long for the next bytes.
- */
-const LARGE_UPLOAD_IDLE_MS = 15 * 60_000;
-
-let cachedForLargeUploads: StorageTarget | undefined;
-
-/** The storage target for large multipart uploads: `storage()` with a longer idle deadline. */
-export function storageForLargeUploads(): StorageTarget {
-  const settings = env();
-  cachedForLargeUploads ??= createStorageTarget(
-    settings,
-    Math.max(settings.STORAGE_TIMEOUT_MS, LARGE_UPLOAD_IDLE_MS),
-  );
-  return cachedForLargeUploads;
 }

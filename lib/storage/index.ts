@@ -22,7 +22,6 @@ export {
   abortMultipartUpload,
   completeMultipartUpload,
   createMultipartUpload,
-  putObjectFromStream,
   type UploadedPart,
 } from "./multipart";
 export { isStorageUnreachable } from "./unreachable";

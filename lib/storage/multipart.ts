@@ -3,9 +3,7 @@ import {
   CompleteMultipartUploadCommand,
   CreateMultipartUploadCommand,
 } from "@aws-sdk/client-s3";
-import type { Readable } from "node:stream";
-import { Upload } from "@aws-sdk/lib-storage";
-import { storage, storageForLargeUploads } from "./client";
+import { storage } from "./client";
 
 /**
  * Large uploads go in parts: the server starts the upload, the browser PUTs each part to a
@@ -66,39 +64,4 @@ export async function abortMultipartUpload(request: {
       UploadId: request.uploadId,
     }),
   );
-}
-
-/**
- * Stores a stream of unknown length (a file decompressed on the way, say) as one object, in parts
- * uploaded as the stream fills them: a single PUT needs the length first and takes at most 5 GB.
- * A failed or aborted upload drops the parts stored so far.
- */
-export async function putObjectFromStream(request: {
-  key: string;
-  body: Readable;
-  contentType?: string;
-  signal?: AbortSignal;
-}): Promise<void> {
-  const { client, bucket } = storageForLargeUploads();
-  const upload = new Upload({
-    client,
-    params: {
-      Bucket: bucket,
-      Key: request.key,
-      Body: request.body,
-      ContentType: request.contentType,
-    },
-    // 16 MB parts, two in flight: about 32 MB of memory, and 10 000 parts reach 160 GB.
-    partSize: 16 * 1024 * 1024,
-    queueSize: 2,
-    leavePartsOnError: false,
-  });
-  const abort = () => void upload.abort();
-  request.signal?.addEventListener("abort", abort, { once: true });
-  try {
-    request.signal?.throwIfAborted();
-    await upload.done();
-  } finally {
-    request.signal?.removeEventListener("abort", abort);
-  }
 }

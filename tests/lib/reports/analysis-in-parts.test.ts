@@ -18,9 +18,7 @@ import { analysisParts, reports } from "@/db/schema";
 import { analyzePartition, type PartitionSummary } from "@/lib/analysis";
 import { startBoss } from "@/lib/jobs";
 import { describeRun } from "@/lib/reports/run-notes";
-import { plainCopyKey } from "@/lib/reports/plain-copy";
 import { runAnalysis } from "@/lib/reports/run-analysis";
-import { headObject } from "@/lib/storage";
 import {
   expectOneProcessSummary,
   sendPartsTo,
@@ -190,42 +188,17 @@ describe("one analysis shared by several workers", () => {
     }
   }, 600_000);
 
-  it("shares a gzip file through a plain copy it deletes after, with the CSV's summary", async () => {
+  it("reads a gzip file whole, and the report page says why", async () => {
     const job = await queueDigitsAnalysis(gzipSync(CSV), "digits.csv.gz");
     const run = await runAnalysis(job, { willRetry: true, parts: partsSettings(3) });
     expect(run.outcome).toBe("succeeded");
     expectOneProcessSummary(await storedSummary(job.analysisId), await analyzeInOneProcess());
-    const copyKey = plainCopyKey(job.workspaceId, job.analysisId);
     const parts = await listAnalysisParts(job.analysisId);
-    expect(parts.map((part) => part.sourceObjectKey)).toEqual([copyKey, copyKey, copyKey]);
-    // The copy holds the CSV's bytes: its size is the CSV's, and the parts cover it.
-    const ranges = await db()
-      .select({ size: analysisParts.sourceSizeBytes, end: analysisParts.endByte })
-      .from(analysisParts)
-      .where(eq(analysisParts.analysisId, job.analysisId))
-      .orderBy(analysisParts.partIndex);
-    const csvBytes = Buffer.byteLength(CSV);
-    expect(ranges.map((range) => range.size)).toEqual([csvBytes, csvBytes, csvBytes]);
-    expect(ranges.at(-1)?.end).toBe(csvBytes);
-    expect(await headObject(copyKey)).toBeUndefined();
+    expect(parts).toEqual([]);
     const circumstances = await findRunCircumstances(job.workspaceId, job.analysisId);
     expect(describeRun({ parts, ...circumstances })).toEqual([
-      expect.stringMatching(/^Read in 3 parts/),
-      "The file is gzip-compressed, and compressed data reads only from its start: it was decompressed once into a copy in storage, which the parts read and which was then deleted.",
+      "Read by one worker, not shared among several: the file is gzip-compressed, and compressed data can only be read from its start.",
     ]);
-  }, 600_000);
-
-  it("reads whole a gzip file whose data breaks off, with the one-process message", async () => {
-    const compressed = gzipSync(CSV);
-    const job = await queueDigitsAnalysis(compressed.subarray(0, compressed.length >> 1), "cut.csv.gz");
-    const run = await runAnalysis(job, { willRetry: true, parts: partsSettings(3) });
-    // The message a one-process read gives (tests/lib/analysis/table-formats.test.ts).
-    expect(run).toMatchObject({
-      outcome: "failed",
-      message: expect.stringMatching(/cut\.csv\.gz: the gzip data cannot be decompressed/),
-    });
-    expect(await listAnalysisParts(job.analysisId)).toEqual([]);
-    expect(await headObject(plainCopyKey(job.workspaceId, job.analysisId))).toBeUndefined();
   }, 600_000);
 
   it("redoes the part of a worker killed in the middle, and ends with one report", async () => {
