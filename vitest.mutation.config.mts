@@ -5,7 +5,7 @@ import base from "./vitest.config.mjs";
 
 // The tests `npm run mutation` runs against each mutant (stryker.config.json): the unit tests of
 // lib/math, of the engine's statistics, objective, fit and advice, of the summary's assembly, of the
-// readers and the encoder, of the input rules (tokens, quoting, sizes, order, options, given
+// readers (whole files in each format too) and the encoder, of the input rules (tokens, quoting, sizes, order, options, given
 // weights) and the row store and its memory limit, of the advice's figures, of the layout generators, and the focused
 // tests of the digests and the simulation, which need no database and take seconds (the layout
 // planner's own tests and the digests' equality test run whole analyses and are left out).
@@ -46,6 +46,8 @@ export default defineConfig({
       "tests/lib/analysis/memory-limit.test.ts",
       "tests/lib/analysis/chunked-arrays.test.ts",
       "tests/lib/analysis/row-store.test.ts",
+      "tests/lib/analysis/table-reader.test.ts",
+      "tests/lib/analysis/table-formats.test.ts",
       "tests/lib/analysis/layouts/generators.test.ts",
       "tests/lib/analysis/layouts/generator-specs.test.ts",
       "tests/lib/analysis/layouts/group-balanced.test.ts",
