@@ -48,6 +48,8 @@ export default defineConfig({
       "tests/lib/analysis/row-store.test.ts",
       "tests/lib/analysis/table-reader.test.ts",
       "tests/lib/analysis/table-formats.test.ts",
+      "tests/lib/analysis/parquet-reader.test.ts",
+      "tests/lib/uploads/table-preview.test.ts",
       "tests/lib/analysis/layouts/generators.test.ts",
       "tests/lib/analysis/layouts/generator-specs.test.ts",
       "tests/lib/analysis/layouts/group-balanced.test.ts",

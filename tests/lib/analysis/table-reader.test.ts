@@ -313,6 +313,19 @@ describe("gzip-compressed CSV", () => {
 });
 
 describe("Parquet", () => {
+  it("removes the temporary copy of a streamed file", async () => {
+    // os.tmpdir() follows TMPDIR, so the copy is made in a folder of this test's own.
+    const previous = process.env.TMPDIR;
+    process.env.TMPDIR = mkdtempSync(inFolder("tmp-"));
+    try {
+      expectReferenceRows(await read(Readable.from([parquetBytes]), "table.parquet"));
+      expect(readdirSync(process.env.TMPDIR)).toEqual([]);
+    } finally {
+      if (previous === undefined) delete process.env.TMPDIR;
+      else process.env.TMPDIR = previous;
+    }
+  });
+
   it("reads the same rows from a local file, a stream and parts cut by row groups", async () => {
     expectReferenceRows(await read({ path: inFolder("table.parquet") }, "table.parquet"));
     expectReferenceRows(await read(streamPieces(parquetBytes, [2, 5000]), "table.parquet"));
