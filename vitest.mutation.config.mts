@@ -50,6 +50,8 @@ export default defineConfig({
       "tests/lib/analysis/table-formats.test.ts",
       "tests/lib/analysis/parquet-reader.test.ts",
       "tests/lib/uploads/table-preview.test.ts",
+      "tests/lib/analysis/read-dataset.test.ts",
+      "tests/lib/analysis/dataset-rows.test.ts",
       "tests/lib/analysis/layouts/generators.test.ts",
       "tests/lib/analysis/layouts/generator-specs.test.ts",
       "tests/lib/analysis/layouts/group-balanced.test.ts",
