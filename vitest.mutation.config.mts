@@ -5,9 +5,9 @@ import base from "./vitest.config.mjs";
 
 // The tests `npm run mutation` runs against each mutant (stryker.config.json): the unit tests of
 // lib/math, of the engine's statistics, objective, fit and advice, of the summary's assembly, of the
-// readers and the encoder, of the input rules (tokens, quoting, sizes, order, options, given
-// weights) and the row store and its memory limit, of the input errors' layout and the default
-// thread counts, of the advice's figures, of the layout generators, and the focused
+// readers (whole files in each format too) and the encoder, of the input rules (tokens, quoting,
+// sizes, order, options, given weights) and the row store and its memory limit, of the input
+// errors' layout and the default thread counts, of the advice's figures, of the layout generators, and the focused
 // tests of the digests and the simulation, which need no database and take seconds (the layout
 // planner's own tests and the digests' equality test run whole analyses and are left out).
 // Modules that run inside worker threads are not mutated: a mutant is
@@ -49,6 +49,12 @@ export default defineConfig({
       "tests/lib/analysis/row-store.test.ts",
       "tests/lib/analysis/errors.test.ts",
       "tests/lib/analysis/choose-threads.test.ts",
+      "tests/lib/analysis/table-reader.test.ts",
+      "tests/lib/analysis/table-formats.test.ts",
+      "tests/lib/analysis/parquet-reader.test.ts",
+      "tests/lib/uploads/table-preview.test.ts",
+      "tests/lib/analysis/read-dataset.test.ts",
+      "tests/lib/analysis/dataset-rows.test.ts",
       "tests/lib/analysis/layouts/generators.test.ts",
       "tests/lib/analysis/layouts/generator-specs.test.ts",
       "tests/lib/analysis/layouts/group-balanced.test.ts",
