@@ -25,13 +25,27 @@ interface ReadResult {
   progress: number[];
 }
 
+/** Yields each piece on an event-loop turn of its own, as a file read in several reads arrives. */
+async function* onSeparateTurns(pieces: Buffer[]): AsyncGenerator<Buffer> {
+  for (const piece of pieces) {
+    yield piece;
+    await new Promise((resolve) => setImmediate(resolve));
+  }
+}
+
 async function readText(
   pieces: string[],
   {
     part,
     choice,
     firstRowIndex,
-  }: { part?: CsvPartOptions; choice?: CsvFormatChoice; firstRowIndex?: number } = {},
+    separateTurns = false,
+  }: {
+    part?: CsvPartOptions;
+    choice?: CsvFormatChoice;
+    firstRowIndex?: number;
+    separateTurns?: boolean;
+  } = {},
 ): Promise<ReadResult> {
   const result: ReadResult = {
     header: null,
@@ -41,8 +55,9 @@ async function readText(
     count: 0,
     progress: [],
   };
+  const buffers = pieces.map((piece) => Buffer.from(piece, "utf8"));
   result.count = await readCsvStream(
-    Readable.from(pieces.map((piece) => Buffer.from(piece, "utf8"))),
+    Readable.from(separateTurns ? onSeparateTurns(buffers) : buffers),
     "data.csv",
     {
       onHeader(columns, format) {
@@ -100,11 +115,19 @@ describe("reading CSV text (methods.md §1)", () => {
     for (const [index, { text, sep }] of texts.entries()) {
       const reference = references[index];
       expect(reference.rows).toHaveLength(4);
-      for (const size of [text.length, 7]) {
-        const pieces = Array.from({ length: Math.ceil(text.length / size) }, (_, k) =>
+      // Pieces arriving together are relayed as one text; pieces arriving on separate event-loop
+      // turns (here one per CRLF line end) as several.
+      const piecesOf = (size: number) =>
+        Array.from({ length: Math.ceil(text.length / size) }, (_, k) =>
           text.slice(k * size, (k + 1) * size),
         );
-        const read = await readText(pieces);
+      const deliveries: [pieces: string[], separateTurns: boolean][] = [
+        [[text], false],
+        [piecesOf(7), false],
+        [text.split(/(?<=\r\n)/), true],
+      ];
+      for (const [pieces, separateTurns] of deliveries) {
+        const read = await readText(pieces, { separateTurns });
         expect(read.header).toEqual(reference.header);
         expect(read.rows).toEqual(reference.rows);
         expect(read.indices).toEqual([0, 1, 2, 3]);
