@@ -39,7 +39,7 @@ describe("Lloyd iterations", () => {
     }
   });
 
-  it("give ml-kmeans's centres on seeded data in 31 dimensions, unconverged after 100 iterations", () => {
+  it("give ml-kmeans's centres on seeded data in 31 dimensions, after 41 iterations", () => {
     const random = new SeededRandom(5);
     const width = 31;
     const values = Float64Array.from({ length: 4000 * width }, () => random.normal());
