@@ -60,6 +60,7 @@ export default defineConfig({
       "tests/lib/analysis/layouts/group-balanced.test.ts",
       "tests/lib/analysis/layouts/layout-pieces.test.ts",
       "tests/lib/analysis/layouts/lloyd-iterations.test.ts",
+      "tests/lib/analysis/layouts/seed-centres.test.ts",
       "tests/lib/analysis/digests/histogram-deciles.test.ts",
       "tests/lib/analysis/digests/schema-digest.test.ts",
       "tests/lib/analysis/digests/merge-schemas.test.ts",

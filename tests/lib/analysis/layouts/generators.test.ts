@@ -7,7 +7,12 @@ import {
 } from "@/lib/analysis/layouts/generators";
 import { formatShardId } from "@/lib/analysis/layouts/layout-rows";
 import { fnv1a32 } from "@/lib/analysis/layouts/split-by-group";
-import { seedCentres } from "@/lib/analysis/layouts/split-clusters";
+import { onThisThread, type ShareKMeansRows } from "@/lib/analysis/layouts/kmeans-steps";
+import {
+  CLUSTER_SAMPLE_ROWS,
+  seedCentres,
+  splitClusters,
+} from "@/lib/analysis/layouts/split-clusters";
 import { SeededRandom } from "@/lib/math/random";
 import { measureLabelSkew } from "@/lib/analysis/measure-label-skew";
 import { measureQuantitySkew } from "@/lib/analysis/measure-quantity-skew";
@@ -208,6 +213,40 @@ describe("clusters", () => {
     );
     expect([...blobs].sort()).toEqual([0, 1, 2, 3]);
     expect(seedCentres(values, 2, 4, new SeededRandom(3))).toEqual(centres);
+  });
+
+  // methods.md §8: k-means is fitted on a sample of at most 50,000 rows, then every row is placed.
+  // The steps are handed the rows they run on, so their counts show which rows each step saw.
+  it("fits k-means on 50,000 of 50,001 rows and places all of them", () => {
+    const rows = makeRows({ rows: CLUSTER_SAMPLE_ROWS + 1, classCount: 2, width: 1 });
+    const counted: number[] = [];
+    const share: ShareKMeansRows = (matrix) => {
+      counted.push(matrix.rows);
+      return onThisThread(matrix);
+    };
+    const assignment = splitClusters(rows, 2, new SeededRandom(4), share);
+    expect(CLUSTER_SAMPLE_ROWS).toBe(50_000);
+    expect(counted).toEqual([50_000, 50_000, 50_001]); // the start, Lloyd's steps, the placement
+    expect(assignment.length).toBe(50_001);
+  });
+
+  // methods.md §8: an empty cluster is an error that suggests a smaller M. Rows that are all alike
+  // give k-means++ two equal starting centres, and every row goes to the lower one.
+  it("refuses a layout with an empty cluster, suggesting a smaller M", () => {
+    const rows = makeRows({ rows: 30, classCount: 2, width: 2 });
+    for (let row = 0; row < 30; row++) rows.features.data.fill(0.5, row * 3, row * 3 + 2);
+    const refusal = (() => {
+      try {
+        generateLayout({ generator: "clusters" }, rows, 2, 1);
+      } catch (error) {
+        return error;
+      }
+    })();
+    expect(refusal).toBeInstanceOf(AnalysisInputError);
+    expect((refusal as AnalysisInputError).problem).toBe(
+      "clusters: k-means left cluster 2 of 2 empty",
+    );
+    expect((refusal as AnalysisInputError).expected).toMatch(/a smaller M$/);
   });
 
   it("refuses features that are only the bias", () => {

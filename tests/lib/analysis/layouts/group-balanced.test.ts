@@ -79,6 +79,112 @@ describe("group-balanced (methods.md §8)", () => {
     expect(checked).toBeGreaterThan(50);
   });
 
+  // methods.md §8's procedure written out in Python (Debian's python3 with NumPy and SciPy): J from
+  // SciPy's `jensenshannon` (squared: the JS of §4 in nats) and the population CV of the sizes, each
+  // sum taken exactly (math.fsum, statistics.pstdev) so that shards tied in J stay tied; the greedy
+  // by decreasing group size under the (1 + tol)·N/M cap (none fits: the smallest shard), then at
+  // most 20 passes of single-group moves and pair swaps that lower J by more than 10⁻¹²·max(1, J),
+  // ties to the lowest index. The generator must place every group where this does. tol = 0 leaves
+  // the larger groups no shard under the cap, so the smallest-shard rule is exercised too.
+  it.each([
+    [7, 1, 0.1],
+    [9, 1, 0.1],
+    [7, 0.05, 0.1],
+    [8, 1, 0],
+    [10, 3, 0.3],
+  ])(
+    "places every group where methods.md's procedure in Python does (seed %s, μ = %s, tol = %s)",
+    (seed, sizeWeight, tolerance) => {
+      const rows = makeRows({ rows: 900, classCount: 3, groupCount: 24, seed });
+      const M = 5;
+      const balanced = splitGroupBalanced(rows, M, { sizeWeight, tolerance });
+      const shardOfGroup = Array.from(shardsPerGroup(rows, balanced), (shards) => [...shards]);
+      const expected = runPythonJson<number[]>(
+        `import json, math, statistics, sys
+import numpy as np
+from scipy.spatial.distance import jensenshannon
+given = json.load(sys.stdin)
+M, mu, tol = given["shards"], given["sizeWeight"], given["tolerance"]
+groups, classes = np.array(given["groups"]), np.array(given["classes"])
+counts = np.zeros((groups.max() + 1, given["classCount"]))
+np.add.at(counts, (groups, classes), 1)
+group_sizes = counts.sum(axis=1)
+pooled = counts.sum(axis=0) / len(classes)
+def objective(shards):
+    sizes = [float(row.sum()) for row in shards]
+    placed = math.fsum(sizes)
+    if placed == 0:
+        return 0.0
+    js = math.fsum(size * jensenshannon(row / size, pooled) ** 2 for row, size in zip(shards, sizes) if size > 0)
+    return js / placed + mu * statistics.pstdev(sizes) / (placed / M)
+order = sorted(range(len(group_sizes)), key=lambda g: (-group_sizes[g], g))
+shards = np.zeros((M, counts.shape[1]))
+shard_of = [-1] * len(group_sizes)
+cap = (1 + tol) * len(classes) / M
+for g in order:
+    best, best_j = -1, math.inf
+    for m in range(M):
+        if shards[m].sum() + group_sizes[g] > cap:
+            continue
+        trial = shards.copy()
+        trial[m] += counts[g]
+        j = objective(trial)
+        if j < best_j:
+            best, best_j = m, j
+    if best < 0:
+        best = int(np.argmin(shards.sum(axis=1)))
+    shards[best] += counts[g]
+    shard_of[g] = best
+def apply(changes):
+    for g, target in changes:
+        shards[shard_of[g]] -= counts[g]
+        shards[target] += counts[g]
+    for g, target in changes:
+        shard_of[g] = target
+def priced(changes):
+    trial = shards.copy()
+    for g, target in changes:
+        trial[shard_of[g]] -= counts[g]
+        trial[target] += counts[g]
+    return objective(trial)
+for _ in range(20):
+    moved = False
+    for g in order:
+        now = objective(shards)
+        floor = now - 1e-12 * max(1, now)
+        source = shard_of[g]
+        best, best_j = None, math.inf
+        if shards[source].sum() > group_sizes[g]:
+            for target in range(M):
+                if target != source:
+                    j = priced([(g, target)])
+                    if j < best_j:
+                        best, best_j = [(g, target)], j
+        if best is None or best_j >= floor:
+            for h in order:
+                if shard_of[h] != source:
+                    j = priced([(g, shard_of[h]), (h, source)])
+                    if j < best_j:
+                        best, best_j = [(g, shard_of[h]), (h, source)], j
+        if best is not None and best_j < floor:
+            apply(best)
+            moved = True
+    if not moved:
+        break
+print(json.dumps(shard_of))`,
+        {
+          shards: M,
+          sizeWeight,
+          tolerance,
+          classCount: rows.classCount,
+          classes: Array.from(rows.classes),
+          groups: Array.from(rows.groups as Int32Array),
+        },
+      );
+      expect(shardOfGroup).toEqual(expected.map((shard) => [shard]));
+    },
+  );
+
   // Outside check: scikit-learn's StratifiedGroupKFold(n_splits=M, shuffle=True, random_state=s)
   // (Debian's python3-sklearn), its folds used as shards, five shuffles each. Data: scikit-learn's
   // bundled breast cancer set (UCI Wisconsin diagnostic, 569 rows, 2 classes) with groups of 15 rows

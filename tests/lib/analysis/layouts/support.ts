@@ -1,5 +1,6 @@
 import type { LayoutRows } from "@/lib/analysis/layouts/layout-rows";
 import { SeededRandom } from "@/lib/math/random";
+import { loadPenguinsRecords } from "../support/open-data";
 
 /**
  * Seeded synthetic rows for the generators: `classCount` classes with unequal pooled shares
@@ -68,4 +69,27 @@ export function shardsPerGroup(rows: LayoutRows, assignment: Int32Array): Set<nu
   const seen = rows.groupIds.map(() => new Set<number>());
   (rows.groups as Int32Array).forEach((g, row) => seen[g].add(assignment[row]));
   return seen;
+}
+
+/**
+ * Open data: the penguins of the vega-datasets npm package (BSD-3-Clause; Gorman, Williams &
+ * Fraser 2014), the four body measurements of the complete rows, each standardized (population
+ * deviation), row-major with 4 numbers a row.
+ */
+export function standardizedPenguinMeasurements(): { values: Float64Array; width: number } {
+  const columns = ["Beak Length (mm)", "Beak Depth (mm)", "Flipper Length (mm)", "Body Mass (g)"];
+  const records = loadPenguinsRecords().filter((record) =>
+    columns.every((column) => typeof record[column] === "number"),
+  );
+  const width = columns.length;
+  const values = new Float64Array(records.length * width);
+  columns.forEach((column, j) => {
+    const measured = records.map((record) => record[column] as number);
+    const mean = measured.reduce((a, b) => a + b, 0) / measured.length;
+    const deviation = Math.sqrt(
+      measured.reduce((a, b) => a + (b - mean) ** 2, 0) / measured.length,
+    );
+    measured.forEach((value, row) => (values[row * width + j] = (value - mean) / deviation));
+  });
+  return { values, width };
 }
