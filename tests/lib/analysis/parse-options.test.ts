@@ -5,15 +5,13 @@ import { describe, expect, it } from "vitest";
 import { AnalysisInputError } from "@/lib/analysis";
 import { parseOptions } from "@/lib/analysis/parse-options";
 import type { AnalysisOptionsInput } from "@/lib/validation/analysis-options";
+import { inputErrorOf } from "./support/input-error";
 
 function refusal(options: unknown): AnalysisInputError {
-  try {
-    parseOptions(options as AnalysisOptionsInput);
-  } catch (error) {
-    if (error instanceof AnalysisInputError) return error;
-    throw error;
-  }
-  throw new Error(`accepted ${JSON.stringify(options)}`);
+  return inputErrorOf(
+    () => parseOptions(options as AnalysisOptionsInput),
+    `accepted ${JSON.stringify(options)}`,
+  );
 }
 
 describe("parseOptions", () => {

@@ -7,6 +7,7 @@ import { BIAS_NAME } from "@/lib/analysis/design";
 import { readGivenWeights, type WeightShape } from "@/lib/analysis/reference-weights";
 import type { ReferenceWeights } from "@/lib/validation/analysis-options";
 import { runPythonJson } from "./support/run-python";
+import { inputErrorOf } from "./support/input-error";
 
 const CLASSIFICATION: WeightShape = {
   featureNames: ["x", "colour=red"],
@@ -16,13 +17,7 @@ const CLASSIFICATION: WeightShape = {
 const REGRESSION: WeightShape = { featureNames: ["x"], classes: null, width: 2 };
 
 function refusal(given: ReferenceWeights, shape: WeightShape, file?: string): AnalysisInputError {
-  try {
-    readGivenWeights(given, shape, file);
-  } catch (error) {
-    if (error instanceof AnalysisInputError) return error;
-    throw error;
-  }
-  throw new Error("accepted");
+  return inputErrorOf(() => readGivenWeights(given, shape, file), "accepted");
 }
 
 describe("readGivenWeights", () => {

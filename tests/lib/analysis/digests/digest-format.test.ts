@@ -9,6 +9,7 @@ import {
 import { parseDigest } from "@/lib/analysis/digests/parse-digest";
 import { AnalysisInputError } from "@/lib/analysis/errors";
 import { runPythonJson } from "../support/run-python";
+import { inputErrorOf } from "../support/input-error";
 
 /** A well-formed round-1 digest of one client with two shards (methods.md §9's fields). */
 function schemaDigest() {
@@ -44,13 +45,10 @@ function schemaDigest() {
 
 /** The AnalysisInputError `parseDigest` throws for `document`, read as a schema digest. */
 function refusal(document: unknown, file?: string): AnalysisInputError {
-  try {
-    parseDigest(document, schemaDigestSchema, "schema digest", file);
-  } catch (error) {
-    if (error instanceof AnalysisInputError) return error;
-    throw error;
-  }
-  throw new Error("the document was accepted");
+  return inputErrorOf(
+    () => parseDigest(document, schemaDigestSchema, "schema digest", file),
+    "the document was accepted",
+  );
 }
 
 describe("a digest document's hash (SHA-256 of its canonical JSON, quoted by every later digest)", () => {

@@ -11,16 +11,11 @@ import {
   type LayoutSpec,
 } from "@/lib/analysis/layouts/generators";
 import { makeRows } from "./support";
+import { inputErrorOf } from "../support/input-error";
 
 /** The error a parse throws, for its message and `expected` field. */
 function parseError(text: string): AnalysisInputError {
-  try {
-    parseLayoutSpec(text);
-  } catch (error) {
-    if (error instanceof AnalysisInputError) return error;
-    throw error;
-  }
-  throw new Error(`"${text}" parsed`);
+  return inputErrorOf(() => parseLayoutSpec(text), `"${text}" parsed`);
 }
 
 describe("layout specs: names, recorded parameters, defaults", () => {
